@@ -1,0 +1,48 @@
+package partition
+
+import "github.com/paulmach/orb"
+
+// Region is one face of the cleaned planar partition of the study area.
+type Region struct {
+	// ID is stable for the same input and options: regions are numbered
+	// from 1 in a deterministic order.
+	ID int
+	// Polygon is in WGS84 longitude/latitude; the exterior ring is
+	// counter-clockwise, holes clockwise (RFC 7946).
+	Polygon orb.Polygon
+	// AreaKM2 and PerimeterKM are measured in the local planar projection.
+	AreaKM2     float64
+	PerimeterKM float64
+	// Point is a representative point guaranteed to lie inside Polygon.
+	Point orb.Point
+	// BorderRoads lists the names (or refs) of the roads along the border,
+	// longest shared length first.
+	BorderRoads []BorderRoad
+	// Neighbours lists the regions sharing a border, by ascending ID.
+	Neighbours []Neighbour
+}
+
+// BorderRoad is a named road along a region's border.
+type BorderRoad struct {
+	Name     string
+	LengthKM float64
+}
+
+// Neighbour is a region sharing a border of positive length.
+type Neighbour struct {
+	ID       int
+	SharedKM float64
+}
+
+// Partition is the output of the partition step.
+type Partition struct {
+	// Source names the input file (base name) it was built from.
+	Source string
+	// Bound is the study area in WGS84.
+	Bound orb.Bound
+	// Regions are ordered by ID (1..n).
+	Regions []Region
+	// Warnings are notes for the user (for example, study area taken from
+	// the data extent).
+	Warnings []string
+}

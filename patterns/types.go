@@ -1,0 +1,138 @@
+package patterns
+
+import "narrows/skyline"
+
+// EdgeKey is a directed region pair.
+type EdgeKey struct{ From, To int }
+
+// DaySelector filters the days of a period.
+type DaySelector string
+
+const (
+	AllDays  DaySelector = "all"
+	Weekdays DaySelector = "weekdays"
+	Weekends DaySelector = "weekends"
+)
+
+// ScanOptions selects the days and thresholds of a scan.
+type ScanOptions struct {
+	From, To string // inclusive local days YYYY-MM-DD; empty = store's first/last day
+	Window   string // time window name; empty = the store's first window
+	Days     DaySelector
+	Exclude  []string // days to leave out (holidays, incidents)
+	Skyline  skyline.Options
+	// Support is the share of analysed days on which a group must recur
+	// (default 0.2).
+	Support float64
+	// MaxGroupEdges caps the number of edges in a group (default 6).
+	MaxGroupEdges int
+	// ReferenceSpeed in m/s against which extra vehicle-hours are counted
+	// (default 30 km/h).
+	ReferenceSpeed float64
+}
+
+// DailyValue is one edge on one analysed day.
+type DailyValue struct {
+	Day         string
+	Trips       int
+	Speed       float64 // median, m/s
+	Detour      float64 // median
+	Candidate   bool    // a skyline candidate that day
+	DistanceSum float64 // metres
+	StraightSum float64 // metres
+	DurationSum float64 // seconds
+}
+
+// FindingEdge is one directed edge of a finding with its medians over the
+// finding's days.
+type FindingEdge struct {
+	From, To     int
+	TripsMedian  float64
+	SpeedMedian  float64 // m/s
+	DetourMedian float64
+	// ExtraKMPerDay: median over the finding's days of
+	// (travel distance - straight-line distance) summed over trips, km.
+	ExtraKMPerDay float64
+	// ExtraHoursPerDay: median over the finding's days of vehicle-hours
+	// beyond those at the reference speed over the straight-line distance.
+	ExtraHoursPerDay float64
+	// Daily holds every analysed day on which the edge had trips.
+	Daily []DailyValue
+}
+
+// Finding is a closed connected group of candidate edges recurring on at
+// least the support share of the analysed days.
+type Finding struct {
+	Rank    int    // 1 = highest cost
+	ID      string // stable key built from the edges, e.g. "12>15+15>18"
+	Regions []int  // ascending
+	Edges   []FindingEdge
+	Days    []string // days on which all edges were candidates together
+	Share   float64  // len(Days) / analysed days
+	// Costs: sums over edges of the per-edge medians.
+	ExtraKMPerDay    float64
+	ExtraHoursPerDay float64
+}
+
+// Scan is the result of scanning one period.
+type Scan struct {
+	Options ScanOptions
+	Window  string
+	// Days are the analysed days, ascending.
+	Days []string
+	// CandidatesPerDay is the number of candidates on each analysed day.
+	CandidatesPerDay []int
+	// DayCandidates holds the candidate edges of each analysed day (same
+	// order as Days), each sorted by From, To.
+	DayCandidates [][]EdgeKey
+	// EdgeDaily holds, for every edge that was a candidate on at least one
+	// analysed day, its values on every analysed day it had trips, by day.
+	// Iterate in sorted key order for deterministic output.
+	EdgeDaily map[EdgeKey][]DailyValue
+	Findings  []Finding
+}
+
+// Verdict is the outcome of comparing a finding across two periods.
+type Verdict string
+
+const (
+	Cleared   Verdict = "cleared"   // recurred before, no longer recurs
+	Eased     Verdict = "eased"     // still recurs, significantly faster or less circuitous
+	Unchanged Verdict = "unchanged" // no significant change
+	Worse     Verdict = "worse"     // significantly slower, more circuitous or more frequent
+	New       Verdict = "new"       // recurs only after
+)
+
+// Shift is a Mann-Whitney U test with the Hodges-Lehmann shift (after minus
+// before) and its 95 % confidence interval.
+type Shift struct {
+	Before, After []float64 // daily values
+	U             float64   // statistic of the after sample
+	P             float64   // two-sided
+	PAdjusted     float64   // Benjamini-Hochberg across findings
+	Shift         float64   // Hodges-Lehmann estimate, after - before
+	Low, High     float64   // 95 % confidence interval of Shift
+}
+
+// Assessment is one finding's verdict with its evidence.
+type Assessment struct {
+	Finding           Finding // from the before scan when present there, else after
+	Verdict           Verdict
+	InBefore, InAfter bool
+	// Recurrence: days on which the group recurred / analysed days.
+	DaysBefore, TotalBefore  int
+	DaysAfter, TotalAfter    int
+	FisherP, FisherPAdjusted float64
+	Speed                    Shift  // daily trip-weighted median speed of the finding's edges, m/s
+	Detour                   Shift  // daily median detour of the finding's edges
+	Focus                    bool   // within the focus area
+	Reason                   string // one sentence: why this verdict
+}
+
+// Comparison is the before/after study.
+type Comparison struct {
+	Before, After *Scan
+	Assessments   []Assessment // ordered by verdict severity then rank
+	Counts        map[Verdict]int
+	Alpha         float64 // significance level after adjustment (default 0.05)
+}
