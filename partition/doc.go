@@ -1,10 +1,64 @@
-// Package partition splits an OpenStreetMap extract into regions bounded by
-// major roads and barriers.
+// Package partition splits the study area of an OpenStreetMap extract into
+// regions bounded by major roads and barriers.
 //
-// In: an OSM extract (PBF, or XML plain, gzip or bzip2; the format is detected
-// from the bytes) and Options (road classes, barriers, study area, snap
-// tolerance, sliver thresholds).
-// Out: a Partition, the regions that tile the study area, each with a stable
-// id, its polygon in WGS84, area, perimeter, a representative point inside it,
-// the roads along its border and its neighbours.
+// In: an OSM extract (PBF, or XML plain, gzip- or bzip2-compressed; the
+// format is detected from the bytes, not the file name) and Options: the
+// highway classes and barriers that bound regions, the study area, the
+// snap tolerance and the sliver thresholds (see DefaultOptions).
+// Out: a Partition, the regions that tile the study rectangle without gaps
+// or overlaps, each with a stable id, its polygon in WGS84, area,
+// perimeter, a representative point inside it, the roads along its border
+// by shared length and its neighbours with the shared border length.
+// WriteGeoJSON and ReadGeoJSON store a Partition as an RFC 7946
+// FeatureCollection.
+//
+// # Method
+//
+// Build reads the file in one pass, keeping the chosen ways and a compact
+// record (16 bytes, coordinates at OSM's resolution of 1e-7°) of every
+// node, so that any reader works and a 50 MB PBF needs a few hundred MB at
+// most. A way that refers to nodes the file
+// lacks (cut off at the extract's edge) keeps each run of two or more
+// consecutive present nodes as a line of its own.
+//
+// The study area is Options.BBox, else the bounds in the file's header,
+// else, with a warning, the extent of the chosen lines. Lines are
+// projected with a local equirectangular projection about the study
+// area's centre (x = R·cos φ0·Δλ, y = R·Δφ, R = 6371008.8 m). Over a city
+// or a small country (the projection is refused beyond 10°) its scale
+// error stays well under 0.5 % for areas, it keeps the study rectangle a
+// rectangle, so that clipping is exact, and it is the projection of the
+// reference faces the tests compare with.
+//
+// Projected coordinates are rounded to a 1 µm grid, so every orientation
+// test is exact in integer arithmetic. Lines are clipped to the study
+// rectangle and the rectangle's boundary is added. Noding splits every
+// segment at every crossing, at every end point that lies on another
+// segment (T-junctions with or without a shared node, overlaps) and
+// dissolves duplicate pieces; a uniform grid of segment boxes keeps it
+// near linear. The faces of the noded arrangement come from a half-edge
+// structure: dangles (edges with an end of degree one, repeatedly) and cut
+// edges (the same face on both sides) bound nothing and are dropped, and
+// a component that lies inside a face (an island) becomes a hole of the
+// smallest face containing it. In exact mode (Options.Exact) these faces
+// are the regions.
+//
+// Cleaning, in default mode, then:
+//   - closes gaps: a line end within Options.SnapMetres of another line
+//     is joined to the nearest point on it, unless the two are already
+//     linked nearby along the network;
+//   - merges slivers: a face smaller than Options.MinAreaKM2, or thinner
+//     than Options.MinCompactness by the Polsby-Popper measure 4πA/P², is
+//     merged into the neighbour across its longest shared border, smallest
+//     first, until none is left. Thin faces are merged whatever their size:
+//     the strip between the two carriageways of a dual road can run the
+//     length of the study area and pass any area floor.
+//
+// Regions are numbered from 1 by representative point, north to south,
+// then west to east. The representative point is the middle of the widest
+// interior interval on one of several horizontal lines across the region,
+// so it lies inside the region and outside its holes. Border roads are
+// named by the way's name tag, else its ref, else "(unnamed class)";
+// where ways overlap the edge is credited to the higher class. Areas and
+// lengths are measured in the projection.
 package partition

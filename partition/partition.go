@@ -45,4 +45,29 @@ type Partition struct {
 	// Warnings are notes for the user (for example, study area taken from
 	// the data extent).
 	Warnings []string
+	// Stats describes the arrangement the regions came from. It is not
+	// written to GeoJSON and is zero after ReadGeoJSON.
+	Stats Stats
+}
+
+// Stats describes the linework and the noded arrangement whose faces the
+// regions were taken from (after gap closing, before sliver merging). On
+// the arrangement Euler's formula for plane graphs holds:
+// Vertices - Edges + (Faces + 1) = 1 + Components, where the 1 added to
+// Faces is the unbounded face.
+type Stats struct {
+	// Lines is the number of lines read: runs of two or more consecutive
+	// present nodes of the chosen ways. IncompleteWays counts chosen ways
+	// that refer to nodes missing from the file.
+	Lines, IncompleteWays int
+	// Vertices, Edges, Components and Faces count the noded arrangement
+	// (lines clipped to the study rectangle, plus its boundary): vertices
+	// and edges after splitting at every crossing and dissolving
+	// duplicates, connected components, and bounded faces.
+	Vertices, Edges, Components, Faces int
+	// DanglesDropped and CutEdgesDropped count edges that bound no face.
+	DanglesDropped, CutEdgesDropped int
+	// GapsClosed counts connectors added to close gaps; SliversMerged the
+	// faces merged into a neighbour (both zero in exact mode).
+	GapsClosed, SliversMerged int
 }

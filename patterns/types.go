@@ -24,8 +24,13 @@ type ScanOptions struct {
 	// Support is the share of analysed days on which a group must recur
 	// (default 0.2).
 	Support float64
-	// MaxGroupEdges caps the number of edges in a group (default 6).
+	// MaxGroupEdges caps the number of edges in a group (default 6); a
+	// group of edges that always recur together is reported whole even
+	// when larger (see MineOptions.MaxEdges).
 	MaxGroupEdges int
+	// MaximalOnly keeps only the groups not contained in another reported
+	// group (default false: every closed group, nested ones included).
+	MaximalOnly bool
 	// ReferenceSpeed in m/s against which extra vehicle-hours are counted
 	// (default 30 km/h).
 	ReferenceSpeed float64

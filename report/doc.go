@@ -1,8 +1,37 @@
 // Package report writes a study's outputs.
 //
-// In: the study's description, the regions, the day-graph store's metadata
-// and a scan or a comparison.
-// Out: a workbook (.xlsx), map layers (regions.geojson, findings.geojson) and
-// an HTML summary page with an inline SVG map. Every file is written to a
-// temporary name and renamed into place.
+// In: an Input holding the study's description (title, input files with
+// their SHA-256, ordered settings), the regions (partition.Partition), the
+// day-graph store's metadata (regiongraph.Meta, optional) and either a
+// patterns.Scan of one period or a patterns.Comparison of two.
+//
+// Out:
+//   - a workbook (.xlsx) with the sheets listed by Sheets: a summary with the
+//     headline, input files, settings, verdict counts, cautions and a map
+//     picture; the ranked weak links and their edges; the comparison; daily
+//     values per finding edge; a daily timeline with a line chart; edge-days
+//     with a speed-against-detour scatter chart (candidates as their own
+//     series); regions; data quality; and the method;
+//   - map layers regions.geojson (polygons, RFC 7946 ring orientation) and
+//     findings.geojson (a line per finding edge between the regions'
+//     representative points);
+//   - an HTML page that opens offline, with the headline, the verdict table,
+//     an inline SVG map coloured by verdict with a legend, and the cautions.
+//
+// Units in every output: km/h, km, km², hours; the types hold m/s and
+// metres.
+//
+// Values computed from fewer trips than Input.PublicationMinTrips
+// (DefaultPublicationMinTrips) are suppressed: the workbook shows "<10"
+// for counts and "n<10" for values, in grey; the GeoJSON has nulls and
+// suppressed = true; the page shows the markers. Text that came from data
+// (road names, ids, paths, settings) is written to the workbook as string
+// cells, never as formulas, so a road named "=HYPERLINK(...)" stays text.
+//
+// Every output is deterministic: the same Input gives byte-identical files.
+// The workbook's creation time is fixed (Input.Created, by default the day
+// after the last analysed day), and the order of its content-type entries,
+// which excelize leaves to map order, is sorted. Files are written to a
+// temporary name beside the target and renamed into place; WriteAll renders
+// all four files before writing any.
 package report

@@ -4,6 +4,46 @@
 // In: the edges of one day and time window (regiongraph.Edge) and Options
 // (minimum trips, badness gates, skyband depth k).
 // Out: a Result: the candidate edges (those dominated by fewer than k other
-// edges on more trips, lower speed and longer detour, that pass the gates)
-// and each edge's skyline layer.
+// edges on more trips, lower speed and longer detour, that pass the gates),
+// each edge's dominator count and skyline layer, and the day's trip-weighted
+// median speed. Skyband, Layers and Dominators apply the same dominance to
+// plain Points.
+//
+// # Dominance
+//
+// Edge e dominates edge f when e has at least as many trips, a median speed
+// no higher and a median detour ratio no lower than f, and is strictly
+// better on at least one of the three. Edges with identical values do not
+// dominate each other, so duplicates share their fate. Layer 1 is the
+// skyline; layer L+1 is the skyline of what remains after removing layers
+// 1..L (peeling), which equals the length of the longest chain of
+// dominators ending at the edge.
+//
+// # Algorithm
+//
+// Points are ranked on each axis, identical points are merged (with their
+// multiplicity) and sorted by trips descending, then speed ascending, then
+// detour descending. In that order every dominator of a point comes before
+// it, so the dominators of point i are exactly the earlier points j with
+// speed(j) <= speed(i) and detour(j) >= detour(i). Both the dominator counts
+// (a sum over those j) and the layers (one more than the maximum layer over
+// those j) are then computed in a single in-order divide and conquer over the
+// sorted sequence (often called CDQ divide and conquer): solve the left half,
+// add the left half's contributions to the right half with a sweep over
+// speed and a Fenwick tree over detour ranks, then solve the right half.
+// Each level costs O(n log n), so the whole costs O(n log² n) time and O(n)
+// memory, exact under any ties. Small blocks are finished by direct
+// comparison, and the sorts are radix sorts on order-preserving integer
+// keys. A million edges take well under a second.
+//
+// # Gates
+//
+// Candidates must also look bad on their own: a detour ratio at least
+// Options.DetourFloor and a speed strictly below the day's trip-weighted
+// median speed over the eligible edges. Dominance is counted among all
+// eligible edges, before the gates. This choice does not change which edges
+// are candidates: an edge that dominates a gate-passing edge is at least as
+// slow and as roundabout, so it passes the gates too. It only matters for the
+// Dominators and Layer reported for edges that fail a gate, which then
+// describe their position among all the day's busy edges.
 package skyline

@@ -1,0 +1,208 @@
+package main
+
+import (
+	"bufio"
+	"context"
+	"fmt"
+	"io"
+	"os"
+	"path/filepath"
+	"strings"
+	"time"
+
+	"narrows/cmd/town"
+)
+
+// townFiles are the files a simulation writes into its folder.
+type townFiles struct {
+	before, after, trips string // paths
+}
+
+// simulateTown generates a town, writes its before and after OSM files and
+// the trips of a scenario into dir, and returns the plan it simulated.
+func simulateTown(ctx context.Context, env *environment, dir string, size town.Size, seed int64, kind string, days, tripsPerDay int) (townFiles, town.Plan, error) {
+	var files townFiles
+	plan, err := town.Scenario(kind)
+	if err != nil {
+		return files, plan, usagef("--scenario: %v", err)
+	}
+	t, err := town.Generate(town.Options{Size: size, Seed: seed})
+	if err != nil {
+		return files, plan, usagef("--size: %v", err)
+	}
+	if err := os.MkdirAll(dir, 0o755); err != nil {
+		return files, plan, err
+	}
+	slug := strings.ToLower(t.Name)
+	files.before = filepath.Join(dir, slug+"-before.osm")
+	files.after = filepath.Join(dir, slug+"-after.osm")
+	files.trips = filepath.Join(dir, "trips.csv")
+	for _, f := range []struct {
+		path     string
+		withLink bool
+	}{{files.before, false}, {files.after, true}} {
+		if err := writeFileAtomic(f.path, func(w io.Writer) error {
+			bw := bufio.NewWriter(w)
+			if err := t.WriteOSM(bw, f.withLink); err != nil {
+				return err
+			}
+			return bw.Flush()
+		}); err != nil {
+			return files, plan, err
+		}
+	}
+	opts := plan.SimOptions(seed)
+	if days > 0 {
+		opts.Days = days
+	}
+	if tripsPerDay > 0 {
+		opts.TripsPerDay = tripsPerDay
+	}
+	start := time.Now()
+	var stats town.Stats
+	if err := writeFileAtomic(files.trips, func(w io.Writer) error {
+		bw := bufio.NewWriterSize(w, 1<<20)
+		var err error
+		if stats, err = t.Simulate(ctx, opts, bw); err != nil {
+			return err
+		}
+		return bw.Flush()
+	}); err != nil {
+		return files, plan, err
+	}
+	fmt.Fprintf(env.stdout, "%s (%s, seed %d): %d trips on %d days (%d with an incident) in %.1f s -> %s\n",
+		t.Name, size, seed, stats.Trips, stats.Days, stats.IncidentDays, time.Since(start).Seconds(), dir)
+	if plan.LinkOpens != nil {
+		fmt.Fprintf(env.stdout, "  the new %s opens on %s at %.5f,%.5f\n", t.Link.Tag("name"),
+			plan.LinkOpens.Format(time.DateOnly), t.LinkMidpoint[0], t.LinkMidpoint[1])
+	}
+	return files, plan, nil
+}
+
+// inclusive turns a plan's half-open period into the FROM..TO form of the
+// command line and study files.
+func inclusive(p town.Period) string {
+	return p.From.Format(time.DateOnly) + ".." + p.To.AddDate(0, 0, -1).Format(time.DateOnly)
+}
+
+// studyTemplate is the study file of a simulated town, with paths relative
+// to the folder that holds the town's files in subfolder "town". It is the
+// example study file in testdata/ too (a test keeps the two equal).
+func studyTemplate(townName string, plan town.Plan, focus string) string {
+	slug := strings.ToLower(townName)
+	return fmt.Sprintf(`# narrows study file. Paths are relative to this file.
+title = "%[1]s: the new river crossing, before and after"
+time_zone = "%[2]s"
+output = "out"
+name = "report"
+
+[regions]
+osm = "town/%[3]s-before.osm"
+barriers = ["rail", "river"]
+snap_metres = 20
+
+[trips]
+files = ["town/trips.csv"]
+format = "trips"
+
+[[windows]]
+name = "all"
+from = "00:00"
+to = "24:00"
+
+[scan]
+days = "weekdays"
+min_trips = 10
+support = 0.3
+
+[compare]
+before = "%[4]s"
+after = "%[5]s"
+focus = "%[6]s"
+`, townName, plan.Location.String(), slug, inclusive(plan.Before), inclusive(plan.After), focus)
+}
+
+func runSimulate(ctx context.Context, env *environment, args []string) error {
+	fs := newFlagSet(env, "simulate", "--size town|city --out DIR [--seed N] [--days N] [--scenario link|control] [--trips-per-day N]")
+	var size, out, kind string
+	var seed int64
+	var days, perDay int
+	fs.StringVar(&size, "size", string(town.SizeTown), "town (the demo, about 50 regions) or city (about 1,500 regions, for benchmarks)")
+	fs.StringVar(&out, "out", "", "folder to write the OSM files, trips.csv and study.toml into")
+	fs.Int64Var(&seed, "seed", 1, "seed of every random draw: the same seed gives the same bytes")
+	fs.IntVar(&days, "days", 0, "days to simulate (default: the scenario's eight weeks)")
+	fs.IntVar(&perDay, "trips-per-day", 0, "fleet trips on an average weekday (default: the scenario's)")
+	fs.StringVar(&kind, "scenario", "link", "link (a new river crossing opens half-way) or control (nothing changes)")
+	if err := parseFlags(env, fs, args); err != nil {
+		return err
+	}
+	if out == "" {
+		return usagef("--out is required")
+	}
+	if days < 0 || perDay < 0 {
+		return usagef("--days and --trips-per-day must be positive")
+	}
+	files, plan, err := simulateTown(ctx, env, filepath.Join(out, "town"), town.Size(size), seed, kind, days, perDay)
+	if err != nil {
+		return err
+	}
+	t, _ := town.Generate(town.Options{Size: town.Size(size), Seed: seed})
+	studyPath := filepath.Join(out, "study.toml")
+	if err := writeFileAtomic(studyPath, func(w io.Writer) error {
+		_, err := io.WriteString(w, studyTemplate(t.Name, plan, focusOf(t)))
+		return err
+	}); err != nil {
+		return err
+	}
+	fmt.Fprintf(env.stdout, "wrote %s, %s, %s and %s\n", files.before, files.after, files.trips, studyPath)
+	return nil
+}
+
+// focusOf is the --focus of a town's new link: its midpoint and a radius
+// that takes in the regions on both banks.
+func focusOf(t *town.Town) string {
+	return fmt.Sprintf("%.5f,%.5f@800", t.LinkMidpoint[0], t.LinkMidpoint[1])
+}
+
+func runDemo(ctx context.Context, env *environment, args []string) error {
+	fs := newFlagSet(env, "demo", "[--dir DIR] [--seed N]")
+	var dir string
+	var seed int64
+	fs.StringVar(&dir, "dir", "narrows-demo", "folder for the town, its trips, the study file and the report")
+	fs.Int64Var(&seed, "seed", 1, "seed of the town and its trips")
+	if err := parseFlags(env, fs, args); err != nil {
+		return err
+	}
+	start := time.Now()
+	fmt.Fprintln(env.stdout, "narrows demo: a fictional town with a known weakness")
+	if _, _, err := simulateTown(ctx, env, filepath.Join(dir, "town"), town.SizeTown, seed, "link", 0, 0); err != nil {
+		return err
+	}
+	t, err := town.Generate(town.Options{Size: town.SizeTown, Seed: seed})
+	if err != nil {
+		return err
+	}
+	plan, err := town.Scenario("link")
+	if err != nil {
+		return err
+	}
+	studyPath := filepath.Join(dir, "study.toml")
+	if err := writeFileAtomic(studyPath, func(w io.Writer) error {
+		_, err := io.WriteString(w, studyTemplate(t.Name, plan, focusOf(t)))
+		return err
+	}); err != nil {
+		return err
+	}
+	s, err := loadStudy(studyPath)
+	if err != nil {
+		return err
+	}
+	if err := s.run(ctx, env, dir, studyPath); err != nil {
+		return err
+	}
+	fmt.Fprintf(env.stdout, "demo done in %.1f s. The planted weakness: trips between %s and %s across the river.\n",
+		time.Since(start).Seconds(), t.Housing.Name, t.Jobs.Name)
+	fmt.Fprintf(env.stdout, "Open %s, or re-run the study with: narrows run %s\n",
+		filepath.Join(dir, "out", "report.html"), studyPath)
+	return nil
+}

@@ -1,0 +1,78 @@
+package main
+
+import (
+	"crypto/sha256"
+	"encoding/hex"
+	"fmt"
+	"io"
+	"os"
+	"path/filepath"
+
+	"github.com/schollz/progressbar/v3"
+	"golang.org/x/term"
+)
+
+// fileSHA256 returns the hex SHA-256 of a file's bytes.
+func fileSHA256(path string) (string, error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return "", err
+	}
+	defer f.Close()
+	h := sha256.New()
+	if _, err := io.Copy(h, f); err != nil {
+		return "", fmt.Errorf("%s: %w", path, err)
+	}
+	return hex.EncodeToString(h.Sum(nil)), nil
+}
+
+// writeFileAtomic writes a file through a temporary file in the same
+// directory and renames it into place, so a failed run never leaves a
+// half-written output.
+func writeFileAtomic(path string, write func(w io.Writer) error) error {
+	dir := filepath.Dir(path)
+	tmp, err := os.CreateTemp(dir, "."+filepath.Base(path)+".tmp-*")
+	if err != nil {
+		return err
+	}
+	name := tmp.Name()
+	defer os.Remove(name) // no-op after a successful rename
+	if err := write(tmp); err != nil {
+		tmp.Close()
+		return fmt.Errorf("writing %s: %w", path, err)
+	}
+	if err := tmp.Close(); err != nil {
+		return fmt.Errorf("writing %s: %w", path, err)
+	}
+	return os.Rename(name, path)
+}
+
+func stderrIsTerminal() bool { return term.IsTerminal(int(os.Stderr.Fd())) }
+
+// progress returns a callback that draws a byte-count progress bar on
+// stderr when it is a terminal, and a function that finishes the bar. In
+// pipes and CI both do nothing.
+func progress(env *environment, description string) (update func(done, total int64), finish func()) {
+	if !env.interactive {
+		return nil, func() {}
+	}
+	var bar *progressbar.ProgressBar
+	update = func(done, total int64) {
+		if bar == nil {
+			bar = progressbar.NewOptions64(total,
+				progressbar.OptionSetWriter(env.stderr),
+				progressbar.OptionSetDescription(description),
+				progressbar.OptionShowBytes(true),
+				progressbar.OptionThrottle(100_000_000),
+				progressbar.OptionClearOnFinish(),
+			)
+		}
+		_ = bar.Set64(done)
+	}
+	finish = func() {
+		if bar != nil {
+			_ = bar.Finish()
+		}
+	}
+	return update, finish
+}

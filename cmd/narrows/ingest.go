@@ -1,0 +1,167 @@
+package main
+
+import (
+	"context"
+	"flag"
+	"fmt"
+	"os"
+	"text/tabwriter"
+	"time"
+
+	"narrows/partition"
+	"narrows/regiongraph"
+)
+
+// ingestFlags are the options of the ingest step.
+type ingestFlags struct {
+	format, columns, unit, tz string
+	windows                   listFlag
+	strict                    bool
+	minOD                     float64
+}
+
+func (f *ingestFlags) register(fs *flag.FlagSet) {
+	d := regiongraph.DefaultOptions()
+	fs.StringVar(&f.format, "format", "trips", "input kind: trips (CSV or Parquet table), points (GPS CSV) or gpx")
+	fs.StringVar(&f.columns, "columns", "", "rename columns: `name=header,...` (e.g. start_time=pickup_at)")
+	fs.StringVar(&f.unit, "distance-unit", d.DistanceUnit, "unit of the distance column: m, km or mi")
+	fs.StringVar(&f.tz, "tz", d.TimeZone, "IANA time zone of the study: local days and windows")
+	fs.Var(&f.windows, "window", "named time window `NAME=HH:MM-HH:MM` (repeatable; default one window 'all')")
+	fs.BoolVar(&f.strict, "strict", false, "stop at the first bad row, naming file and line")
+	fs.Float64Var(&f.minOD, "min-od", d.MinStraightMetres, "reject trips whose origin-destination distance is under this many `metres`")
+}
+
+func (f *ingestFlags) options() (regiongraph.Options, error) {
+	o := regiongraph.DefaultOptions()
+	if f.columns != "" {
+		cols, err := regiongraph.ParseColumns(f.columns)
+		if err != nil {
+			return o, usagef("--columns: %v", err)
+		}
+		o.Columns = cols
+	}
+	if _, err := time.LoadLocation(f.tz); err != nil || f.tz == "" || f.tz == "Local" {
+		return o, usagef("--tz: unknown time zone %q (use an IANA name such as Etc/GMT-1 or UTC)", f.tz)
+	}
+	o.TimeZone = f.tz
+	o.DistanceUnit = f.unit
+	if len(f.windows) > 0 {
+		o.Windows = nil
+		for _, s := range f.windows {
+			w, err := regiongraph.ParseWindow(s)
+			if err != nil {
+				return o, usagef("--window %q: %v", s, err)
+			}
+			o.Windows = append(o.Windows, w)
+		}
+	}
+	o.Strict = f.strict
+	o.MinStraightMetres = f.minOD
+	return o, nil
+}
+
+func runIngest(ctx context.Context, env *environment, args []string) error {
+	fs := newFlagSet(env, "ingest", "--regions R.geojson --trips FILE... [--format trips|points|gpx] [--columns ...] [--tz ZONE] [--window NAME=HH:MM-HH:MM] [--strict] --out graphs.parquet")
+	var regionsPath, out string
+	var trips, merge listFlag
+	var inf ingestFlags
+	fs.StringVar(&regionsPath, "regions", "", "regions GeoJSON written by 'narrows regions'")
+	fs.Var(&trips, "trips", "trip or GPS file, or a folder of GPX files (repeatable; more files may follow the options)")
+	fs.Var(&merge, "merge", "existing day-graph store to merge into the output (repeatable)")
+	fs.StringVar(&out, "out", "", "day-graph store (Parquet) to write")
+	inf.register(fs)
+	// Trip files may also follow the options, as in "--trips a.csv b.csv".
+	if err := parseFlagsWithRest(env, fs, args, func(rest []string) { trips = append(trips, rest...) }); err != nil {
+		return err
+	}
+	if regionsPath == "" || out == "" || len(trips) == 0 {
+		return usagef("--regions, --trips and --out are required")
+	}
+	opts, err := inf.options()
+	if err != nil {
+		return err
+	}
+	return ingest(ctx, env, regionsPath, trips, regiongraph.Format(inf.format), opts, merge, out)
+}
+
+func ingest(ctx context.Context, env *environment, regionsPath string, trips []string, format regiongraph.Format, opts regiongraph.Options, merge []string, out string) error {
+	start := time.Now()
+	regions, sum, err := readRegions(regionsPath)
+	if err != nil {
+		return err
+	}
+	var inputs []regiongraph.Input
+	for _, t := range trips {
+		inputs = append(inputs, regiongraph.Input{Path: t, Format: format})
+	}
+	update, finish := progress(env, "ingest")
+	opts.Progress = update
+	store, err := regiongraph.Ingest(ctx, regions, sum, inputs, opts)
+	finish()
+	if err != nil {
+		return err
+	}
+	if len(merge) > 0 {
+		stores := []*regiongraph.Store{store}
+		for _, m := range merge {
+			s, err := regiongraph.ReadFile(m)
+			if err != nil {
+				return err
+			}
+			stores = append(stores, s)
+		}
+		if store, err = regiongraph.Merge(stores...); err != nil {
+			return err
+		}
+	}
+	if err := regiongraph.WriteFile(out, store); err != nil {
+		return err
+	}
+	printQuality(env, store.Meta.Quality)
+	fmt.Fprintf(env.stdout, "%d edges on %d days in %.2f s -> %s\n", len(store.Edges), countDays(store), time.Since(start).Seconds(), out)
+	return nil
+}
+
+func readRegions(path string) (*partition.Partition, string, error) {
+	sum, err := fileSHA256(path)
+	if err != nil {
+		return nil, "", err
+	}
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, "", err
+	}
+	defer f.Close()
+	p, err := partition.ReadGeoJSON(f, path)
+	if err != nil {
+		return nil, "", err
+	}
+	return p, sum, nil
+}
+
+func countDays(s *regiongraph.Store) int {
+	days := map[string]bool{}
+	for _, e := range s.Edges {
+		days[e.Day] = true
+	}
+	return len(days)
+}
+
+// printQuality prints the accounting of every input row.
+func printQuality(env *environment, q regiongraph.Quality) {
+	tw := tabwriter.NewWriter(env.stdout, 0, 0, 2, ' ', tabwriter.AlignRight)
+	pct := func(n int64) float64 {
+		if q.Read == 0 {
+			return 0
+		}
+		return 100 * float64(n) / float64(q.Read)
+	}
+	fmt.Fprintf(tw, "rows\t%d\t\t\n", q.Read)
+	fmt.Fprintf(tw, "used\t%d\t%.1f %%\t\n", q.Used, pct(q.Used))
+	for _, reason := range regiongraph.RejectReasons() {
+		if n := q.Rejected[reason]; n > 0 {
+			fmt.Fprintf(tw, "rejected: %s\t%d\t%.1f %%\t\n", reason, n, pct(n))
+		}
+	}
+	tw.Flush()
+}

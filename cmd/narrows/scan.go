@@ -1,0 +1,261 @@
+package main
+
+import (
+	"context"
+	"encoding/json"
+	"flag"
+	"fmt"
+	"io"
+	"path/filepath"
+	"strings"
+	"text/tabwriter"
+	"time"
+
+	"narrows/partition"
+	"narrows/patterns"
+	"narrows/regiongraph"
+	"narrows/report"
+)
+
+// scanFlags are the thresholds shared by scan, compare and run.
+type scanFlags struct {
+	window, days, exclude string
+	minTrips, k           int
+	support, detourFloor  float64
+	noDetourGate          bool
+	noSpeedGate           bool
+	maxEdges              int
+	refSpeedKMH           float64
+}
+
+func (f *scanFlags) register(fs *flag.FlagSet) {
+	d := patterns.DefaultScanOptions()
+	fs.StringVar(&f.window, "window", "", "time window to analyse (default: the store's first window)")
+	fs.StringVar(&f.days, "days", string(d.Days), "days to analyse: all, weekdays or weekends")
+	fs.StringVar(&f.exclude, "exclude", "", "days to leave out, `YYYY-MM-DD,...` (holidays, incidents)")
+	fs.IntVar(&f.minTrips, "min-trips", d.Skyline.MinTrips, "ignore region pairs with fewer trips on a day")
+	fs.Float64Var(&f.support, "support", d.Support, "share of days (0-1] on which a group must recur")
+	fs.IntVar(&f.k, "k", d.Skyline.K, "widen the daily skyline to the k-skyband (dominated by fewer than k pairs)")
+	fs.Float64Var(&f.detourFloor, "detour-floor", d.Skyline.DetourFloor, "candidates need a median detour ratio at least this")
+	fs.BoolVar(&f.noDetourGate, "no-detour-gate", false, "switch the detour floor off")
+	fs.BoolVar(&f.noSpeedGate, "no-speed-gate", false, "switch off the gate 'slower than the day's median speed'")
+	fs.IntVar(&f.maxEdges, "max-edges", d.MaxGroupEdges, "largest group of edges to report")
+	fs.Float64Var(&f.refSpeedKMH, "reference-speed", d.ReferenceSpeed*3.6, "`km/h` against which extra vehicle-hours are counted")
+}
+
+func (f *scanFlags) options() (patterns.ScanOptions, error) {
+	o := patterns.DefaultScanOptions()
+	o.Window = f.window
+	switch patterns.DaySelector(f.days) {
+	case patterns.AllDays, patterns.Weekdays, patterns.Weekends:
+		o.Days = patterns.DaySelector(f.days)
+	default:
+		return o, usagef("--days: want all, weekdays or weekends, got %q", f.days)
+	}
+	for _, d := range splitList(f.exclude) {
+		if _, err := time.Parse(time.DateOnly, d); err != nil {
+			return o, usagef("--exclude: %q is not a date YYYY-MM-DD", d)
+		}
+		o.Exclude = append(o.Exclude, d)
+	}
+	if f.support <= 0 || f.support > 1 {
+		return o, usagef("--support: want a share in (0, 1], got %g", f.support)
+	}
+	if f.minTrips < 1 || f.k < 1 || f.maxEdges < 1 || f.refSpeedKMH <= 0 {
+		return o, usagef("--min-trips, --k, --max-edges and --reference-speed must be positive")
+	}
+	o.Support = f.support
+	o.MaxGroupEdges = f.maxEdges
+	o.ReferenceSpeed = f.refSpeedKMH / 3.6
+	o.Skyline.MinTrips = f.minTrips
+	o.Skyline.K = f.k
+	o.Skyline.DetourFloor = f.detourFloor
+	o.Skyline.NoDetourGate = f.noDetourGate
+	o.Skyline.NoSpeedGate = f.noSpeedGate
+	return o, nil
+}
+
+// parsePeriod parses "D1..D2" (inclusive local days).
+func parsePeriod(s string) (from, to string, err error) {
+	a, b, ok := strings.Cut(s, "..")
+	if !ok {
+		return "", "", fmt.Errorf("want FROM..TO such as 2026-03-02..2026-03-29, got %q", s)
+	}
+	for _, d := range []string{a, b} {
+		if _, err := time.Parse(time.DateOnly, d); err != nil {
+			return "", "", fmt.Errorf("%q is not a date YYYY-MM-DD", d)
+		}
+	}
+	if a > b {
+		return "", "", fmt.Errorf("period %q ends before it starts", s)
+	}
+	return a, b, nil
+}
+
+func runScan(ctx context.Context, env *environment, args []string) error {
+	fs := newFlagSet(env, "scan", "--graphs G.parquet [--from DATE] [--to DATE] [--window NAME] [--days all|weekdays|weekends] [--exclude DATE,...] [--min-trips N] [--support FRACTION] [--k K] --out findings.json")
+	var graphs, regionsPath, from, to, out string
+	var sf scanFlags
+	fs.StringVar(&graphs, "graphs", "", "day-graph store written by 'narrows ingest'")
+	fs.StringVar(&regionsPath, "regions", "", "regions GeoJSON (default: the regions recorded in the store)")
+	fs.StringVar(&from, "from", "", "first day `YYYY-MM-DD` (default: the store's first)")
+	fs.StringVar(&to, "to", "", "last day `YYYY-MM-DD` (default: the store's last)")
+	fs.StringVar(&out, "out", "", "findings JSON to write; findings.geojson is written beside it")
+	sf.register(fs)
+	if err := parseFlags(env, fs, args); err != nil {
+		return err
+	}
+	if graphs == "" || out == "" {
+		return usagef("--graphs and --out are required")
+	}
+	opts, err := sf.options()
+	if err != nil {
+		return err
+	}
+	for _, d := range []string{from, to} {
+		if d == "" {
+			continue
+		}
+		if _, err := time.Parse(time.DateOnly, d); err != nil {
+			return usagef("--from/--to: %q is not a date YYYY-MM-DD", d)
+		}
+	}
+	opts.From, opts.To = from, to
+	store, err := regiongraph.ReadFile(graphs)
+	if err != nil {
+		return err
+	}
+	regions, err := regionsFor(store, regionsPath, graphs)
+	if err != nil {
+		return err
+	}
+	start := time.Now()
+	scan, err := patterns.ScanStore(ctx, store, opts)
+	if err != nil {
+		return fmt.Errorf("%s: %w", graphs, err)
+	}
+	elapsed := time.Since(start)
+	if err := writeFileAtomic(out, func(w io.Writer) error { return writeFindingsJSON(w, scan, regions) }); err != nil {
+		return err
+	}
+	layer := filepath.Join(filepath.Dir(out), "findings.geojson")
+	in := report.Input{Regions: regions, Store: &store.Meta, Scan: scan, Version: version}
+	if err := report.WriteFindingsGeoJSON(layer, in); err != nil {
+		return err
+	}
+	printFindings(env.stdout, scan, regions, 20)
+	fmt.Fprintf(env.stdout, "%d findings over %d days (window %s) in %.2f s -> %s, %s\n",
+		len(scan.Findings), len(scan.Days), scan.Window, elapsed.Seconds(), out, layer)
+	return nil
+}
+
+// regionsFor returns the regions a store was built on: from the given file
+// (which must be the one the store was built from) or from the store.
+func regionsFor(store *regiongraph.Store, path, storePath string) (*partition.Partition, error) {
+	if path != "" {
+		p, sum, err := readRegions(path)
+		if err != nil {
+			return nil, err
+		}
+		if store.Meta.RegionsSHA256 != "" && sum != store.Meta.RegionsSHA256 {
+			return nil, fmt.Errorf("%s was not built on %s (SHA-256 differs): pass the regions file given to ingest", storePath, path)
+		}
+		return p, nil
+	}
+	return store.Regions()
+}
+
+// writeFindingsJSON writes a scan's findings with their regions' names.
+func writeFindingsJSON(w io.Writer, scan *patterns.Scan, regions *partition.Partition) error {
+	type edgeOut struct {
+		From, To          int
+		FromRoads, ToRoads []string
+		TripsMedian       float64 `json:"trips_median"`
+		SpeedKMH          float64 `json:"speed_kmh_median"`
+		Detour            float64 `json:"detour_median"`
+		ExtraKMPerDay     float64 `json:"extra_vehicle_km_per_day"`
+		ExtraHoursPerDay  float64 `json:"extra_vehicle_hours_per_day"`
+	}
+	type findingOut struct {
+		Rank             int       `json:"rank"`
+		ID               string    `json:"id"`
+		Regions          []int     `json:"regions"`
+		Days             []string  `json:"days"`
+		Share            float64   `json:"share"`
+		ExtraKMPerDay    float64   `json:"extra_vehicle_km_per_day"`
+		ExtraHoursPerDay float64   `json:"extra_vehicle_hours_per_day"`
+		Edges            []edgeOut `json:"edges"`
+	}
+	doc := struct {
+		Tool     string       `json:"tool"`
+		Window   string       `json:"window"`
+		Days     []string     `json:"days"`
+		Support  float64      `json:"support"`
+		MinTrips int          `json:"min_trips"`
+		K        int          `json:"k"`
+		Findings []findingOut `json:"findings"`
+		Caution  string       `json:"caution"`
+	}{
+		Tool: "narrows " + version, Window: scan.Window, Days: scan.Days,
+		Support: scan.Options.Support, MinTrips: scan.Options.Skyline.MinTrips, K: scan.Options.Skyline.K,
+		Caution: report.Caution,
+	}
+	for _, f := range scan.Findings {
+		fo := findingOut{Rank: f.Rank, ID: f.ID, Regions: f.Regions, Days: f.Days, Share: f.Share,
+			ExtraKMPerDay: f.ExtraKMPerDay, ExtraHoursPerDay: f.ExtraHoursPerDay}
+		for _, e := range f.Edges {
+			fo.Edges = append(fo.Edges, edgeOut{From: e.From, To: e.To,
+				FromRoads: roadNames(regions, e.From, 3), ToRoads: roadNames(regions, e.To, 3),
+				TripsMedian: e.TripsMedian, SpeedKMH: e.SpeedMedian * 3.6, Detour: e.DetourMedian,
+				ExtraKMPerDay: e.ExtraKMPerDay, ExtraHoursPerDay: e.ExtraHoursPerDay})
+		}
+		doc.Findings = append(doc.Findings, fo)
+	}
+	if doc.Findings == nil {
+		doc.Findings = []findingOut{}
+	}
+	enc := json.NewEncoder(w)
+	enc.SetIndent("", "  ")
+	return enc.Encode(doc)
+}
+
+// roadNames returns up to n names of the roads along a region's border.
+func roadNames(p *partition.Partition, id, n int) []string {
+	if p == nil || id < 1 || id > len(p.Regions) {
+		return nil
+	}
+	var names []string
+	for _, b := range p.Regions[id-1].BorderRoads {
+		if len(names) == n {
+			break
+		}
+		names = append(names, b.Name)
+	}
+	return names
+}
+
+// printFindings prints the ranked table of the first n findings.
+func printFindings(w io.Writer, scan *patterns.Scan, regions *partition.Partition, n int) {
+	if len(scan.Findings) == 0 {
+		fmt.Fprintln(w, "No recurring weak links at these thresholds (try a lower --support or --min-trips).")
+		return
+	}
+	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
+	fmt.Fprintln(tw, "rank\tedge\tdays\ttrips/day\tkm/h\tdetour\textra veh-h/day\tfrom (bounded by)\tto (bounded by)")
+	for i, f := range scan.Findings {
+		if i == n {
+			fmt.Fprintf(tw, "…\t%d more\t\t\t\t\t\t\t\n", len(scan.Findings)-n)
+			break
+		}
+		for j, e := range f.Edges {
+			rank := ""
+			if j == 0 {
+				rank = fmt.Sprint(f.Rank)
+			}
+			fmt.Fprintf(tw, "%s\t%d→%d\t%d (%.0f %%)\t%.0f\t%.1f\t%.2f\t%.1f\t%s\t%s\n", rank, e.From, e.To,
+				len(f.Days), 100*f.Share, e.TripsMedian, e.SpeedMedian*3.6, e.DetourMedian, e.ExtraHoursPerDay,
+				strings.Join(roadNames(regions, e.From, 2), " / "), strings.Join(roadNames(regions, e.To, 2), " / "))
+		}
+	}
+	tw.Flush()
+}

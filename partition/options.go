@@ -1,0 +1,158 @@
+package partition
+
+import (
+	"fmt"
+	"math"
+	"strconv"
+	"strings"
+
+	"github.com/paulmach/orb"
+)
+
+// Options control which lines bound regions and how the partition is
+// cleaned. The zero value is not useful; start from DefaultOptions.
+type Options struct {
+	// Roads are the OSM highway classes whose ways bound regions, for
+	// example "primary" or "motorway_link". Default: motorway, trunk,
+	// primary, secondary, the classes that carry through traffic between
+	// districts; *_link ramps are left out because they only connect
+	// carriageways and would cut junctions into slivers.
+	Roads []string
+	// Barriers are extra line features that bound regions: any of "rail"
+	// (railway=rail), "river" (waterway=river), "canal" (waterway=canal)
+	// and "coastline" (natural=coastline). Default: none, so that the
+	// regions depend on the road network alone unless asked otherwise.
+	Barriers []string
+	// BBox is the study area in WGS84 degrees. Nil means the bounds in the
+	// file's header; if the file has none, the extent of the chosen lines
+	// is used and a warning is given.
+	BBox *orb.Bound
+	// SnapMetres closes gaps: a line that ends within this distance of
+	// another line (and is not already joined to it nearby) is joined to it
+	// by a short connector. Default 20 m: wider than the usual offset of a
+	// road end mapped short of the road it meets (a few metres) and
+	// narrower than a city block, so no real opening is closed.
+	SnapMetres float64
+	// MinAreaKM2 is the smallest region kept: smaller faces (junction
+	// triangles, roundabouts, the strips between one-way carriageway
+	// pairs) are merged into the neighbour across the longest shared
+	// border. Default 0.05 km² (5 ha), about a small urban block, below
+	// which a face cannot hold a district's worth of trip ends.
+	MinAreaKM2 float64
+	// MinCompactness is the Polsby-Popper floor 4πA/P² (1 for a circle,
+	// π/4 for a square, near 0 for a strip). Thinner faces are merged like
+	// small ones, whatever their size, because the strip between two
+	// carriageways can be long enough to pass any area floor. Default
+	// 0.12, which a rectangle passes up to a side ratio of about 1:24.
+	MinCompactness float64
+	// Exact turns all cleaning off: the regions are the plain faces of the
+	// noded linework plus the study-area rectangle (dangles and cut edges
+	// dropped), as a polygonizer would give.
+	Exact bool
+	// Warn, if not nil, receives notes for the user as they arise; they
+	// are also kept in Partition.Warnings.
+	Warn func(string)
+}
+
+// DefaultOptions returns the defaults documented on each Options field.
+func DefaultOptions() Options {
+	return Options{
+		Roads:          []string{"motorway", "trunk", "primary", "secondary"},
+		SnapMetres:     20,
+		MinAreaKM2:     0.05,
+		MinCompactness: 0.12,
+	}
+}
+
+// barrierTag returns the OSM key and value that select a Barriers entry.
+func barrierTag(name string) (key, value string, ok bool) {
+	switch name {
+	case "rail":
+		return "railway", "rail", true
+	case "river":
+		return "waterway", "river", true
+	case "canal":
+		return "waterway", "canal", true
+	case "coastline":
+		return "natural", "coastline", true
+	}
+	return "", "", false
+}
+
+func (o *Options) validate() error {
+	if len(o.Roads) == 0 && len(o.Barriers) == 0 {
+		return fmt.Errorf("no road classes or barriers chosen")
+	}
+	for _, r := range o.Roads {
+		if r == "" || strings.ContainsAny(r, " ,=") {
+			return fmt.Errorf("road class %q is not an OSM highway value", r)
+		}
+	}
+	for _, b := range o.Barriers {
+		if _, _, ok := barrierTag(b); !ok {
+			return fmt.Errorf("unknown barrier %q (want rail, river, canal or coastline)", b)
+		}
+	}
+	for _, v := range []struct {
+		name string
+		x    float64
+	}{{"snap distance", o.SnapMetres}, {"minimum area", o.MinAreaKM2}, {"minimum compactness", o.MinCompactness}} {
+		if math.IsNaN(v.x) || math.IsInf(v.x, 0) || v.x < 0 {
+			return fmt.Errorf("%s %v must be a non-negative number", v.name, v.x)
+		}
+	}
+	if o.MinCompactness > 1 {
+		return fmt.Errorf("minimum compactness %v is above 1", o.MinCompactness)
+	}
+	if o.BBox != nil {
+		if err := checkBound(*o.BBox); err != nil {
+			return fmt.Errorf("bbox: %v", err)
+		}
+	}
+	return nil
+}
+
+// ParseBBox parses a study area written "W,S,E,N" in WGS84 degrees
+// (west and east longitudes, south and north latitudes).
+func ParseBBox(s string) (orb.Bound, error) {
+	parts := strings.Split(s, ",")
+	if len(parts) != 4 {
+		return orb.Bound{}, fmt.Errorf("bbox %q: want four numbers W,S,E,N, got %d", s, len(parts))
+	}
+	var v [4]float64
+	names := [4]string{"west", "south", "east", "north"}
+	for i, p := range parts {
+		f, err := strconv.ParseFloat(strings.TrimSpace(p), 64)
+		if err != nil || math.IsNaN(f) || math.IsInf(f, 0) {
+			return orb.Bound{}, fmt.Errorf("bbox %q: %s %q is not a number", s, names[i], strings.TrimSpace(p))
+		}
+		v[i] = f
+	}
+	b := orb.Bound{Min: orb.Point{v[0], v[1]}, Max: orb.Point{v[2], v[3]}}
+	if err := checkBound(b); err != nil {
+		return orb.Bound{}, fmt.Errorf("bbox %q: %v", s, err)
+	}
+	return b, nil
+}
+
+// checkBound reports whether b is a usable study rectangle.
+func checkBound(b orb.Bound) error {
+	for _, x := range []float64{b.Min[0], b.Min[1], b.Max[0], b.Max[1]} {
+		if math.IsNaN(x) || math.IsInf(x, 0) {
+			return fmt.Errorf("coordinate %v is not finite", x)
+		}
+	}
+	switch {
+	case b.Min[0] < -180 || b.Max[0] > 180:
+		return fmt.Errorf("longitudes %v..%v outside -180..180", b.Min[0], b.Max[0])
+	case b.Min[1] < -85 || b.Max[1] > 85:
+		return fmt.Errorf("latitudes %v..%v outside -85..85", b.Min[1], b.Max[1])
+	case b.Min[0] >= b.Max[0]:
+		return fmt.Errorf("west %v is not less than east %v", b.Min[0], b.Max[0])
+	case b.Min[1] >= b.Max[1]:
+		return fmt.Errorf("south %v is not less than north %v", b.Min[1], b.Max[1])
+	case b.Max[0]-b.Min[0] > 10 || b.Max[1]-b.Min[1] > 10:
+		return fmt.Errorf("spans %.3g° x %.3g°, more than the 10° a local planar projection serves", b.Max[0]-b.Min[0], b.Max[1]-b.Min[1])
+	}
+	return nil
+}

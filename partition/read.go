@@ -1,0 +1,372 @@
+package partition
+
+import (
+	"bufio"
+	"bytes"
+	"cmp"
+	"compress/bzip2"
+	"compress/gzip"
+	"context"
+	"encoding/binary"
+	"errors"
+	"fmt"
+	"io"
+	"math"
+	"runtime"
+	"slices"
+	"strings"
+
+	"github.com/paulmach/orb"
+	"github.com/paulmach/osm"
+	"github.com/paulmach/osm/osmpbf"
+	"github.com/paulmach/osm/osmxml"
+)
+
+// extract is what the partition needs from an OSM file: the chosen ways
+// as lines of WGS84 points, and the bounds.
+type extract struct {
+	header     *orb.Bound // bounds from the file header or <bounds>, if any
+	dataBound  orb.Bound  // extent of every node read
+	nodes      int        // nodes read
+	ways       []wayInfo  // chosen ways, in priority order (class rank, id)
+	lines      []rawLine  // their geometry; a way may give several lines
+	incomplete int        // chosen ways that refer to nodes the file lacks
+}
+
+// wayInfo describes a chosen way.
+type wayInfo struct {
+	id    osm.WayID
+	rank  int    // position of its class in Options.Roads, then Barriers
+	label string // name, else ref, else "(unnamed class)"
+}
+
+// rawLine is a run of two or more consecutive distinct nodes of a way.
+type rawLine struct {
+	way int32 // index into extract.ways
+	pts []orb.Point
+}
+
+// nodeRec is a node's id and position in units of 1e-7 degrees, OSM's own
+// resolution, kept compactly (16 bytes) so that every node of a large
+// extract fits in memory in one pass: about 110 MB for the 7 million
+// nodes of a 50 MB PBF.
+type nodeRec struct {
+	id       int64
+	lon, lat int32
+}
+
+// osmUnit is the resolution of OSM coordinates in degrees.
+const osmUnit = 1e-7
+
+func toOSMUnits(deg float64) int32 { return int32(math.Round(deg / osmUnit)) }
+
+func fromOSMUnits(u int32) float64 { return float64(u) / 1e7 }
+
+// wayRec is a chosen way until its nodes are resolved.
+type wayRec struct {
+	info  wayInfo
+	class string
+	nodes []int64
+}
+
+// selector decides which ways bound regions.
+type selector struct {
+	roads    map[string]int
+	barriers [][2]string // key, value per Barriers entry
+	names    []string    // Barriers entry names
+}
+
+func newSelector(o *Options) *selector {
+	s := &selector{roads: make(map[string]int, len(o.Roads))}
+	for i, r := range o.Roads {
+		if _, dup := s.roads[r]; !dup {
+			s.roads[r] = i
+		}
+	}
+	for _, b := range o.Barriers {
+		k, v, _ := barrierTag(b)
+		s.barriers = append(s.barriers, [2]string{k, v})
+		s.names = append(s.names, b)
+	}
+	return s
+}
+
+// classify returns the class and rank of a way, and whether it is chosen.
+func (s *selector) classify(tags osm.Tags) (class string, rank int, ok bool) {
+	if hw := tags.Find("highway"); hw != "" {
+		if r, found := s.roads[hw]; found {
+			return hw, r, true
+		}
+	}
+	for i, kv := range s.barriers {
+		if tags.Find(kv[0]) == kv[1] {
+			return s.names[i], len(s.roads) + i, true
+		}
+	}
+	return "", 0, false
+}
+
+// maxNesting limits compression layers (a gzip inside a bzip2 is fine; a
+// deeper stack is not an OSM extract).
+const maxNesting = 2
+
+// openOSM detects the format of r from its first bytes and returns a
+// scanner for it and the format's name.
+func openOSM(ctx context.Context, r io.Reader, depth int) (osm.Scanner, *osmpbf.Scanner, string, error) {
+	br := bufio.NewReaderSize(r, 64<<10)
+	head, err := br.Peek(4096)
+	if err != nil && !errors.Is(err, io.EOF) {
+		if depth > 0 {
+			return nil, nil, "", fmt.Errorf("compressed data is truncated or corrupt: %v", err)
+		}
+		return nil, nil, "", err
+	}
+	if len(head) == 0 {
+		if depth > 0 {
+			return nil, nil, "", errors.New("empty file (the compressed stream holds no data)")
+		}
+		return nil, nil, "", errors.New("empty file")
+	}
+	switch {
+	case len(head) >= 2 && head[0] == 0x1f && head[1] == 0x8b:
+		if depth >= maxNesting {
+			return nil, nil, "", errors.New("too many layers of compression")
+		}
+		zr, err := gzip.NewReader(br)
+		if err != nil {
+			return nil, nil, "", fmt.Errorf("gzip data is truncated or corrupt: %v", err)
+		}
+		return openOSM(ctx, zr, depth+1)
+	case bytes.HasPrefix(head, []byte("BZh")):
+		if depth >= maxNesting {
+			return nil, nil, "", errors.New("too many layers of compression")
+		}
+		return openOSM(ctx, bzip2.NewReader(br), depth+1)
+	case isPBF(head):
+		sc := osmpbf.New(ctx, br, min(runtime.GOMAXPROCS(0), 4))
+		sc.SkipRelations = true
+		return sc, sc, "PBF", nil
+	case len(head) < 15 && len(head) > 5 && head[4] == 0x0a && bytes.HasPrefix([]byte("OSMHeader"), head[6:]):
+		return nil, nil, "", errors.New("truncated PBF: the file ends inside its first header")
+	}
+	if root, isXML, found := xmlRoot(head); isXML {
+		switch {
+		case found && root == "osm":
+			return osmxml.New(ctx, br), nil, "XML", nil
+		case found:
+			return nil, nil, "", fmt.Errorf("XML, but not OpenStreetMap: the root element is <%s>, want <osm>", root)
+		default:
+			return nil, nil, "", errors.New("XML without an <osm> root element in its first 4 kB (truncated, or not OpenStreetMap)")
+		}
+	}
+	return nil, nil, "", fmt.Errorf("not an OpenStreetMap file: neither PBF nor OSM XML (starts with %q)", printable(head, 16))
+}
+
+// isPBF reports whether head starts like an OSM PBF file: a 4-byte
+// big-endian BlobHeader length, then the BlobHeader with type "OSMHeader".
+func isPBF(head []byte) bool {
+	if len(head) < 15 {
+		return false
+	}
+	n := binary.BigEndian.Uint32(head)
+	return n > 0 && n < 64<<10 && head[4] == 0x0a && head[5] == 9 && string(head[6:15]) == "OSMHeader"
+}
+
+// xmlRoot finds the name of the root element of the XML document that
+// starts in head. isXML reports whether head looks like XML at all, found
+// whether the root's start tag is in head.
+func xmlRoot(head []byte) (root string, isXML, found bool) {
+	h := bytes.TrimPrefix(head, []byte("\xef\xbb\xbf"))
+	h = bytes.TrimLeft(h, " \t\r\n")
+	if !bytes.HasPrefix(h, []byte("<")) {
+		return "", false, false
+	}
+	// Skip the declaration, comments, doctype and processing instructions.
+	for {
+		var end []byte
+		switch {
+		case bytes.HasPrefix(h, []byte("<?")):
+			end = []byte("?>")
+		case bytes.HasPrefix(h, []byte("<!--")):
+			end = []byte("-->")
+		case bytes.HasPrefix(h, []byte("<!")):
+			end = []byte(">")
+		case bytes.HasPrefix(h, []byte("<")):
+			name := h[1:]
+			i := bytes.IndexAny(name, " \t\r\n/>")
+			if i <= 0 {
+				return "", true, false
+			}
+			return string(name[:i]), true, true
+		default:
+			return "", true, false
+		}
+		i := bytes.Index(h, end)
+		if i < 0 {
+			return "", true, false
+		}
+		h = bytes.TrimLeft(h[i+len(end):], " \t\r\n")
+	}
+}
+
+func printable(b []byte, n int) string {
+	if len(b) > n {
+		b = b[:n]
+	}
+	return strings.Map(func(r rune) rune {
+		if r < 0x20 || r == 0x7f || r == 0xfffd {
+			return '.'
+		}
+		return r
+	}, string(b))
+}
+
+// readOSM reads the chosen ways and the nodes they use from r. It keeps
+// every node's position compactly (one pass, any reader) and resolves the
+// ways at the end, so nodes may come after ways.
+func readOSM(ctx context.Context, r io.Reader, o *Options) (*extract, error) {
+	sc, pbf, format, err := openOSM(ctx, r, 0)
+	if err != nil {
+		return nil, err
+	}
+	defer sc.Close()
+	ex := &extract{dataBound: orb.Bound{Min: orb.Point{math.Inf(1), math.Inf(1)}, Max: orb.Point{math.Inf(-1), math.Inf(-1)}}}
+	if pbf != nil {
+		h, err := pbf.Header()
+		if errors.Is(err, io.ErrUnexpectedEOF) {
+			return nil, errors.New("PBF is truncated: it ends inside its header block")
+		}
+		if err != nil {
+			return nil, fmt.Errorf("PBF header: %v", err)
+		}
+		if h != nil && h.Bounds != nil {
+			// The header stores nanodegrees; undo the float noise of their
+			// conversion so that -76.6081 reads as -76.6081.
+			b := osmBound(h.Bounds)
+			for _, v := range []*float64{&b.Min[0], &b.Min[1], &b.Max[0], &b.Max[1]} {
+				*v = math.Round(*v*1e9) / 1e9
+			}
+			ex.header = &b
+		}
+	}
+	sel := newSelector(o)
+	var (
+		nodes  []nodeRec
+		sorted = true
+		ways   []wayRec
+		count  int
+	)
+	for sc.Scan() {
+		count++
+		if count%(1<<16) == 0 {
+			if err := ctx.Err(); err != nil {
+				return nil, err
+			}
+		}
+		switch obj := sc.Object().(type) {
+		case *osm.Bounds:
+			if ex.header == nil {
+				b := osmBound(obj)
+				ex.header = &b
+			}
+		case *osm.Node:
+			if math.IsNaN(obj.Lon) || math.IsNaN(obj.Lat) || math.Abs(obj.Lon) > 180 || math.Abs(obj.Lat) > 90 {
+				return nil, fmt.Errorf("node %d: lon %v, lat %v is not a position on Earth", obj.ID, obj.Lon, obj.Lat)
+			}
+			if n := len(nodes); n > 0 && int64(obj.ID) <= nodes[n-1].id {
+				sorted = false
+			}
+			nodes = append(nodes, nodeRec{int64(obj.ID), toOSMUnits(obj.Lon), toOSMUnits(obj.Lat)})
+			ex.dataBound = ex.dataBound.Extend(orb.Point{obj.Lon, obj.Lat})
+		case *osm.Way:
+			class, rank, ok := sel.classify(obj.Tags)
+			if !ok {
+				continue
+			}
+			ids := make([]int64, len(obj.Nodes))
+			for i, wn := range obj.Nodes {
+				ids[i] = int64(wn.ID)
+			}
+			ways = append(ways, wayRec{info: wayInfo{id: obj.ID, rank: rank, label: label(obj.Tags, class)}, class: class, nodes: ids})
+		}
+	}
+	if err := sc.Err(); err != nil {
+		if errors.Is(err, context.Canceled) || errors.Is(err, context.DeadlineExceeded) {
+			return nil, err
+		}
+		if errors.Is(err, io.ErrUnexpectedEOF) {
+			inside := "an element"
+			if pbf != nil {
+				inside = "a data block"
+			}
+			return nil, fmt.Errorf("%s is truncated: it ends inside %s, after %d elements", format, inside, count)
+		}
+		return nil, fmt.Errorf("reading %s after %d elements: %v", format, count, err)
+	}
+	if err := ctx.Err(); err != nil {
+		return nil, err
+	}
+	if count == 0 && ex.header == nil {
+		return nil, fmt.Errorf("the %s file holds no OSM elements", format)
+	}
+	ex.nodes = len(nodes)
+	if !sorted {
+		slices.SortStableFunc(nodes, func(a, b nodeRec) int { return cmp.Compare(a.id, b.id) })
+	}
+	slices.SortStableFunc(ways, func(a, b wayRec) int {
+		if c := cmp.Compare(a.info.rank, b.info.rank); c != 0 {
+			return c
+		}
+		return cmp.Compare(a.info.id, b.info.id)
+	})
+	for _, w := range ways {
+		idx := int32(len(ex.ways))
+		var run []orb.Point
+		var prev int64
+		missing := false
+		flush := func() {
+			if len(run) >= 2 {
+				ex.lines = append(ex.lines, rawLine{way: idx, pts: run})
+			}
+			run = nil
+		}
+		for i, id := range w.nodes {
+			if i > 0 && id == prev {
+				continue
+			}
+			prev = id
+			j, found := slices.BinarySearchFunc(nodes, id, func(n nodeRec, id int64) int { return cmp.Compare(n.id, id) })
+			if !found {
+				missing = true
+				flush()
+				continue
+			}
+			p := orb.Point{fromOSMUnits(nodes[j].lon), fromOSMUnits(nodes[j].lat)}
+			if len(run) > 0 && run[len(run)-1] == p {
+				continue
+			}
+			run = append(run, p)
+		}
+		flush()
+		if missing {
+			ex.incomplete++
+		}
+		ex.ways = append(ex.ways, w.info)
+	}
+	return ex, nil
+}
+
+// label is how a way is named in border road lists.
+func label(tags osm.Tags, class string) string {
+	if n := strings.TrimSpace(tags.Find("name")); n != "" {
+		return n
+	}
+	if r := strings.TrimSpace(tags.Find("ref")); r != "" {
+		return r
+	}
+	return "(unnamed " + class + ")"
+}
+
+func osmBound(b *osm.Bounds) orb.Bound {
+	return orb.Bound{Min: orb.Point{b.MinLon, b.MinLat}, Max: orb.Point{b.MaxLon, b.MaxLat}}
+}

@@ -1,0 +1,745 @@
+package patterns
+
+import (
+	"context"
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"regexp"
+	"sort"
+	"strings"
+	"testing"
+	"time"
+
+	"github.com/paulmach/orb"
+
+	"narrows/partition"
+	"narrows/regiongraph"
+)
+
+// The synthetic town for these tests is a grid of square regions of cellDeg
+// degrees, numbered row by row from 1 at the south-west corner, far from any
+// real place.
+const (
+	gridCols, gridRows = 4, 3
+	cellDeg            = 0.01
+	originLon          = 0.2
+	originLat          = 0.1
+	testWindow         = "am"
+)
+
+func gridPartition() *partition.Partition {
+	p := &partition.Partition{Source: "grid-test"}
+	for row := 0; row < gridRows; row++ {
+		for col := 0; col < gridCols; col++ {
+			x0, y0 := originLon+float64(col)*cellDeg, originLat+float64(row)*cellDeg
+			x1, y1 := x0+cellDeg, y0+cellDeg
+			p.Regions = append(p.Regions, partition.Region{
+				ID:      row*gridCols + col + 1,
+				Polygon: orb.Polygon{orb.Ring{{x0, y0}, {x1, y0}, {x1, y1}, {x0, y1}, {x0, y0}}},
+				Point:   orb.Point{(x0 + x1) / 2, (y0 + y1) / 2},
+			})
+		}
+	}
+	p.Bound = orb.Bound{Min: orb.Point{originLon, originLat}, Max: orb.Point{originLon + gridCols*cellDeg, originLat + gridRows*cellDeg}}
+	return p
+}
+
+// plant is the mean behaviour of one directed edge on a day.
+type plant struct {
+	From, To int
+	Trips    int
+	SpeedKMH float64
+	Detour   float64
+}
+
+// noise is the day-to-day spread of the daily medians.
+type noise struct {
+	TripsSpread int     // uniform ± this
+	SpeedKMH    float64 // standard deviation
+	Detour      float64 // standard deviation
+}
+
+// realistic: an edge with a few dozen trips a day has a daily median speed
+// that moves by about 1 km/h from day to day (the median of ~30 trip speeds
+// spread by ~5 km/h).
+var realistic = noise{TripsSpread: 4, SpeedKMH: 1, Detour: 0.02}
+
+func days(from string, n int) []string {
+	t, err := time.Parse("2006-01-02", from)
+	if err != nil {
+		panic(err)
+	}
+	out := make([]string, n)
+	for i := range out {
+		out[i] = t.AddDate(0, 0, i).Format("2006-01-02")
+	}
+	return out
+}
+
+// syntheticStore builds a store with, on every day, background traffic on
+// every pair of neighbouring cells (fast and direct, so never a candidate)
+// plus the planted edges that plants returns for the day.
+func syntheticStore(r *rand.Rand, dayList []string, plants func(day int) []plant, nz noise) *regiongraph.Store {
+	grid := gridPartition()
+	centre := func(id int) orb.Point { return grid.Regions[id-1].Point }
+	straight := func(a, b int) float64 {
+		pa, pb := centre(a), centre(b)
+		lat := (pa.Lat() + pb.Lat()) / 2 * math.Pi / 180
+		dx := (pa.Lon() - pb.Lon()) * math.Pi / 180 * math.Cos(lat) * earthRadiusMetres
+		dy := (pa.Lat() - pb.Lat()) * math.Pi / 180 * earthRadiusMetres
+		return math.Hypot(dx, dy)
+	}
+	store := &regiongraph.Store{Meta: regiongraph.Meta{TimeZone: "UTC", Windows: []regiongraph.Window{{Name: testWindow, StartMinute: 7 * 60, EndMinute: 10 * 60}}}}
+	for d, day := range dayList {
+		planted := plants(d)
+		isPlanted := map[EdgeKey]bool{}
+		for _, p := range planted {
+			isPlanted[EdgeKey{p.From, p.To}] = true
+		}
+		all := append([]plant{}, planted...)
+		for id := 1; id <= gridCols*gridRows; id++ {
+			for _, nb := range []int{id + 1, id + gridCols} {
+				if (nb == id+1 && (id-1)%gridCols == gridCols-1) || nb > gridCols*gridRows {
+					continue
+				}
+				for _, k := range []EdgeKey{{id, nb}, {nb, id}} {
+					if !isPlanted[k] {
+						all = append(all, plant{From: k.From, To: k.To, Trips: 40, SpeedKMH: 36, Detour: 1.15})
+					}
+				}
+			}
+		}
+		var edges []regiongraph.Edge
+		for _, p := range all {
+			trips := p.Trips
+			if nz.TripsSpread > 0 {
+				trips += r.IntN(2*nz.TripsSpread+1) - nz.TripsSpread
+			}
+			speed := math.Max(1, p.SpeedKMH+nz.SpeedKMH*r.NormFloat64()) / 3.6
+			detour := math.Max(1, p.Detour+nz.Detour*r.NormFloat64())
+			s := straight(p.From, p.To)
+			dist := s * detour
+			edges = append(edges, regiongraph.Edge{
+				Day: day, Window: testWindow, From: p.From, To: p.To, Trips: trips,
+				SpeedP25: speed * 0.85, SpeedMedian: speed, SpeedP75: speed * 1.15,
+				DetourP25: 1 + (detour-1)*0.8, DetourMedian: detour, DetourP75: detour * 1.1,
+				DistanceMedian: dist, DurationMedian: dist / speed,
+				DistanceSum: dist * float64(trips), StraightSum: s * float64(trips), DurationSum: dist / speed * float64(trips),
+			})
+		}
+		sort.Slice(edges, func(i, j int) bool {
+			if edges[i].From != edges[j].From {
+				return edges[i].From < edges[j].From
+			}
+			return edges[i].To < edges[j].To
+		})
+		store.Edges = append(store.Edges, edges...)
+	}
+	return store
+}
+
+func scanPeriod(from, to string, exclude []string) ScanOptions {
+	o := DefaultScanOptions()
+	o.From, o.To, o.Window, o.Exclude = from, to, testWindow, exclude
+	return o
+}
+
+func assessmentFor(t *testing.T, c *Comparison, from, to int) *Assessment {
+	t.Helper()
+	for i := range c.Assessments {
+		e := c.Assessments[i].Finding.Edges
+		if len(e) == 1 && e[0].From == from && e[0].To == to {
+			return &c.Assessments[i]
+		}
+	}
+	var ids []string
+	for _, a := range c.Assessments {
+		ids = append(ids, a.Finding.ID)
+	}
+	t.Fatalf("no assessment for the finding %d>%d; have %v", from, to, ids)
+	return nil
+}
+
+// The planted town: A (1>2) is slow and circuitous before and fast and
+// direct after (the new link); B (6>7) is the same in both periods; C
+// (11>12) is fast before and slow after; D (3>4) recurs in both periods but
+// is faster and more direct after. Trips, speeds and detours are chosen so
+// that none of the planted edges dominates another (more trips always
+// come with a higher speed and a shorter detour).
+func plantedChange(afterStart int) func(day int) []plant {
+	return func(day int) []plant {
+		if day < afterStart {
+			return []plant{
+				{1, 2, 30, 14, 1.80},
+				{6, 7, 60, 21, 1.60},
+				{11, 12, 20, 33, 1.12},
+				{3, 4, 45, 18, 1.70},
+			}
+		}
+		return []plant{
+			{1, 2, 30, 32, 1.15},
+			{6, 7, 60, 21, 1.60},
+			{11, 12, 20, 11, 1.90},
+			{3, 4, 70, 25, 1.45},
+		}
+	}
+}
+
+func TestComparePlantedChange(t *testing.T) {
+	r := rand.New(rand.NewPCG(2026, 1))
+	dayList := append(days("2026-03-02", 28), days("2026-05-04", 28)...)
+	store := syntheticStore(r, dayList, plantedChange(28), realistic)
+	opts := DefaultCompareOptions()
+	opts.Focus = &Focus{Regions: []int{6}, Point: &orb.Point{originLon + 3.5*cellDeg, originLat + 2.5*cellDeg}} // inside region 12
+	c, err := Compare(context.Background(), store, gridPartition(),
+		scanPeriod("2026-03-02", "2026-03-29", nil), scanPeriod("2026-05-04", "2026-05-31", nil), opts)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(c.Before.Days) != 28 || len(c.After.Days) != 28 {
+		t.Fatalf("analysed %d and %d days, want 28 and 28", len(c.Before.Days), len(c.After.Days))
+	}
+	tests := []struct {
+		name                string
+		from, to            int
+		want                Verdict
+		inBefore, inAfter   bool
+		focus               bool
+		speedKMH, detour    float64 // planted shift, after − before
+		minBefore, maxAfter int     // recurrence bounds
+	}{
+		{"A new link clears it", 1, 2, Cleared, true, false, false, 18, -0.65, 26, 0},
+		{"B untouched", 6, 7, Unchanged, true, true, true, 0, 0, 26, 28},
+		{"C appears", 11, 12, New, false, true, true, -22, 0.78, 0, 28},
+		{"D eased", 3, 4, Eased, true, true, false, 7, -0.25, 26, 28},
+	}
+	for _, tc := range tests {
+		a := assessmentFor(t, c, tc.from, tc.to)
+		if a.Verdict != tc.want {
+			t.Errorf("%s: verdict %s, want %s (%s)", tc.name, a.Verdict, tc.want, a.Reason)
+		}
+		if a.InBefore != tc.inBefore || a.InAfter != tc.inAfter {
+			t.Errorf("%s: in before/after = %v/%v, want %v/%v", tc.name, a.InBefore, a.InAfter, tc.inBefore, tc.inAfter)
+		}
+		if a.Focus != tc.focus {
+			t.Errorf("%s: focus %v, want %v", tc.name, a.Focus, tc.focus)
+		}
+		if a.TotalBefore != 28 || a.TotalAfter != 28 || a.DaysBefore < tc.minBefore || a.DaysAfter > tc.maxAfter {
+			t.Errorf("%s: recurred %d/%d before, %d/%d after", tc.name, a.DaysBefore, a.TotalBefore, a.DaysAfter, a.TotalAfter)
+		}
+		if tc.inBefore && a.DaysBefore != len(c.Before.Findings[indexOfFinding(c.Before, a.Finding.ID)].Days) {
+			t.Errorf("%s: recurrence before %d differs from the finding's %d days", tc.name, a.DaysBefore, len(a.Finding.Days))
+		}
+		// Every analysed day had trips on the edge, in both periods.
+		if len(a.Speed.Before) != 28 || len(a.Speed.After) != 28 || len(a.Detour.Before) != 28 {
+			t.Errorf("%s: series lengths %d, %d, %d; want 28", tc.name, len(a.Speed.Before), len(a.Speed.After), len(a.Detour.Before))
+		}
+		// The Hodges-Lehmann shift recovers the planted change within the
+		// day-to-day noise, and its interval brackets it.
+		if got := a.Speed.Shift * 3.6; math.Abs(got-tc.speedKMH) > 1 {
+			t.Errorf("%s: speed shift %+.2f km/h, planted %+.0f", tc.name, got, tc.speedKMH)
+		}
+		if !(a.Speed.Low <= a.Speed.Shift && a.Speed.Shift <= a.Speed.High) {
+			t.Errorf("%s: speed interval [%v, %v] misses the estimate %v", tc.name, a.Speed.Low, a.Speed.High, a.Speed.Shift)
+		}
+		if math.Abs(a.Detour.Shift-tc.detour) > 0.03 {
+			t.Errorf("%s: detour shift %+.3f, planted %+.2f", tc.name, a.Detour.Shift, tc.detour)
+		}
+		if a.Speed.PAdjusted < a.Speed.P || a.FisherPAdjusted < a.FisherP {
+			t.Errorf("%s: an adjusted p-value is below its raw value", tc.name)
+		}
+		if !strings.Contains(a.Reason, fmt.Sprintf("%d of 28 days before", a.DaysBefore)) || strings.Count(a.Reason, ".") < 1 {
+			t.Errorf("%s: reason %q lacks the recurrence figures", tc.name, a.Reason)
+		}
+		t.Logf("%s: %s — %s", tc.name, a.Verdict, a.Reason)
+	}
+	if len(c.Assessments) != len(tests) {
+		t.Errorf("%d assessments, want %d", len(c.Assessments), len(tests))
+	}
+	want := map[Verdict]int{Cleared: 1, Unchanged: 1, New: 1, Eased: 1, Worse: 0}
+	for v, n := range want {
+		if c.Counts[v] != n {
+			t.Errorf("count of %s = %d, want %d", v, c.Counts[v], n)
+		}
+	}
+	for i := 1; i < len(c.Assessments); i++ {
+		if severity(c.Assessments[i-1].Verdict) > severity(c.Assessments[i].Verdict) {
+			t.Errorf("assessments not ordered by severity: %s before %s", c.Assessments[i-1].Verdict, c.Assessments[i].Verdict)
+		}
+	}
+	if c.Alpha != 0.05 {
+		t.Errorf("alpha %v, want 0.05", c.Alpha)
+	}
+}
+
+func indexOfFinding(s *Scan, id string) int {
+	for i, f := range s.Findings {
+		if f.ID == id {
+			return i
+		}
+	}
+	return -1
+}
+
+// stationary plants the same three edges on every day: the null hypothesis.
+func stationary(int) []plant {
+	return []plant{
+		{1, 2, 30, 14, 1.80},
+		{6, 7, 60, 21, 1.60},
+		{3, 4, 45, 18, 1.70},
+	}
+}
+
+// alternateWeeks splits the days into odd and even weeks of the period, so
+// that before and after interleave through the same stationary period.
+func alternateWeeks(dayList []string) (odd, even []string) {
+	for i, d := range dayList {
+		if (i/7)%2 == 0 {
+			odd = append(odd, d)
+		} else {
+			even = append(even, d)
+		}
+	}
+	return odd, even
+}
+
+func TestCompareControlSamePeriod(t *testing.T) {
+	// Two samples of one stationary period (odd against even weeks), with
+	// realistic day-to-day noise: no finding may be called cleared or
+	// worse, whatever the seed.
+	dayList := days("2026-03-02", 56)
+	odd, even := alternateWeeks(dayList)
+	first, last := dayList[0], dayList[len(dayList)-1]
+	seeds := 20
+	if testing.Short() {
+		seeds = 5
+	}
+	tally := map[Verdict]int{}
+	for seed := 0; seed < seeds; seed++ {
+		r := rand.New(rand.NewPCG(uint64(seed), 77))
+		store := syntheticStore(r, dayList, stationary, realistic)
+		c, err := Compare(context.Background(), store, gridPartition(),
+			scanPeriod(first, last, even), scanPeriod(first, last, odd), DefaultCompareOptions())
+		if err != nil {
+			t.Fatal(err)
+		}
+		if len(c.Before.Days) != 28 || len(c.After.Days) != 28 {
+			t.Fatalf("seed %d: %d and %d days, want 28 and 28", seed, len(c.Before.Days), len(c.After.Days))
+		}
+		if len(c.Assessments) != 3 {
+			t.Errorf("seed %d: %d assessments, want 3", seed, len(c.Assessments))
+		}
+		for _, a := range c.Assessments {
+			tally[a.Verdict]++
+			if a.Verdict == Cleared || a.Verdict == Worse {
+				t.Errorf("seed %d: control gives %s for %s: %s", seed, a.Verdict, a.Finding.ID, a.Reason)
+			}
+		}
+	}
+	t.Logf("control over %d seeds: %v", seeds, tally)
+}
+
+func TestCompareControlFalsePositiveRate(t *testing.T) {
+	if testing.Short() {
+		t.Skip("many seeds")
+	}
+	// With noise four times the realistic level, significant and material
+	// shifts do occur by chance. Under the null hypothesis each harmful
+	// direction (fewer recurrences with the finding lost, slower, more
+	// circuitous) is a two-sided test's half at level α after adjustment,
+	// so the share of findings called cleared or worse is at most about
+	// 1.5·α; allow three binomial standard errors above that.
+	heavy := noise{TripsSpread: 8, SpeedKMH: 4, Detour: 0.08}
+	dayList := days("2026-03-02", 56)
+	odd, even := alternateWeeks(dayList)
+	first, last := dayList[0], dayList[len(dayList)-1]
+	opts := DefaultCompareOptions()
+	var trials, harmful int
+	for seed := 0; seed < 30; seed++ {
+		r := rand.New(rand.NewPCG(uint64(seed), 99))
+		store := syntheticStore(r, dayList, stationary, heavy)
+		c, err := Compare(context.Background(), store, gridPartition(),
+			scanPeriod(first, last, even), scanPeriod(first, last, odd), opts)
+		if err != nil {
+			t.Fatal(err)
+		}
+		for _, a := range c.Assessments {
+			trials++
+			if a.Verdict == Cleared || a.Verdict == Worse {
+				harmful++
+			}
+		}
+	}
+	bound := 1.5 * opts.Alpha
+	limit := bound + 3*math.Sqrt(bound*(1-bound)/float64(trials))
+	rate := float64(harmful) / float64(trials)
+	if rate > limit {
+		t.Errorf("control with heavy noise: %d of %d findings cleared or worse (%.3f > %.3f)", harmful, trials, rate, limit)
+	}
+	t.Logf("control with heavy noise: %d of %d findings cleared or worse (rate %.3f, limit %.3f)", harmful, trials, rate, limit)
+}
+
+func TestDecide(t *testing.T) {
+	opts := DefaultCompareOptions()
+	const kmh = 1 / 3.6
+	// base: a finding in both periods with no change at all.
+	base := evidence{InBefore: true, InAfter: true, ShareBefore: 0.6, ShareAfter: 0.6, FisherPAdjusted: 1, SpeedPAdj: 0.8, DetourPAdj: 0.8}
+	with := func(f func(*evidence)) evidence { e := base; f(&e); return e }
+	tests := []struct {
+		name string
+		e    evidence
+		want Verdict
+	}{
+		{"no change", base, Unchanged},
+		{"gone, significant drop", with(func(e *evidence) { e.InAfter, e.ShareAfter, e.FisherPAdjusted = false, 0.05, 0.001 }), Cleared},
+		{"gone and faster", with(func(e *evidence) {
+			e.InAfter, e.ShareAfter, e.FisherPAdjusted, e.SpeedShift, e.SpeedPAdj = false, 0.05, 0.001, 5*kmh, 0.001
+		}), Cleared},
+		{"below threshold, drop not significant", with(func(e *evidence) { e.InAfter, e.ShareAfter, e.FisherPAdjusted = false, 0.15, 0.2 }), Unchanged},
+		{"below threshold, not significant, but faster", with(func(e *evidence) {
+			e.InAfter, e.ShareAfter, e.FisherPAdjusted, e.SpeedShift, e.SpeedPAdj = false, 0.15, 0.2, 3*kmh, 0.01
+		}), Eased},
+		{"gone but slower: mixed", with(func(e *evidence) {
+			e.InAfter, e.ShareAfter, e.FisherPAdjusted, e.SpeedShift, e.SpeedPAdj = false, 0.05, 0.001, -3*kmh, 0.01
+		}), Unchanged},
+		{"new, significant rise", with(func(e *evidence) { e.InBefore, e.ShareBefore, e.FisherPAdjusted = false, 0.02, 0.001 }), New},
+		{"new, slower too", with(func(e *evidence) {
+			e.InBefore, e.ShareBefore, e.FisherPAdjusted, e.SpeedShift, e.SpeedPAdj = false, 0.02, 0.001, -4*kmh, 0.001
+		}), New},
+		{"crossed threshold, rise not significant", with(func(e *evidence) { e.InBefore, e.ShareBefore, e.FisherPAdjusted = false, 0.18, 0.6 }), Unchanged},
+		{"crossed threshold, not significant, slower", with(func(e *evidence) {
+			e.InBefore, e.ShareBefore, e.FisherPAdjusted, e.SpeedShift, e.SpeedPAdj = false, 0.18, 0.6, -2*kmh, 0.001
+		}), Worse},
+		{"faster, material", with(func(e *evidence) { e.SpeedShift, e.SpeedPAdj = 2*kmh, 0.01 }), Eased},
+		{"faster, not material", with(func(e *evidence) { e.SpeedShift, e.SpeedPAdj = 0.5*kmh, 0.0001 }), Unchanged},
+		{"faster, material, not significant", with(func(e *evidence) { e.SpeedShift, e.SpeedPAdj = 5*kmh, 0.06 }), Unchanged},
+		{"faster exactly at the threshold", with(func(e *evidence) { e.SpeedShift, e.SpeedPAdj = opts.MinShiftSpeed, 0.01 }), Eased},
+		{"p exactly alpha is not significant", with(func(e *evidence) { e.SpeedShift, e.SpeedPAdj = 5*kmh, 0.05 }), Unchanged},
+		{"slower", with(func(e *evidence) { e.SpeedShift, e.SpeedPAdj = -2*kmh, 0.01 }), Worse},
+		{"less circuitous", with(func(e *evidence) { e.DetourShift, e.DetourPAdj = -0.1, 0.01 }), Eased},
+		{"more circuitous", with(func(e *evidence) { e.DetourShift, e.DetourPAdj = 0.1, 0.01 }), Worse},
+		{"detour shift too small", with(func(e *evidence) { e.DetourShift, e.DetourPAdj = 0.02, 0.0001 }), Unchanged},
+		{"faster but more circuitous: mixed", with(func(e *evidence) {
+			e.SpeedShift, e.SpeedPAdj, e.DetourShift, e.DetourPAdj = 2*kmh, 0.01, 0.1, 0.01
+		}), Unchanged},
+		{"recurs more often while in both", with(func(e *evidence) { e.ShareAfter, e.FisherPAdjusted = 0.95, 0.001 }), Worse},
+		{"recurs less often while in both", with(func(e *evidence) { e.ShareAfter, e.FisherPAdjusted = 0.25, 0.001 }), Eased},
+		{"untested series (NaN)", with(func(e *evidence) {
+			e.SpeedShift, e.SpeedPAdj, e.DetourShift, e.DetourPAdj = math.NaN(), math.NaN(), math.NaN(), math.NaN()
+		}), Unchanged},
+	}
+	for _, tc := range tests {
+		if got, _ := decide(tc.e, opts); got != tc.want {
+			t.Errorf("%s: %s, want %s", tc.name, got, tc.want)
+		}
+	}
+}
+
+func TestDailySeriesAndRecurrence(t *testing.T) {
+	a, b := EdgeKey{1, 2}, EdgeKey{2, 3}
+	values := map[EdgeKey]map[int]edgeValue{
+		a: {0: {trips: 10, speed: 5, detour: 1.5}, 1: {trips: 2, speed: 8, detour: 1.2}},
+		b: {0: {trips: 30, speed: 9, detour: 1.1}, 2: {trips: 4, speed: 7, detour: 1.4}},
+	}
+	dayList := []string{"d0", "d1", "d2", "d3"}
+	speed, detour := dailySeries(values, dayList, []EdgeKey{a, b}, 1)
+	// Day 0: (10·5 + 30·9)/40 = 8, (10·1.5 + 30·1.1)/40 = 1.2; days 1 and 2
+	// from one edge each; day 3 has no trips.
+	wantSpeed, wantDetour := []float64{8, 8, 7}, []float64{1.2, 1.2, 1.4}
+	if !closeSlices(speed, wantSpeed) || !closeSlices(detour, wantDetour) {
+		t.Errorf("series %v, %v; want %v, %v", speed, detour, wantSpeed, wantDetour)
+	}
+	speed, _ = dailySeries(values, dayList, []EdgeKey{a, b}, 3)
+	if !closeSlices(speed, []float64{8, 7}) {
+		t.Errorf("with at least 3 trips a day: %v, want [8 7]", speed)
+	}
+	s := &Scan{Days: dayList, DayCandidates: [][]EdgeKey{{a, b}, {a}, {{0, 9}, b}, nil}}
+	for _, tc := range []struct {
+		keys []EdgeKey
+		want int
+	}{{[]EdgeKey{a, b}, 1}, {[]EdgeKey{a}, 2}, {[]EdgeKey{b}, 2}, {[]EdgeKey{{5, 5}}, 0}, {nil, 0}} {
+		if got := recurrenceDays(s, tc.keys); got != tc.want {
+			t.Errorf("recurrence of %v: %d, want %d", tc.keys, got, tc.want)
+		}
+	}
+}
+
+func closeSlices(a, b []float64) bool {
+	if len(a) != len(b) {
+		return false
+	}
+	for i := range a {
+		if math.Abs(a[i]-b[i]) > 1e-12 {
+			return false
+		}
+	}
+	return true
+}
+
+func TestEdgeDayValuesReadsOnlyTheScanWindowAndDays(t *testing.T) {
+	store := &regiongraph.Store{Edges: []regiongraph.Edge{
+		{Day: "2026-01-05", Window: "am", From: 1, To: 2, Trips: 5, SpeedMedian: 4, DetourMedian: 1.4},
+		{Day: "2026-01-05", Window: "pm", From: 1, To: 2, Trips: 9, SpeedMedian: 9, DetourMedian: 1.1},
+		{Day: "2026-01-06", Window: "am", From: 1, To: 2, Trips: 0, SpeedMedian: 1, DetourMedian: 1},
+		{Day: "2026-01-07", Window: "am", From: 1, To: 2, Trips: 3, SpeedMedian: 6, DetourMedian: 1.2},
+		{Day: "2026-01-07", Window: "am", From: 2, To: 1, Trips: 3, SpeedMedian: 6, DetourMedian: 1.2},
+	}}
+	s := &Scan{Window: "am", Days: []string{"2026-01-05", "2026-01-06"}}
+	got := edgeDayValues(store, s, []EdgeKey{{1, 2}})
+	want := map[int]edgeValue{0: {trips: 5, speed: 4, detour: 1.4}}
+	if len(got) != 1 || len(got[EdgeKey{1, 2}]) != 1 || got[EdgeKey{1, 2}][0] != want[0] {
+		t.Errorf("values %v, want only the am value of 2026-01-05: %v", got, want)
+	}
+}
+
+func TestFocusGeometry(t *testing.T) {
+	grid := gridPartition()
+	centre12 := orb.Point{originLon + 3.5*cellDeg, originLat + 2.5*cellDeg}
+	cellMetres := cellDeg * math.Pi / 180 * earthRadiusMetres // north-south size of a cell
+	// A point half a cell east of region 12's east edge, at its middle.
+	east := orb.Point{originLon + 4.5*cellDeg, originLat + 2.5*cellDeg}
+	eastMetres := 0.5 * cellMetres * math.Cos(centre12.Lat()*math.Pi/180)
+	tests := []struct {
+		name   string
+		focus  *Focus
+		finder Finding
+		want   bool
+	}{
+		{"no focus", nil, Finding{Regions: []int{11, 12}}, false},
+		{"by region id", &Focus{Regions: []int{12}}, Finding{Regions: []int{11, 12}}, true},
+		{"other region id", &Focus{Regions: []int{5}}, Finding{Regions: []int{11, 12}}, false},
+		{"point inside, radius 0", &Focus{Point: &centre12}, Finding{Regions: []int{12}}, true},
+		{"point inside the neighbour, radius 0", &Focus{Point: &centre12}, Finding{Regions: []int{1, 2}}, false},
+		{"point outside, radius reaches", &Focus{Point: &east, RadiusMetres: eastMetres * 1.01}, Finding{Regions: []int{12}}, true},
+		{"point outside, radius short", &Focus{Point: &east, RadiusMetres: eastMetres * 0.99}, Finding{Regions: []int{12}}, false},
+		{"region 11 one cell further", &Focus{Point: &east, RadiusMetres: eastMetres * 1.01}, Finding{Regions: []int{11}}, false},
+	}
+	for _, tc := range tests {
+		if got := inFocus(tc.finder, tc.focus, grid); got != tc.want {
+			t.Errorf("%s: %v, want %v", tc.name, got, tc.want)
+		}
+	}
+	// The projected distance agrees with the haversine distance across a
+	// parallel of the grid to well under 1 %.
+	d := regionDistance(&grid.Regions[11], east)
+	h := haversine(east, orb.Point{originLon + 4*cellDeg, east.Lat()})
+	if math.Abs(d-h)/h > 0.001 {
+		t.Errorf("distance %v m, haversine %v m", d, h)
+	}
+}
+
+func haversine(a, b orb.Point) float64 {
+	rad := math.Pi / 180
+	dlat, dlon := (b.Lat()-a.Lat())*rad, (b.Lon()-a.Lon())*rad
+	h := math.Sin(dlat/2)*math.Sin(dlat/2) + math.Cos(a.Lat()*rad)*math.Cos(b.Lat()*rad)*math.Sin(dlon/2)*math.Sin(dlon/2)
+	return 2 * earthRadiusMetres * math.Asin(math.Sqrt(h))
+}
+
+func TestCompareErrors(t *testing.T) {
+	r := rand.New(rand.NewPCG(5, 5))
+	dayList := days("2026-03-02", 14)
+	store := syntheticStore(r, dayList, stationary, realistic)
+	grid := gridPartition()
+	good := scanPeriod("2026-03-02", "2026-03-08", nil)
+	later := scanPeriod("2026-03-09", "2026-03-15", nil)
+	empty := scanPeriod("2027-01-01", "2027-01-31", nil)
+	otherWindow := later
+	otherWindow.Window = "pm"
+	withOpts := func(f func(*CompareOptions)) CompareOptions { o := DefaultCompareOptions(); f(&o); return o }
+	tests := []struct {
+		name          string
+		store         *regiongraph.Store
+		regions       *partition.Partition
+		before, after ScanOptions
+		opts          CompareOptions
+		wantInError   string
+	}{
+		{"nil store", nil, grid, good, later, DefaultCompareOptions(), "store"},
+		{"empty after period", store, grid, good, empty, DefaultCompareOptions(), "after period"},
+		{"different windows", store, grid, good, otherWindow, DefaultCompareOptions(), ""},
+		{"alpha zero", store, grid, good, later, withOpts(func(o *CompareOptions) { o.Alpha = 0 }), "alpha"},
+		{"negative speed shift", store, grid, good, later, withOpts(func(o *CompareOptions) { o.MinShiftSpeed = -1 }), "speed"},
+		{"NaN detour shift", store, grid, good, later, withOpts(func(o *CompareOptions) { o.MinShiftDetour = math.NaN() }), "detour"},
+		{"unknown focus region", store, grid, good, later, withOpts(func(o *CompareOptions) { o.Focus = &Focus{Regions: []int{99}} }), "99"},
+		{"focus point without regions", store, nil, good, later, withOpts(func(o *CompareOptions) { o.Focus = &Focus{Point: &orb.Point{0.2, 0.1}} }), "partition"},
+		{"focus point off the globe", store, grid, good, later, withOpts(func(o *CompareOptions) { o.Focus = &Focus{Point: &orb.Point{200, 0.1}} }), "WGS84"},
+		{"negative radius", store, grid, good, later, withOpts(func(o *CompareOptions) {
+			o.Focus = &Focus{Point: &orb.Point{0.2, 0.1}, RadiusMetres: -5}
+		}), "radius"},
+		{"partition of another store", store, &partition.Partition{Source: "other", Regions: grid.Regions[:3]}, good, later, DefaultCompareOptions(), "region"},
+	}
+	for _, tc := range tests {
+		_, err := Compare(context.Background(), tc.store, tc.regions, tc.before, tc.after, tc.opts)
+		if err == nil {
+			t.Errorf("%s: no error", tc.name)
+			continue
+		}
+		if !strings.Contains(err.Error(), tc.wantInError) {
+			t.Errorf("%s: error %q does not mention %q", tc.name, err, tc.wantInError)
+		}
+	}
+	ctx, cancel := context.WithCancel(context.Background())
+	cancel()
+	if _, err := Compare(ctx, store, grid, good, later, DefaultCompareOptions()); err == nil {
+		t.Error("cancelled context: no error")
+	}
+	// Without a point focus, the partition may be left out.
+	if _, err := Compare(context.Background(), store, nil, good, later, DefaultCompareOptions()); err != nil {
+		t.Errorf("nil partition without focus point: %v", err)
+	}
+}
+
+func TestCompareDeterministic(t *testing.T) {
+	dayList := append(days("2026-03-02", 28), days("2026-05-04", 28)...)
+	run := func() string {
+		store := syntheticStore(rand.New(rand.NewPCG(3, 3)), dayList, plantedChange(28), realistic)
+		c, err := Compare(context.Background(), store, gridPartition(),
+			scanPeriod("2026-03-02", "2026-03-29", nil), scanPeriod("2026-05-04", "2026-05-31", nil), DefaultCompareOptions())
+		if err != nil {
+			t.Fatal(err)
+		}
+		var b strings.Builder
+		for _, a := range c.Assessments {
+			fmt.Fprintf(&b, "%s %s %v %v %s\n", a.Finding.ID, a.Verdict, a.Speed, a.Detour, a.Reason)
+		}
+		return b.String()
+	}
+	if first, second := run(), run(); first != second {
+		t.Errorf("two runs differ:\n%s\n---\n%s", first, second)
+	}
+}
+
+func ExampleCompare() {
+	// A synthetic town with a link road opened between the two periods.
+	dayList := append(days("2026-03-02", 28), days("2026-05-04", 28)...)
+	store := syntheticStore(rand.New(rand.NewPCG(1, 1)), dayList, plantedChange(28), realistic)
+
+	before := DefaultScanOptions()
+	before.From, before.To = "2026-03-02", "2026-03-29"
+	after := DefaultScanOptions()
+	after.From, after.To = "2026-05-04", "2026-05-31"
+
+	c, err := Compare(context.Background(), store, gridPartition(), before, after, DefaultCompareOptions())
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	for _, a := range c.Assessments {
+		fmt.Printf("%-6s %-9s recurred %2d/%d -> %2d/%d days, speed %+5.1f km/h\n", a.Finding.ID, a.Verdict,
+			a.DaysBefore, a.TotalBefore, a.DaysAfter, a.TotalAfter, a.Speed.Shift*3.6)
+	}
+	// Output:
+	// 11>12  new       recurred  0/28 -> 28/28 days, speed -21.8 km/h
+	// 6>7    unchanged recurred 28/28 -> 28/28 days, speed  +0.1 km/h
+	// 3>4    eased     recurred 28/28 -> 28/28 days, speed  +7.0 km/h
+	// 1>2    cleared   recurred 28/28 ->  0/28 days, speed +17.7 km/h
+}
+
+func TestReasonFigures(t *testing.T) {
+	nan := math.NaN()
+	a := &Assessment{
+		Verdict: Unchanged, InBefore: true, InAfter: false,
+		DaysBefore: 3, TotalBefore: 10, DaysAfter: 1, TotalAfter: 9, FisherP: 0.58, FisherPAdjusted: 0.9,
+		Speed:  Shift{Before: []float64{1, 2}, After: []float64{3, 4}, P: 0.333, PAdjusted: 0.5, Shift: 2 / 3.6 * 3.6, Low: math.Inf(-1), High: math.Inf(1)},
+		Detour: Shift{Before: []float64{1.5}, P: nan, PAdjusted: nan, Shift: nan, Low: nan, High: nan},
+	}
+	got := reason(a, nil)
+	for _, want := range []string{
+		"crossed the support threshold",
+		"3 of 10 days before and 1 of 9 after (Fisher p 0.5800, adjusted 0.9000)",
+		"daily speed changed by +7.2 km/h (too few days for a 95 % interval; Mann-Whitney p 0.3330, adjusted 0.5000)",
+		"detour ratio not tested (1 days with trips before, 0 after)",
+	} {
+		if !strings.Contains(got, want) {
+			t.Errorf("reason %q lacks %q", got, want)
+		}
+	}
+	if regexp.MustCompile(`\. [A-Z]`).MatchString(got) || !strings.HasSuffix(got, ".") {
+		t.Errorf("reason %q is not one sentence", got)
+	}
+}
+
+func BenchmarkCompare(b *testing.B) {
+	dayList := append(days("2026-03-02", 28), days("2026-05-04", 28)...)
+	store := syntheticStore(rand.New(rand.NewPCG(3, 3)), dayList, plantedChange(28), realistic)
+	grid := gridPartition()
+	before, after := scanPeriod("2026-03-02", "2026-03-29", nil), scanPeriod("2026-05-04", "2026-05-31", nil)
+	b.ReportMetric(float64(len(store.Edges)), "edges")
+	for b.Loop() {
+		if _, err := Compare(context.Background(), store, grid, before, after, DefaultCompareOptions()); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
+
+func TestCompareMultiEdgeFinding(t *testing.T) {
+	// A two-way weak pair (9>10 and 10>9, always candidates together) is one
+	// finding of two edges. After the change, 10>9 has no trips at all and
+	// 9>10 is fast and direct: the daily series after comes from 9>10 alone.
+	dayList := append(days("2026-03-02", 28), days("2026-05-04", 28)...)
+	plants := func(day int) []plant {
+		if day < 28 {
+			return []plant{{9, 10, 30, 14, 1.8}, {10, 9, 45, 18, 1.7}}
+		}
+		return []plant{{9, 10, 30, 33, 1.1}}
+	}
+	store := syntheticStore(rand.New(rand.NewPCG(8, 8)), dayList, plants, realistic)
+	// 10>9 is background traffic in the grid unless planted; drop it after.
+	kept := store.Edges[:0]
+	for _, e := range store.Edges {
+		if !(e.Day >= "2026-05-04" && e.From == 10 && e.To == 9) {
+			kept = append(kept, e)
+		}
+	}
+	store.Edges = kept
+	c, err := Compare(context.Background(), store, gridPartition(),
+		scanPeriod("2026-03-02", "2026-03-29", nil), scanPeriod("2026-05-04", "2026-05-31", nil), DefaultCompareOptions())
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(c.Assessments) != 1 {
+		t.Fatalf("%d assessments, want the one two-edge finding", len(c.Assessments))
+	}
+	a := c.Assessments[0]
+	if len(a.Finding.Edges) != 2 || a.Verdict != Cleared || a.DaysBefore != 28 || a.DaysAfter != 0 {
+		t.Errorf("finding %s with %d edges: %s, %d and %d days; want 2 edges, cleared, 28 and 0 days (%s)",
+			a.Finding.ID, len(a.Finding.Edges), a.Verdict, a.DaysBefore, a.DaysAfter, a.Reason)
+	}
+	if len(a.Speed.After) != 28 {
+		t.Errorf("speed series after has %d days, want 28 (days with trips on any edge)", len(a.Speed.After))
+	}
+	// Before: trip-weighted mean of 14 and 18 km/h with 30 and 45 trips is
+	// 16.4 km/h; after: 33 km/h. The shift is about +16.6 km/h.
+	if got := a.Speed.Shift * 3.6; math.Abs(got-16.6) > 1 {
+		t.Errorf("speed shift %+.2f km/h, want about +16.6", got)
+	}
+}
+
+func TestCompareRejectsDifferentWindows(t *testing.T) {
+	store := syntheticStore(rand.New(rand.NewPCG(4, 4)), days("2026-03-02", 14), stationary, realistic)
+	store.Meta.Windows = append(store.Meta.Windows, regiongraph.Window{Name: "pm", StartMinute: 16 * 60, EndMinute: 19 * 60})
+	n := len(store.Edges)
+	for _, e := range store.Edges[:n] {
+		e.Window = "pm"
+		store.Edges = append(store.Edges, e)
+	}
+	sort.SliceStable(store.Edges, func(i, j int) bool {
+		a, b := store.Edges[i], store.Edges[j]
+		if a.Day != b.Day {
+			return a.Day < b.Day
+		}
+		return a.Window < b.Window
+	})
+	before := scanPeriod("2026-03-02", "2026-03-08", nil)
+	after := scanPeriod("2026-03-09", "2026-03-15", nil)
+	after.Window = "pm"
+	_, err := Compare(context.Background(), store, gridPartition(), before, after, DefaultCompareOptions())
+	if err == nil || !strings.Contains(err.Error(), "different time windows") {
+		t.Errorf("error %v, want one about different time windows", err)
+	}
+	after.Window = "am"
+	if _, err := Compare(context.Background(), store, gridPartition(), before, after, DefaultCompareOptions()); err != nil {
+		t.Errorf("same window: %v", err)
+	}
+}

@@ -1,0 +1,114 @@
+package patterns
+
+import (
+	"cmp"
+	"fmt"
+	"slices"
+	"strings"
+)
+
+// findings turns the mined groups of scan into ranked findings.
+//
+// Per edge and finding day, the extra vehicle-kilometres are the travel
+// distance beyond the straight-line distance, summed over the day's trips,
+// and the extra vehicle-hours are the travel time beyond the time the
+// straight line would take at the reference speed. Both are floored at 0
+// per day: a pair whose trips beat the reference speed along the straight
+// line costs nothing extra that day, and no day's gain is allowed to offset
+// another day's loss. Each edge carries the median over the finding's days;
+// a finding's cost is the sum over its edges.
+func findings(scan *Scan, groups []Group) []Finding {
+	out := make([]Finding, 0, len(groups))
+	ref := scan.Options.ReferenceSpeed
+	for _, g := range groups {
+		f := Finding{
+			ID:    groupID(g.Edges),
+			Days:  make([]string, len(g.Days)),
+			Share: float64(len(g.Days)) / float64(len(scan.Days)),
+		}
+		for i, d := range g.Days {
+			f.Days[i] = scan.Days[d]
+		}
+		for _, e := range g.Edges {
+			f.Regions = append(f.Regions, e.From, e.To)
+		}
+		slices.Sort(f.Regions)
+		f.Regions = slices.Compact(f.Regions)
+
+		n := len(f.Days)
+		trips, speed, detour := make([]float64, 0, n), make([]float64, 0, n), make([]float64, 0, n)
+		km, hours := make([]float64, 0, n), make([]float64, 0, n)
+		for _, key := range g.Edges {
+			daily := scan.EdgeDaily[key]
+			trips, speed, detour, km, hours = trips[:0], speed[:0], detour[:0], km[:0], hours[:0]
+			i := 0
+			for _, day := range f.Days {
+				for i < len(daily) && daily[i].Day < day {
+					i++
+				}
+				if i == len(daily) || daily[i].Day != day {
+					continue // cannot happen: the edge was a candidate that day
+				}
+				v := daily[i]
+				trips = append(trips, float64(v.Trips))
+				speed = append(speed, v.Speed)
+				detour = append(detour, v.Detour)
+				km = append(km, max(0, v.DistanceSum-v.StraightSum)/1000)
+				hours = append(hours, max(0, v.DurationSum-v.StraightSum/ref)/3600)
+			}
+			fe := FindingEdge{
+				From:             key.From,
+				To:               key.To,
+				TripsMedian:      median(trips),
+				SpeedMedian:      median(speed),
+				DetourMedian:     median(detour),
+				ExtraKMPerDay:    median(km),
+				ExtraHoursPerDay: median(hours),
+				Daily:            slices.Clone(daily),
+			}
+			f.ExtraKMPerDay += fe.ExtraKMPerDay
+			f.ExtraHoursPerDay += fe.ExtraHoursPerDay
+			f.Edges = append(f.Edges, fe)
+		}
+		out = append(out, f)
+	}
+	slices.SortStableFunc(out, func(a, b Finding) int {
+		if c := cmp.Compare(b.ExtraHoursPerDay, a.ExtraHoursPerDay); c != 0 {
+			return c
+		}
+		if c := cmp.Compare(b.ExtraKMPerDay, a.ExtraKMPerDay); c != 0 {
+			return c
+		}
+		return strings.Compare(a.ID, b.ID)
+	})
+	for i := range out {
+		out[i].Rank = i + 1
+	}
+	return out
+}
+
+// groupID joins the sorted edges as "12>15+15>18".
+func groupID(edges []EdgeKey) string {
+	var b strings.Builder
+	for i, e := range edges {
+		if i > 0 {
+			b.WriteByte('+')
+		}
+		fmt.Fprintf(&b, "%d>%d", e.From, e.To)
+	}
+	return b.String()
+}
+
+// median returns the median of values (the mean of the two middle values
+// for an even count), or 0 for none. It reorders values.
+func median(values []float64) float64 {
+	n := len(values)
+	if n == 0 {
+		return 0
+	}
+	slices.Sort(values)
+	if n%2 == 1 {
+		return values[n/2]
+	}
+	return (values[n/2-1] + values[n/2]) / 2
+}

@@ -1,0 +1,86 @@
+package patterns
+
+import (
+	"math"
+	"testing"
+)
+
+func TestFindingsCostsAndRanking(t *testing.T) {
+	ref := 10.0 // m/s, so a straight kilometre takes 100 s
+	day := func(d string, trips int, distance, straight, duration float64) DailyValue {
+		return DailyValue{Day: d, Trips: trips, Speed: distance / duration, Detour: distance / straight, Candidate: true,
+			DistanceSum: distance, StraightSum: straight, DurationSum: duration}
+	}
+	a, b, c, fast := EdgeKey{1, 2}, EdgeKey{2, 3}, EdgeKey{5, 6}, EdgeKey{7, 8}
+	scan := &Scan{
+		Options: ScanOptions{ReferenceSpeed: ref},
+		Days:    []string{"2025-03-03", "2025-03-04", "2025-03-05", "2025-03-06"},
+		EdgeDaily: map[EdgeKey][]DailyValue{
+			// Extra km per day 1, 2, 6 (median of the finding's days 0, 1, 3
+			// is 2); extra hours (3600, 7200, 0 floored from -100) / 3600.
+			a: {day("2025-03-03", 10, 2000, 1000, 3700), day("2025-03-04", 20, 4000, 2000, 7400),
+				day("2025-03-05", 99, 9000, 1000, 9000), day("2025-03-06", 30, 7000, 1000, 0)},
+			// Extra km 0.5 every day, 1 h every day.
+			b: {day("2025-03-03", 5, 1500, 1000, 3700), day("2025-03-04", 5, 1500, 1000, 3700),
+				day("2025-03-06", 5, 1500, 1000, 3700)},
+			// Same hours as b but more km: ranks before b.
+			c: {day("2025-03-03", 5, 3000, 1000, 3700), day("2025-03-04", 5, 3000, 1000, 3700)},
+			// Trips faster than the reference along the straight line, and
+			// (noise) shorter than the straight line: both floored at 0.
+			fast: {day("2025-03-03", 5, 900, 1000, 50), day("2025-03-04", 5, 900, 1000, 50)},
+		},
+	}
+	groups := []Group{
+		{Edges: []EdgeKey{fast}, Days: []int{0, 1}},
+		{Edges: []EdgeKey{b}, Days: []int{0, 1, 3}},
+		{Edges: []EdgeKey{a, b}, Days: []int{0, 1, 3}},
+		{Edges: []EdgeKey{c}, Days: []int{0, 1}},
+	}
+	got := findings(scan, groups)
+	want := []struct {
+		id        string
+		km, hours float64
+		regions   int
+	}{
+		{"1>2+2>3", 2 + 0.5, 1 + 1, 3},
+		{"5>6", 2, 1, 2},
+		{"2>3", 0.5, 1, 2},
+		{"7>8", 0, 0, 2},
+	}
+	if len(got) != len(want) {
+		t.Fatalf("%d findings, want %d", len(got), len(want))
+	}
+	for i, w := range want {
+		f := got[i]
+		if f.Rank != i+1 || f.ID != w.id || math.Abs(f.ExtraKMPerDay-w.km) > 1e-12 ||
+			math.Abs(f.ExtraHoursPerDay-w.hours) > 1e-12 || len(f.Regions) != w.regions {
+			t.Errorf("finding %d: rank %d %s, %v km, %v h, regions %v; want %s, %v km, %v h, %d regions",
+				i, f.Rank, f.ID, f.ExtraKMPerDay, f.ExtraHoursPerDay, f.Regions, w.id, w.km, w.hours, w.regions)
+		}
+	}
+	top := got[0]
+	if top.Share != 0.75 || len(top.Days) != 3 || top.Days[2] != "2025-03-06" {
+		t.Errorf("top finding share %v days %v", top.Share, top.Days)
+	}
+	// Medians over the finding's days 0, 1 and 3 only: trips 10, 20, 30.
+	if e := top.Edges[0]; e.TripsMedian != 20 || len(e.Daily) != 4 {
+		t.Errorf("edge 1>2: trips median %v, %d daily values; want 20 and all 4 days", e.TripsMedian, len(e.Daily))
+	}
+}
+
+func TestMedian(t *testing.T) {
+	cases := []struct {
+		in   []float64
+		want float64
+	}{
+		{nil, 0},
+		{[]float64{3}, 3},
+		{[]float64{5, 1, 3}, 3},
+		{[]float64{4, 1, 3, 2}, 2.5},
+	}
+	for _, c := range cases {
+		if got := median(c.in); got != c.want {
+			t.Errorf("median(%v) = %v, want %v", c.in, got, c.want)
+		}
+	}
+}

@@ -1,0 +1,330 @@
+package patterns
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"math"
+	"slices"
+	"strings"
+	"time"
+
+	"narrows/regiongraph"
+	"narrows/skyline"
+)
+
+// dayLayout is the layout of local calendar days.
+const dayLayout = "2006-01-02"
+
+// DefaultScanOptions returns the default scan: every day of the store in
+// its first window, candidates by skyline.DefaultOptions, groups of up to
+// six edges recurring on at least 20 % of the days, extra vehicle-hours
+// counted against 30 km/h.
+//
+// A fifth of the days is about one weekday a week: a weakness that shows
+// on the same weekday every week is recurring, one bad afternoon is not.
+// Six edges cover a region and its ring of neighbours, the largest
+// group a planner reads as one place. 30 km/h is a common urban speed
+// limit and a fair door-to-door speed for urban car trips (common
+// practice).
+func DefaultScanOptions() ScanOptions {
+	return ScanOptions{
+		Days:           AllDays,
+		Skyline:        skyline.DefaultOptions(),
+		Support:        0.2,
+		MaxGroupEdges:  6,
+		ReferenceSpeed: 30 / 3.6,
+	}
+}
+
+// ScanStore scans one period of a day-graph store: it selects the window
+// and the analysed days, finds each day's skyline candidates, mines the
+// connected groups of candidates that recur on at least opts.Support of the
+// analysed days, and turns the closed groups into ranked findings.
+//
+// The analysed days are the calendar days from opts.From to opts.To
+// (inclusive; empty means the store's first or last day) on which the store
+// has edges in any window, that pass opts.Days (by the weekday of the date)
+// and are not in opts.Exclude. A day with data in other windows only, or
+// with no eligible edge, is still analysed: it has no candidates, and it
+// counts against the recurrence share, because the day happened and the
+// weakness did not show. A day the store has no data for at all is not
+// analysed, since nothing is known about it.
+//
+// The returned Scan's Options are opts with From, To, Window and Days
+// resolved.
+func ScanStore(ctx context.Context, store *regiongraph.Store, opts ScanOptions) (*Scan, error) {
+	if store == nil {
+		return nil, errors.New("patterns: scan: no store")
+	}
+	if err := checkScanOptions(&opts); err != nil {
+		return nil, err
+	}
+	window, err := resolveWindow(store, opts.Window)
+	if err != nil {
+		return nil, err
+	}
+	opts.Window = window
+	storeDays, err := distinctDays(store.Edges)
+	if err != nil {
+		return nil, err
+	}
+	days, err := analysedDays(storeDays, &opts)
+	if err != nil {
+		return nil, err
+	}
+	dayIndex := make(map[string]int, len(days))
+	for i, d := range days {
+		dayIndex[d] = i
+	}
+	graphs, err := dayGraphs(store.Edges, window, dayIndex)
+	if err != nil {
+		return nil, err
+	}
+
+	scan := &Scan{
+		Options:          opts,
+		Window:           window,
+		Days:             days,
+		CandidatesPerDay: make([]int, len(days)),
+		DayCandidates:    make([][]EdgeKey, len(days)),
+		EdgeDaily:        make(map[EdgeKey][]DailyValue),
+	}
+	candidate := make([][]bool, len(days)) // per day, per edge of its graph
+	for d, graph := range graphs {
+		if err := ctx.Err(); err != nil {
+			return nil, err
+		}
+		res := skyline.Candidates(graph, opts.Skyline)
+		keys := make([]EdgeKey, len(res.Indices))
+		candidate[d] = make([]bool, len(graph))
+		for j, i := range res.Indices {
+			keys[j] = EdgeKey{graph[i].From, graph[i].To}
+			candidate[d][i] = true
+			scan.EdgeDaily[keys[j]] = nil
+		}
+		scan.CandidatesPerDay[d] = len(keys)
+		scan.DayCandidates[d] = keys // graphs are sorted by From, To
+	}
+	for d, graph := range graphs {
+		for i := range graph {
+			e := &graph[i]
+			key := EdgeKey{e.From, e.To}
+			daily, ok := scan.EdgeDaily[key]
+			if !ok {
+				continue
+			}
+			scan.EdgeDaily[key] = append(daily, DailyValue{
+				Day:         days[d],
+				Trips:       e.Trips,
+				Speed:       e.SpeedMedian,
+				Detour:      e.DetourMedian,
+				Candidate:   candidate[d][i],
+				DistanceSum: e.DistanceSum,
+				StraightSum: e.StraightSum,
+				DurationSum: e.DurationSum,
+			})
+		}
+	}
+
+	groups, err := Mine(ctx, scan.DayCandidates, MineOptions{
+		MinSupport:  MinSupport(opts.Support, len(days)),
+		MaxEdges:    opts.MaxGroupEdges,
+		MaximalOnly: opts.MaximalOnly,
+	})
+	if err != nil {
+		return nil, err
+	}
+	scan.Findings = findings(scan, groups)
+	return scan, nil
+}
+
+// MinSupport returns the number of days a group must recur on out of
+// days: support × days rounded up, and at least 1. A share that is within
+// rounding error of a whole number of days counts as that number.
+func MinSupport(support float64, days int) int {
+	n := int(math.Ceil(support*float64(days) - 1e-9))
+	return max(n, 1)
+}
+
+func checkScanOptions(opts *ScanOptions) error {
+	switch opts.Days {
+	case "":
+		opts.Days = AllDays
+	case AllDays, Weekdays, Weekends:
+	default:
+		return fmt.Errorf("patterns: scan: days %q, want %q, %q or %q", opts.Days, AllDays, Weekdays, Weekends)
+	}
+	if !(opts.Support > 0 && opts.Support <= 1) {
+		return fmt.Errorf("patterns: scan: support %v, want a share above 0 and at most 1", opts.Support)
+	}
+	if opts.MaxGroupEdges < 0 {
+		return fmt.Errorf("patterns: scan: max group edges %d, want 0 (no bound) or more", opts.MaxGroupEdges)
+	}
+	if !(opts.ReferenceSpeed > 0) || math.IsInf(opts.ReferenceSpeed, 0) {
+		return fmt.Errorf("patterns: scan: reference speed %v m/s, want a positive speed", opts.ReferenceSpeed)
+	}
+	return nil
+}
+
+// resolveWindow returns the window to scan: name, or the store's first
+// window when name is empty. A store whose Meta lists no windows offers the
+// window names of its edges, in sorted order.
+func resolveWindow(store *regiongraph.Store, name string) (string, error) {
+	var names []string
+	for _, w := range store.Meta.Windows {
+		names = append(names, w.Name)
+	}
+	if len(names) == 0 {
+		seen := map[string]bool{}
+		for i := range store.Edges {
+			if w := store.Edges[i].Window; !seen[w] {
+				seen[w] = true
+				names = append(names, w)
+			}
+		}
+		slices.Sort(names)
+	}
+	if len(names) == 0 {
+		return "", errors.New("patterns: scan: the store has no time windows and no edges")
+	}
+	if name == "" {
+		return names[0], nil
+	}
+	if !slices.Contains(names, name) {
+		return "", fmt.Errorf("patterns: scan: window %q is not in the store (windows: %s)", name, strings.Join(names, ", "))
+	}
+	return name, nil
+}
+
+// distinctDays returns the days the store has edges for, ascending, and
+// checks that each is a calendar day.
+func distinctDays(edges []regiongraph.Edge) ([]string, error) {
+	seen := map[string]bool{}
+	var days []string
+	last := ""
+	for i := range edges {
+		day := edges[i].Day
+		if day == last && i > 0 {
+			continue
+		}
+		last = day
+		if seen[day] {
+			continue
+		}
+		if _, err := time.Parse(dayLayout, day); err != nil {
+			return nil, fmt.Errorf("patterns: scan: store edge %d (%d>%d): day %q is not a date YYYY-MM-DD", i, edges[i].From, edges[i].To, day)
+		}
+		seen[day] = true
+		days = append(days, day)
+	}
+	slices.Sort(days)
+	return days, nil
+}
+
+// analysedDays applies the period, the weekday filter and the exclusions
+// to the store's days, resolving empty From and To in opts.
+func analysedDays(storeDays []string, opts *ScanOptions) ([]string, error) {
+	if len(storeDays) == 0 {
+		return nil, errors.New("patterns: scan: the store has no days")
+	}
+	if opts.From == "" {
+		opts.From = storeDays[0]
+	}
+	if opts.To == "" {
+		opts.To = storeDays[len(storeDays)-1]
+	}
+	from, err := time.Parse(dayLayout, opts.From)
+	if err != nil {
+		return nil, fmt.Errorf("patterns: scan: from %q is not a date YYYY-MM-DD", opts.From)
+	}
+	to, err := time.Parse(dayLayout, opts.To)
+	if err != nil {
+		return nil, fmt.Errorf("patterns: scan: to %q is not a date YYYY-MM-DD", opts.To)
+	}
+	if from.After(to) {
+		return nil, fmt.Errorf("patterns: scan: from %s is after to %s", opts.From, opts.To)
+	}
+	excluded := map[string]bool{}
+	for i, d := range opts.Exclude {
+		t, err := time.Parse(dayLayout, d)
+		if err != nil {
+			return nil, fmt.Errorf("patterns: scan: excluded day %d, %q, is not a date YYYY-MM-DD", i+1, d)
+		}
+		excluded[t.Format(dayLayout)] = true
+	}
+	var days []string
+	for _, d := range storeDays {
+		t, _ := time.Parse(dayLayout, d) // checked by distinctDays
+		if t.Before(from) || t.After(to) || excluded[d] {
+			continue
+		}
+		weekend := t.Weekday() == time.Saturday || t.Weekday() == time.Sunday
+		if opts.Days == Weekdays && weekend || opts.Days == Weekends && !weekend {
+			continue
+		}
+		days = append(days, d)
+	}
+	if len(days) == 0 {
+		return nil, fmt.Errorf("patterns: scan: no days to analyse from %s to %s (days %s, %d excluded; the store has %d days, %s to %s)",
+			opts.From, opts.To, opts.Days, len(opts.Exclude), len(storeDays), storeDays[0], storeDays[len(storeDays)-1])
+	}
+	return days, nil
+}
+
+// dayGraphs returns, per analysed day, its edges in window sorted by From,
+// To. A store sorted as documented gives sub-slices of edges without
+// copying; otherwise the edges are gathered and sorted. Two edges for the
+// same pair, day and window are an error.
+func dayGraphs(edges []regiongraph.Edge, window string, dayIndex map[string]int) ([][]regiongraph.Edge, error) {
+	type run struct{ start, end int }
+	runs := make([][]run, len(dayIndex))
+	lastDay, lastIdx := "", -1
+	for i := 0; i < len(edges); {
+		e := &edges[i]
+		j := i + 1
+		for j < len(edges) && edges[j].Day == e.Day && edges[j].Window == e.Window {
+			j++
+		}
+		if e.Window == window {
+			idx := lastIdx
+			if e.Day != lastDay || i == 0 {
+				var ok bool
+				if idx, ok = dayIndex[e.Day]; !ok {
+					idx = -1
+				}
+				lastDay, lastIdx = e.Day, idx
+			}
+			if idx >= 0 {
+				runs[idx] = append(runs[idx], run{i, j})
+			}
+		}
+		i = j
+	}
+	graphs := make([][]regiongraph.Edge, len(runs))
+	for d, rs := range runs {
+		var g []regiongraph.Edge
+		if len(rs) == 1 {
+			g = edges[rs[0].start:rs[0].end:rs[0].end]
+		} else {
+			for _, r := range rs {
+				g = append(g, edges[r.start:r.end]...)
+			}
+		}
+		if !slices.IsSortedFunc(g, compareEdgePairs) {
+			g = slices.Clone(g)
+			slices.SortStableFunc(g, compareEdgePairs)
+		}
+		for i := 1; i < len(g); i++ {
+			if compareEdgePairs(g[i-1], g[i]) == 0 {
+				return nil, fmt.Errorf("patterns: scan: the store has two edges %d>%d on %s in window %s", g[i].From, g[i].To, g[i].Day, window)
+			}
+		}
+		graphs[d] = g
+	}
+	return graphs, nil
+}
+
+func compareEdgePairs(a, b regiongraph.Edge) int {
+	return compareEdgeKeys(EdgeKey{a.From, a.To}, EdgeKey{b.From, b.To})
+}

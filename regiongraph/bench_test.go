@@ -1,0 +1,212 @@
+package regiongraph
+
+import (
+	"bufio"
+	"bytes"
+	"context"
+	"io"
+	"math/rand/v2"
+	"os"
+	"path/filepath"
+	"runtime"
+	"strconv"
+	"sync"
+	"sync/atomic"
+	"testing"
+	"time"
+)
+
+const (
+	bNX, bNY = 20, 20 // 400 regions
+	bStep    = 0.01
+)
+
+// writeBenchCSV writes n random trips, times as local text, over a 20 x 20
+// grid, and returns the file size.
+func writeBenchCSV(tb testing.TB, path string, n int) int64 {
+	tb.Helper()
+	f, err := os.Create(path)
+	if err != nil {
+		tb.Fatal(err)
+	}
+	w := bufio.NewWriterSize(f, 1<<20)
+	w.WriteString(tripHeader)
+	rng := rand.New(rand.NewPCG(99, 100))
+	day0 := time.Date(2024, 3, 1, 0, 0, 0, 0, time.UTC).Unix()
+	var buf []byte
+	for i := 0; i < n; i++ {
+		start := day0 + rng.Int64N(60*86400)
+		dur := 120 + rng.Int64N(2400)
+		olon, olat := gLon0+rng.Float64()*bNX*bStep, gLat0+rng.Float64()*bNY*bStep
+		dlon, dlat := gLon0+rng.Float64()*bNX*bStep, gLat0+rng.Float64()*bNY*bStep
+		dist := GreatCircleMetres([2]float64{olon, olat}, [2]float64{dlon, dlat}) * (1 + rng.Float64())
+		buf = buf[:0]
+		buf = strconv.AppendInt(buf, int64(i), 10)
+		buf = append(buf, ',')
+		buf = time.Unix(start, 0).UTC().AppendFormat(buf, "2006-01-02 15:04:05")
+		buf = append(buf, ',')
+		buf = time.Unix(start+dur, 0).UTC().AppendFormat(buf, "2006-01-02 15:04:05")
+		for _, v := range []float64{olon, olat, dlon, dlat} {
+			buf = append(buf, ',')
+			buf = strconv.AppendFloat(buf, v, 'f', 6, 64)
+		}
+		buf = append(buf, ',')
+		buf = strconv.AppendFloat(buf, dist, 'f', 1, 64)
+		buf = append(buf, '\n')
+		w.Write(buf)
+	}
+	if err := w.Flush(); err != nil {
+		tb.Fatal(err)
+	}
+	fi, _ := f.Stat()
+	f.Close()
+	return fi.Size()
+}
+
+// countLines is the physical limit of reading the file: newlines counted
+// over 1 MB reads.
+func countLines(path string) (int64, error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return 0, err
+	}
+	defer f.Close()
+	buf := make([]byte, 1<<20)
+	var n int64
+	for {
+		k, err := f.Read(buf)
+		n += int64(bytes.Count(buf[:k], []byte{'\n'}))
+		if err == io.EOF {
+			return n, nil
+		}
+		if err != nil {
+			return n, err
+		}
+	}
+}
+
+// TestMain removes the benchmark file shared by the rounds of a benchmark.
+func TestMain(m *testing.M) {
+	code := m.Run()
+	if benchFile.path != "" {
+		os.RemoveAll(filepath.Dir(benchFile.path))
+	}
+	os.Exit(code)
+}
+
+var benchFile struct {
+	once sync.Once
+	path string
+	rows int
+	size int64
+}
+
+func benchCSV(b *testing.B) (string, int, int64) {
+	benchFile.once.Do(func() {
+		dir, err := os.MkdirTemp("", "regiongraph-bench")
+		if err != nil {
+			b.Fatal(err)
+		}
+		benchFile.path = filepath.Join(dir, "trips.csv")
+		benchFile.rows = 1_000_000
+		benchFile.size = writeBenchCSV(b, benchFile.path, benchFile.rows)
+	})
+	return benchFile.path, benchFile.rows, benchFile.size
+}
+
+// BenchmarkIngestCSV reports trip rows per second from a 1M-row CSV, and the
+// same for a plain line count of the file in the same run.
+func BenchmarkIngestCSV(b *testing.B) {
+	path, rows, size := benchCSV(b)
+	p := gridPartition(bNX, bNY, gLon0, gLat0, bStep)
+	opts := DefaultOptions()
+	opts.TimeZone = "Europe/Berlin"
+	// Warm the page cache so both measurements read from memory.
+	if _, err := countLines(path); err != nil {
+		b.Fatal(err)
+	}
+	var lineTime time.Duration
+	b.SetBytes(size)
+	b.ReportAllocs()
+	b.ResetTimer()
+	var ingestTime time.Duration
+	for i := 0; i < b.N; i++ {
+		t0 := time.Now()
+		s, err := Ingest(context.Background(), p, "", []Input{{Path: path, Format: FormatTrips}}, opts)
+		ingestTime += time.Since(t0)
+		if err != nil {
+			b.Fatal(err)
+		}
+		if s.Meta.Quality.Read != int64(rows) {
+			b.Fatalf("read %d rows, want %d", s.Meta.Quality.Read, rows)
+		}
+		t0 = time.Now()
+		if n, err := countLines(path); err != nil || n != int64(rows)+1 {
+			b.Fatalf("line count %d, %v", n, err)
+		}
+		lineTime += time.Since(t0)
+	}
+	b.StopTimer()
+	ingestRate := float64(rows) * float64(b.N) / ingestTime.Seconds()
+	lineRate := float64(rows) * float64(b.N) / lineTime.Seconds()
+	b.ReportMetric(ingestRate, "rows/s")
+	b.ReportMetric(lineRate, "linecount-rows/s")
+	b.ReportMetric(ingestRate/lineRate, "ratio-to-linecount")
+	b.ReportMetric(float64(runtime.GOMAXPROCS(0)), "procs")
+}
+
+// BenchmarkIngest10M ingests 10 million trips (a 1 GB CSV written to a
+// temporary folder first) and reports the peak heap in use, sampled every
+// 5 ms, and the peak of the Go runtime's total memory from the OS.
+func BenchmarkIngest10M(b *testing.B) {
+	if testing.Short() {
+		b.Skip("writes a 1 GB file")
+	}
+	dir := b.TempDir()
+	path := filepath.Join(dir, "trips10m.csv")
+	const rows = 10_000_000
+	writeBenchCSV(b, path, rows)
+	p := gridPartition(bNX, bNY, gLon0, gLat0, bStep)
+	opts := DefaultOptions()
+	opts.TimeZone = "Europe/Berlin"
+	b.ResetTimer()
+	for i := 0; i < b.N; i++ {
+		runtime.GC()
+		var peakInuse, peakSys atomic.Uint64
+		stop := make(chan struct{})
+		done := make(chan struct{})
+		go func() {
+			defer close(done)
+			var ms runtime.MemStats
+			tick := time.NewTicker(5 * time.Millisecond)
+			defer tick.Stop()
+			for {
+				runtime.ReadMemStats(&ms)
+				if ms.HeapInuse > peakInuse.Load() {
+					peakInuse.Store(ms.HeapInuse)
+				}
+				if ms.Sys-ms.HeapReleased > peakSys.Load() {
+					peakSys.Store(ms.Sys - ms.HeapReleased)
+				}
+				select {
+				case <-stop:
+					return
+				case <-tick.C:
+				}
+			}
+		}()
+		t0 := time.Now()
+		s, err := Ingest(context.Background(), p, "", []Input{{Path: path}}, opts)
+		elapsed := time.Since(t0)
+		close(stop)
+		<-done
+		if err != nil {
+			b.Fatal(err)
+		}
+		b.ReportMetric(float64(peakInuse.Load())/(1<<20), "peak-heap-inuse-MB")
+		b.ReportMetric(float64(peakSys.Load())/(1<<20), "peak-runtime-MB")
+		b.ReportMetric(float64(rows)/elapsed.Seconds(), "rows/s")
+		b.ReportMetric(float64(s.Meta.Quality.Used), "used")
+		b.ReportMetric(float64(len(s.Edges)), "edges")
+	}
+}

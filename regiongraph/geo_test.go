@@ -1,0 +1,137 @@
+package regiongraph
+
+import (
+	"encoding/json"
+	"math"
+	"math/rand/v2"
+	"os"
+	"path/filepath"
+	"testing"
+
+	"github.com/paulmach/orb"
+
+	"narrows/partition"
+)
+
+func TestGreatCircleMetresAgainstGeographicLib(t *testing.T) {
+	// Reference: GeographicLib 2.1.2 GeodSolve -i -p 3 (WGS84 ellipsoid),
+	// ../../shared/reference/geodesic.json.
+	path := filepath.Join("..", "..", "shared", "reference", "geodesic.json")
+	data, err := os.ReadFile(path)
+	if err != nil {
+		t.Skipf("reference file missing: %v", err)
+	}
+	var ref struct {
+		Pairs []struct {
+			Lat1, Lon1, Lat2, Lon2, Metres float64
+		}
+	}
+	if err := json.Unmarshal(data, &ref); err != nil {
+		t.Fatal(err)
+	}
+	if len(ref.Pairs) == 0 {
+		t.Fatal("no pairs in reference")
+	}
+	for _, p := range ref.Pairs {
+		got := GreatCircleMetres(orb.Point{p.Lon1, p.Lat1}, orb.Point{p.Lon2, p.Lat2})
+		rel := math.Abs(got-p.Metres) / p.Metres
+		if rel > 0.005 {
+			t.Errorf("(%g,%g)-(%g,%g): %.3f m, GeographicLib %.3f m, off by %.3f %%", p.Lat1, p.Lon1, p.Lat2, p.Lon2, got, p.Metres, 100*rel)
+		}
+	}
+}
+
+func TestGreatCircleMetresProperties(t *testing.T) {
+	quarter := GreatCircleMetres(orb.Point{0, 0}, orb.Point{0, 90})
+	if want := EarthRadiusMetres * math.Pi / 2; math.Abs(quarter-want) > 1e-6 {
+		t.Errorf("equator to pole: %v, want %v", quarter, want)
+	}
+	if d := GreatCircleMetres(orb.Point{10, 50}, orb.Point{10, 50}); d != 0 {
+		t.Errorf("same point: %v", d)
+	}
+	antipode := GreatCircleMetres(orb.Point{0, 0}, orb.Point{180, 0})
+	if want := EarthRadiusMetres * math.Pi; math.Abs(antipode-want) > 1e-3 {
+		t.Errorf("antipodes: %v, want %v", antipode, want)
+	}
+	rng := rand.New(rand.NewPCG(1, 2))
+	for i := 0; i < 1000; i++ {
+		a := orb.Point{rng.Float64()*360 - 180, rng.Float64()*180 - 90}
+		b := orb.Point{rng.Float64()*360 - 180, rng.Float64()*180 - 90}
+		if d1, d2 := GreatCircleMetres(a, b), GreatCircleMetres(b, a); math.Abs(d1-d2) > 1e-6 {
+			t.Fatalf("not symmetric: %v vs %v", d1, d2)
+		}
+		// Independent formula: spherical law of cosines (fine at these distances).
+		const rad = math.Pi / 180
+		c := math.Sin(a[1]*rad)*math.Sin(b[1]*rad) + math.Cos(a[1]*rad)*math.Cos(b[1]*rad)*math.Cos((b[0]-a[0])*rad)
+		want := EarthRadiusMetres * math.Acos(math.Max(-1, math.Min(1, c)))
+		if d := GreatCircleMetres(a, b); math.Abs(d-want) > 1 {
+			t.Fatalf("%v-%v: haversine %v, law of cosines %v", a, b, d, want)
+		}
+	}
+}
+
+func TestLocatorGridAgainstBruteForce(t *testing.T) {
+	const nx, ny, lon0, lat0, step = 7, 5, 2.0, 40.0, 0.01
+	loc, _ := newLocator(gridPartition(nx, ny, lon0, lat0, step))
+	rng := rand.New(rand.NewPCG(3, 4))
+	for i := 0; i < 20000; i++ {
+		var p orb.Point
+		if i%2 == 0 {
+			p = orb.Point{lon0 - 0.005 + rng.Float64()*(nx*step+0.01), lat0 - 0.005 + rng.Float64()*(ny*step+0.01)}
+		} else {
+			// on grid lines and corners: the half-open rule must pick exactly one
+			p = orb.Point{lon0 + float64(rng.IntN(nx+1))*step, lat0 + float64(rng.IntN(ny+1))*step}
+			if rng.IntN(2) == 0 {
+				p[1] = lat0 + rng.Float64()*ny*step
+			}
+		}
+		want := gridCell(nx, ny, lon0, lat0, step, p)
+		if got := loc.id(loc.locate(p)); got != want {
+			t.Fatalf("point %v: region %d, want %d", p, got, want)
+		}
+	}
+}
+
+func TestLocatorBordersAndHoles(t *testing.T) {
+	// Region 2 is a square with a hole; region 1 fills the hole; region 3 is
+	// a triangle sharing a slanted edge with region 4.
+	outer := orb.Ring{{0, 0}, {4, 0}, {4, 4}, {0, 4}, {0, 0}}
+	hole := orb.Ring{{1, 1}, {1, 3}, {3, 3}, {3, 1}, {1, 1}}
+	inner := orb.Ring{{1, 1}, {3, 1}, {3, 3}, {1, 3}, {1, 1}}
+	tri1 := orb.Ring{{10, 0}, {13, 0}, {10, 3.3}, {10, 0}}
+	tri2 := orb.Ring{{13, 0}, {13, 3.3}, {10, 3.3}, {13, 0}}
+	p := &partition.Partition{Regions: []partition.Region{
+		{ID: 1, Polygon: orb.Polygon{inner}},
+		{ID: 2, Polygon: orb.Polygon{outer, hole}},
+		{ID: 3, Polygon: orb.Polygon{tri1}},
+		{ID: 4, Polygon: orb.Polygon{tri2}},
+	}}
+	loc, _ := newLocator(p)
+	tests := []struct {
+		pt   orb.Point
+		want int
+	}{
+		{orb.Point{0.5, 0.5}, 2},
+		{orb.Point{2, 2}, 1}, // in the hole: the inner region, not the holed one
+		{orb.Point{1, 2}, 1}, // hole's left border: half-open, goes inside
+		{orb.Point{3, 2}, 2}, // hole's right border: belongs to the ring around
+		{orb.Point{5, 2}, 0},
+		{orb.Point{10.5, 0.5}, 3},
+		{orb.Point{12.5, 2.5}, 4},
+	}
+	for _, tc := range tests {
+		if got := loc.id(loc.locate(tc.pt)); got != tc.want {
+			t.Errorf("locate(%v) = %d, want %d", tc.pt, got, tc.want)
+		}
+	}
+	// Points on the slanted shared edge go to exactly one triangle.
+	for i := 1; i < 100; i++ {
+		f := float64(i) / 100
+		pt := orb.Point{13 - 3*f, 3.3 * f}
+		in3 := loc.regions[2].contains(pt)
+		in4 := loc.regions[3].contains(pt)
+		if in3 == in4 {
+			t.Fatalf("point %v on shared edge: in 3 %v, in 4 %v", pt, in3, in4)
+		}
+	}
+}

@@ -1,0 +1,188 @@
+package regiongraph
+
+import (
+	"bytes"
+	"cmp"
+	"context"
+	"encoding/xml"
+	"errors"
+	"fmt"
+	"io"
+	"os"
+	"slices"
+	"strconv"
+	"strings"
+)
+
+// gpxPoint is a track point as read, before any checks.
+type gpxPoint struct {
+	lat, lon string // attributes as given
+	time     string // text of the <time> child, empty when absent
+	line     int64
+}
+
+// gpxSegment is one <trkseg>.
+type gpxSegment struct {
+	points []gpxPoint
+	line   int64
+}
+
+// readGPX parses a GPX 1.0 or 1.1 document into its track segments. Route
+// and way points are ignored. The error names the line of malformed XML.
+func readGPX(r io.Reader) ([]gpxSegment, error) {
+	d := xml.NewDecoder(r)
+	d.Strict = true
+	var segs []gpxSegment
+	var cur *gpxSegment
+	var pt *gpxPoint
+	var text bytes.Buffer
+	inTime := false
+	depth, ptDepth := 0, 0
+	rootSeen := false
+	for {
+		line, _ := d.InputPos()
+		tok, err := d.Token()
+		if errors.Is(err, io.EOF) {
+			break
+		}
+		if err != nil {
+			var se *xml.SyntaxError
+			if errors.As(err, &se) {
+				return nil, fmt.Errorf("line %d: not well-formed GPX XML: %s", se.Line, se.Msg)
+			}
+			return nil, fmt.Errorf("line %d: %v", line, err)
+		}
+		switch t := tok.(type) {
+		case xml.StartElement:
+			depth++
+			if !rootSeen {
+				if t.Name.Local != "gpx" {
+					return nil, fmt.Errorf("line %d: root element <%s>, want <gpx> (not a GPX file)", line, t.Name.Local)
+				}
+				rootSeen = true
+				continue
+			}
+			switch t.Name.Local {
+			case "trkseg":
+				segs = append(segs, gpxSegment{line: int64(line)})
+				cur = &segs[len(segs)-1]
+			case "trkpt":
+				if cur == nil {
+					return nil, fmt.Errorf("line %d: <trkpt> outside <trkseg>", line)
+				}
+				cur.points = append(cur.points, gpxPoint{line: int64(line)})
+				pt = &cur.points[len(cur.points)-1]
+				ptDepth = depth
+				for _, a := range t.Attr {
+					switch a.Name.Local {
+					case "lat":
+						pt.lat = a.Value
+					case "lon":
+						pt.lon = a.Value
+					}
+				}
+			case "time":
+				if pt != nil && depth == ptDepth+1 {
+					inTime = true
+					text.Reset()
+				}
+			}
+		case xml.EndElement:
+			switch t.Name.Local {
+			case "trkseg":
+				cur, pt = nil, nil
+			case "trkpt":
+				pt = nil
+			case "time":
+				if inTime && pt != nil {
+					pt.time = strings.TrimSpace(text.String())
+				}
+				inTime = false
+			}
+			depth--
+		case xml.CharData:
+			if inTime {
+				text.Write(t)
+			}
+		}
+	}
+	if !rootSeen {
+		return nil, fmt.Errorf("line 1: no <gpx> element (not a GPX file)")
+	}
+	return segs, nil
+}
+
+// ingestGPX reads one GPX file; each track segment with timed points is one
+// trip. Rows are track points.
+func ingestGPX(ctx context.Context, st *settings, path string, t *tally, progress func(int64)) (string, int64, error) {
+	data, err := os.ReadFile(path)
+	if err != nil {
+		return "", 0, fmt.Errorf("regiongraph: %w", err)
+	}
+	h := newHash()
+	h.Write(data)
+	if bytes.IndexByte(data, 0) >= 0 {
+		return "", 0, fmt.Errorf("regiongraph: %s: binary data, not GPX XML", path)
+	}
+	segs, err := readGPX(bytes.NewReader(data))
+	if err != nil {
+		return "", 0, fmt.Errorf("regiongraph: %s: %v", path, err)
+	}
+	var fail pointFailure
+	seg := pointSegmenter{st: st, t: t, fail: &fail}
+	var rows int64
+	for _, s := range segs {
+		if err := ctx.Err(); err != nil {
+			return "", 0, err
+		}
+		pts := make([]gpsPoint, 0, len(s.points))
+		for _, p := range s.points {
+			rows++
+			r, msg := rUnparseable, ""
+			var g gpsPoint
+			switch {
+			case p.lat == "" || p.lon == "":
+				r, msg = rMissingField, "missing field: trkpt without lat or lon"
+			case p.time == "":
+				r, msg = rMissingField, "missing field: trkpt without <time>"
+			default:
+				g.line = p.line
+				var e1, e2, e3 error
+				g.lat, e1 = parseFloat([]byte(p.lat))
+				g.lon, e2 = parseFloat([]byte(p.lon))
+				g.ms, e3 = parseTime([]byte(p.time), t.zone)
+				switch {
+				case e1 != nil || g.lat < -90 || g.lat > 90:
+					msg = "unparseable lat " + strconv.Quote(p.lat)
+				case e2 != nil || g.lon < -180 || g.lon > 180:
+					msg = "unparseable lon " + strconv.Quote(p.lon)
+				case e3 != nil:
+					msg = "unparseable time " + strconv.Quote(p.time)
+				default:
+					r = reasonUsed
+				}
+			}
+			if r != reasonUsed {
+				t.count(r, 1)
+				if st.opts.Strict {
+					fail.keep(p.line, msg)
+				}
+				continue
+			}
+			g.occupied = -1
+			pts = append(pts, g)
+		}
+		if len(pts) == 0 {
+			continue
+		}
+		slices.SortStableFunc(pts, func(a, b gpsPoint) int { return cmp.Compare(a.ms, b.ms) })
+		seg.trip(pts)
+	}
+	if progress != nil {
+		progress(int64(len(data)))
+	}
+	if fail.line != 0 {
+		return "", 0, fmt.Errorf("regiongraph: %s:%d: %s", path, fail.line, fail.msg)
+	}
+	return hexSum(h), rows, nil
+}

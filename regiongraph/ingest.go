@@ -1,0 +1,229 @@
+package regiongraph
+
+import (
+	"bytes"
+	"context"
+	"errors"
+	"fmt"
+	"io"
+	"os"
+	"path/filepath"
+	"runtime"
+	"slices"
+	"strings"
+
+	"narrows/partition"
+)
+
+// maxParsers caps the CSV parser goroutines; the output does not depend on
+// their number.
+const maxParsers = 4
+
+// inputFile is one file to read, with its resolved format.
+type inputFile struct {
+	path   string
+	format Format
+	size   int64
+}
+
+// Ingest reads the inputs in order, places every trip on the regions and
+// aggregates the trips per local day, window and directed region pair.
+// regionsSHA256 is recorded in the store to tie it to the regions file.
+//
+// Row-level problems are counted in the store's Quality by reason; with
+// Options.Strict the first one is an error "file:line: reason". File-level
+// problems (missing file or column, binary or malformed content, unknown
+// time zone) are always errors.
+func Ingest(ctx context.Context, regions *partition.Partition, regionsSHA256 string, inputs []Input, opts Options) (*Store, error) {
+	if regions == nil || len(regions.Regions) == 0 {
+		return nil, errors.New("regiongraph: no regions")
+	}
+	if len(inputs) == 0 {
+		return nil, errors.New("regiongraph: no input files")
+	}
+	st, err := opts.settings()
+	if err != nil {
+		return nil, err
+	}
+	files, err := expandInputs(inputs)
+	if err != nil {
+		return nil, err
+	}
+	var total, done int64
+	for _, f := range files {
+		total += f.size
+	}
+	progress := func(n int64) {
+		done += n
+		if opts.Progress != nil {
+			opts.Progress(min(done, total), total)
+		}
+	}
+	if opts.Progress != nil {
+		opts.Progress(0, total)
+	}
+
+	loc, err := newLocator(regions)
+	if err != nil {
+		return nil, err
+	}
+	parsers := max(1, min(runtime.GOMAXPROCS(0), maxParsers))
+	tallies := make([]*tally, parsers)
+	for i := range tallies {
+		tallies[i] = newTally(st, loc)
+	}
+	rowsRead := func() int64 {
+		var n int64
+		for _, t := range tallies {
+			n += t.read
+		}
+		return n
+	}
+
+	var sources []Source
+	for _, f := range files {
+		before := rowsRead()
+		var sum string
+		switch f.format {
+		case FormatGPX:
+			sum, _, err = ingestGPX(ctx, st, f.path, tallies[0], progress)
+		case FormatTrips, FormatPoints:
+			if isParquet(f.path) {
+				if f.format == FormatPoints {
+					return nil, fmt.Errorf("regiongraph: %s: GPS points are read from CSV; Parquet holds trip tables", f.path)
+				}
+				sum, err = ingestTripParquet(ctx, st, f.path, tallies[0], progress)
+				break
+			}
+			var c *csvFile
+			c, err = openCSV(f.path)
+			if err != nil {
+				return nil, err
+			}
+			if f.format == FormatTrips {
+				sum, err = ingestTripCSV(ctx, st, c, tallies, progress)
+			} else {
+				sum, err = ingestPointsCSV(ctx, st, c, tallies[0], progress)
+			}
+			c.Close()
+		}
+		if err != nil {
+			return nil, err
+		}
+		sources = append(sources, Source{Path: f.path, SHA256: sum, Rows: rowsRead() - before})
+	}
+
+	edges, quality := finish(st, loc, tallies)
+	return &Store{
+		Meta: Meta{
+			RegionsSHA256: regionsSHA256,
+			TimeZone:      st.opts.TimeZone,
+			Windows:       slices.Clone(st.windows),
+			Quality:       quality,
+			Sources:       sources,
+		},
+		Edges: edges,
+	}, nil
+}
+
+// expandInputs resolves formats and expands GPX folders into their .gpx
+// files in name order.
+func expandInputs(inputs []Input) ([]inputFile, error) {
+	var files []inputFile
+	for _, in := range inputs {
+		fi, err := os.Stat(in.Path)
+		if err != nil {
+			return nil, fmt.Errorf("regiongraph: %w", err)
+		}
+		format := in.Format
+		switch format {
+		case FormatAuto, FormatTrips, FormatPoints, FormatGPX:
+		default:
+			return nil, fmt.Errorf("regiongraph: %s: unknown format %q (want trips, points or gpx)", in.Path, format)
+		}
+		if fi.IsDir() {
+			if format != FormatAuto && format != FormatGPX {
+				return nil, fmt.Errorf("regiongraph: %s is a folder; only GPX is read from folders", in.Path)
+			}
+			entries, err := os.ReadDir(in.Path)
+			if err != nil {
+				return nil, fmt.Errorf("regiongraph: %w", err)
+			}
+			var names []string
+			for _, e := range entries {
+				if !e.IsDir() && strings.EqualFold(filepath.Ext(e.Name()), ".gpx") {
+					names = append(names, e.Name())
+				}
+			}
+			slices.Sort(names)
+			if len(names) == 0 {
+				return nil, fmt.Errorf("regiongraph: %s: no .gpx files in folder", in.Path)
+			}
+			for _, n := range names {
+				p := filepath.Join(in.Path, n)
+				gi, err := os.Stat(p)
+				if err != nil {
+					return nil, fmt.Errorf("regiongraph: %w", err)
+				}
+				files = append(files, inputFile{path: p, format: FormatGPX, size: gi.Size()})
+			}
+			continue
+		}
+		if format == FormatAuto {
+			format, err = detectFormat(in.Path)
+			if err != nil {
+				return nil, err
+			}
+		}
+		files = append(files, inputFile{path: in.Path, format: format, size: fi.Size()})
+	}
+	return files, nil
+}
+
+func isParquet(path string) bool {
+	if strings.EqualFold(filepath.Ext(path), ".parquet") {
+		return true
+	}
+	f, err := os.Open(path)
+	if err != nil {
+		return false
+	}
+	defer f.Close()
+	var magic [4]byte
+	_, err = io.ReadFull(f, magic[:])
+	return err == nil && string(magic[:]) == "PAR1"
+}
+
+// detectFormat picks the format of a file given without one.
+func detectFormat(path string) (Format, error) {
+	if strings.EqualFold(filepath.Ext(path), ".gpx") {
+		return FormatGPX, nil
+	}
+	if isParquet(path) {
+		return FormatTrips, nil
+	}
+	f, err := os.Open(path)
+	if err != nil {
+		return "", fmt.Errorf("regiongraph: %w", err)
+	}
+	defer f.Close()
+	head := make([]byte, 4096)
+	n, _ := io.ReadFull(f, head)
+	head = head[:n]
+	if bytes.HasPrefix(bytes.TrimLeft(head, " \t\r\n\xef\xbb\xbf"), []byte("<?xml")) || bytes.Contains(head, []byte("<gpx")) {
+		return FormatGPX, nil
+	}
+	first, _, _ := bytes.Cut(head, []byte("\n"))
+	hasCol := func(name string) bool {
+		for _, h := range strings.Split(string(first), ",") {
+			if strings.EqualFold(strings.Trim(strings.TrimSpace(h), `"`), name) {
+				return true
+			}
+		}
+		return false
+	}
+	if hasCol(ColVehicleID) && hasCol(ColTime) && !hasCol(ColStartTime) {
+		return FormatPoints, nil
+	}
+	return FormatTrips, nil
+}

@@ -1,0 +1,297 @@
+package regiongraph
+
+import (
+	"cmp"
+	"context"
+	"fmt"
+	"slices"
+	"strconv"
+)
+
+// gpsPoint is one GPS fix. Points of all vehicles are held in memory until
+// the file is read (about 48 bytes each), because rows need not be sorted.
+type gpsPoint struct {
+	ms       int64 // Unix milliseconds
+	lon, lat float64
+	line     int64
+	vehicle  uint32
+	occupied int8 // -1 no column, 0 vacant, 1 occupied
+}
+
+// pointFailure is the earliest rejected row in strict mode.
+type pointFailure struct {
+	line int64
+	msg  string
+}
+
+func (f *pointFailure) keep(line int64, msg string) {
+	if f.line == 0 || line < f.line {
+		f.line, f.msg = line, msg
+	}
+}
+
+var pointRequired = []string{ColVehicleID, ColTime, ColLon, ColLat}
+
+// ingestPointsCSV reads a GPS point table, cuts each vehicle's points into
+// trips and tallies them.
+func ingestPointsCSV(ctx context.Context, st *settings, c *csvFile, t *tally, progress func(int64)) (string, error) {
+	m, err := c.requireColumns(st, pointRequired, []string{ColOccupied})
+	if err != nil {
+		return "", err
+	}
+	iv, it, ilon, ilat, iocc := m[ColVehicleID], m[ColTime], m[ColLon], m[ColLat], m[ColOccupied]
+	need := max(iv, it, ilon, ilat, iocc) + 1
+
+	free := make(chan []byte, 3)
+	for i := 0; i < cap(free); i++ {
+		free <- make([]byte, chunkSize)
+	}
+	ctx, cancel := context.WithCancel(ctx)
+	defer cancel()
+	k := &chunker{src: c.br, hash: newHash(), free: free, out: make(chan chunk, 1), progress: progress}
+	errc := make(chan error, 1)
+	go func() { errc <- k.run(ctx) }()
+
+	vehicles := make(map[string]uint32)
+	var points []gpsPoint
+	var fail pointFailure
+	fields := make([][]byte, 0, len(c.header))
+	for ch := range k.out {
+		sp := lineSplitter{data: ch.data, line: ch.firstLine, quoted: ch.quoted}
+		for {
+			rec, line, slow, ok := sp.next()
+			if !ok {
+				break
+			}
+			if line == 1 {
+				continue
+			}
+			var err error
+			if slow {
+				fields, err = splitQuoted(rec, fields)
+			} else {
+				fields = splitFields(rec, fields)
+			}
+			r, col := rUnparseable, "record"
+			var p gpsPoint
+			if err == nil {
+				r, col = parsePointFields(t.zone, fields, need, iv, it, ilon, ilat, iocc, &p)
+			}
+			if r != reasonUsed {
+				t.count(r, 1)
+				if st.opts.Strict {
+					msg := fmt.Sprintf("%s %s", r, col)
+					if err != nil {
+						msg = fmt.Sprintf("%s: %v", r, err)
+					} else if r == rUnparseable {
+						msg = fmt.Sprintf("%s %s %s", r, col, strconv.Quote(string(fields[map[string]int{ColTime: it, ColLon: ilon, ColLat: ilat, ColOccupied: iocc}[col]])))
+					}
+					fail.keep(line, msg)
+				}
+				continue
+			}
+			id, ok := vehicles[bytesString(fields[iv])]
+			if !ok {
+				id = uint32(len(vehicles))
+				vehicles[string(fields[iv])] = id
+			}
+			p.vehicle, p.line = id, line
+			points = append(points, p)
+		}
+		free <- ch.buf[:0]
+	}
+	if err := <-errc; err != nil {
+		if ctx.Err() != nil && err == ctx.Err() {
+			return "", err
+		}
+		return "", fmt.Errorf("regiongraph: %s: %w", c.path, err)
+	}
+	// In strict mode a trip-level failure may sit on an earlier line than
+	// the first parse failure: cut the trips before reporting either.
+	slices.SortFunc(points, func(a, b gpsPoint) int {
+		if c := cmp.Compare(a.vehicle, b.vehicle); c != 0 {
+			return c
+		}
+		if c := cmp.Compare(a.ms, b.ms); c != 0 {
+			return c
+		}
+		return cmp.Compare(a.line, b.line)
+	})
+	seg := pointSegmenter{st: st, t: t, fail: &fail}
+	for start := 0; start < len(points); {
+		if err := ctx.Err(); err != nil {
+			return "", err
+		}
+		end := start + 1
+		for end < len(points) && points[end].vehicle == points[start].vehicle {
+			end++
+		}
+		seg.vehicle(points[start:end])
+		start = end
+	}
+	if fail.line != 0 {
+		return "", fmt.Errorf("regiongraph: %s:%d: %s", c.path, fail.line, fail.msg)
+	}
+	return hexSum(k.hash), nil
+}
+
+func parsePointFields(z *zoneCache, fields [][]byte, need, iv, it, ilon, ilat, iocc int, p *gpsPoint) (reason, string) {
+	if len(fields) < need {
+		for _, c := range []struct {
+			i    int
+			name string
+		}{{iv, ColVehicleID}, {it, ColTime}, {ilon, ColLon}, {ilat, ColLat}, {iocc, ColOccupied}} {
+			if c.i >= len(fields) {
+				return rMissingField, c.name
+			}
+		}
+	}
+	for _, c := range []struct {
+		i    int
+		name string
+	}{{iv, ColVehicleID}, {it, ColTime}, {ilon, ColLon}, {ilat, ColLat}} {
+		if len(fields[c.i]) == 0 {
+			return rMissingField, c.name
+		}
+	}
+	var err error
+	if p.ms, err = parseTime(fields[it], z); err != nil {
+		return rUnparseable, ColTime
+	}
+	if p.lon, err = parseFloat(fields[ilon]); err != nil || p.lon < -180 || p.lon > 180 {
+		return rUnparseable, ColLon
+	}
+	if p.lat, err = parseFloat(fields[ilat]); err != nil || p.lat < -90 || p.lat > 90 {
+		return rUnparseable, ColLat
+	}
+	p.occupied = -1
+	if iocc >= 0 {
+		if len(fields[iocc]) == 0 {
+			return rMissingField, ColOccupied
+		}
+		occ, err := parseBool(fields[iocc])
+		if err != nil {
+			return rUnparseable, ColOccupied
+		}
+		p.occupied = 0
+		if occ {
+			p.occupied = 1
+		}
+	}
+	return reasonUsed, ""
+}
+
+// pointSegmenter cuts one vehicle's time-sorted points into trips.
+type pointSegmenter struct {
+	st   *settings
+	t    *tally
+	fail *pointFailure
+}
+
+func (s *pointSegmenter) reject(p []gpsPoint, r reason, msg string) {
+	s.t.count(r, int64(len(p)))
+	if s.st.opts.Strict && len(p) > 0 && r != reasonUsed && r.isDataError() {
+		if msg == "" {
+			msg = r.String()
+		}
+		s.fail.keep(p[0].line, msg)
+	}
+}
+
+// vehicle handles all points of one vehicle: with an occupied flag, each
+// occupied run is a trip and vacant points are not; without, the points are
+// cut at time gaps and then at dwells.
+func (s *pointSegmenter) vehicle(p []gpsPoint) {
+	if len(p) == 0 {
+		return
+	}
+	if p[0].occupied >= 0 {
+		for start := 0; start < len(p); {
+			end := start + 1
+			for end < len(p) && p[end].occupied == p[start].occupied {
+				end++
+			}
+			if p[start].occupied == 1 {
+				s.trip(p[start:end])
+			} else {
+				s.reject(p[start:end], rNotOccupied, "")
+			}
+			start = end
+		}
+		return
+	}
+	for start := 0; start < len(p); {
+		end := start + 1
+		for end < len(p) && p[end].ms-p[end-1].ms <= s.st.gapMS {
+			end++
+		}
+		s.dwells(p[start:end])
+		start = end
+	}
+}
+
+// dwells cuts a gap-free run at dwells: a cluster of points that stay within
+// DwellMetres of its first point for more than DwellMinutes. The trip before
+// a dwell ends at the cluster's first point, the next starts at its last; the
+// points between are stationary.
+func (s *pointSegmenter) dwells(p []gpsPoint) {
+	n := len(p)
+	start, anchor := 0, 0
+	for i := 1; i <= n; i++ {
+		if i < n && GreatCircleMetres([2]float64{p[anchor].lon, p[anchor].lat}, [2]float64{p[i].lon, p[i].lat}) <= s.st.dwellMetres {
+			continue
+		}
+		last := i - 1 // cluster is anchor..last
+		if p[last].ms-p[anchor].ms > s.st.dwellMS {
+			if anchor > start {
+				s.trip(p[start : anchor+1])
+			} else {
+				s.reject(p[anchor:anchor+1], rStationary, "")
+			}
+			if last-anchor > 1 {
+				s.reject(p[anchor+1:last], rStationary, "")
+			}
+			start = last
+			if i == n {
+				s.reject(p[last:last+1], rStationary, "")
+				start = n
+			}
+		}
+		anchor = i
+	}
+	if start < n {
+		s.trip(p[start:])
+	}
+}
+
+// trip builds a trip from time-sorted points and tallies all its points.
+func (s *pointSegmenter) trip(p []gpsPoint) {
+	if len(p) < 2 {
+		s.reject(p, rShortTrip, "short trip: a single point")
+		return
+	}
+	tr := trip{startMS: p[0].ms, endMS: p[len(p)-1].ms,
+		origin: [2]float64{p[0].lon, p[0].lat}, dest: [2]float64{p[len(p)-1].lon, p[len(p)-1].lat}}
+	tr.distance, tr.jump = pathLength(p, s.st.maxJump)
+	r := s.t.add(&tr)
+	msg := ""
+	if r != reasonUsed {
+		msg = fmt.Sprintf("%s (trip of %d points to line %d)", explain(s.st, &tr, r), len(p), p[len(p)-1].line)
+	}
+	s.reject(p, r, msg)
+}
+
+// pathLength sums the great-circle lengths of consecutive steps and reports
+// whether any step implies a speed over maxJump (m/s); a step with no time
+// between two different places counts as a jump.
+func pathLength(p []gpsPoint, maxJump float64) (metres float64, jump bool) {
+	for i := 1; i < len(p); i++ {
+		d := GreatCircleMetres([2]float64{p[i-1].lon, p[i-1].lat}, [2]float64{p[i].lon, p[i].lat})
+		metres += d
+		dt := float64(p[i].ms-p[i-1].ms) / 1000
+		if d > 0 && (dt <= 0 || d/dt > maxJump) {
+			jump = true
+		}
+	}
+	return metres, jump
+}

@@ -1,0 +1,223 @@
+package regiongraph
+
+import (
+	"context"
+	"fmt"
+	"strconv"
+	"sync"
+	"sync/atomic"
+)
+
+// tripColumns are the field indexes of the trip table columns.
+type tripColumns struct {
+	idx  [7]int // start_time, end_time, start_lon, start_lat, end_lon, end_lat, distance
+	need int    // fields a row must have
+}
+
+var tripRequired = []string{ColStartTime, ColEndTime, ColStartLon, ColStartLat, ColEndLon, ColEndLat, ColDistance}
+
+func newTripColumns(m map[string]int) tripColumns {
+	var c tripColumns
+	for i, name := range tripRequired {
+		c.idx[i] = m[name]
+		c.need = max(c.need, m[name]+1)
+	}
+	return c
+}
+
+// rowFailure describes a rejected row for strict mode.
+type rowFailure struct {
+	seq  int64 // chunk
+	line int64
+	msg  string
+}
+
+// parseTripFields fills tr from the fields of a trip table row. On failure it
+// returns the reason and the logical column at fault.
+func parseTripFields(st *settings, z *zoneCache, c *tripColumns, fields [][]byte, tr *trip) (reason, string) {
+	if len(fields) < c.need {
+		for i, name := range tripRequired {
+			if c.idx[i] >= len(fields) {
+				return rMissingField, name
+			}
+		}
+	}
+	for i, name := range tripRequired {
+		if len(fields[c.idx[i]]) == 0 {
+			return rMissingField, name
+		}
+	}
+	var err error
+	if tr.startMS, err = parseTime(fields[c.idx[0]], z); err != nil {
+		return rUnparseable, ColStartTime
+	}
+	if tr.endMS, err = parseTime(fields[c.idx[1]], z); err != nil {
+		return rUnparseable, ColEndTime
+	}
+	var v [5]float64
+	for k := 0; k < 5; k++ {
+		f, err := parseFloat(fields[c.idx[2+k]])
+		if err != nil {
+			return rUnparseable, tripRequired[2+k]
+		}
+		v[k] = f
+	}
+	for k, limit := range [4]float64{180, 90, 180, 90} {
+		if v[k] < -limit || v[k] > limit {
+			return rUnparseable, tripRequired[2+k]
+		}
+	}
+	if v[4] < 0 {
+		return rUnparseable, ColDistance
+	}
+	tr.origin = [2]float64{v[0], v[1]}
+	tr.dest = [2]float64{v[2], v[3]}
+	tr.distance = v[4] * st.distanceScale
+	tr.jump = false
+	return reasonUsed, ""
+}
+
+// explain says why a parsed trip was rejected, for strict mode messages.
+func explain(st *settings, tr *trip, r reason) string {
+	straight := GreatCircleMetres(tr.origin, tr.dest)
+	duration := float64(tr.endMS-tr.startMS) / 1000
+	switch r {
+	case rShortTrip:
+		return fmt.Sprintf("%s: origin-destination %.0f m, under %g m", r, straight, st.minStraight)
+	case rBadDuration:
+		return fmt.Sprintf("%s: %g s (want more than 0 and at most %v)", r, duration, st.opts.MaxDuration)
+	case rBadSpeed:
+		return fmt.Sprintf("%s: %.2f km/h (allowed %g-%g km/h)", r, tr.distance/duration*3.6, st.opts.MinSpeedKMH, st.opts.MaxSpeedKMH)
+	case rDetourFloor:
+		return fmt.Sprintf("%s: distance %.0f m over straight line %.0f m is %.3f, under %g", r, tr.distance, straight, tr.distance/straight, st.minDetour)
+	case rGPSJump:
+		return fmt.Sprintf("%s: a step between points faster than %g km/h", r, st.opts.MaxJumpKMH)
+	}
+	return r.String()
+}
+
+func fieldFailure(r reason, col string, fields [][]byte, c *tripColumns) string {
+	if r == rMissingField {
+		return fmt.Sprintf("%s %s", r, col)
+	}
+	for i, name := range tripRequired {
+		if name == col && c.idx[i] < len(fields) {
+			return fmt.Sprintf("%s %s %s", r, col, strconv.Quote(string(fields[c.idx[i]])))
+		}
+	}
+	return fmt.Sprintf("%s %s", r, col)
+}
+
+// ingestTripCSV reads a trip table CSV with one parser goroutine per tally.
+func ingestTripCSV(ctx context.Context, st *settings, c *csvFile, tallies []*tally, progress func(int64)) (string, error) {
+	m, err := c.requireColumns(st, tripRequired, []string{ColTripID})
+	if err != nil {
+		return "", err
+	}
+	cols := newTripColumns(m)
+	ctx, cancel := context.WithCancel(ctx)
+	defer cancel()
+
+	workers := len(tallies)
+	free := make(chan []byte, 2*workers+2)
+	for i := 0; i < cap(free); i++ {
+		free <- make([]byte, chunkSize)
+	}
+	var stopSeq atomic.Int64
+	stopSeq.Store(1<<62 - 1)
+	k := &chunker{src: c.br, hash: newHash(), free: free, out: make(chan chunk, workers),
+		progress: progress, stop: func(seq int64) bool { return seq > stopSeq.Load() }}
+
+	var mu sync.Mutex
+	var first *rowFailure
+	fail := func(f *rowFailure) {
+		mu.Lock()
+		defer mu.Unlock()
+		if first == nil || f.seq < first.seq || f.seq == first.seq && f.line < first.line {
+			first = f
+		}
+		for {
+			cur := stopSeq.Load()
+			if f.seq >= cur || stopSeq.CompareAndSwap(cur, f.seq) {
+				break
+			}
+		}
+	}
+
+	var wg sync.WaitGroup
+	for w := 0; w < workers; w++ {
+		wg.Add(1)
+		go func(t *tally) {
+			defer wg.Done()
+			fields := make([][]byte, 0, len(c.header))
+			var tr trip
+			for ch := range k.out {
+				if ch.seq <= stopSeq.Load() {
+					if f := tripChunk(st, t, &cols, ch, fields, &tr); f != nil {
+						f.msg = fmt.Sprintf("%s:%d: %s", c.path, f.line, f.msg)
+						fail(f)
+					}
+				}
+				free <- ch.buf[:0]
+			}
+		}(tallies[w])
+	}
+	runErr := k.run(ctx)
+	if runErr != nil {
+		cancel()
+	}
+	// The chunker closed its output: the parsers drain it and stop.
+	wg.Wait()
+	if first != nil {
+		return "", fmt.Errorf("regiongraph: %s", first.msg)
+	}
+	if runErr != nil {
+		if ctx.Err() != nil && runErr == ctx.Err() {
+			return "", runErr
+		}
+		return "", fmt.Errorf("regiongraph: %s: %w", c.path, runErr)
+	}
+	return hexSum(k.hash), nil
+}
+
+// tripChunk parses and tallies the rows of one chunk. In strict mode it
+// returns the first rejected row.
+func tripChunk(st *settings, t *tally, cols *tripColumns, ch chunk, fields [][]byte, tr *trip) *rowFailure {
+	sp := lineSplitter{data: ch.data, line: ch.firstLine, quoted: ch.quoted}
+	for {
+		rec, line, slow, ok := sp.next()
+		if !ok {
+			return nil
+		}
+		if line == 1 {
+			continue // the header
+		}
+		var err error
+		if slow {
+			fields, err = splitQuoted(rec, fields)
+		} else {
+			fields = splitFields(rec, fields)
+		}
+		var r reason
+		var col string
+		if err != nil {
+			r, col = rUnparseable, "record"
+		} else {
+			r, col = parseTripFields(st, t.zone, cols, fields, tr)
+			if r == reasonUsed {
+				r = t.add(tr)
+				col = ""
+			}
+		}
+		t.count(r, 1)
+		if r != reasonUsed && st.opts.Strict && r.isDataError() {
+			msg := explain(st, tr, r)
+			if col == "record" {
+				msg = fmt.Sprintf("%s: %v", r, err)
+			} else if col != "" {
+				msg = fieldFailure(r, col, fields, cols)
+			}
+			return &rowFailure{seq: ch.seq, line: line, msg: msg}
+		}
+	}
+}

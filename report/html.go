@@ -1,0 +1,255 @@
+package report
+
+import (
+	"bytes"
+	"fmt"
+	"html/template"
+	"strconv"
+	"strings"
+	"unicode/utf8"
+)
+
+// WriteHTML writes a single page that opens offline (no scripts, fonts or
+// links to fetch): the headline, the verdict table, an inline SVG map of
+// regions and weak links coloured by verdict with a legend, the ranked
+// weak links, and the cautions. The page is also well-formed XML.
+func WriteHTML(path string, in Input) error {
+	v, err := newView(in)
+	if err != nil {
+		return err
+	}
+	data, err := v.html()
+	if err != nil {
+		return err
+	}
+	return writeFileAtomic(path, data)
+}
+
+type htmlVerdict struct {
+	Name, Meaning, Colour, Text string
+	Count, Focus                int
+}
+
+type htmlRow struct {
+	Rank                          int
+	ID, Edges, Verdict            string
+	Colour, Text                  string
+	Share, Trips, Speed, Detour   string
+	ExtraKM, ExtraHours           string
+	ShareBefore, ShareAfter       string
+	SpeedShift, DetourShift, Note string
+	Focus                         bool
+}
+
+type htmlPage struct {
+	Title, Area, Headline, Version string
+	Periods                        [][2]string
+	Comparing, Focus               bool
+	Verdicts                       []htmlVerdict
+	Rows                           []htmlRow
+	Map                            template.HTML
+	Cautions                       []string
+	Inputs                         [][2]string
+	MinTrips                       int
+}
+
+var pageTemplate = template.Must(template.New("page").Parse(`<!DOCTYPE html>
+<html lang="en" xmlns="http://www.w3.org/1999/xhtml">
+<head>
+<meta charset="utf-8"/>
+<meta name="viewport" content="width=device-width, initial-scale=1"/>
+<title>{{.Title}}</title>
+<style>
+body { font-family: sans-serif; margin: 1.5em auto; max-width: 60em; padding: 0 1em; color: #000000; }
+table { border-collapse: collapse; margin: 0.5em 0 1.5em 0; }
+th, td { border: 1px solid #BBBBBB; padding: 0.2em 0.5em; text-align: left; vertical-align: top; }
+td.num { text-align: right; }
+.swatch { display: inline-block; min-width: 6em; padding: 0.1em 0.4em; }
+.headline { font-size: 1.2em; }
+.supp { color: #777777; }
+</style>
+</head>
+<body>
+<h1>{{.Title}}</h1>
+{{if .Area}}<p>{{.Area}}</p>{{end}}
+<p class="headline">{{.Headline}}</p>
+<table>
+{{range .Periods}}<tr><th>{{index . 0}}</th><td>{{index . 1}}</td></tr>
+{{end}}</table>
+{{if .Comparing}}<h2>Verdicts</h2>
+<table id="verdicts">
+<tr><th>Verdict</th><th>Weak links</th><th>Meaning</th>{{if .Focus}}<th>In focus area</th>{{end}}</tr>
+{{range .Verdicts}}<tr><td><span class="swatch" style="background: {{.Colour}}; color: {{.Text}}">{{.Name}}</span></td><td class="num">{{.Count}}</td><td>{{.Meaning}}</td>{{if $.Focus}}<td class="num">{{.Focus}}</td>{{end}}</tr>
+{{end}}</table>{{end}}
+<h2>Map</h2>
+{{.Map}}
+<h2>Weak links</h2>
+{{if .Rows}}<table id="findings">
+<tr><th>Rank</th><th>Weak link</th><th>Edges</th>{{if .Comparing}}<th>Verdict</th><th>Share before</th><th>Share after</th><th>Speed shift km/h</th><th>Detour shift</th><th>Why</th>{{else}}<th>Share of days</th><th>Trips per day</th><th>Speed km/h</th><th>Detour</th><th>Extra km per day</th><th>Extra vehicle-hours per day</th>{{end}}</tr>
+{{range .Rows}}<tr><td class="num">{{.Rank}}</td><td>{{.ID}}{{if .Focus}} (focus){{end}}</td><td>{{.Edges}}</td>{{if $.Comparing}}<td><span class="swatch" style="background: {{.Colour}}; color: {{.Text}}">{{.Verdict}}</span></td><td class="num">{{.ShareBefore}}</td><td class="num">{{.ShareAfter}}</td><td class="num">{{.SpeedShift}}</td><td class="num">{{.DetourShift}}</td><td>{{.Note}}</td>{{else}}<td class="num">{{.Share}}</td><td class="num">{{.Trips}}</td><td class="num">{{.Speed}}</td><td class="num">{{.Detour}}</td><td class="num">{{.ExtraKM}}</td><td class="num">{{.ExtraHours}}</td>{{end}}</tr>
+{{end}}</table>{{else}}<p>No weak link recurred.</p>{{end}}
+<h2>Cautions</h2>
+<ul id="cautions">
+{{range .Cautions}}<li>{{.}}</li>
+{{end}}</ul>
+<h2>Inputs</h2>
+<table>
+<tr><th>File</th><th>SHA-256</th></tr>
+{{range .Inputs}}<tr><td>{{index . 0}}</td><td><code>{{index . 1}}</code></td></tr>
+{{end}}</table>
+<p>Made by narrows {{.Version}}. Regions from OpenStreetMap data, © OpenStreetMap contributors, ODbL.</p>
+</body>
+</html>
+`))
+
+func (v *view) html() ([]byte, error) {
+	pg := htmlPage{
+		Title:     v.in.Title,
+		Area:      v.in.Area,
+		Headline:  Headline(v.in),
+		Version:   v.in.Version,
+		Comparing: v.comparing(),
+		Focus:     len(v.focusCounts) > 0,
+		Map:       template.HTML(v.svg()), // built from escaped parts in svg()
+		Cautions:  v.cautions(),
+		MinTrips:  v.minTrips,
+	}
+	if pg.Title == "" {
+		pg.Title = "narrows study"
+	}
+	if pg.Version == "" {
+		pg.Version = "(version not given)"
+	}
+	for _, p := range v.periods {
+		pg.Periods = append(pg.Periods, [2]string{"Period " + p.Label, dayRange(p.Scan) + ", " + strconv.Itoa(len(p.Scan.Days)) + " analysed days"})
+	}
+	for _, vd := range v.shownVerdicts() {
+		lk := lookOf(vd)
+		pg.Verdicts = append(pg.Verdicts, htmlVerdict{string(vd), verdictMeaning(vd), lk.Hex, lk.Text, v.counts[vd], v.focusCounts[vd]})
+	}
+	for _, it := range v.items {
+		f := it.Finding
+		t := totals(f)
+		lk := lookOf(it.Verdict())
+		row := htmlRow{Rank: f.Rank, ID: f.ID, Verdict: string(it.Verdict()), Colour: lk.Hex, Text: lk.Text, Share: formatPercent(f.Share)}
+		for i, e := range f.Edges {
+			if i > 0 {
+				row.Edges += ", "
+			}
+			row.Edges += edgeLabel(e.From, e.To)
+		}
+		if v.suppressed(t.Trips) {
+			row.Trips, row.Speed, row.Detour, row.ExtraKM, row.ExtraHours = v.countMark(), v.valueMark(), v.valueMark(), v.valueMark(), v.valueMark()
+		} else {
+			row.Trips = fmtFixed(t.Trips, 1)
+			row.Speed = fmtFixed(kmh(t.Speed), 1)
+			row.Detour = fmtFixed(t.Detour, 2)
+			row.ExtraKM = fmtFixed(f.ExtraKMPerDay, 1)
+			row.ExtraHours = fmtFixed(f.ExtraHoursPerDay, 2)
+		}
+		if a := it.Assessment; a != nil {
+			row.Focus = a.Focus
+			row.ShareBefore = fmtShare(a.DaysBefore, a.TotalBefore)
+			row.ShareAfter = fmtShare(a.DaysAfter, a.TotalAfter)
+			if v.suppressed(t.Trips) {
+				row.SpeedShift, row.DetourShift = v.valueMark(), v.valueMark()
+			} else {
+				row.SpeedShift = fmtInterval(kmh(a.Speed.Shift), kmh(a.Speed.Low), kmh(a.Speed.High), 1)
+				row.DetourShift = fmtInterval(a.Detour.Shift, a.Detour.Low, a.Detour.High, 2)
+			}
+			row.Note = a.Reason
+		}
+		pg.Rows = append(pg.Rows, row)
+	}
+	for _, s := range v.in.Inputs {
+		pg.Inputs = append(pg.Inputs, [2]string{s.Path, s.SHA256})
+	}
+	pg.clean()
+	var buf bytes.Buffer
+	if err := pageTemplate.Execute(&buf, pg); err != nil {
+		return nil, fmt.Errorf("report: HTML page: %w", err)
+	}
+	return buf.Bytes(), nil
+}
+
+// fmtFixed formats x with d decimals; non-finite values as "n/a".
+func fmtFixed(x float64, d int) string {
+	if !finite(x) {
+		return "n/a"
+	}
+	return strconv.FormatFloat(roundTo(x, d), 'f', d, 64)
+}
+
+func fmtShare(days, total int) string {
+	if total <= 0 {
+		return "n/a"
+	}
+	return fmt.Sprintf("%d/%d (%s)", days, total, formatPercent(float64(days)/float64(total)))
+}
+
+func fmtInterval(x, lo, hi float64, d int) string {
+	if !finite(x) {
+		return "n/a"
+	}
+	s := fmtFixed(x, d)
+	if x > 0 {
+		s = "+" + s
+	}
+	if finite(lo) && finite(hi) {
+		s += " (" + fmtFixed(lo, d) + " to " + fmtFixed(hi, d) + ")"
+	}
+	return s
+}
+
+// clean replaces, in every text of the page, the characters XML cannot
+// hold (and invalid UTF-8) by U+FFFD, so that data text such as road names
+// cannot break the page. html/template escapes markup but passes control
+// characters through.
+func (pg *htmlPage) clean() {
+	pg.Title, pg.Area, pg.Headline, pg.Version = cleanText(pg.Title), cleanText(pg.Area), cleanText(pg.Headline), cleanText(pg.Version)
+	for i := range pg.Periods {
+		pg.Periods[i] = [2]string{cleanText(pg.Periods[i][0]), cleanText(pg.Periods[i][1])}
+	}
+	for i := range pg.Inputs {
+		pg.Inputs[i] = [2]string{cleanText(pg.Inputs[i][0]), cleanText(pg.Inputs[i][1])}
+	}
+	for i := range pg.Verdicts {
+		pg.Verdicts[i].Name, pg.Verdicts[i].Meaning = cleanText(pg.Verdicts[i].Name), cleanText(pg.Verdicts[i].Meaning)
+	}
+	for i := range pg.Rows {
+		r := &pg.Rows[i]
+		r.ID, r.Edges, r.Verdict, r.Note = cleanText(r.ID), cleanText(r.Edges), cleanText(r.Verdict), cleanText(r.Note)
+	}
+	for i := range pg.Cautions {
+		pg.Cautions[i] = cleanText(pg.Cautions[i])
+	}
+}
+
+// cleanText maps characters outside the XML 1.0 character range, and bytes
+// of invalid UTF-8, to U+FFFD.
+func cleanText(s string) string {
+	ok := utf8.ValidString(s)
+	for _, r := range s {
+		if !xmlChar(r) {
+			ok = false
+			break
+		}
+	}
+	if ok {
+		return s
+	}
+	return strings.Map(func(r rune) rune {
+		if !xmlChar(r) {
+			return utf8.RuneError
+		}
+		return r
+	}, strings.ToValidUTF8(s, string(utf8.RuneError)))
+}
+
+// xmlChar reports whether r may appear in an XML 1.0 document.
+func xmlChar(r rune) bool {
+	return r == 0x09 || r == 0x0A || r == 0x0D ||
+		r >= 0x20 && r <= 0xD7FF ||
+		r >= 0xE000 && r <= 0xFFFD ||
+		r >= 0x10000 && r <= 0x10FFFF
+}

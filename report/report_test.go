@@ -1,0 +1,327 @@
+package report
+
+import (
+	"bytes"
+	"image"
+	"image/color"
+	"image/png"
+	"math"
+	"math/rand"
+	"os"
+	"path/filepath"
+	"reflect"
+	"strings"
+	"testing"
+
+	"github.com/paulmach/orb"
+
+	"narrows/partition"
+	"narrows/patterns"
+)
+
+// insideEvenOdd is the brute-force oracle for fillPolygon: a point is
+// inside when a ray to +x crosses the rings' edges an odd number of times.
+func insideEvenOdd(rings [][][2]float64, x, y float64) bool {
+	in := false
+	for _, ring := range rings {
+		n := len(ring)
+		for i := 0; i < n; i++ {
+			a, b := ring[i], ring[(i+1)%n]
+			if (a[1] <= y) != (b[1] <= y) {
+				if x < a[0]+(y-a[1])*(b[0]-a[0])/(b[1]-a[1]) {
+					in = !in
+				}
+			}
+		}
+	}
+	return in
+}
+
+func TestFillPolygonAgainstBruteForce(t *testing.T) {
+	rng := rand.New(rand.NewSource(7))
+	on := color.RGBA{200, 0, 0, 255}
+	for trial := 0; trial < 60; trial++ {
+		var rings [][][2]float64
+		for r := 0; r < 1+trial%3; r++ {
+			n := 3 + rng.Intn(8)
+			ring := make([][2]float64, n)
+			for i := range ring {
+				ring[i] = [2]float64{rng.Float64()*44 - 2, rng.Float64()*44 - 2} // some outside the image
+			}
+			rings = append(rings, ring)
+		}
+		img := image.NewRGBA(image.Rect(0, 0, 40, 40))
+		fillPolygon(img, rings, on)
+		for y := 0; y < 40; y++ {
+			for x := 0; x < 40; x++ {
+				want := insideEvenOdd(rings, float64(x)+0.5, float64(y)+0.5)
+				if got := img.RGBAAt(x, y) == on; got != want {
+					t.Fatalf("trial %d pixel (%d,%d): filled %v, oracle %v", trial, x, y, got, want)
+				}
+			}
+		}
+	}
+}
+
+func TestFillPolygonRectangleWithHole(t *testing.T) {
+	img := image.NewRGBA(image.Rect(0, 0, 30, 30))
+	on := color.RGBA{0, 0, 255, 255}
+	outer := [][2]float64{{5, 5}, {25, 5}, {25, 25}, {5, 25}}
+	hole := [][2]float64{{10, 10}, {10, 20}, {20, 20}, {20, 10}}
+	fillPolygon(img, [][][2]float64{outer, hole}, on)
+	n := 0
+	for i := 0; i < len(img.Pix); i += 4 {
+		if img.Pix[i+2] == 255 {
+			n++
+		}
+	}
+	if want := 20*20 - 10*10; n != want {
+		t.Errorf("filled %d pixels, want %d", n, want)
+	}
+}
+
+func TestDashPattern(t *testing.T) {
+	tests := []struct {
+		in   string
+		want []float64
+	}{
+		{"", nil},
+		{"7 4", []float64{7, 4}},
+		{"3", []float64{3, 3}},
+		{"1 x", nil},
+		{"0 2", nil},
+	}
+	for _, tc := range tests {
+		if got := dashPattern(tc.in); !reflect.DeepEqual(got, tc.want) {
+			t.Errorf("dashPattern(%q) = %v, want %v", tc.in, got, tc.want)
+		}
+	}
+}
+
+func TestHeadline(t *testing.T) {
+	all := fxInput()
+	noneBefore := fxInput()
+	var as []patterns.Assessment
+	for _, a := range noneBefore.Comparison.Assessments {
+		if !a.InBefore {
+			as = append(as, a)
+		}
+	}
+	noneBefore.Comparison.Assessments = as
+	empty := fxScanInput()
+	empty.Scan.Findings = nil
+	tests := []struct {
+		name string
+		in   Input
+		want string
+	}{
+		{"comparison", all, "1 of 4 weak links of the before period (2026-03-02 to 2026-03-15) cleared in the after period (2026-05-04 to 2026-05-17); 1 eased, 1 unchanged and 1 worse. 1 new weak link appeared; around the scheme 1 of 1 cleared and none eased."},
+		{"only new", noneBefore, "No weak link recurred in the before period (2026-03-02 to 2026-03-15). 1 new weak link appeared."},
+		// Costliest is rank 1, 1>2: 40 trips * 1.5 km = 60 km, 40 * 0.05 = 2 h.
+		{"scan", fxScanInput(), "4 weak links recurred on at least 20 % of the 14 analysed days (2026-03-02 to 2026-03-15). The costliest, regions 1>2, adds 60 km of travel and 2 vehicle-hours a day."},
+		{"empty scan", empty, "No weak link recurred on at least 20 % of the 14 analysed days (2026-03-02 to 2026-03-15)."},
+		{"nothing", Input{}, "No scan or comparison to report."},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			if got := Headline(tc.in); got != tc.want {
+				t.Errorf("Headline =\n%q\nwant\n%q", got, tc.want)
+			}
+		})
+	}
+}
+
+func TestInputErrors(t *testing.T) {
+	bad := fxInput()
+	bad.Comparison.Assessments[0].Finding.Edges[0].To = 99
+	dup := fxInput()
+	dup.Regions.Regions[1].ID = 1
+	half := fxInput()
+	half.Comparison.After = nil
+	noRegions := fxInput()
+	noRegions.Regions = nil
+	nanPoint := fxInput()
+	nanPoint.Regions.Regions[2].Polygon[0][1][1] = math.NaN()
+	tests := []struct {
+		name string
+		in   Input
+		want string
+	}{
+		{"unknown region", bad, "region 99 is not in the partition"},
+		{"duplicate region", dup, "region 1 appears twice"},
+		{"half comparison", half, "lacks its before or after"},
+		{"no regions", noRegions, "no regions"},
+		{"non-finite coordinate", nanPoint, "region 3: point 1 of ring 0 is not finite"},
+		{"no results", Input{Regions: fxRegions()}, "neither a scan nor a comparison"},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			dir := t.TempDir()
+			for _, write := range []func(string, Input) error{WriteWorkbook, WriteHTML, WriteRegionsGeoJSON, WriteFindingsGeoJSON} {
+				err := write(filepath.Join(dir, "out"), tc.in)
+				if err == nil || !strings.Contains(err.Error(), tc.want) {
+					t.Errorf("error = %v, want one containing %q", err, tc.want)
+				}
+			}
+			if _, err := WriteAll(dir, "study", tc.in); err == nil {
+				t.Error("WriteAll: no error")
+			}
+			if left, _ := os.ReadDir(dir); len(left) != 0 {
+				t.Errorf("failed writes left %d files", len(left))
+			}
+		})
+	}
+}
+
+func TestWriteAll(t *testing.T) {
+	dir := t.TempDir()
+	paths, err := WriteAll(dir, "lowmere", fxInput())
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := []string{"lowmere.xlsx", "regions.geojson", "findings.geojson", "lowmere.html"}
+	for i := range want {
+		want[i] = filepath.Join(dir, want[i])
+	}
+	if !reflect.DeepEqual(paths, want) {
+		t.Errorf("paths = %q, want %q", paths, want)
+	}
+	entries, _ := os.ReadDir(dir)
+	if len(entries) != len(want) {
+		var names []string
+		for _, e := range entries {
+			names = append(names, e.Name())
+		}
+		t.Errorf("directory holds %q, want only the four outputs", names)
+	}
+	for _, p := range paths {
+		if fi, err := os.Stat(p); err != nil || fi.Size() == 0 {
+			t.Errorf("%s: %v", p, err)
+		}
+	}
+	// Same bytes as the single writers.
+	single := filepath.Join(t.TempDir(), "x.xlsx")
+	if err := WriteWorkbook(single, fxInput()); err != nil {
+		t.Fatal(err)
+	}
+	a, _ := os.ReadFile(paths[0])
+	b, _ := os.ReadFile(single)
+	if string(a) != string(b) {
+		t.Error("WriteAll's workbook differs from WriteWorkbook's")
+	}
+
+	// A missing directory fails without leaving anything.
+	if _, err := WriteAll(filepath.Join(dir, "missing"), "x", fxInput()); err == nil {
+		t.Error("WriteAll into a missing directory: no error")
+	}
+	for _, base := range []string{"", "../up", "a/b"} {
+		if _, err := WriteAll(dir, base, fxInput()); err == nil {
+			t.Errorf("WriteAll with base %q: no error", base)
+		}
+	}
+}
+
+func TestNonFiniteValues(t *testing.T) {
+	in := fxInput()
+	a := &in.Comparison.Assessments[0]
+	a.FisherP = math.NaN()
+	a.Speed.Shift, a.Speed.Low = math.NaN(), math.Inf(1)
+	a.Finding.Edges[0].DetourMedian = math.Inf(1)
+	dir := t.TempDir()
+	if _, err := WriteAll(dir, "nan", in); err != nil {
+		t.Fatalf("WriteAll with NaN and Inf values: %v", err)
+	}
+	f, _ := writeBook(t, in)
+	cmp := rowsByKey(t, f, SheetComparison, "Weak link")
+	if got := cmp["1>2"]["Fisher p"]; got != "" {
+		t.Errorf("NaN Fisher p shown as %q, want blank", got)
+	}
+}
+
+func TestPNGColours(t *testing.T) {
+	tests := []struct {
+		name string
+		in   Input
+		want []string // colours that must be drawn
+	}{
+		{"comparison", fxInput(), []string{"#D55E00", "#CC79A7", "#E69F00", "#56B4E9", "#009E73", regionFill, focusFillPNG}},
+		{"scan", fxScanInput(), []string{"#0072B2", regionFill}},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			v, err := newView(tc.in)
+			if err != nil {
+				t.Fatal(err)
+			}
+			data, err := v.png()
+			if err != nil {
+				t.Fatal(err)
+			}
+			img, err := png.Decode(bytes.NewReader(data))
+			if err != nil {
+				t.Fatal(err)
+			}
+			count := map[color.RGBA]int{}
+			b := img.Bounds()
+			for y := b.Min.Y; y < b.Max.Y; y++ {
+				for x := b.Min.X; x < b.Max.X; x++ {
+					r, g, bl, a := img.At(x, y).RGBA()
+					count[color.RGBA{uint8(r >> 8), uint8(g >> 8), uint8(bl >> 8), uint8(a >> 8)}]++
+				}
+			}
+			for _, hex := range tc.want {
+				if count[rgba(hex)] == 0 {
+					t.Errorf("no pixel of %s", hex)
+				}
+			}
+			if tc.name == "scan" && count[rgba(focusFillPNG)] != 0 {
+				t.Error("focus colour drawn without a focus area")
+			}
+		})
+	}
+}
+
+// TestDegenerateInputs writes every output for inputs at the edges: no
+// regions, empty or non-finite geometry, empty scans. Nothing may panic and
+// the SVG must stay well-formed.
+func TestDegenerateInputs(t *testing.T) {
+	emptyScan := &patterns.Scan{}
+	nanRegions := fxRegions()
+	nanRegions.Bound = orb.Bound{Min: orb.Point{math.NaN(), 0}, Max: orb.Point{1, math.Inf(1)}}
+	nanRegions.Regions[1].Polygon = nil
+	hugeRegions := fxRegions()
+	hugeRegions.Bound = orb.Bound{}
+	hugeRegions.Regions[2].Polygon = orb.Polygon{{{-1e300, -1e300}, {1e300, -1e300}, {1e300, 1e300}, {-1e300, -1e300}}}
+	onePoint := fxRegions()
+	onePoint.Bound = orb.Bound{Min: orb.Point{10, 50}, Max: orb.Point{10, 50}}
+	for i := range onePoint.Regions {
+		onePoint.Regions[i].Polygon = nil
+		onePoint.Regions[i].Point = orb.Point{10, 50}
+	}
+	shortScan := fxComparison().Before
+	shortScan.CandidatesPerDay = shortScan.CandidatesPerDay[:2]
+	shortScan.EdgeDaily = nil
+	tests := []struct {
+		name string
+		in   Input
+	}{
+		{"no regions, empty scan", Input{Regions: &partition.Partition{}, Scan: emptyScan}},
+		{"non-finite bound", Input{Regions: nanRegions, Comparison: fxComparison()}},
+		{"huge geometry", Input{Regions: hugeRegions, Scan: fxComparison().After}},
+		{"all regions at one point", Input{Regions: onePoint, Comparison: fxComparison()}},
+		{"short candidate list, no edge daily", Input{Regions: fxRegions(), Scan: shortScan}},
+		{"empty comparison", Input{Regions: fxRegions(), Comparison: &patterns.Comparison{Before: emptyScan, After: emptyScan}}},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			if _, err := WriteAll(t.TempDir(), "edge", tc.in); err != nil {
+				t.Fatalf("WriteAll: %v", err)
+			}
+			v, err := newView(tc.in)
+			if err != nil {
+				t.Fatal(err)
+			}
+			svgFacts(t, []byte(v.svg()))
+		})
+	}
+}

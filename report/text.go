@@ -1,0 +1,236 @@
+package report
+
+import (
+	"fmt"
+	"math"
+	"strconv"
+	"strings"
+
+	"narrows/patterns"
+)
+
+// Caution is the cautions in one sentence, for outputs written elsewhere
+// (a JSON listing, a console summary).
+const Caution = "These are screening results from a sample fleet, which is not all traffic: check each finding against traffic counts and local design standards with a qualified (where required, licensed) engineer before acting on it; small counts are suppressed before publishing."
+
+// Cautions returns the cautions every report states (workbook summary and
+// method sheet, HTML page) for a publication threshold (zero means
+// DefaultPublicationMinTrips).
+func Cautions(publicationMinTrips int) []string {
+	v := &view{minTrips: publicationMinTrips}
+	if v.minTrips <= 0 {
+		v.minTrips = DefaultPublicationMinTrips
+	}
+	return v.cautions()
+}
+
+func (v *view) cautions() []string {
+	return []string{
+		"The trips come from a sample fleet (taxi, ride-hail, fleet or probe vehicles); it is not all traffic, and its routes, times and speeds may differ from those of other road users.",
+		"Findings are screening results: each one points to a place that deserves study. Check it against traffic counts and local design standards; decisions need a qualified (where required, licensed) traffic engineer.",
+		fmt.Sprintf("Small counts are suppressed before publishing: counts below %d trips are shown as %q and values computed from them as %q.", v.minTrips, v.countMark(), v.valueMark()),
+		"Regions are bounded by major roads and barriers taken from OpenStreetMap; a missing or mistagged road changes the regions.",
+	}
+}
+
+// verdictMeaning explains a verdict in one line, following the decision
+// rule of patterns.Compare.
+func verdictMeaning(vd patterns.Verdict) string {
+	switch vd {
+	case patterns.Cleared:
+		return "recurred before, no longer recurs after, and recurs significantly less"
+	case patterns.Eased:
+		return "significantly and materially faster or less circuitous, or recurring significantly less; nothing worse"
+	case patterns.Unchanged:
+		return "no significant, material change, or mixed evidence"
+	case patterns.Worse:
+		return "significantly and materially slower or more circuitous, or recurring significantly more; nothing better"
+	case patterns.New:
+		return "recurs only after, and significantly more than before"
+	case "":
+		return "recurring weak link (no comparison)"
+	}
+	return "verdict " + strconv.Quote(string(vd))
+}
+
+// verdictShort is the legend's few words for a verdict.
+func verdictShort(vd patterns.Verdict) string {
+	switch vd {
+	case patterns.Cleared:
+		return "no longer recurs"
+	case patterns.Eased:
+		return "faster, less circuitous or rarer"
+	case patterns.Unchanged:
+		return "no material change"
+	case patterns.Worse:
+		return "slower, more circuitous or more frequent"
+	case patterns.New:
+		return "recurs only after"
+	}
+	return ""
+}
+
+// verdictLabel is the verdict as shown, "weak link" without comparison.
+func verdictLabel(vd patterns.Verdict) string {
+	if vd == "" {
+		return "weak link"
+	}
+	return string(vd)
+}
+
+// definition is one line of the method sheet.
+type definition struct{ Term, Text string }
+
+func (v *view) method() []definition {
+	alpha := 0.05
+	if v.in.Comparison != nil && v.in.Comparison.Alpha > 0 {
+		alpha = v.in.Comparison.Alpha
+	}
+	d := []definition{
+		{"Major roads", "OpenStreetMap highway classes (by default motorway, trunk, primary, secondary; link roads excluded) and optional barriers (railways, rivers, canals, coastline)."},
+		{"Region", "A face of the planar partition of the study area by major roads and barriers, after closing small gaps and merging slivers into their neighbour across the longest shared border. Regions tile the study area."},
+		{"Trip", "Origin point and time, destination point and time, travel distance (odometer or summed GPS point distances)."},
+		{"Speed", "Travel distance / duration, reported in km/h."},
+		{"Detour", "Travel distance / great-circle distance from origin to destination (circuity); 1.00 is a straight line."},
+		{"Edge", "A directed region pair A>B on one day and time window: trips = count, speed = median speed, detour = median detour."},
+		{"Dominance", "Edge e dominates f when e has at least as many trips, no higher speed and no lower detour, and is strictly worse on one of them."},
+		{"Candidate", "An edge of a day with at least the minimum trips that no other such edge dominates and that passes the badness gates (detour at least a floor, speed below the day's trip-weighted median); optionally the k-skyband."},
+		{"Weak link (finding)", "A connected set of candidate edges (connected through shared regions, direction ignored) present together on at least the support share of the analysed days; only closed sets are reported."},
+		{"Recurrence share", "Days on which the finding recurred / analysed days."},
+		{"Trips per day", "Median over the finding's days of the edge's daily trips; for a finding, the sum over its edges."},
+		{"Finding speed and detour", "Mean of its edges' median speed (detour) weighted by their median trips per day."},
+		{"Extra km per day", "Median over the finding's days of travel distance minus straight-line distance, summed over trips."},
+		{"Extra vehicle-hours per day", "Median over the finding's days of vehicle-hours beyond those needed at the reference speed over the straight-line distance."},
+		{"Rank", "Findings ordered by cost (extra vehicle-hours), 1 = highest."},
+	}
+	if v.comparing() {
+		d = append(d,
+			definition{"Fisher exact test", "Two-sided test of recurrence days / analysed days before against after."},
+			definition{"Mann-Whitney U test", "Two-sided test of the finding's daily median speed (detour) before against after."},
+			definition{"Hodges-Lehmann shift", "Median of all after-minus-before differences of daily values, with a 95 % confidence interval."},
+			definition{"Benjamini-Hochberg", fmt.Sprintf("P-values are adjusted across findings, separately for the Fisher, speed and detour tests, to control the false discovery rate; a change is significant at adjusted p < %s.", strconv.FormatFloat(alpha, 'g', -1, 64))},
+			definition{"Material change", "A significant speed or detour shift counts only when the Hodges-Lehmann shift is at least the comparison's minimum (by default 1 km/h of speed, 0.05 of detour)."},
+			definition{"Decision rule", "In order: improvements and deteriorations together: unchanged (mixed evidence); before only and recurring significantly less: cleared; after only and recurring significantly more: new; any deterioration: worse; any improvement: eased; otherwise unchanged."},
+		)
+		for _, vd := range verdictOrder {
+			d = append(d, definition{"Verdict: " + string(vd), verdictMeaning(vd) + "."})
+		}
+	}
+	d = append(d,
+		definition{"Suppression", fmt.Sprintf("Cells from fewer than %d trips are shown as %q (counts) or %q (values) in grey. Charts skip them.", v.minTrips, v.countMark(), v.valueMark())},
+		definition{"Units", "Speeds in km/h, distances in km, times in hours or minutes, areas in km2; days are local calendar days of the study's time zone."},
+		definition{"Map data", "Regions derived from OpenStreetMap data, (c) OpenStreetMap contributors, available under the Open Database Licence (ODbL)."},
+	)
+	for _, s := range v.in.Inputs {
+		d = append(d, definition{"Source file", s.Path + " (SHA-256 " + s.SHA256 + ")"})
+	}
+	return d
+}
+
+// Headline summarises the study in one or two sentences, such as
+// "3 of 5 weak links of the before period (2026-03-01 to 2026-03-28)
+// cleared in the after period (2026-05-01 to 2026-05-28); 1 eased,
+// 1 unchanged and none worse. No new weak link appeared." It returns a note when
+// the input has neither a scan nor a comparison.
+func Headline(in Input) string {
+	switch {
+	case in.Comparison != nil && in.Comparison.Before != nil && in.Comparison.After != nil:
+		return comparisonHeadline(in.Comparison)
+	case in.Scan != nil:
+		return scanHeadline(in.Scan)
+	}
+	return "No scan or comparison to report."
+}
+
+func comparisonHeadline(c *patterns.Comparison) string {
+	count := map[patterns.Verdict]int{}
+	before, focusBefore := 0, 0
+	focus := map[patterns.Verdict]int{}
+	for _, a := range c.Assessments {
+		count[a.Verdict]++
+		if a.InBefore {
+			before++
+		}
+		if a.Focus {
+			focus[a.Verdict]++
+			if a.InBefore {
+				focusBefore++
+			}
+		}
+	}
+	var b strings.Builder
+	if before == 0 {
+		fmt.Fprintf(&b, "No weak link recurred in the before period (%s)", dayRange(c.Before))
+	} else {
+		fmt.Fprintf(&b, "%d of %d %s of the before period (%s) cleared in the after period (%s); %s eased, %s unchanged and %s worse",
+			count[patterns.Cleared], before, plural(before, "weak link", "weak links"), dayRange(c.Before), dayRange(c.After),
+			numberWord(count[patterns.Eased]), numberWord(count[patterns.Unchanged]), numberWord(count[patterns.Worse]))
+	}
+	b.WriteString(".")
+	var second []string
+	if n := count[patterns.New]; n > 0 {
+		second = append(second, fmt.Sprintf("%d new %s appeared", n, plural(n, "weak link", "weak links")))
+	} else if before > 0 {
+		second = append(second, "no new weak link appeared")
+	}
+	if focusBefore > 0 {
+		second = append(second, fmt.Sprintf("around the scheme %d of %d cleared and %s eased", focus[patterns.Cleared], focusBefore, numberWord(focus[patterns.Eased])))
+	}
+	if len(second) > 0 {
+		s := strings.Join(second, "; ")
+		b.WriteString(" " + strings.ToUpper(s[:1]) + s[1:] + ".")
+	}
+	return b.String()
+}
+
+func scanHeadline(s *patterns.Scan) string {
+	share := formatPercent(support(s))
+	n := len(s.Findings)
+	if n == 0 {
+		return fmt.Sprintf("No weak link recurred on at least %s of the %d analysed days (%s).", share, len(s.Days), dayRange(s))
+	}
+	top := s.Findings[0]
+	for _, f := range s.Findings {
+		if f.Rank < top.Rank {
+			top = f
+		}
+	}
+	var edges []string
+	for _, e := range top.Edges {
+		edges = append(edges, edgeLabel(e.From, e.To))
+	}
+	return fmt.Sprintf("%d %s recurred on at least %s of the %d analysed days (%s). The costliest, regions %s, adds %s km of travel and %s vehicle-hours a day.",
+		n, plural(n, "weak link", "weak links"), share, len(s.Days), dayRange(s), strings.Join(edges, ", "),
+		strconv.FormatFloat(roundTo(top.ExtraKMPerDay, 0), 'f', -1, 64), strconv.FormatFloat(roundTo(top.ExtraHoursPerDay, 1), 'f', -1, 64))
+}
+
+func plural(n int, one, many string) string {
+	if n == 1 {
+		return one
+	}
+	return many
+}
+
+func numberWord(n int) string {
+	if n == 0 {
+		return "none"
+	}
+	return strconv.Itoa(n)
+}
+
+func formatPercent(share float64) string {
+	return strconv.FormatFloat(roundTo(share*100, 1), 'f', -1, 64) + " %"
+}
+
+// roundTo rounds x to d decimals; non-finite values pass through.
+func roundTo(x float64, d int) float64 {
+	if !finite(x) {
+		return x
+	}
+	p := math.Pow(10, float64(d))
+	r := math.Round(x*p) / p
+	if r == 0 {
+		return 0 // no negative zero in outputs
+	}
+	return r
+}

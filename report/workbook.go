@@ -1,0 +1,1013 @@
+package report
+
+import (
+	"archive/zip"
+	"bytes"
+	"fmt"
+	"io"
+	"math"
+	"sort"
+	"strconv"
+	"strings"
+	"time"
+	"unicode/utf8"
+
+	"github.com/xuri/excelize/v2"
+
+	"narrows/patterns"
+)
+
+// Sheet names of the workbook, in order. SheetComparison is present only
+// with a comparison.
+const (
+	SheetSummary     = "Summary"
+	SheetFindings    = "Weak links"
+	SheetEdges       = "Edges"
+	SheetComparison  = "Comparison"
+	SheetDaily       = "Daily"
+	SheetTimeline    = "Timeline"
+	SheetScatter     = "Speed v detour"
+	SheetRegions     = "Regions"
+	SheetDataQuality = "Data quality"
+	SheetMethod      = "Method"
+)
+
+// Sheets returns the names of the sheets WriteWorkbook writes for in.
+func Sheets(in Input) []string {
+	s := []string{SheetSummary, SheetFindings, SheetEdges}
+	if in.Comparison != nil {
+		s = append(s, SheetComparison)
+	}
+	return append(s, SheetDaily, SheetTimeline, SheetScatter, SheetRegions, SheetDataQuality, SheetMethod)
+}
+
+// WriteWorkbook writes the study workbook (see Sheets for its sheets):
+// frozen header rows, filters, number formats, native charts of the daily
+// timeline and of speed against detour, and a map picture on the summary.
+// Text from data is always written as a string cell, never as a formula.
+// Values from fewer trips than the publication threshold are replaced by a
+// grey marker such as "<10".
+func WriteWorkbook(path string, in Input) error {
+	v, err := newView(in)
+	if err != nil {
+		return err
+	}
+	data, err := v.workbook()
+	if err != nil {
+		return err
+	}
+	return writeFileAtomic(path, data)
+}
+
+// styles holds the workbook's cell style ids.
+type styles struct {
+	title, bold, header, text, wrap, integer, dec1, dec2, dec3, p4, pct, supp int
+	verdict                                                                   map[patterns.Verdict]int
+}
+
+// cell is one value to write: a string (always a string cell), int,
+// float64 (NaN and infinities are left blank), bool (yes/no) or nil.
+type cell struct {
+	V     any
+	Style int
+}
+
+// sheet writes rows to one sheet, remembers column widths and keeps the
+// first error so that writing code stays linear.
+type sheet struct {
+	b        *book
+	name     string
+	row      int // next row, 1-based
+	widths   map[int]int
+	maxWidth int // widest column in characters; below 60 means 60
+}
+
+type book struct {
+	f   *excelize.File
+	st  styles
+	err error
+	v   *view
+}
+
+func (b *book) fail(err error) {
+	if err != nil && b.err == nil {
+		b.err = err
+	}
+}
+
+func (b *book) newSheet(name string) *sheet {
+	if b.err == nil {
+		if name == SheetSummary {
+			b.fail(b.f.SetSheetName("Sheet1", name))
+		} else {
+			_, err := b.f.NewSheet(name)
+			b.fail(err)
+		}
+	}
+	return &sheet{b: b, name: name, row: 1, widths: map[int]int{}}
+}
+
+// put writes c at column col (1-based) of row r.
+func (s *sheet) put(col, r int, c cell) {
+	b := s.b
+	if b.err != nil {
+		return
+	}
+	if r > excelize.TotalRows {
+		b.fail(fmt.Errorf("report: sheet %s needs more than %d rows", s.name, excelize.TotalRows))
+		return
+	}
+	ref, err := excelize.CoordinatesToCellName(col, r)
+	if err != nil {
+		b.fail(err)
+		return
+	}
+	width := 0
+	switch x := c.V.(type) {
+	case nil:
+	case string:
+		b.fail(b.f.SetCellStr(s.name, ref, escapeHexEscapes(x)))
+		width = utf8.RuneCountInString(x)
+	case int:
+		b.fail(b.f.SetCellInt(s.name, ref, int64(x)))
+		width = len(strconv.Itoa(x))
+	case int64:
+		b.fail(b.f.SetCellInt(s.name, ref, x))
+		width = len(strconv.FormatInt(x, 10))
+	case float64:
+		if finite(x) {
+			b.fail(b.f.SetCellFloat(s.name, ref, x, -1, 64))
+			width = 9
+		}
+	case bool:
+		t := "no"
+		if x {
+			t = "yes"
+		}
+		b.fail(b.f.SetCellStr(s.name, ref, t))
+		width = 3
+	default:
+		b.fail(fmt.Errorf("report: sheet %s cell %s: unsupported value type %T", s.name, ref, c.V))
+	}
+	if c.Style != 0 {
+		b.fail(b.f.SetCellStyle(s.name, ref, ref, c.Style))
+	}
+	if width > s.widths[col] {
+		s.widths[col] = width
+	}
+}
+
+// add writes a row of cells from column A and moves to the next row.
+func (s *sheet) add(cells ...cell) {
+	for i, c := range cells {
+		s.put(i+1, s.row, c)
+	}
+	s.row++
+}
+
+// escapeHexEscapes protects text that contains the workbook format's own
+// character escape, _xHHHH_ (for example a road named "_x0041_"): spreadsheet
+// readers decode it, so its underscore is itself escaped as _x005F_ and the
+// text reads back unchanged. excelize v2.11.1 does not do this itself.
+func escapeHexEscapes(s string) string {
+	if !strings.Contains(s, "_x") {
+		return s
+	}
+	var b strings.Builder
+	for i := 0; i < len(s); i++ {
+		if s[i] == '_' && i+6 < len(s) && s[i+1] == 'x' && s[i+6] == '_' && isHex4(s[i+2:i+6]) {
+			b.WriteString("_x005F_")
+			continue
+		}
+		b.WriteByte(s[i])
+	}
+	return b.String()
+}
+
+func isHex4(s string) bool {
+	for i := 0; i < 4; i++ {
+		if _, ok := hexDigit(s[i]); !ok {
+			return false
+		}
+	}
+	return true
+}
+
+// para writes a long text across columns A to lastCol of its own row,
+// wrapped, with the row tall enough for it, and moves to the next row.
+func (s *sheet) para(text string, lastCol string, charsPerLine int) {
+	b := s.b
+	r := strconv.Itoa(s.row)
+	w := s.widths[1]
+	s.put(1, s.row, cell{text, b.st.wrap})
+	s.widths[1] = w // the text wraps across columns: it does not size column A
+	if b.err == nil {
+		b.fail(b.f.MergeCell(s.name, "A"+r, lastCol+r))
+	}
+	lines := (utf8.RuneCountInString(text) + charsPerLine - 1) / max(charsPerLine, 1)
+	if b.err == nil && lines > 1 {
+		b.fail(b.f.SetRowHeight(s.name, s.row, float64(min(lines, 20))*15+2))
+	}
+	s.row++
+}
+
+// skip leaves n empty rows.
+func (s *sheet) skip(n int) { s.row += n }
+
+// header writes a header row, freezes the rows up to it and returns its
+// row number.
+func (s *sheet) header(names ...string) int {
+	r := s.row
+	for i, n := range names {
+		prev := s.widths[i+1]
+		s.put(i+1, r, cell{n, s.b.st.header})
+		// Headers wrap onto two lines, so they count only up to a modest
+		// width.
+		s.widths[i+1] = max(prev, min(utf8.RuneCountInString(n), 14))
+	}
+	s.row++
+	if s.b.err == nil {
+		s.b.fail(s.b.f.SetRowHeight(s.name, r, 32))
+	}
+	if s.b.err == nil {
+		s.b.fail(s.b.f.SetPanes(s.name, &excelize.Panes{Freeze: true, YSplit: r, TopLeftCell: "A" + strconv.Itoa(r+1), ActivePane: "bottomLeft"}))
+	}
+	return r
+}
+
+// filter puts an autofilter on the table whose header is at row head and
+// has cols columns.
+func (s *sheet) filter(head, cols int) {
+	if s.b.err != nil {
+		return
+	}
+	last := max(s.row-1, head)
+	end, err := excelize.CoordinatesToCellName(cols, min(last, excelize.TotalRows))
+	if err != nil {
+		s.b.fail(err)
+		return
+	}
+	s.b.fail(s.b.f.AutoFilter(s.name, "A"+strconv.Itoa(head)+":"+end, nil))
+}
+
+// finish sets column widths from the widest value, within limits.
+func (s *sheet) finish() {
+	cols := make([]int, 0, len(s.widths))
+	for c := range s.widths {
+		cols = append(cols, c)
+	}
+	sort.Ints(cols)
+	for _, c := range cols {
+		if s.b.err != nil {
+			return
+		}
+		name, err := excelize.ColumnNumberToName(c)
+		s.b.fail(err)
+		w := float64(min(max(s.widths[c]+2, 8), max(s.maxWidth, 60)))
+		s.b.fail(s.b.f.SetColWidth(s.name, name, name, w))
+	}
+}
+
+func (b *book) newStyles() {
+	f := b.f
+	mk := func(st *excelize.Style) int {
+		if b.err != nil {
+			return 0
+		}
+		id, err := f.NewStyle(st)
+		b.fail(err)
+		return id
+	}
+	custom := func(format string) *excelize.Style { return &excelize.Style{CustomNumFmt: &format} }
+	b.st = styles{
+		title:   mk(&excelize.Style{Font: &excelize.Font{Bold: true, Size: 16}}),
+		bold:    mk(&excelize.Style{Font: &excelize.Font{Bold: true}}),
+		header:  mk(&excelize.Style{Font: &excelize.Font{Bold: true}, Fill: excelize.Fill{Type: "pattern", Pattern: 1, Color: []string{"#DDDDDD"}}, Alignment: &excelize.Alignment{WrapText: true, Vertical: "top"}, Border: []excelize.Border{{Type: "bottom", Color: "#888888", Style: 1}}}),
+		text:    mk(&excelize.Style{NumFmt: 49}), // "@": text
+		wrap:    mk(&excelize.Style{NumFmt: 49, Alignment: &excelize.Alignment{WrapText: true, Vertical: "top"}}),
+		integer: mk(&excelize.Style{NumFmt: 1}),
+		dec1:    mk(custom("0.0")),
+		dec2:    mk(&excelize.Style{NumFmt: 2}),
+		dec3:    mk(custom("0.000")),
+		p4:      mk(custom("0.0000")),
+		pct:     mk(custom("0.0%")),
+		supp:    mk(&excelize.Style{NumFmt: 49, Font: &excelize.Font{Color: "#808080", Italic: true}, Alignment: &excelize.Alignment{Horizontal: "right"}}),
+		verdict: map[patterns.Verdict]int{},
+	}
+	for _, vd := range append(append([]patterns.Verdict{""}, verdictOrder[:]...), b.v.verdicts...) {
+		if _, done := b.st.verdict[vd]; done {
+			continue
+		}
+		lk := lookOf(vd)
+		b.st.verdict[vd] = mk(&excelize.Style{NumFmt: 49, Fill: excelize.Fill{Type: "pattern", Pattern: 1, Color: []string{lk.Hex}}, Font: &excelize.Font{Color: lk.Text}})
+	}
+}
+
+// Cell constructors.
+func (b *book) str(s string) cell { return cell{s, b.st.text} }
+func (b *book) num(x float64, style int) cell {
+	if !finite(x) {
+		return cell{}
+	}
+	return cell{x, style}
+}
+func (b *book) count(n int) cell { return cell{n, b.st.integer} }
+
+// gated returns the value cell, or the suppression marker when the value
+// comes from fewer trips than the threshold.
+func (b *book) gated(trips, x float64, style int) cell {
+	if b.v.suppressed(trips) {
+		return cell{b.v.valueMark(), b.st.supp}
+	}
+	return b.num(x, style)
+}
+
+// trips returns a trip count cell, or the count marker.
+func (b *book) trips(trips float64) cell {
+	if b.v.suppressed(trips) {
+		return cell{b.v.countMark(), b.st.supp}
+	}
+	if trips == math.Trunc(trips) {
+		return cell{trips, b.st.integer}
+	}
+	return b.num(trips, b.st.dec1)
+}
+
+func (v *view) workbook() ([]byte, error) {
+	f := excelize.NewFile()
+	defer f.Close()
+	b := &book{f: f, v: v}
+	b.newStyles()
+	created := v.created().Format(time.RFC3339)
+	b.fail(f.SetDocProps(&excelize.DocProperties{
+		Title:          v.in.Title,
+		Subject:        "Weak links of the road network between regions",
+		Creator:        "narrows",
+		LastModifiedBy: "narrows",
+		Description:    "Screening results; see the Method sheet and the cautions.",
+		Created:        created,
+		Modified:       created,
+		Version:        v.in.Version,
+	}))
+
+	b.summary()
+	b.findings()
+	b.edges()
+	if v.comparing() {
+		b.comparison()
+	}
+	b.daily()
+	b.timeline()
+	b.scatter()
+	b.regionsSheet()
+	b.quality()
+	b.methodSheet()
+	if b.err != nil {
+		return nil, fmt.Errorf("report: workbook: %w", b.err)
+	}
+	buf, err := f.WriteToBuffer()
+	if err != nil {
+		return nil, fmt.Errorf("report: workbook: %w", err)
+	}
+	data, err := sortContentTypes(buf.Bytes())
+	if err != nil {
+		return nil, fmt.Errorf("report: workbook: %w", err)
+	}
+	return data, nil
+}
+
+// sortContentTypes makes the package deterministic: excelize v2.11.1 adds
+// the image extensions to [Content_Types].xml by ranging over a map, and
+// writes stream-written sheets in map order, so without this two writes of
+// the same workbook differ. It rewrites [Content_Types].xml with its
+// Default elements sorted and puts the parts in descending name order;
+// every other part is copied unchanged (still compressed).
+func sortContentTypes(pkg []byte) ([]byte, error) {
+	zr, err := zip.NewReader(bytes.NewReader(pkg), int64(len(pkg)))
+	if err != nil {
+		return nil, err
+	}
+	// The stream writer's sheets come first in map order; put every part in
+	// the order excelize uses for the others (names descending).
+	files := append([]*zip.File(nil), zr.File...)
+	sort.SliceStable(files, func(i, j int) bool { return files[i].Name > files[j].Name })
+	var out bytes.Buffer
+	zw := zip.NewWriter(&out)
+	for _, zf := range files {
+		if zf.Name != "[Content_Types].xml" {
+			raw, err := zf.OpenRaw()
+			if err != nil {
+				return nil, err
+			}
+			w, err := zw.CreateRaw(&zf.FileHeader)
+			if err != nil {
+				return nil, err
+			}
+			if _, err := io.Copy(w, raw); err != nil {
+				return nil, err
+			}
+			continue
+		}
+		rc, err := zf.Open()
+		if err != nil {
+			return nil, err
+		}
+		data, err := io.ReadAll(rc)
+		rc.Close()
+		if err != nil {
+			return nil, err
+		}
+		w, err := zw.CreateHeader(&zip.FileHeader{Name: zf.Name, Method: zip.Deflate})
+		if err != nil {
+			return nil, err
+		}
+		if _, err := w.Write(sortElements(data, "<Default ", "</Default>")); err != nil {
+			return nil, err
+		}
+	}
+	if err := zw.Close(); err != nil {
+		return nil, err
+	}
+	return out.Bytes(), nil
+}
+
+// sortElements sorts the elements that start with open and end with close
+// among the positions they occupy in data.
+func sortElements(data []byte, open, close string) []byte {
+	type span struct{ start, end int }
+	var spans []span
+	for i := 0; ; {
+		s := bytes.Index(data[i:], []byte(open))
+		if s < 0 {
+			break
+		}
+		e := bytes.Index(data[i+s:], []byte(close))
+		if e < 0 {
+			break
+		}
+		spans = append(spans, span{i + s, i + s + e + len(close)})
+		i += s + e + len(close)
+	}
+	elems := make([]string, len(spans))
+	for i, sp := range spans {
+		elems[i] = string(data[sp.start:sp.end])
+	}
+	sort.Strings(elems)
+	var b bytes.Buffer
+	prev := 0
+	for i, sp := range spans {
+		b.Write(data[prev:sp.start])
+		b.WriteString(elems[i])
+		prev = sp.end
+	}
+	b.Write(data[prev:])
+	return b.Bytes()
+}
+
+func (b *book) summary() {
+	v := b.v
+	s := b.newSheet(SheetSummary)
+	title := v.in.Title
+	if title == "" {
+		title = "narrows study"
+	}
+	s.add(cell{title, b.st.title})
+	s.para(Headline(v.in), "C", 110) // long: kept out of the widths
+	s.skip(1)
+	kv := func(k string, val cell) { s.add(cell{k, b.st.bold}, val) }
+	if v.in.Area != "" {
+		kv("Area", b.str(v.in.Area))
+	}
+	for _, p := range v.periods {
+		kv("Period "+p.Label, b.str(dayRange(p.Scan)))
+		kv("Analysed days "+p.Label, b.count(len(p.Scan.Days)))
+		kv("Weak links "+p.Label, b.count(len(p.Scan.Findings)))
+	}
+	if w := v.periods[0].Scan.Window; w != "" {
+		kv("Time window", b.str(w))
+	}
+	kv("Regions", b.count(len(v.in.Regions.Regions)))
+	kv("Publication threshold (trips)", b.count(v.minTrips))
+	if v.in.Version != "" {
+		kv("Made by", b.str("narrows "+v.in.Version))
+	}
+	s.skip(1)
+
+	s.add(cell{"Input files", b.st.bold})
+	s.add(cell{"File", b.st.header}, cell{"SHA-256", b.st.header}, cell{"Rows", b.st.header})
+	for _, src := range v.in.Inputs {
+		s.add(b.str(src.Path), b.str(src.SHA256), cell{src.Rows, b.st.integer})
+	}
+	s.skip(1)
+	s.add(cell{"Settings", b.st.bold})
+	s.add(cell{"Setting", b.st.header}, cell{"Value", b.st.header})
+	for _, kv := range v.in.Settings {
+		s.add(b.str(kv[0]), b.str(kv[1]))
+	}
+	s.skip(1)
+	if v.comparing() {
+		s.add(cell{"Verdicts", b.st.bold})
+		s.add(cell{"Verdict", b.st.header}, cell{"Weak links", b.st.header}, cell{"Meaning", b.st.header}, cell{"In focus area", b.st.header})
+		for _, vd := range v.shownVerdicts() {
+			s.add(cell{string(vd), b.st.verdict[vd]}, b.count(v.counts[vd]), b.str(verdictMeaning(vd)), b.count(v.focusCounts[vd]))
+		}
+		focus := 0
+		for _, n := range v.focusCounts {
+			focus += n
+		}
+		s.add(cell{"Total", b.st.bold}, b.count(len(v.items)), cell{}, b.count(focus))
+		s.skip(1)
+	}
+	s.add(cell{"Cautions", b.st.bold})
+	for _, c := range v.cautions() {
+		s.para(c, "C", 110)
+	}
+	s.skip(1)
+	s.add(cell{"Map", b.st.bold})
+	s.para("The picture to the right shows the regions (grey, focus area yellow) and the weak links as arrows from origin to destination region, coloured as the verdict cells above; dashed: cleared, dotted: new.", "C", 110)
+	s.widths[1] = min(max(s.widths[1], 30), 40)
+	s.widths[2] = max(min(s.widths[2], 66), 20)
+	s.widths[3] = max(min(s.widths[3], 40), 10)
+	s.finish()
+	if b.err != nil {
+		return
+	}
+	pic, err := v.png()
+	if err != nil {
+		b.fail(err)
+		return
+	}
+	b.fail(b.f.AddPictureFromBytes(SheetSummary, "E2", &excelize.Picture{
+		Extension: ".png",
+		File:      pic,
+		Format:    &excelize.GraphicOptions{AltText: "Map of regions and weak links", ScaleX: 0.75, ScaleY: 0.75},
+	}))
+}
+
+func (b *book) findings() {
+	v := b.v
+	s := b.newSheet(SheetFindings)
+	cols := []string{"Rank", "Weak link", "Regions", "Edges", "Days recurring", "Share of days", "Trips per day", "Speed km/h", "Detour", "Extra km per day", "Extra vehicle-hours per day"}
+	if v.comparing() {
+		cols = append(cols, "Verdict", "Focus", "Period of these values")
+	}
+	head := s.header(cols...)
+	for _, it := range v.items {
+		f := it.Finding
+		t := totals(f)
+		edges := make([]string, len(f.Edges))
+		for i, e := range f.Edges {
+			edges[i] = edgeLabel(e.From, e.To)
+		}
+		row := []cell{
+			b.count(f.Rank), b.str(f.ID), b.str(joinInts(f.Regions)), b.str(strings.Join(edges, ", ")),
+			b.count(len(f.Days)), b.num(f.Share, b.st.pct),
+			b.trips(t.Trips), b.gated(t.Trips, kmh(t.Speed), b.st.dec1), b.gated(t.Trips, t.Detour, b.st.dec2),
+			b.gated(t.Trips, f.ExtraKMPerDay, b.st.dec1), b.gated(t.Trips, f.ExtraHoursPerDay, b.st.dec2),
+		}
+		if a := it.Assessment; a != nil {
+			p := "before"
+			if !a.InBefore {
+				p = "after"
+			}
+			row = append(row, cell{string(a.Verdict), b.st.verdict[a.Verdict]}, cell{a.Focus, 0}, b.str(p))
+		}
+		s.add(row...)
+	}
+	s.filter(head, len(cols))
+	s.finish()
+}
+
+func (b *book) edges() {
+	v := b.v
+	s := b.newSheet(SheetEdges)
+	cols := []string{"Rank", "Weak link", "From", "To", "Trips per day", "Speed km/h", "Detour", "Extra km per day", "Extra vehicle-hours per day", "Days with trips"}
+	if v.comparing() {
+		cols = append(cols, "Verdict")
+	}
+	head := s.header(cols...)
+	for _, it := range v.items {
+		for _, e := range it.Finding.Edges {
+			row := []cell{
+				b.count(it.Finding.Rank), b.str(it.Finding.ID), b.count(e.From), b.count(e.To),
+				b.trips(e.TripsMedian), b.gated(e.TripsMedian, kmh(e.SpeedMedian), b.st.dec1), b.gated(e.TripsMedian, e.DetourMedian, b.st.dec2),
+				b.gated(e.TripsMedian, e.ExtraKMPerDay, b.st.dec1), b.gated(e.TripsMedian, e.ExtraHoursPerDay, b.st.dec2), b.count(len(e.Daily)),
+			}
+			if vd := it.Verdict(); v.comparing() {
+				row = append(row, cell{string(vd), b.st.verdict[vd]})
+			}
+			s.add(row...)
+		}
+	}
+	s.filter(head, len(cols))
+	s.finish()
+}
+
+func (b *book) comparison() {
+	v := b.v
+	s := b.newSheet(SheetComparison)
+	cols := []string{"Rank", "Weak link", "Verdict", "Focus", "Days recurring before", "Days analysed before", "Share before",
+		"Days recurring after", "Days analysed after", "Share after", "Fisher p", "Fisher p adjusted",
+		"Speed before km/h", "Speed after km/h", "Speed shift km/h", "Speed shift low", "Speed shift high", "Speed p", "Speed p adjusted",
+		"Detour before", "Detour after", "Detour shift", "Detour shift low", "Detour shift high", "Detour p", "Detour p adjusted", "Reason"}
+	head := s.header(cols...)
+	share := func(days, total int) cell {
+		if total <= 0 {
+			return cell{}
+		}
+		return b.num(float64(days)/float64(total), b.st.pct)
+	}
+	for _, it := range v.items {
+		a := it.Assessment
+		t := totals(a.Finding)
+		sp, dt := a.Speed, a.Detour
+		g := func(x float64, style int) cell { return b.gated(t.Trips, x, style) }
+		s.add(
+			b.count(a.Finding.Rank), b.str(a.Finding.ID), cell{string(a.Verdict), b.st.verdict[a.Verdict]}, cell{a.Focus, 0},
+			b.count(a.DaysBefore), b.count(a.TotalBefore), share(a.DaysBefore, a.TotalBefore),
+			b.count(a.DaysAfter), b.count(a.TotalAfter), share(a.DaysAfter, a.TotalAfter),
+			b.num(a.FisherP, b.st.p4), b.num(a.FisherPAdjusted, b.st.p4),
+			g(kmh(median(sp.Before)), b.st.dec1), g(kmh(median(sp.After)), b.st.dec1),
+			g(kmh(sp.Shift), b.st.dec1), g(kmh(sp.Low), b.st.dec1), g(kmh(sp.High), b.st.dec1), b.num(sp.P, b.st.p4), b.num(sp.PAdjusted, b.st.p4),
+			g(median(dt.Before), b.st.dec2), g(median(dt.After), b.st.dec2),
+			g(dt.Shift, b.st.dec2), g(dt.Low, b.st.dec2), g(dt.High, b.st.dec2), b.num(dt.P, b.st.p4), b.num(dt.PAdjusted, b.st.p4),
+			cell{a.Reason, b.st.text},
+		)
+	}
+	s.filter(head, len(cols))
+	s.finish()
+}
+
+// median of xs (NaN when empty), without changing xs.
+func median(xs []float64) float64 {
+	if len(xs) == 0 {
+		return math.NaN()
+	}
+	s := append([]float64(nil), xs...)
+	sort.Float64s(s)
+	n := len(s)
+	if n%2 == 1 {
+		return s[n/2]
+	}
+	return (s[n/2-1] + s[n/2]) / 2
+}
+
+// recurredDays returns the days on which the finding with id recurred in
+// scan sc, or nil when it did not recur there.
+func recurredDays(sc *patterns.Scan, id string) map[string]bool {
+	for _, f := range sc.Findings {
+		if f.ID == id {
+			m := make(map[string]bool, len(f.Days))
+			for _, d := range f.Days {
+				m[d] = true
+			}
+			return m
+		}
+	}
+	return nil
+}
+
+func (b *book) daily() {
+	v := b.v
+	cols := []string{"Rank", "Weak link", "Period", "Day", "From", "To", "Trips", "Speed km/h", "Detour", "Extra km", "Candidate", "Weak link recurred"}
+	var rows [][]cell
+	for _, it := range v.items {
+		for _, p := range v.periods {
+			rec := recurredDays(p.Scan, it.Finding.ID)
+			for _, e := range it.Finding.Edges {
+				for _, d := range dailyOf(p, it, patterns.EdgeKey{From: e.From, To: e.To}) {
+					tr := float64(d.Trips)
+					rows = append(rows, []cell{
+						b.count(it.Finding.Rank), b.str(it.Finding.ID), b.str(p.Label), b.str(d.Day), b.count(e.From), b.count(e.To),
+						b.trips(tr), b.gated(tr, kmh(d.Speed), b.st.dec1), b.gated(tr, d.Detour, b.st.dec2),
+						b.gated(tr, (d.DistanceSum-d.StraightSum)/1000, b.st.dec1), {d.Candidate, 0}, {rec[d.Day], 0},
+					})
+				}
+			}
+		}
+	}
+	b.streamTable(SheetDaily, cols, rows, nil)
+}
+
+func (b *book) timeline() {
+	v := b.v
+	s := b.newSheet(SheetTimeline)
+	cols := []string{"Day", "Period", "Candidates", "Weak links recurring"}
+	head := s.header(cols...)
+	type day struct {
+		day, period      string
+		cands, recurring int
+	}
+	var days []day
+	for _, p := range v.periods {
+		on := map[string]int{}
+		for _, f := range p.Scan.Findings {
+			for _, d := range f.Days {
+				on[d]++
+			}
+		}
+		for i, d := range p.Scan.Days {
+			c := 0
+			if i < len(p.Scan.CandidatesPerDay) {
+				c = p.Scan.CandidatesPerDay[i]
+			} else if i < len(p.Scan.DayCandidates) {
+				c = len(p.Scan.DayCandidates[i])
+			}
+			days = append(days, day{d, p.Label, c, on[d]})
+		}
+	}
+	sort.SliceStable(days, func(i, j int) bool { return days[i].day < days[j].day })
+	for _, d := range days {
+		s.add(b.str(d.day), b.str(d.period), b.count(d.cands), b.count(d.recurring))
+	}
+	s.filter(head, len(cols))
+	s.finish()
+	if b.err != nil || len(days) == 0 {
+		return
+	}
+	last := strconv.Itoa(head + len(days))
+	ref := func(col string) string {
+		return "'" + SheetTimeline + "'!$" + col + "$" + strconv.Itoa(head+1) + ":$" + col + "$" + last
+	}
+	b.fail(b.f.AddChart(SheetTimeline, "F2", &excelize.Chart{
+		Type: excelize.Line,
+		Series: []excelize.ChartSeries{
+			{Name: "'" + SheetTimeline + "'!$C$" + strconv.Itoa(head), Categories: ref("A"), Values: ref("C"), Line: excelize.LineOptions{Width: 1.5}},
+			{Name: "'" + SheetTimeline + "'!$D$" + strconv.Itoa(head), Categories: ref("A"), Values: ref("D"), Line: excelize.LineOptions{Width: 2.25}},
+		},
+		Title:     excelize.ChartTitle{Paragraph: []excelize.RichTextRun{{Text: "Candidates and recurring weak links per day"}}},
+		Legend:    excelize.ChartLegend{Position: "bottom"},
+		XAxis:     excelize.ChartAxis{Title: excelize.ChartTitle{Paragraph: []excelize.RichTextRun{{Text: "Day"}}}},
+		YAxis:     excelize.ChartAxis{Title: excelize.ChartTitle{Paragraph: []excelize.RichTextRun{{Text: "Count"}}}, MajorGridLines: true},
+		Dimension: excelize.ChartDimension{Width: 720, Height: 360},
+	}))
+}
+
+func (b *book) scatter() {
+	v := b.v
+	cols := []string{"Candidate", "Period", "Day", "From", "To", "Trips", "Speed km/h", "Detour"}
+	type point struct {
+		period int
+		key    patterns.EdgeKey
+		d      patterns.DailyValue
+	}
+	var pts []point
+	for pi, p := range v.periods {
+		for _, k := range sortedEdgeKeys(p.Scan.EdgeDaily) {
+			for _, d := range p.Scan.EdgeDaily[k] {
+				pts = append(pts, point{pi, k, d})
+			}
+		}
+	}
+	// Non-candidates first, so that each chart series is one block of rows.
+	sort.SliceStable(pts, func(i, j int) bool { return !pts[i].d.Candidate && pts[j].d.Candidate })
+	firstCand := len(pts)
+	rows := make([][]cell, len(pts))
+	for i, pt := range pts {
+		if pt.d.Candidate && firstCand == len(pts) {
+			firstCand = i
+		}
+		tr := float64(pt.d.Trips)
+		rows[i] = []cell{{pt.d.Candidate, 0}, b.str(v.periods[pt.period].Label), b.str(pt.d.Day), b.count(pt.key.From), b.count(pt.key.To),
+			b.trips(tr), b.gated(tr, kmh(pt.d.Speed), b.st.dec1), b.gated(tr, pt.d.Detour, b.st.dec2)}
+	}
+	b.streamTable(SheetScatter, cols, rows, func(head int) {
+		if len(pts) == 0 || head+len(pts) > excelize.TotalRows {
+			return
+		}
+		block := func(name string, from, to int) excelize.ChartSeries {
+			r := func(col string) string {
+				return "'" + SheetScatter + "'!$" + col + "$" + strconv.Itoa(head+1+from) + ":$" + col + "$" + strconv.Itoa(head+to)
+			}
+			return excelize.ChartSeries{Name: name, Categories: r("H"), Values: r("G"), Marker: excelize.ChartMarker{Symbol: "circle", Size: 5}}
+		}
+		var series []excelize.ChartSeries
+		if firstCand > 0 {
+			series = append(series, block("Not a candidate", 0, firstCand))
+		}
+		if firstCand < len(pts) {
+			series = append(series, block("Candidate", firstCand, len(pts)))
+		}
+		b.fail(b.f.AddChart(SheetScatter, "J2", &excelize.Chart{
+			Type:      excelize.Scatter,
+			Series:    series,
+			Title:     excelize.ChartTitle{Paragraph: []excelize.RichTextRun{{Text: "Edge-days: speed against detour"}}},
+			Legend:    excelize.ChartLegend{Position: "bottom"},
+			XAxis:     excelize.ChartAxis{Title: excelize.ChartTitle{Paragraph: []excelize.RichTextRun{{Text: "Detour (travel / straight-line distance)"}}}},
+			YAxis:     excelize.ChartAxis{Title: excelize.ChartTitle{Paragraph: []excelize.RichTextRun{{Text: "Speed km/h"}}}, MajorGridLines: true},
+			Dimension: excelize.ChartDimension{Width: 640, Height: 420},
+		}))
+	})
+}
+
+// streamTable writes a sheet of a header row and rows through excelize's
+// stream writer, which is several times faster than cell-by-cell writing
+// for the large sheets. Column widths come from the rows (known before
+// writing, as the stream writer needs), the header row is frozen and
+// filtered, and extra, if not nil, runs after the rows and before the
+// sheet is closed, with the header's row number. Rows beyond the format's
+// limit are left out and a note says so.
+func (b *book) streamTable(name string, header []string, rows [][]cell, extra func(head int)) {
+	if b.err != nil {
+		return
+	}
+	if _, err := b.f.NewSheet(name); err != nil {
+		b.fail(err)
+		return
+	}
+	sw, err := b.f.NewStreamWriter(name)
+	if err != nil {
+		b.fail(err)
+		return
+	}
+	// Widths as sheet.finish computes them.
+	widths := make([]int, len(header))
+	for i, h := range header {
+		widths[i] = min(utf8.RuneCountInString(h), 14)
+	}
+	for _, r := range rows {
+		for i, c := range r {
+			if i < len(widths) {
+				widths[i] = max(widths[i], cellWidth(c))
+			}
+		}
+	}
+	for i, w := range widths {
+		b.fail(sw.SetColWidth(i+1, i+1, float64(min(max(w+2, 8), 60))))
+	}
+	b.fail(sw.SetPanes(&excelize.Panes{Freeze: true, YSplit: 1, TopLeftCell: "A2", ActivePane: "bottomLeft"}))
+	values := make([]any, len(header))
+	for i, h := range header {
+		values[i] = excelize.Cell{StyleID: b.st.header, Value: h}
+	}
+	if b.err == nil {
+		b.fail(sw.SetRow("A1", values, excelize.RowOpts{Height: 32}))
+	}
+	const head = 1
+	last := head
+	for i, r := range rows {
+		if b.err != nil {
+			return
+		}
+		if head+1+i > excelize.TotalRows-1 { // keep the last row for the note
+			ref, _ := excelize.CoordinatesToCellName(1, head+1+i)
+			b.fail(sw.SetRow(ref, []any{excelize.Cell{StyleID: b.st.bold, Value: fmt.Sprintf("%d more rows left out: the sheet is full", len(rows)-i)}}))
+			break
+		}
+		values := make([]any, len(r))
+		for j, c := range r {
+			values[j] = streamValue(c)
+		}
+		ref, _ := excelize.CoordinatesToCellName(1, head+1+i)
+		b.fail(sw.SetRow(ref, values))
+		last = head + 1 + i
+	}
+	if b.err != nil {
+		return
+	}
+	end, _ := excelize.CoordinatesToCellName(len(header), last)
+	b.fail(b.f.AutoFilter(name, "A1:"+end, nil))
+	if extra != nil && b.err == nil {
+		extra(head)
+	}
+	if b.err == nil {
+		b.fail(sw.Flush())
+	}
+}
+
+// streamValue converts a cell for the stream writer. Strings go in as
+// inline strings, which the stream writer escapes itself (including the
+// _xHHHH_ sequences), so they are not passed through escapeHexEscapes.
+func streamValue(c cell) any {
+	switch x := c.V.(type) {
+	case nil:
+		if c.Style == 0 {
+			return nil
+		}
+		return excelize.Cell{StyleID: c.Style}
+	case float64:
+		if !finite(x) {
+			return nil
+		}
+	case bool:
+		t := "no"
+		if x {
+			t = "yes"
+		}
+		return excelize.Cell{StyleID: c.Style, Value: t}
+	}
+	return excelize.Cell{StyleID: c.Style, Value: c.V}
+}
+
+// cellWidth is the display width of a cell's value in characters.
+func cellWidth(c cell) int {
+	switch x := c.V.(type) {
+	case string:
+		return utf8.RuneCountInString(x)
+	case int:
+		return len(strconv.Itoa(x))
+	case float64:
+		if finite(x) {
+			return 9
+		}
+	case bool:
+		return 3
+	}
+	return 0
+}
+
+func (b *book) regionsSheet() {
+	v := b.v
+	s := b.newSheet(SheetRegions)
+	cols := []string{"Region", "Area km2", "Perimeter km", "Border roads", "Border road lengths km", "Neighbours", "Weak links", "In focus"}
+	head := s.header(cols...)
+	touching := map[int]int{}
+	for _, it := range v.items {
+		for _, id := range it.Finding.Regions {
+			touching[id]++
+		}
+	}
+	for _, r := range v.in.Regions.Regions {
+		names := make([]string, len(r.BorderRoads))
+		lengths := make([]string, len(r.BorderRoads))
+		for i, br := range r.BorderRoads {
+			names[i] = br.Name
+			lengths[i] = strconv.FormatFloat(roundTo(br.LengthKM, 2), 'f', 2, 64)
+		}
+		nb := make([]int, len(r.Neighbours))
+		for i, n := range r.Neighbours {
+			nb[i] = n.ID
+		}
+		s.add(b.count(r.ID), b.num(r.AreaKM2, b.st.dec3), b.num(r.PerimeterKM, b.st.dec2), b.str(strings.Join(names, "; ")),
+			b.str(strings.Join(lengths, "; ")), b.str(joinInts(nb)), b.count(touching[r.ID]), cell{v.focus[r.ID], 0})
+	}
+	s.filter(head, len(cols))
+	s.widths[4] = min(s.widths[4], 50)
+	s.finish()
+}
+
+func (b *book) quality() {
+	v := b.v
+	s := b.newSheet(SheetDataQuality)
+	head := s.header("Item", "Value", "Note")
+	m := v.in.Store
+	if m == nil {
+		s.add(b.str("Day-graph store"), b.str("not given"), b.str("no data quality figures available"))
+	} else {
+		q := m.Quality
+		var rejected int64
+		reasons := make([]string, 0, len(q.Rejected))
+		for r, n := range q.Rejected {
+			reasons = append(reasons, r)
+			rejected += n
+		}
+		sort.Strings(reasons)
+		s.add(b.str("Rows read"), cell{q.Read, b.st.integer}, b.str("every row of the trip files"))
+		s.add(b.str("Rows used"), cell{q.Used, b.st.integer}, cell{})
+		for _, r := range reasons {
+			s.add(b.str("Rows rejected: "+r), cell{q.Rejected[r], b.st.integer}, cell{})
+		}
+		s.add(b.str("Rows rejected, total"), cell{rejected, b.st.integer}, cell{})
+		s.add(b.str("Read = used + rejected"), cell{q.Read == q.Used+rejected, 0}, b.str("every row is accounted for"))
+		s.add(b.str("Time zone"), b.str(m.TimeZone), cell{})
+		for _, w := range m.Windows {
+			s.add(b.str("Time window "+w.Name), b.str(clock(w.StartMinute)+" to "+clock(w.EndMinute)), cell{})
+		}
+		s.add(b.str("Regions SHA-256"), b.str(m.RegionsSHA256), b.str("of the regions the day graphs were built on"))
+		for _, src := range m.Sources {
+			s.add(b.str("Trip file "+src.Path), cell{src.Rows, b.st.integer}, b.str("SHA-256 "+src.SHA256))
+		}
+	}
+	if p := v.in.Regions; p != nil {
+		if p.Source != "" {
+			s.add(b.str("Regions built from"), b.str(p.Source), cell{})
+		}
+		for _, w := range p.Warnings {
+			s.add(b.str("Regions warning"), b.str(w), cell{})
+		}
+	}
+	s.filter(head, 3)
+	s.widths[1] = min(s.widths[1], 40)
+	s.widths[2] = min(s.widths[2], 40)
+	s.finish()
+}
+
+func clock(minute int) string {
+	return fmt.Sprintf("%02d:%02d", minute/60, minute%60)
+}
+
+func (b *book) methodSheet() {
+	v := b.v
+	s := b.newSheet(SheetMethod)
+	head := s.header("Term", "Definition")
+	for _, d := range v.method() {
+		s.add(cell{d.Term, b.st.bold}, cell{d.Text, b.st.wrap})
+	}
+	for _, c := range v.cautions() {
+		s.add(cell{"Caution", b.st.bold}, cell{c, b.st.wrap})
+	}
+	s.filter(head, 2)
+	s.widths[1] = min(s.widths[1], 28)
+	s.widths[2], s.maxWidth = 100, 102
+	s.finish()
+}
