@@ -133,6 +133,9 @@ func fromExtract(ctx context.Context, ex *extract, o Options) (*Partition, error
 	x0, y0 := pr.forward(bound.Min)
 	x1, y1 := pr.forward(bound.Max)
 	rc := rect{toGrid(x0), toGrid(y0), toGrid(x1), toGrid(y1)}
+	if w, h := float64(rc.maxX-rc.minX)*gridMetres, float64(rc.maxY-rc.minY)*gridMetres; w < 1 || h < 1 {
+		return nil, fmt.Errorf("the study area %s is %.3g m x %.3g m, too small to partition", fmtBound(bound), w, h)
+	}
 
 	segs := clipLines(ex.lines, pr, rc)
 	if len(segs) == 0 {

@@ -17,18 +17,23 @@
 // Build reads the file in one pass, keeping the chosen ways and a compact
 // record (16 bytes, coordinates at OSM's resolution of 1e-7°) of every
 // node, so that any reader works and a 50 MB PBF needs a few hundred MB at
-// most. A way that refers to nodes the file
-// lacks (cut off at the extract's edge) keeps each run of two or more
-// consecutive present nodes as a line of its own.
+// most. A way that refers to nodes the file lacks (cut off at the
+// extract's edge) keeps each run of two or more consecutive present nodes
+// as a line of its own. Each PBF block is checked before the decoder sees
+// it (sizes, string indices, dense nodes), so a damaged or hostile file
+// gives an error, never a crash.
 //
 // The study area is Options.BBox, else the bounds in the file's header,
 // else, with a warning, the extent of the chosen lines. Lines are
 // projected with a local equirectangular projection about the study
-// area's centre (x = R·cos φ0·Δλ, y = R·Δφ, R = 6371008.8 m). Over a city
-// or a small country (the projection is refused beyond 10°) its scale
-// error stays well under 0.5 % for areas, it keeps the study rectangle a
-// rectangle, so that clipping is exact, and it is the projection of the
-// reference faces the tests compare with.
+// area's centre (x = R·cos φ0·Δλ, y = R·Δφ, R = 6371008.8 m). It keeps
+// the study rectangle a rectangle, so that clipping is exact, and it is
+// the projection of the reference faces the tests compare with. Its scale
+// error grows away from the centre latitude, about tan φ0 times the
+// latitude offset in radians: under 0.5 % within 30 km north or south of
+// the centre at 45°, so for a city or a small country; the summed area of
+// the whole rectangle is exact to second order. Study areas beyond 10°
+// are refused.
 //
 // Projected coordinates are rounded to a 1 µm grid, so every orientation
 // test is exact in integer arithmetic. Lines are clipped to the study
@@ -50,7 +55,9 @@
 //   - merges slivers: a face smaller than Options.MinAreaKM2, or thinner
 //     than Options.MinCompactness by the Polsby-Popper measure 4πA/P², is
 //     merged into the neighbour across its longest shared border, smallest
-//     first, until none is left. Thin faces are merged whatever their size:
+//     first, until none is left (a face without neighbours, such as the
+//     only face of the study area, stays). Thin faces are merged whatever
+//     their size:
 //     the strip between the two carriageways of a dual road can run the
 //     length of the study area and pass any area floor.
 //

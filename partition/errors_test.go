@@ -6,6 +6,7 @@ import (
 	"context"
 	"errors"
 	"os"
+	"path/filepath"
 	"strings"
 	"testing"
 
@@ -57,7 +58,7 @@ func TestBadInput(t *testing.T) {
 		{"truncated XML", town[:len(town)/2], nil, "XML syntax error on line"},
 		{"truncated gzip", gzipped(t, town)[:300], nil, "truncated"},
 		{"bad node", []byte(`<osm><node id="1" lat="95" lon="0"/></osm>`), nil, "node 1"},
-		{"no elements", []byte(`<osm version="0.6"></osm>`), nil, "no OSM elements"},
+		{"no elements", []byte(`<osm version="0.6"></osm>`), nil, "no OSM nodes or ways"},
 		{"no major roads", []byte(minorTown), nil, "--roads"},
 		{"bbox misses data", town, func(o *Options) { o.BBox = &far }, "misses the data"},
 		{"unknown barrier", town, func(o *Options) { o.Barriers = []string{"lava"} }, "unknown barrier"},
@@ -100,7 +101,7 @@ func TestBadInput(t *testing.T) {
 }
 
 func extractPathOrEmpty(name string) string {
-	p := sharedDir + "/data/osm/" + name
+	p := filepath.Join(sharedDir, "data", "osm", name)
 	if _, err := os.Stat(p); err != nil {
 		return ""
 	}

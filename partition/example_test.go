@@ -1,10 +1,12 @@
 package partition_test
 
 import (
+	"bytes"
 	"context"
 	"fmt"
 	"log"
 	"os"
+	"strings"
 
 	"narrows/partition"
 )
@@ -41,4 +43,29 @@ func ExampleParseBBox() {
 	// Output:
 	// [-30.02 40] [-29.98 40.02] <nil>
 	// bbox "-29.98,40.00,-30.02,40.02": west -29.98 is not less than east -30.02
+}
+
+func ExamplePartition_WriteGeoJSON() {
+	p, err := partition.ReadFile(context.Background(), "testdata/ashgrove.osm", partition.DefaultOptions())
+	if err != nil {
+		log.Fatal(err)
+	}
+	var buf bytes.Buffer
+	if err := p.WriteGeoJSON(&buf); err != nil {
+		log.Fatal(err)
+	}
+	// One feature per line after the collection's header.
+	lines := strings.Split(buf.String(), "\n")
+	fmt.Println(lines[0])
+	fmt.Println(len(lines)-3, "features")
+	// Read it back, as the later steps do.
+	q, err := partition.ReadGeoJSON(&buf, "regions.geojson")
+	if err != nil {
+		log.Fatal(err)
+	}
+	fmt.Println(len(q.Regions), "regions read back; region 1 borders", q.Regions[0].BorderRoads[0].Name)
+	// Output:
+	// {"type":"FeatureCollection","source":"ashgrove.osm","bbox":[-30.02,40,-29.98,40.02],"features":[
+	// 9 features
+	// 9 regions read back; region 1 borders S 7
 }

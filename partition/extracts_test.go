@@ -1,6 +1,7 @@
 package partition
 
 import (
+	"bytes"
 	"context"
 	"encoding/json"
 	"math"
@@ -251,5 +252,40 @@ func checkRegions(t *testing.T, p *Partition, o Options, want geosRef) {
 				t.Errorf("representative point of region %d also lies in region %d", r.ID, s.ID)
 			}
 		}
+	}
+}
+
+func TestExtractDeterministic(t *testing.T) {
+	// The PBF decoder works in parallel; the output must not depend on it.
+	// The GeoJSON also reads back and rewrites to the same bytes.
+	path := extractPath(t, "baltimore.osm.pbf")
+	var first []byte
+	for range 2 {
+		p, err := ReadFile(context.Background(), path, DefaultOptions())
+		if err != nil {
+			t.Fatal(err)
+		}
+		var buf bytes.Buffer
+		if err := p.WriteGeoJSON(&buf); err != nil {
+			t.Fatal(err)
+		}
+		if first == nil {
+			first = buf.Bytes()
+			continue
+		}
+		if !bytes.Equal(buf.Bytes(), first) {
+			t.Fatal("two runs on the same extract gave different GeoJSON")
+		}
+	}
+	q, err := ReadGeoJSON(bytes.NewReader(first), "baltimore.geojson")
+	if err != nil {
+		t.Fatal(err)
+	}
+	var again bytes.Buffer
+	if err := q.WriteGeoJSON(&again); err != nil {
+		t.Fatal(err)
+	}
+	if !bytes.Equal(again.Bytes(), first) {
+		t.Error("GeoJSON read back and rewritten differs")
 	}
 }

@@ -13,6 +13,7 @@ type face struct {
 	rings     [][]int32
 	area      float64 // square metres, holes subtracted
 	perimeter float64 // metres, holes included
+	shellArea float64 // square metres inside the outer boundary
 }
 
 // faceSet is the face structure of an arrangement.
@@ -306,7 +307,7 @@ func (a *arrangement) faces(ctx context.Context) (*faceSet, error) {
 		if ar.sign() > 0 {
 			cycFace[c] = int32(len(fs.faces))
 			area := ar.float() / 2 * gridMetres * gridMetres
-			fs.faces = append(fs.faces, face{rings: [][]int32{ring}, area: area, perimeter: a.length(hs)})
+			fs.faces = append(fs.faces, face{rings: [][]int32{ring}, area: area, perimeter: a.length(hs), shellArea: area})
 			lo, hi := a.pts[ring[0]], a.pts[ring[0]]
 			for _, v := range ring {
 				p := a.pts[v]
@@ -333,7 +334,9 @@ func (a *arrangement) faces(ctx context.Context) (*faceSet, error) {
 			if comp[shell[0]] == comp[v] || !insideRing(a.pts, shell, p) {
 				continue
 			}
-			if best < 0 || fs.faces[f].area < fs.faces[best].area {
+			// The smallest outer boundary around the island is the face
+			// it lies in (net areas would mislead once holes are cut).
+			if best < 0 || fs.faces[f].shellArea < fs.faces[best].shellArea {
 				best = int32(f)
 			}
 		}

@@ -22,6 +22,8 @@ func FuzzBuild(f *testing.F) {
 		f.Add(data[:len(data)/3])
 	}
 	f.Add([]byte(minorTown))
+	f.Add(townPBF(nil))
+	f.Add(townPBF(nil)[:100])
 	f.Add([]byte(""))
 	f.Add([]byte("<osm>"))
 	f.Add([]byte(`<osm><node id="1" lat="0" lon="0"/><node id="2" lat="0.01" lon="0.01"/><way id="1"><nd ref="1"/><nd ref="2"/><nd ref="1"/><tag k="highway" v="primary"/></way></osm>`))

@@ -44,8 +44,6 @@ type ipt struct{ X, Y int64 }
 
 func toGrid(v float64) int64 { return int64(math.Round(v / gridMetres)) }
 
-func (p ipt) less(q ipt) bool { return p.X < q.X || (p.X == q.X && p.Y < q.Y) }
-
 // dist returns the distance between two grid points in metres.
 func dist(p, q ipt) float64 {
 	return math.Hypot(float64(p.X-q.X), float64(p.Y-q.Y)) * gridMetres
@@ -112,33 +110,6 @@ func cross(ax, ay, bx, by int64) i128 { return mul64(ax, by).sub(mul64(ay, bx)) 
 // orient returns the exact orientation of c relative to the line a→b:
 // positive to the left, negative to the right, zero on it.
 func orient(a, b, c ipt) i128 { return cross(b.X-a.X, b.Y-a.Y, c.X-a.X, c.Y-a.Y) }
-
-// ringArea returns the signed area (positive counter-clockwise) of a
-// closed ring of grid points, in square metres. Coordinates are taken
-// relative to the first point so that small rings far from the origin keep
-// their precision.
-func ringArea(ring []ipt) float64 {
-	if len(ring) < 3 {
-		return 0
-	}
-	o := ring[0]
-	var s float64
-	for i := 1; i+1 < len(ring); i++ {
-		ax, ay := float64(ring[i].X-o.X), float64(ring[i].Y-o.Y)
-		bx, by := float64(ring[i+1].X-o.X), float64(ring[i+1].Y-o.Y)
-		s += ax*by - ay*bx
-	}
-	return s / 2 * gridMetres * gridMetres
-}
-
-// ringLength returns the length of a closed ring in metres.
-func ringLength(ring []ipt) float64 {
-	var s float64
-	for i := range ring {
-		s += dist(ring[i], ring[(i+1)%len(ring)])
-	}
-	return s
-}
 
 // rect is the study rectangle on the grid.
 type rect struct{ minX, minY, maxX, maxY int64 }

@@ -64,7 +64,7 @@ func TestNodeBruteForce(t *testing.T) {
 		// within 2 grid units of a vertex of both edges is accepted.
 		for i, e := range a.edges {
 			p1, p2 := a.pts[e.u], a.pts[e.v]
-			if e.u == e.v || !p1.less(p2) {
+			if e.u == e.v || !(p1.X < p2.X || (p1.X == p2.X && p1.Y < p2.Y)) {
 				t.Fatalf("seed %d: edge %d has ends %v %v", seed, i, p1, p2)
 			}
 			for j := i + 1; j < len(a.edges); j++ {
@@ -183,6 +183,50 @@ func TestClipSegment(t *testing.T) {
 		a, b, ok := r.clipSegment(tc.px, tc.py, tc.qx, tc.qy)
 		if ok != tc.ok || (ok && (a != tc.a || b != tc.b)) {
 			t.Errorf("case %d: got %v %v %v, want %v %v %v", i, a, b, ok, tc.a, tc.b, tc.ok)
+		}
+	}
+}
+
+func TestNestedIslands(t *testing.T) {
+	// Squares nested in the study rectangle, none touching: each face is
+	// the ring between two squares, so every island must become a hole of
+	// the face just outside it, whatever order the holes are found in.
+	const m = 1_000_000 // 1 m
+	square := func(lo, hi int64, way int32) []seg {
+		c := []ipt{{lo * m, lo * m}, {hi * m, lo * m}, {hi * m, hi * m}, {lo * m, hi * m}}
+		var s []seg
+		for i := range c {
+			s = append(s, seg{c[i], c[(i+1)%4], way})
+		}
+		return s
+	}
+	for _, order := range [][]int64{{0, 10, 20, 30}, {30, 20, 10, 0}, {20, 0, 30, 10}} {
+		var segs []seg
+		for i, lo := range order {
+			segs = append(segs, square(lo, 100-lo, int32(i))...)
+		}
+		a, err := node(context.Background(), segs)
+		if err != nil {
+			t.Fatal(err)
+		}
+		fs, err := a.faces(context.Background())
+		if err != nil {
+			t.Fatal(err)
+		}
+		if len(fs.faces) != 4 {
+			t.Fatalf("order %v: %d faces, want 4", order, len(fs.faces))
+		}
+		got := map[float64]int{}
+		for _, f := range fs.faces {
+			got[math.Round(f.area)] = len(f.rings)
+		}
+		// Rings 100-80, 80-60, 60-40 (one hole each) and the 40 m core.
+		want := map[float64]int{100*100 - 80*80: 2, 80*80 - 60*60: 2, 60*60 - 40*40: 2, 40 * 40: 1}
+		for area, rings := range want {
+			if got[area] != rings {
+				t.Errorf("order %v: faces by area and rings %v, want %v", order, got, want)
+				break
+			}
 		}
 	}
 }

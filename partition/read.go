@@ -15,6 +15,7 @@ import (
 	"runtime"
 	"slices"
 	"strings"
+	"sync"
 
 	"github.com/paulmach/orb"
 	"github.com/paulmach/osm"
@@ -62,10 +63,52 @@ func toOSMUnits(deg float64) int32 { return int32(math.Round(deg / osmUnit)) }
 
 func fromOSMUnits(u int32) float64 { return float64(u) / 1e7 }
 
+// nodeStore collects node positions. The PBF decoder hands nodes to it
+// from several goroutines (through Scanner.FilterNode, so that it can
+// reuse their memory), hence the lock.
+type nodeStore struct {
+	mu     sync.Mutex
+	recs   []nodeRec
+	sorted bool // ids arrived in increasing order
+	bound  orb.Bound
+	err    error // the first bad node
+}
+
+func newNodeStore() *nodeStore {
+	return &nodeStore{sorted: true, bound: orb.Bound{Min: orb.Point{math.Inf(1), math.Inf(1)}, Max: orb.Point{math.Inf(-1), math.Inf(-1)}}}
+}
+
+func (s *nodeStore) add(n *osm.Node) {
+	s.mu.Lock()
+	defer s.mu.Unlock()
+	if s.err != nil {
+		return
+	}
+	if math.IsNaN(n.Lon) || math.IsNaN(n.Lat) || math.Abs(n.Lon) > 180 || math.Abs(n.Lat) > 90 {
+		s.err = fmt.Errorf("node %d: lon %v, lat %v is not a position on Earth", n.ID, n.Lon, n.Lat)
+		return
+	}
+	if k := len(s.recs); k > 0 && int64(n.ID) <= s.recs[k-1].id {
+		s.sorted = false
+	}
+	s.recs = append(s.recs, nodeRec{int64(n.ID), toOSMUnits(n.Lon), toOSMUnits(n.Lat)})
+	s.bound = s.bound.Extend(orb.Point{n.Lon, n.Lat})
+}
+
+// finish sorts the nodes by id (then position, so that a repeated id
+// resolves the same way whatever order parallel decoding gave).
+func (s *nodeStore) finish() []nodeRec {
+	if !s.sorted {
+		slices.SortFunc(s.recs, func(a, b nodeRec) int {
+			return cmp.Or(cmp.Compare(a.id, b.id), cmp.Compare(a.lon, b.lon), cmp.Compare(a.lat, b.lat))
+		})
+	}
+	return s.recs
+}
+
 // wayRec is a chosen way until its nodes are resolved.
 type wayRec struct {
 	info  wayInfo
-	class string
 	nodes []int64
 }
 
@@ -143,7 +186,7 @@ func openOSM(ctx context.Context, r io.Reader, depth int) (osm.Scanner, *osmpbf.
 		}
 		return openOSM(ctx, bzip2.NewReader(br), depth+1)
 	case isPBF(head):
-		sc := osmpbf.New(ctx, br, min(runtime.GOMAXPROCS(0), 4))
+		sc := osmpbf.New(ctx, newPBFGuard(br), min(runtime.GOMAXPROCS(0), 4))
 		sc.SkipRelations = true
 		return sc, sc, "PBF", nil
 	case len(head) < 15 && len(head) > 5 && head[4] == 0x0a && bytes.HasPrefix([]byte("OSMHeader"), head[6:]):
@@ -230,8 +273,20 @@ func readOSM(ctx context.Context, r io.Reader, o *Options) (*extract, error) {
 		return nil, err
 	}
 	defer sc.Close()
-	ex := &extract{dataBound: orb.Bound{Min: orb.Point{math.Inf(1), math.Inf(1)}, Max: orb.Point{math.Inf(-1), math.Inf(-1)}}}
+	ex := &extract{}
+	sel := newSelector(o)
+	store := newNodeStore()
 	if pbf != nil {
+		// Take nodes and drop unchosen ways inside the decoder, which then
+		// reuses their memory instead of allocating an object for each.
+		pbf.FilterNode = func(n *osm.Node) bool {
+			store.add(n)
+			return false
+		}
+		pbf.FilterWay = func(w *osm.Way) bool {
+			_, _, ok := sel.classify(w.Tags)
+			return ok
+		}
 		h, err := pbf.Header()
 		if errors.Is(err, io.ErrUnexpectedEOF) {
 			return nil, errors.New("PBF is truncated: it ends inside its header block")
@@ -249,12 +304,9 @@ func readOSM(ctx context.Context, r io.Reader, o *Options) (*extract, error) {
 			ex.header = &b
 		}
 	}
-	sel := newSelector(o)
 	var (
-		nodes  []nodeRec
-		sorted = true
-		ways   []wayRec
-		count  int
+		ways  []wayRec
+		count int
 	)
 	for sc.Scan() {
 		count++
@@ -270,14 +322,10 @@ func readOSM(ctx context.Context, r io.Reader, o *Options) (*extract, error) {
 				ex.header = &b
 			}
 		case *osm.Node:
-			if math.IsNaN(obj.Lon) || math.IsNaN(obj.Lat) || math.Abs(obj.Lon) > 180 || math.Abs(obj.Lat) > 90 {
-				return nil, fmt.Errorf("node %d: lon %v, lat %v is not a position on Earth", obj.ID, obj.Lon, obj.Lat)
+			store.add(obj)
+			if store.err != nil {
+				return nil, store.err
 			}
-			if n := len(nodes); n > 0 && int64(obj.ID) <= nodes[n-1].id {
-				sorted = false
-			}
-			nodes = append(nodes, nodeRec{int64(obj.ID), toOSMUnits(obj.Lon), toOSMUnits(obj.Lat)})
-			ex.dataBound = ex.dataBound.Extend(orb.Point{obj.Lon, obj.Lat})
 		case *osm.Way:
 			class, rank, ok := sel.classify(obj.Tags)
 			if !ok {
@@ -287,8 +335,11 @@ func readOSM(ctx context.Context, r io.Reader, o *Options) (*extract, error) {
 			for i, wn := range obj.Nodes {
 				ids[i] = int64(wn.ID)
 			}
-			ways = append(ways, wayRec{info: wayInfo{id: obj.ID, rank: rank, label: label(obj.Tags, class)}, class: class, nodes: ids})
+			ways = append(ways, wayRec{info: wayInfo{id: obj.ID, rank: rank, label: label(obj.Tags, class)}, nodes: ids})
 		}
+	}
+	if store.err != nil {
+		return nil, store.err
 	}
 	if err := sc.Err(); err != nil {
 		if errors.Is(err, context.Canceled) || errors.Is(err, context.DeadlineExceeded) {
@@ -306,12 +357,10 @@ func readOSM(ctx context.Context, r io.Reader, o *Options) (*extract, error) {
 	if err := ctx.Err(); err != nil {
 		return nil, err
 	}
-	if count == 0 && ex.header == nil {
-		return nil, fmt.Errorf("the %s file holds no OSM elements", format)
-	}
-	ex.nodes = len(nodes)
-	if !sorted {
-		slices.SortStableFunc(nodes, func(a, b nodeRec) int { return cmp.Compare(a.id, b.id) })
+	nodes := store.finish()
+	ex.nodes, ex.dataBound = len(nodes), store.bound
+	if len(nodes) == 0 && len(ways) == 0 && ex.header == nil {
+		return nil, fmt.Errorf("the %s file holds no OSM nodes or ways", format)
 	}
 	slices.SortStableFunc(ways, func(a, b wayRec) int {
 		if c := cmp.Compare(a.info.rank, b.info.rank); c != 0 {

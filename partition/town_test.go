@@ -228,8 +228,11 @@ func TestTownOptions(t *testing.T) {
 		// Primary roads only: the carriageways (their strip merged away)
 		// and Ring Road: north, south and the island.
 		{"primary only", func(o *Options) { o.Roads = []string{"primary"} }, 3},
-		// Without snapping Ferry Street stays a dangle.
+		// Without snapping Ferry Street stays a dangle, and so it does
+		// with a tolerance below its 5 m gap; 6 m closes it.
 		{"no snap", func(o *Options) { o.SnapMetres = 0 }, townDefaultRegions - 1},
+		{"snap 4 m", func(o *Options) { o.SnapMetres = 4 }, townDefaultRegions - 1},
+		{"snap 6 m", func(o *Options) { o.SnapMetres = 6 }, townDefaultRegions},
 		// Without sliver merging the three strips stay.
 		{"no merging", func(o *Options) { o.MinAreaKM2, o.MinCompactness = 0, 0 }, townDefaultRegions + 3},
 		// Residential roads only: Willow Close is a dangle; one region.

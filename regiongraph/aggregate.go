@@ -5,32 +5,42 @@ import (
 	"math"
 	"runtime"
 	"slices"
-	"sync"
+	"strconv"
 )
 
 // record is one trip in one window, kept until the end of the ingest for
 // the exact quantiles. Regions are locator indexes (ascending with the
-// region ids), the window is its rank by name, so that sorting records by
-// (window, pair) gives the store's edge order within a day. float32 values
-// (relative rounding at most 6e-8) keep 10 million trips in 200 MB.
+// region ids), so that sorting records by pair gives the store's edge order.
+// float32 values (relative rounding at most 6e-8) keep 10 million trips in
+// 160 MB.
 type record struct {
 	pair     uint32 // from index << 16 | to index
 	distance float32
 	duration float32
 	straight float32
-	window   uint8
 }
 
-// dayRecords holds one local day's records in chunks that are never
-// reallocated (appending does not copy, and a chunk is freed as a whole).
+// bucketKey packs a local day (days since 1970-01-01 of the local calendar)
+// and a window rank (by name): ascending keys are the store's edge order.
+type bucketKey int64
+
+func makeBucketKey(day int32, windowRank uint8) bucketKey {
+	return bucketKey(int64(day)<<8 | int64(windowRank))
+}
+
+func (k bucketKey) day() int32        { return int32(int64(k) >> 8) }
+func (k bucketKey) windowRank() uint8 { return uint8(k & 0xff) }
+
+// dayRecords holds the records of one day and window in chunks that are
+// never reallocated (appending does not copy, and a chunk is freed whole).
 type dayRecords struct {
-	day    int32 // days since 1970-01-01 of the local calendar
+	key    bucketKey
 	chunks [][]record
 }
 
 const (
 	firstChunk = 256
-	maxChunk   = 1 << 16
+	maxChunk   = 1 << 14 // 256 KB: the unfilled tail of each bucket stays small
 )
 
 func (d *dayRecords) add(r record) {
@@ -53,8 +63,8 @@ type tally struct {
 	loc        *locator
 	zone       *zoneCache
 	windowRank []uint8 // window index -> rank by name
-	days       map[int32]*dayRecords
-	last       *dayRecords // trips mostly come in time order
+	buckets    map[bucketKey]*dayRecords
+	last       []*dayRecords // by window index: trips mostly come in time order
 	read       int64
 	used       int64
 	reasons    [numReasons]int64
@@ -62,7 +72,7 @@ type tally struct {
 
 func newTally(st *settings, loc *locator) *tally {
 	return &tally{st: st, loc: loc, zone: newZoneCache(st.loc), windowRank: windowRanks(st.windows),
-		days: make(map[int32]*dayRecords)}
+		buckets: make(map[bucketKey]*dayRecords), last: make([]*dayRecords, len(st.windows))}
 }
 
 // windowRanks orders windows by name, the order of edges in the store.
@@ -136,24 +146,25 @@ func (t *tally) add(tr *trip) reason {
 	if day < math.MinInt32 || day > math.MaxInt32 {
 		return rUnparseable
 	}
-	d := t.last
-	if d == nil || d.day != int32(day) {
-		d = t.days[int32(day)]
-		if d == nil {
-			d = &dayRecords{day: int32(day)}
-			t.days[int32(day)] = d
-		}
-		t.last = d
-	}
 	in := false
 	rec := record{pair: uint32(from)<<16 | uint32(to),
 		distance: float32(tr.distance), duration: float32(duration), straight: float32(straight)}
 	for wi, w := range st.windows {
-		if w.contains(minute) {
-			in = true
-			rec.window = t.windowRank[wi]
-			d.add(rec)
+		if !w.contains(minute) {
+			continue
 		}
+		in = true
+		key := makeBucketKey(int32(day), t.windowRank[wi])
+		d := t.last[wi]
+		if d == nil || d.key != key {
+			d = t.buckets[key]
+			if d == nil {
+				d = &dayRecords{key: key}
+				t.buckets[key] = d
+			}
+			t.last[wi] = d
+		}
+		d.add(rec)
 	}
 	if !in {
 		return rOutsideTimes
@@ -179,6 +190,32 @@ func quantile(sorted []float32, p float64) float64 {
 	return a + frac*(b-a)
 }
 
+// decimal32 widens a float32 to the float64 of its shortest decimal form, so
+// that a stored 6550.4 m reads back as 6550.4, not 6550.39990234375.
+func decimal32(f float32) float64 {
+	var buf [32]byte
+	v, err := strconv.ParseFloat(bytesString(strconv.AppendFloat(buf[:0], float64(f), 'g', -1, 32)), 64)
+	if err != nil {
+		return float64(f)
+	}
+	return v
+}
+
+// medianDecimal is the type-7 median of sorted values read through
+// decimal32: distances and durations are given in decimal, and an edge's
+// median is usually one of them (or halfway between two).
+func medianDecimal(sorted []float32) float64 {
+	n := len(sorted)
+	if n == 0 {
+		return math.NaN()
+	}
+	if n%2 == 1 {
+		return decimal32(sorted[n/2])
+	}
+	a, b := decimal32(sorted[n/2-1]), decimal32(sorted[n/2])
+	return a + 0.5*(b-a)
+}
+
 // finish combines the tallies into sorted edges and the quality counts. Day
 // by day, it gathers the day's records, sorts them by window and pair, and
 // reads each edge's count, sums and quantiles; the tallies' records are
@@ -188,82 +225,148 @@ func finish(st *settings, loc *locator, tallies []*tally) ([]Edge, Quality) {
 	for _, r := range RejectReasons() {
 		q.Rejected[r] = 0
 	}
-	dayParts := make(map[int32][]*dayRecords)
+	parts := make(map[bucketKey][]*dayRecords)
 	for _, t := range tallies {
 		q.Read += t.read
 		q.Used += t.used
 		for r, n := range t.reasons {
 			q.Rejected[reason(r).String()] += n
 		}
-		for day, d := range t.days {
-			dayParts[day] = append(dayParts[day], d)
+		for key, d := range t.buckets {
+			parts[key] = append(parts[key], d)
 		}
-		t.days, t.last = nil, nil
+		t.buckets, t.last = nil, nil
 	}
-	days := make([]int32, 0, len(dayParts))
-	for day := range dayParts {
-		days = append(days, day)
+	keys := make([]bucketKey, 0, len(parts))
+	for key := range parts {
+		keys = append(keys, key)
 	}
-	slices.Sort(days)
+	slices.Sort(keys)
 	byRank := make([]string, len(st.windows))
 	for wi, r := range windowRanks(st.windows) {
 		byRank[r] = st.windows[wi].Name
 	}
 
-	// Days are independent: a few goroutines take them in turn.
-	results := make([][]Edge, len(days))
-	workers := max(1, min(runtime.GOMAXPROCS(0), maxParsers, len(days)))
+	// Day strings, shared by a day's edges.
+	dayNames := make([]string, len(keys))
+	for i, k := range keys {
+		if i > 0 && keys[i-1].day() == k.day() {
+			dayNames[i] = dayNames[i-1]
+		} else {
+			dayNames[i] = dayString(int64(k.day()))
+		}
+	}
+	// The result holds at most one edge per record and per region pair in
+	// each bucket; sizing it up front avoids a second copy of the edges.
+	pairs := len(loc.regions) * (len(loc.regions) - 1)
+	var capacity int
+	for _, k := range keys {
+		n := 0
+		for _, part := range parts[k] {
+			for _, c := range part.chunks {
+				n += len(c)
+			}
+		}
+		capacity += min(n, pairs)
+	}
+	edges := make([]Edge, 0, capacity)
+
+	// Buckets are independent: a few goroutines take them in turn, and
+	// their edges are appended in bucket order as they come.
+	type bucketResult struct {
+		i     int
+		edges []Edge
+	}
+	workers := max(1, min(runtime.GOMAXPROCS(0), maxParsers, len(keys)))
 	next := make(chan int)
-	var wg sync.WaitGroup
+	results := make(chan bucketResult, workers)
+	spare := make(chan []Edge, 2*workers) // buffers handed back once copied into edges
 	for w := 0; w < workers; w++ {
-		wg.Add(1)
 		go func() {
-			defer wg.Done()
-			var buf []record
+			var buf, tmp []record
 			var scratch []float32
 			for i := range next {
 				buf = buf[:0]
-				for _, part := range dayParts[days[i]] {
+				for _, part := range parts[keys[i]] {
 					for _, c := range part.chunks {
 						buf = append(buf, c...)
 					}
 					part.chunks = nil
 				}
-				results[i], scratch = dayEdges(dayString(int64(days[i])), buf, byRank, loc, scratch)
+				tmp = sortByPair(buf, tmp, len(loc.regions))
+				var es []Edge
+				select {
+				case es = <-spare:
+				default:
+				}
+				es, scratch = bucketEdges(es[:0], dayNames[i], byRank[keys[i].windowRank()], buf, loc, scratch)
+				results <- bucketResult{i, es}
 			}
 		}()
 	}
-	for i := range days {
-		next <- i
-	}
-	close(next)
-	wg.Wait()
-	var n int
-	for _, r := range results {
-		n += len(r)
-	}
-	edges := make([]Edge, 0, n)
-	for _, r := range results {
-		edges = append(edges, r...)
+	go func() {
+		for i := range keys {
+			next <- i
+		}
+		close(next)
+	}()
+	pending := make(map[int][]Edge)
+	for want, got := 0, 0; got < len(keys); got++ {
+		r := <-results
+		pending[r.i] = r.edges
+		for es, ok := pending[want]; ok; es, ok = pending[want] {
+			edges = append(edges, es...)
+			delete(pending, want)
+			want++
+			select {
+			case spare <- es[:0]:
+			default:
+			}
+		}
 	}
 	return edges, q
 }
 
-func recordKey(r *record) uint64 { return uint64(r.window)<<32 | uint64(r.pair) }
+// sortByPair sorts records by region pair: a two-pass radix sort (destination
+// index, then origin index) for large buckets, pdqsort for small ones. tmp is
+// scratch space, returned for reuse.
+func sortByPair(recs, tmp []record, regions int) []record {
+	if len(recs) < 4096 {
+		slices.SortFunc(recs, func(a, b record) int { return cmp.Compare(a.pair, b.pair) })
+		return tmp
+	}
+	tmp = slices.Grow(tmp[:0], len(recs))[:len(recs)]
+	counts := make([]int, regions+2)
+	pass := func(src, dst []record, digit func(uint32) uint32) {
+		clear(counts)
+		for i := range src {
+			counts[digit(src[i].pair)+1]++
+		}
+		for i := 1; i < len(counts); i++ {
+			counts[i] += counts[i-1]
+		}
+		for i := range src {
+			d := digit(src[i].pair)
+			dst[counts[d]] = src[i]
+			counts[d]++
+		}
+	}
+	pass(recs, tmp, func(p uint32) uint32 { return p & 0xffff })
+	pass(tmp, recs, func(p uint32) uint32 { return p >> 16 })
+	return tmp
+}
 
-// dayEdges turns one day's records into its edges, in window and pair order.
-func dayEdges(day string, recs []record, windowNames []string, loc *locator, scratch []float32) ([]Edge, []float32) {
-	slices.SortFunc(recs, func(a, b record) int { return cmp.Compare(recordKey(&a), recordKey(&b)) })
-	var edges []Edge
+// bucketEdges appends the edges of one day and window to edges, from its
+// records sorted by pair.
+func bucketEdges(edges []Edge, day, window string, recs []record, loc *locator, scratch []float32) ([]Edge, []float32) {
 	for start := 0; start < len(recs); {
-		key := recordKey(&recs[start])
 		end := start + 1
-		for end < len(recs) && recordKey(&recs[end]) == key {
+		for end < len(recs) && recs[end].pair == recs[start].pair {
 			end++
 		}
 		group := recs[start:end]
 		r0 := &group[0]
-		e := Edge{Day: day, Window: windowNames[r0.window],
+		e := Edge{Day: day, Window: window,
 			From: loc.regions[r0.pair>>16-1].id, To: loc.regions[r0.pair&0xffff-1].id, Trips: len(group)}
 		// Sums in integer millimetres and milliseconds: exact, and
 		// independent of the order of the trips.
@@ -296,9 +399,9 @@ func dayEdges(day string, recs []record, windowNames []string, loc *locator, scr
 			case 1:
 				e.DetourP25, e.DetourMedian, e.DetourP75 = quantile(scratch, 0.25), quantile(scratch, 0.5), quantile(scratch, 0.75)
 			case 2:
-				e.DistanceMedian = quantile(scratch, 0.5)
+				e.DistanceMedian = medianDecimal(scratch)
 			case 3:
-				e.DurationMedian = quantile(scratch, 0.5)
+				e.DurationMedian = medianDecimal(scratch)
 			}
 		}
 		edges = append(edges, e)

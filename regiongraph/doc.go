@@ -6,5 +6,40 @@
 // Out: a Store, the day-graph store: for each local day, time window and
 // directed region pair, the trip count and the quartiles of speed and detour
 // ratio, with the quality accounting of every input row. A Store is written
-// to and read from one Parquet file.
+// to and read from one Parquet file (WriteFile, ReadFile; the layout is in
+// SCHEMA.md), and stores of separate ingests merge (Merge).
+//
+// # Inputs
+//
+// A trip table has one row per trip with the columns trip_id (optional),
+// start_time, end_time, start_lon, start_lat, end_lon, end_lat and
+// distance_m; Options.Columns renames them and Options.DistanceUnit reads
+// the distance in km or miles. A GPS point table has vehicle_id, time, lon,
+// lat and optionally occupied; its rows need not be sorted. Each vehicle's
+// points are cut into trips where the occupied flag changes (only occupied
+// runs are trips) or, without that column, at time gaps and at dwells. In a
+// GPX file each track segment with timed points is a trip. A trip's travel
+// distance is the table's distance, or the summed great-circle length of its
+// points. Times are RFC 3339, "YYYY-MM-DD HH:MM:SS" in the study's time zone,
+// or Unix seconds; the time zone database is embedded.
+//
+// # Checks and accounting
+//
+// Every row ends used or counted under exactly one reason of RejectReasons,
+// the first that applies in that order, so that Quality.Read equals
+// Quality.Used plus the rejected rows. With Options.Strict the first row with
+// bad data stops the ingest with an error "file:line: reason".
+//
+// # Aggregation
+//
+// Trips are grouped by the local day and window of their start time and by
+// their origin and destination regions, found through a spatial index and an
+// exact point-in-polygon test that puts border points in exactly one region.
+// Quantiles are exact (type 7, linear interpolation between order
+// statistics). Per-trip values are held as 32-bit floats until the end of
+// the ingest: 16 bytes a trip, so 10 million trips take about 160 MB, plus
+// about 160 bytes per edge of the result.
+//
+// CSV trip tables are parsed by several goroutines; the result does not
+// depend on their number or on the order of the rows.
 package regiongraph

@@ -41,11 +41,11 @@ func fuzzIngest(t *testing.T, name string, format Format, data []byte, strict bo
 }
 
 func FuzzTripCSV(f *testing.F) {
-	f.Add([]byte(tripHeader + "a,2024-05-01T08:00:00Z,2024-05-01T08:10:00Z,13.010,52.010,13.030,52.010,2000\n"), false)
-	f.Add([]byte(tripHeader + "\"a,\nb\",2024-05-01 08:00:00,1714551000,13.01,52.01,13.05,52.05,9000\r\n\n"), false)
-	f.Add([]byte(tripHeader + "a,2024-03-31 02:30:00,2024-03-31 03:30:00,13.01,52.01,13.05,52.05,9000\n"), true)
+	f.Add([]byte(tripHeader+"a,2024-05-01T08:00:00Z,2024-05-01T08:10:00Z,13.010,52.010,13.030,52.010,2000\n"), false)
+	f.Add([]byte(tripHeader+"\"a,\nb\",2024-05-01 08:00:00,1714551000,13.01,52.01,13.05,52.05,9000\r\n\n"), false)
+	f.Add([]byte(tripHeader+"a,2024-03-31 02:30:00,2024-03-31 03:30:00,13.01,52.01,13.05,52.05,9000\n"), true)
 	f.Add([]byte("start_time,end_time\n1,2\n"), false)
-	f.Add([]byte("\xef\xbb\xbf" + tripHeader + "a,1,2,x,y,z,w,v\n\"unterminated\n"), false)
+	f.Add([]byte("\xef\xbb\xbf"+tripHeader+"a,1,2,x,y,z,w,v\n\"unterminated\n"), false)
 	f.Add([]byte{0x50, 0x41, 0x52, 0x31, 0, 0}, false)
 	f.Fuzz(func(t *testing.T, data []byte, strict bool) {
 		fuzzIngest(t, "trips.csv", FormatTrips, data, strict)
@@ -61,7 +61,7 @@ func FuzzPointsCSV(f *testing.F) {
 }
 
 func FuzzGPX(f *testing.F) {
-	f.Add([]byte(`<gpx><trk><trkseg><trkpt lat="52.01" lon="13.01"><time>2024-05-01T08:00:00Z</time></trkpt>` +
+	f.Add([]byte(`<gpx><trk><trkseg><trkpt lat="52.01" lon="13.01"><time>2024-05-01T08:00:00Z</time></trkpt>`+
 		`<trkpt lat="52.01" lon="13.05"><time>2024-05-01T08:05:00Z</time></trkpt></trkseg></trk></gpx>`), false)
 	f.Add([]byte(`<?xml version="1.0"?><gpx version="1.1"><trk><trkseg><trkpt lat="x" lon="13"></trkpt></trkseg></trk></gpx>`), true)
 	f.Add([]byte(`<gpx><trkpt lat="1" lon="2"/></gpx>`), false)

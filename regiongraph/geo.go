@@ -31,15 +31,22 @@ func GreatCircleMetres(a, b orb.Point) float64 {
 	return 2 * EarthRadiusMetres * math.Asin(math.Sqrt(h))
 }
 
-// locator finds the region holding a point: an R-tree over the region bounds
-// narrows the candidates, an exact crossing-number test with holes decides.
-// Points on a border shared by two regions belong to exactly one of them: the
-// test is half-open (a region holds its lower and left borders, not its upper
-// and right ones), and when regions overlap the lowest id wins.
+// locator finds the region holding a point. An R-tree over the region
+// bounds gives, once, the candidate regions of every cell of a uniform grid
+// over the study area; a point's cell then names its few candidates, which an
+// exact crossing-number test with holes decides. Points on a border shared by
+// two regions belong to exactly one of them: the test is half-open (a region
+// holds its lower and left borders, not its upper and right ones), and when
+// regions overlap the lowest id wins.
 // A locator is read-only after construction and safe for concurrent use.
 type locator struct {
-	tree    rtree.RTreeG[int32] // index into regions
-	regions []locRegion
+	regions []locRegion // ascending id
+
+	minX, minY   float64
+	cellW, cellH float64
+	nx, ny       int
+	cellStart    []int32 // candidates of cell c: cellList[cellStart[c]:cellStart[c+1]]
+	cellList     []int32 // region indexes, ascending
 }
 
 type locRegion struct {
@@ -64,27 +71,75 @@ func newLocator(p *partition.Partition) (*locator, error) {
 	if len(l.regions) > maxRegions {
 		return nil, fmt.Errorf("regiongraph: %d regions; at most %d are supported", len(l.regions), maxRegions)
 	}
+	var tree rtree.RTreeG[int32]
+	var all orb.Bound
 	for i := range l.regions {
 		if i > 0 && l.regions[i].id == l.regions[i-1].id {
 			return nil, fmt.Errorf("regiongraph: region id %d is used twice", l.regions[i].id)
 		}
 		b := l.regions[i].bound
-		l.tree.Insert(b.Min, b.Max, int32(i))
+		tree.Insert(b.Min, b.Max, int32(i))
+		if i == 0 {
+			all = b
+		} else {
+			all = all.Union(b)
+		}
 	}
+	if len(l.regions) == 0 {
+		return l, nil
+	}
+	// About four cells per region, in the shape of the study area.
+	w, h := all.Max[0]-all.Min[0], all.Max[1]-all.Min[1]
+	cells := float64(4 * len(l.regions))
+	side := math.Sqrt(w * h / cells)
+	if !(side > 0) {
+		side = math.Max(w, h) + 1e-9
+	}
+	l.nx = max(1, min(512, int(math.Ceil(w/side))))
+	l.ny = max(1, min(512, int(math.Ceil(h/side))))
+	l.minX, l.minY = all.Min[0], all.Min[1]
+	l.cellW, l.cellH = math.Max(w/float64(l.nx), 1e-12), math.Max(h/float64(l.ny), 1e-12)
+	// Cells are searched a little enlarged, so that a point whose cell is
+	// misjudged by rounding still finds every region that could hold it.
+	const pad = 1e-7 // degrees, about a centimetre
+	l.cellStart = make([]int32, 0, l.nx*l.ny+1)
+	var found []int32
+	for cy := 0; cy < l.ny; cy++ {
+		for cx := 0; cx < l.nx; cx++ {
+			l.cellStart = append(l.cellStart, int32(len(l.cellList)))
+			x0, y0 := l.minX+float64(cx)*l.cellW, l.minY+float64(cy)*l.cellH
+			found = found[:0]
+			tree.Search([2]float64{x0 - pad, y0 - pad}, [2]float64{x0 + l.cellW + pad, y0 + l.cellH + pad},
+				func(_, _ [2]float64, i int32) bool {
+					found = append(found, i)
+					return true
+				})
+			slices.Sort(found)
+			l.cellList = append(l.cellList, found...)
+		}
+	}
+	l.cellStart = append(l.cellStart, int32(len(l.cellList)))
 	return l, nil
 }
 
 // locate returns 1 + the index (in id order) of the region holding p, or 0
 // when none does. When several hold it, the lowest id wins.
 func (l *locator) locate(p orb.Point) int {
-	best := 0
-	l.tree.Search(p, p, func(_, _ [2]float64, i int32) bool {
-		if (best == 0 || int(i)+1 < best) && l.regions[i].contains(p) {
-			best = int(i) + 1
+	if len(l.regions) == 0 {
+		return 0
+	}
+	fx, fy := (p[0]-l.minX)/l.cellW, (p[1]-l.minY)/l.cellH
+	if !(fx >= -1e-6 && fy >= -1e-6 && fx <= float64(l.nx)+1e-6 && fy <= float64(l.ny)+1e-6) {
+		return 0 // outside every region's bounds (or NaN)
+	}
+	cx, cy := min(max(int(fx), 0), l.nx-1), min(max(int(fy), 0), l.ny-1)
+	c := cy*l.nx + cx
+	for _, i := range l.cellList[l.cellStart[c]:l.cellStart[c+1]] {
+		if l.regions[i].contains(p) {
+			return int(i) + 1
 		}
-		return true
-	})
-	return best
+	}
+	return 0
 }
 
 // id returns the region id of a locate result.
@@ -96,6 +151,9 @@ func (l *locator) id(index int) int {
 }
 
 func (r *locRegion) contains(p orb.Point) bool {
+	if p[0] < r.bound.Min[0] || p[0] > r.bound.Max[0] || p[1] < r.bound.Min[1] || p[1] > r.bound.Max[1] {
+		return false
+	}
 	if !ringContains(r.rings[0], p) {
 		return false
 	}

@@ -1,11 +1,13 @@
 package regiongraph
 
 import (
+	"context"
 	"encoding/json"
 	"math"
 	"math/rand/v2"
 	"os"
 	"path/filepath"
+	"strings"
 	"testing"
 
 	"github.com/paulmach/orb"
@@ -133,5 +135,16 @@ func TestLocatorBordersAndHoles(t *testing.T) {
 		if in3 == in4 {
 			t.Fatalf("point %v on shared edge: in 3 %v, in 4 %v", pt, in3, in4)
 		}
+	}
+}
+
+func TestLocatorRejectsBadPartitions(t *testing.T) {
+	p := gridPartition(2, 1, 0, 0, 1)
+	p.Regions[1].ID = p.Regions[0].ID
+	if _, err := newLocator(p); err == nil || !strings.Contains(err.Error(), "used twice") {
+		t.Errorf("duplicate id: %v", err)
+	}
+	if _, err := Ingest(context.Background(), &partition.Partition{}, "", []Input{{Path: "x.csv"}}, DefaultOptions()); err == nil {
+		t.Error("ingest without regions succeeded")
 	}
 }

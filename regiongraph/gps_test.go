@@ -4,6 +4,7 @@ import (
 	"context"
 	"fmt"
 	"math"
+	"math/rand/v2"
 	"os"
 	"path/filepath"
 	"regexp"
@@ -292,6 +293,32 @@ func TestAndorraDriveGPX(t *testing.T) {
 		}
 		if len(holders) != 1 || holders[0] != end.id {
 			t.Errorf("point %v: located in %d, held by %v", end.pt, end.id, holders)
+		}
+	}
+
+	// The grid-accelerated lookup against a scan of all regions, on random
+	// points and on region vertices (border points).
+	rng := rand.New(rand.NewPCG(61, 62))
+	b := regions.Bound
+	var probes []orb.Point
+	for i := 0; i < 3000; i++ {
+		probes = append(probes, orb.Point{b.Min[0] + rng.Float64()*(b.Max[0]-b.Min[0]), b.Min[1] + rng.Float64()*(b.Max[1]-b.Min[1])})
+	}
+	for _, r := range regions.Regions {
+		for _, v := range r.Polygon[0] {
+			probes = append(probes, v)
+		}
+	}
+	for _, pt := range probes {
+		want := 0
+		for i := range loc.regions {
+			if loc.regions[i].contains(pt) {
+				want = i + 1
+				break
+			}
+		}
+		if got := loc.locate(pt); got != want {
+			t.Fatalf("point %v: located %d, scan %d", pt, got, want)
 		}
 	}
 

@@ -45,7 +45,7 @@ func Ingest(ctx context.Context, regions *partition.Partition, regionsSHA256 str
 	if err != nil {
 		return nil, err
 	}
-	files, err := expandInputs(inputs)
+	files, err := expandInputs(inputs, st)
 	if err != nil {
 		return nil, err
 	}
@@ -113,8 +113,13 @@ func Ingest(ctx context.Context, regions *partition.Partition, regionsSHA256 str
 		sources = append(sources, Source{Path: f.path, SHA256: sum, Rows: rowsRead() - before})
 	}
 
+	var regionsJSON bytes.Buffer
+	if err := regions.WriteGeoJSON(&regionsJSON); err != nil {
+		return nil, fmt.Errorf("regiongraph: keeping the regions in the store: %v", err)
+	}
 	edges, quality := finish(st, loc, tallies)
 	return &Store{
+		regionsGeoJSON: regionsJSON.Bytes(),
 		Meta: Meta{
 			RegionsSHA256: regionsSHA256,
 			TimeZone:      st.opts.TimeZone,
@@ -128,7 +133,7 @@ func Ingest(ctx context.Context, regions *partition.Partition, regionsSHA256 str
 
 // expandInputs resolves formats and expands GPX folders into their .gpx
 // files in name order.
-func expandInputs(inputs []Input) ([]inputFile, error) {
+func expandInputs(inputs []Input, st *settings) ([]inputFile, error) {
 	var files []inputFile
 	for _, in := range inputs {
 		fi, err := os.Stat(in.Path)
@@ -170,7 +175,7 @@ func expandInputs(inputs []Input) ([]inputFile, error) {
 			continue
 		}
 		if format == FormatAuto {
-			format, err = detectFormat(in.Path)
+			format, err = detectFormat(in.Path, st)
 			if err != nil {
 				return nil, err
 			}
@@ -195,7 +200,7 @@ func isParquet(path string) bool {
 }
 
 // detectFormat picks the format of a file given without one.
-func detectFormat(path string) (Format, error) {
+func detectFormat(path string, st *settings) (Format, error) {
 	if strings.EqualFold(filepath.Ext(path), ".gpx") {
 		return FormatGPX, nil
 	}
@@ -222,7 +227,7 @@ func detectFormat(path string) (Format, error) {
 		}
 		return false
 	}
-	if hasCol(ColVehicleID) && hasCol(ColTime) && !hasCol(ColStartTime) {
+	if hasCol(st.column(ColVehicleID)) && hasCol(st.column(ColTime)) && !hasCol(st.column(ColStartTime)) {
 		return FormatPoints, nil
 	}
 	return FormatTrips, nil

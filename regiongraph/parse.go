@@ -72,40 +72,54 @@ func parseFloat(b []byte) (float64, error) {
 }
 
 // zoneCache converts between instants and local civil time in one zone,
-// remembering the zone period (offset and its validity) of the last lookup.
-// It is not safe for concurrent use; each reader goroutine has its own.
+// remembering the two zone periods (offset and validity) used last: trips
+// that straddle a change, or unsorted rows on both sides of one, alternate
+// between two periods. It is not safe for concurrent use; each reader
+// goroutine has its own.
 type zoneCache struct {
-	loc        *time.Location
-	start, end int64 // period [start, end) in Unix seconds
+	loc     *time.Location
+	periods [2]zonePeriod // most recently used first
+}
+
+type zonePeriod struct {
+	start, end int64 // [start, end) in Unix seconds; empty when start > end
 	offset     int64 // seconds east of UTC
 }
 
 func newZoneCache(loc *time.Location) *zoneCache {
-	z := &zoneCache{loc: loc, start: 1, end: 0} // empty period: first use looks up
+	z := &zoneCache{loc: loc}
+	z.periods[0] = zonePeriod{start: 1, end: 0}
+	z.periods[1] = zonePeriod{start: 1, end: 0}
 	return z
 }
 
-func (z *zoneCache) refresh(unix int64) {
+// lookup makes the period holding unix the first one.
+func (z *zoneCache) lookup(unix int64) *zonePeriod {
+	if p := &z.periods[0]; unix >= p.start && unix < p.end {
+		return p
+	}
+	if p := z.periods[1]; unix >= p.start && unix < p.end {
+		z.periods[0], z.periods[1] = p, z.periods[0]
+		return &z.periods[0]
+	}
 	t := time.Unix(unix, 0).In(z.loc)
 	_, off := t.Zone()
-	z.offset = int64(off)
+	p := zonePeriod{start: math.MinInt64, end: math.MaxInt64, offset: int64(off)}
 	s, e := t.ZoneBounds()
-	z.start, z.end = math.MinInt64, math.MaxInt64
 	if !s.IsZero() {
-		z.start = s.Unix()
+		p.start = s.Unix()
 	}
 	if !e.IsZero() {
-		z.end = e.Unix()
+		p.end = e.Unix()
 	}
+	z.periods[1], z.periods[0] = z.periods[0], p
+	return &z.periods[0]
 }
 
 // local returns the local civil seconds (seconds since 1970-01-01 00:00 of
 // the local calendar) of a Unix time.
 func (z *zoneCache) local(unix int64) int64 {
-	if unix < z.start || unix >= z.end {
-		z.refresh(unix)
-	}
-	return unix + z.offset
+	return unix + z.lookup(unix).offset
 }
 
 // fromCivil returns the Unix time of a local civil time. Near a zone
@@ -113,16 +127,17 @@ func (z *zoneCache) local(unix int64) int64 {
 // time.Date, which resolves both cases deterministically.
 func (z *zoneCache) fromCivil(civil int64) int64 {
 	const margin = 2 * 86400
-	u := civil - z.offset
-	if u-margin >= z.start && u+margin < z.end {
-		return u
+	for i := range z.periods {
+		p := &z.periods[i]
+		if u := civil - p.offset; u-margin >= p.start && u+margin < p.end {
+			return u
+		}
 	}
 	days := floorDiv(civil, 86400)
 	y, m, d := civilFromDays(days)
 	sec := civil - days*86400
-	t := time.Date(y, time.Month(m), d, int(sec/3600), int(sec/60%60), int(sec%60), 0, z.loc)
-	u = t.Unix()
-	z.refresh(u)
+	u := time.Date(y, time.Month(m), d, int(sec/3600), int(sec/60%60), int(sec%60), 0, z.loc).Unix()
+	z.lookup(u)
 	return u
 }
 

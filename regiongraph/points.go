@@ -84,7 +84,9 @@ func ingestPointsCSV(ctx context.Context, st *settings, c *csvFile, t *tally, pr
 					if err != nil {
 						msg = fmt.Sprintf("%s: %v", r, err)
 					} else if r == rUnparseable {
-						msg = fmt.Sprintf("%s %s %s", r, col, strconv.Quote(string(fields[map[string]int{ColTime: it, ColLon: ilon, ColLat: ilat, ColOccupied: iocc}[col]])))
+						if i := m[col]; i >= 0 && i < len(fields) {
+							msg = fmt.Sprintf("%s %s %s", r, col, strconv.Quote(string(fields[i])))
+						}
 					}
 					fail.keep(line, msg)
 				}

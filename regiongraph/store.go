@@ -40,7 +40,7 @@ type Source struct {
 type Quality struct {
 	Read     int64
 	Used     int64
-	Rejected map[string]int64 // reason -> rows, reasons as in Reasons
+	Rejected map[string]int64 // reason -> rows, every reason of RejectReasons
 }
 
 // Meta is the store's provenance.
@@ -56,4 +56,8 @@ type Meta struct {
 type Store struct {
 	Meta  Meta
 	Edges []Edge
+
+	// regionsGeoJSON is the partition the store was built on, as written by
+	// partition.WriteGeoJSON; see Regions.
+	regionsGeoJSON []byte
 }

@@ -48,6 +48,23 @@ func TestStoreRoundTrip(t *testing.T) {
 	if !reflect.DeepEqual(s, back) {
 		t.Fatalf("round trip changed the store:\n%+v\n%+v", s.Meta, back.Meta)
 	}
+	// The store carries its regions.
+	regions, err := back.Regions()
+	if err != nil {
+		t.Fatal(err)
+	}
+	grid := gridPartition(gNX, gNY, gLon0, gLat0, gStep)
+	if len(regions.Regions) != len(grid.Regions) {
+		t.Fatalf("%d regions in the store, %d ingested", len(regions.Regions), len(grid.Regions))
+	}
+	for i, r := range regions.Regions {
+		if r.ID != grid.Regions[i].ID || !reflect.DeepEqual(r.Polygon, grid.Regions[i].Polygon) {
+			t.Fatalf("region %d: %+v, ingested %+v", i, r, grid.Regions[i])
+		}
+	}
+	if _, err := (&Store{}).Regions(); err == nil || !strings.Contains(err.Error(), "no regions") {
+		t.Errorf("store without regions: %v", err)
+	}
 	// Deterministic bytes: writing again gives the same file.
 	path2 := filepath.Join(t.TempDir(), "again.parquet")
 	if err := WriteFile(path2, back); err != nil {

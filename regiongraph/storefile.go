@@ -1,6 +1,7 @@
 package regiongraph
 
 import (
+	"bytes"
 	"cmp"
 	"encoding/json"
 	"errors"
@@ -13,6 +14,8 @@ import (
 	"strconv"
 
 	"github.com/parquet-go/parquet-go"
+
+	"narrows/partition"
 )
 
 // SchemaVersion is the version of the store's Parquet layout (SCHEMA.md).
@@ -26,6 +29,7 @@ const (
 	metaWindows       = "windows"
 	metaQuality       = "quality"
 	metaSources       = "sources"
+	metaRegionsJSON   = "regions_geojson"
 )
 
 // edgeRow is the Parquet row of an Edge; see SCHEMA.md.
@@ -102,6 +106,9 @@ func WriteFile(path string, s *Store) error {
 		parquet.KeyValueMetadata(metaSchemaVersion, strconv.Itoa(SchemaVersion)),
 		parquet.KeyValueMetadata(metaRegions, s.Meta.RegionsSHA256),
 		parquet.KeyValueMetadata(metaTimeZone, s.Meta.TimeZone),
+	}
+	if len(s.regionsGeoJSON) > 0 {
+		opts = append(opts, parquet.KeyValueMetadata(metaRegionsJSON, string(s.regionsGeoJSON)))
 	}
 	for _, m := range meta {
 		b, err := json.Marshal(m.v)
@@ -192,6 +199,9 @@ func ReadFile(path string) (*Store, error) {
 	s := &Store{}
 	s.Meta.RegionsSHA256, _ = pf.Lookup(metaRegions)
 	s.Meta.TimeZone, _ = pf.Lookup(metaTimeZone)
+	if text, ok := pf.Lookup(metaRegionsJSON); ok {
+		s.regionsGeoJSON = []byte(text)
+	}
 	var windows []windowJSON
 	var quality qualityJSON
 	var sources []sourceJSON
@@ -258,6 +268,20 @@ func compareEdges(a, b Edge) int {
 		return c
 	}
 	return cmp.Compare(a.To, b.To)
+}
+
+// Regions returns the regions the store was built on, kept in the store by
+// Ingest (and in the file by WriteFile) so that later steps need not be
+// given the regions file again.
+func (s *Store) Regions() (*partition.Partition, error) {
+	if len(s.regionsGeoJSON) == 0 {
+		return nil, errors.New("regiongraph: the store carries no regions; give the regions file it was built on")
+	}
+	p, err := partition.ReadGeoJSON(bytes.NewReader(s.regionsGeoJSON), "regions in the day-graph store")
+	if err != nil {
+		return nil, fmt.Errorf("regiongraph: %w", err)
+	}
+	return p, nil
 }
 
 // Days returns the local days that have at least one edge in the named
@@ -336,6 +360,9 @@ func Merge(stores ...*Store) (*Store, error) {
 			out.Meta.Quality.Rejected[r] += n
 		}
 		out.Meta.Sources = append(out.Meta.Sources, s.Meta.Sources...)
+		if len(out.regionsGeoJSON) == 0 {
+			out.regionsGeoJSON = s.regionsGeoJSON
+		}
 	}
 	slices.SortStableFunc(out.Edges, compareEdges)
 	return out, nil

@@ -30,8 +30,10 @@
 //
 // Every output is deterministic: the same Input gives byte-identical files.
 // The workbook's creation time is fixed (Input.Created, by default the day
-// after the last analysed day), and the order of its content-type entries,
-// which excelize leaves to map order, is sorted. Files are written to a
+// after the last analysed day), and the order of its parts and of its
+// content-type entries, which excelize v2.11.1 leaves to map order, is
+// sorted. The two large sheets (Daily, Speed v detour) go through
+// excelize's stream writer. Files are written to a
 // temporary name beside the target and renamed into place; WriteAll renders
 // all four files before writing any.
 package report

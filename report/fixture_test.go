@@ -194,7 +194,7 @@ func fxComparison() *patterns.Comparison {
 		{Finding: c.Before.Findings[3], Verdict: patterns.Eased, InBefore: true, InAfter: true, DaysBefore: 7, TotalBefore: 14, DaysAfter: 6, TotalAfter: 14,
 			FisherP: 1, FisherPAdjusted: 1, Speed: shift(suppressedSpeed, suppressedSpeed+1), Detour: shift(1.7, 1.5), Reason: "Significantly faster after."},
 		{Finding: c.Before.Findings[1], Verdict: patterns.Cleared, InBefore: true, DaysBefore: 9, TotalBefore: 14, TotalAfter: 14,
-			FisherP: 0.0006, FisherPAdjusted: 0.003, Speed: shift(4.5, 0), Detour: shift(2.1, 0), Focus: true, Reason: "No longer recurs."},
+			FisherP: 0.00006, FisherPAdjusted: 0.003, Speed: shift(4.5, 0), Detour: shift(2.1, 0), Focus: true, Reason: "No longer recurs."},
 	}
 	for _, a := range c.Assessments {
 		c.Counts[a.Verdict]++

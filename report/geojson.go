@@ -32,8 +32,8 @@ func WriteRegionsGeoJSON(path string, in Input) error {
 // WriteFindingsGeoJSON writes one LineString per finding edge, from the
 // origin region's representative point to the destination's, with
 // properties finding, rank, from, to, trips (median per day), speed_kmh,
-// detour, extra_km_per_day, extra_hours_per_day, share and, with a
-// comparison, verdict and focus. Values from fewer trips than the
+// detour, extra_km_per_day, extra_hours_per_day, share, colour (the map's
+// colour for the verdict) and, with a comparison, verdict and focus. Values from fewer trips than the
 // publication threshold are null and the feature has suppressed = true.
 func WriteFindingsGeoJSON(path string, in Input) error {
 	v, err := newView(in)
@@ -92,6 +92,7 @@ func (v *view) findingsGeoJSON() ([]byte, error) {
 			f.Properties["to"] = e.To
 			f.Properties["share"] = jsonNumber(it.Finding.Share, 4)
 			f.Properties["suppressed"] = hide
+			f.Properties["colour"] = lookOf(it.Verdict()).Hex // as on the report's map
 			if hide {
 				for _, k := range []string{"trips", "speed_kmh", "detour", "extra_km_per_day", "extra_hours_per_day"} {
 					f.Properties[k] = nil

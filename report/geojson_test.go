@@ -120,6 +120,9 @@ func TestFindingsGeoJSON(t *testing.T) {
 	if w == nil {
 		t.Fatalf("no feature 1>2/1>2 among %v", byID)
 	}
+	if w.Properties.MustString("colour") != "#D55E00" {
+		t.Errorf("1>2 colour = %v, want the worse colour", w.Properties["colour"])
+	}
 	if w.Properties.MustString("verdict") != "worse" || w.Properties.MustFloat64("speed_kmh") != 18 || w.Properties.MustFloat64("trips") != 40 || w.Properties.MustInt("rank") != 1 {
 		t.Errorf("1>2 properties = %v", w.Properties)
 	}

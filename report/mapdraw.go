@@ -65,12 +65,16 @@ func (v *view) projection() projection {
 	if !finite(scale) || scale <= 0 {
 		scale = 1
 	}
-	H := int(math.Ceil(h*scale)) + 2*mapPad
-	if H < 2*mapPad+1 || H > mapMaxHeight {
-		H = min(max(H, 2*mapPad+1), mapMaxHeight)
+	// Clamp in floating point: converting an out-of-range float to int is
+	// implementation-defined in Go.
+	size := func(extent float64, limit int) int {
+		px := math.Ceil(extent*scale) + 2*mapPad
+		if !(px >= 2*mapPad+1) { // also NaN
+			px = 2*mapPad + 1
+		}
+		return int(math.Min(px, float64(limit)))
 	}
-	W := min(max(int(math.Ceil(w*scale))+2*mapPad, 2*mapPad+1), mapWidth)
-	return projection{minLon: b.Min[0], maxLat: b.Max[1], kx: kx, scale: scale, W: W, H: H}
+	return projection{minLon: b.Min[0], maxLat: b.Max[1], kx: kx, scale: scale, W: size(w, mapWidth), H: size(h, mapMaxHeight)}
 }
 
 func (p projection) xy(pt orb.Point) (x, y float64) {
@@ -329,8 +333,10 @@ func fillPolygon(img *image.RGBA, rings [][][2]float64, c color.RGBA) {
 	if !finite(minY) || !finite(maxY) {
 		return
 	}
-	y0 := max(int(math.Floor(minY)), b.Min.Y)
-	y1 := min(int(math.Ceil(maxY)), b.Max.Y-1)
+	// Clamp before converting: float-to-int conversion of out-of-range
+	// values is implementation-defined.
+	y0 := clampInt(math.Floor(minY), b.Min.Y, b.Max.Y)
+	y1 := clampInt(math.Ceil(maxY), b.Min.Y-1, b.Max.Y-1)
 	var xs []float64
 	for y := y0; y <= y1; y++ {
 		yc := float64(y) + 0.5
@@ -347,13 +353,27 @@ func fillPolygon(img *image.RGBA, rings [][][2]float64, c color.RGBA) {
 		sort.Float64s(xs)
 		for i := 0; i+1 < len(xs); i += 2 {
 			// Pixels whose centre lies in [xs[i], xs[i+1]).
-			xa := max(int(math.Ceil(xs[i]-0.5)), b.Min.X)
-			xb := min(int(math.Ceil(xs[i+1]-0.5))-1, b.Max.X-1)
+			if !finite(xs[i]) || !finite(xs[i+1]) {
+				continue
+			}
+			xa := clampInt(math.Ceil(xs[i]-0.5), b.Min.X, b.Max.X)
+			xb := clampInt(math.Ceil(xs[i+1]-0.5)-1, b.Min.X-1, b.Max.X-1)
 			for x := xa; x <= xb; x++ {
 				img.SetRGBA(x, y, c)
 			}
 		}
 	}
+}
+
+// clampInt converts x to an int within [lo, hi]; NaN gives lo.
+func clampInt(x float64, lo, hi int) int {
+	if !(x >= float64(lo)) {
+		return lo
+	}
+	if x > float64(hi) {
+		return hi
+	}
+	return int(x)
 }
 
 // drawLine stamps discs of radius r along the segment.
@@ -372,7 +392,7 @@ func drawDashed(img *image.RGBA, x1, y1, x2, y2, r float64, dash []float64, c co
 	for _, d := range dash {
 		period += d
 	}
-	steps := min(int(math.Ceil(l*2))+1, 1<<16)
+	steps := int(math.Min(math.Ceil(l*2)+1, 1<<16))
 	for i := 0; i <= steps; i++ {
 		t := float64(i) / float64(steps)
 		if period > 0 {

@@ -108,6 +108,8 @@ func TestHeadline(t *testing.T) {
 		}
 	}
 	noneBefore.Comparison.Assessments = as
+	afterOnly := fxInput()
+	afterOnly.Comparison.Assessments[1].Verdict = patterns.Unchanged // the after-only 4>5+5>6
 	empty := fxScanInput()
 	empty.Scan.Findings = nil
 	tests := []struct {
@@ -116,6 +118,7 @@ func TestHeadline(t *testing.T) {
 		want string
 	}{
 		{"comparison", all, "1 of 4 weak links of the before period (2026-03-02 to 2026-03-15) cleared in the after period (2026-05-04 to 2026-05-17); 1 eased, 1 unchanged and 1 worse. 1 new weak link appeared; around the scheme 1 of 1 cleared and none eased."},
+		{"after-only without rise", afterOnly, "1 of 4 weak links of the before period (2026-03-02 to 2026-03-15) cleared in the after period (2026-05-04 to 2026-05-17); 1 eased, 1 unchanged and 1 worse. No new weak link appeared; 1 more recurs only after, without a significant rise; around the scheme 1 of 1 cleared and none eased."},
 		{"only new", noneBefore, "No weak link recurred in the before period (2026-03-02 to 2026-03-15). 1 new weak link appeared."},
 		// Costliest is rank 1, 1>2: 40 trips * 1.5 km = 60 km, 40 * 0.05 = 2 h.
 		{"scan", fxScanInput(), "4 weak links recurred on at least 20 % of the 14 analysed days (2026-03-02 to 2026-03-15). The costliest, regions 1>2, adds 60 km of travel and 2 vehicle-hours a day."},
@@ -323,5 +326,25 @@ func TestDegenerateInputs(t *testing.T) {
 			}
 			svgFacts(t, []byte(v.svg()))
 		})
+	}
+}
+
+func TestCautionsThreshold(t *testing.T) {
+	tests := []struct {
+		min  int
+		want string
+	}{
+		{0, `counts below 10 trips are shown as "<10"`},
+		{25, `counts below 25 trips are shown as "<25" and values computed from them as "n<25"`},
+	}
+	for _, tc := range tests {
+		if got := strings.Join(Cautions(tc.min), " "); !strings.Contains(got, tc.want) {
+			t.Errorf("Cautions(%d) = %q, want it to contain %q", tc.min, got, tc.want)
+		}
+	}
+	for _, key := range []string{"not all traffic", "qualified", "suppressed"} {
+		if !strings.Contains(Caution, key) {
+			t.Errorf("Caution lacks %q", key)
+		}
 	}
 }

@@ -143,38 +143,47 @@ func Headline(in Input) string {
 }
 
 func comparisonHeadline(c *patterns.Comparison) string {
-	count := map[patterns.Verdict]int{}
-	before, focusBefore := 0, 0
-	focus := map[patterns.Verdict]int{}
+	// The first sentence follows the weak links of the before period; the
+	// second those that recur only after, and the focus area.
+	before := map[patterns.Verdict]int{} // verdicts of findings of the before period
+	focus := map[patterns.Verdict]int{}  // the same within the focus area
+	nBefore, nFocus, nNew, nAfterOnly := 0, 0, 0, 0
 	for _, a := range c.Assessments {
-		count[a.Verdict]++
-		if a.InBefore {
-			before++
-		}
-		if a.Focus {
-			focus[a.Verdict]++
-			if a.InBefore {
-				focusBefore++
+		switch {
+		case a.InBefore:
+			nBefore++
+			before[a.Verdict]++
+			if a.Focus {
+				nFocus++
+				focus[a.Verdict]++
 			}
+		case a.Verdict == patterns.New:
+			nNew++
+		default:
+			nAfterOnly++
 		}
 	}
 	var b strings.Builder
-	if before == 0 {
+	if nBefore == 0 {
 		fmt.Fprintf(&b, "No weak link recurred in the before period (%s)", dayRange(c.Before))
 	} else {
 		fmt.Fprintf(&b, "%d of %d %s of the before period (%s) cleared in the after period (%s); %s eased, %s unchanged and %s worse",
-			count[patterns.Cleared], before, plural(before, "weak link", "weak links"), dayRange(c.Before), dayRange(c.After),
-			numberWord(count[patterns.Eased]), numberWord(count[patterns.Unchanged]), numberWord(count[patterns.Worse]))
+			before[patterns.Cleared], nBefore, plural(nBefore, "weak link", "weak links"), dayRange(c.Before), dayRange(c.After),
+			numberWord(before[patterns.Eased]), numberWord(before[patterns.Unchanged]), numberWord(before[patterns.Worse]))
 	}
 	b.WriteString(".")
 	var second []string
-	if n := count[patterns.New]; n > 0 {
-		second = append(second, fmt.Sprintf("%d new %s appeared", n, plural(n, "weak link", "weak links")))
-	} else if before > 0 {
+	switch {
+	case nNew > 0:
+		second = append(second, fmt.Sprintf("%d new %s appeared", nNew, plural(nNew, "weak link", "weak links")))
+	case nBefore > 0:
 		second = append(second, "no new weak link appeared")
 	}
-	if focusBefore > 0 {
-		second = append(second, fmt.Sprintf("around the scheme %d of %d cleared and %s eased", focus[patterns.Cleared], focusBefore, numberWord(focus[patterns.Eased])))
+	if nAfterOnly > 0 {
+		second = append(second, fmt.Sprintf("%d more %s only after, without a significant rise", nAfterOnly, plural(nAfterOnly, "recurs", "recur")))
+	}
+	if nFocus > 0 {
+		second = append(second, fmt.Sprintf("around the scheme %d of %d cleared and %s eased", focus[patterns.Cleared], nFocus, numberWord(focus[patterns.Eased])))
 	}
 	if len(second) > 0 {
 		s := strings.Join(second, "; ")

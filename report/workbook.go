@@ -61,8 +61,8 @@ func WriteWorkbook(path string, in Input) error {
 
 // styles holds the workbook's cell style ids.
 type styles struct {
-	title, bold, header, text, wrap, integer, dec1, dec2, dec3, p4, pct, supp int
-	verdict                                                                   map[patterns.Verdict]int
+	title, bold, header, text, wrap, integer, dec1, dec2, dec3, p4, sci, pct, supp int
+	verdict                                                                        map[patterns.Verdict]int
 }
 
 // cell is one value to write: a string (always a string cell), int,
@@ -290,6 +290,7 @@ func (b *book) newStyles() {
 		dec2:    mk(&excelize.Style{NumFmt: 2}),
 		dec3:    mk(custom("0.000")),
 		p4:      mk(custom("0.0000")),
+		sci:     mk(&excelize.Style{NumFmt: 11}), // 0.00E+00
 		pct:     mk(custom("0.0%")),
 		supp:    mk(&excelize.Style{NumFmt: 49, Font: &excelize.Font{Color: "#808080", Italic: true}, Alignment: &excelize.Alignment{Horizontal: "right"}}),
 		verdict: map[patterns.Verdict]int{},
@@ -312,6 +313,15 @@ func (b *book) num(x float64, style int) cell {
 	return cell{x, style}
 }
 func (b *book) count(n int) cell { return cell{n, b.st.integer} }
+
+// pval is a p-value cell: four decimals, or scientific notation below
+// 0.0001 so that very small p-values do not read as zero.
+func (b *book) pval(p float64) cell {
+	if finite(p) && p < 0.0001 {
+		return b.num(p, b.st.sci)
+	}
+	return b.num(p, b.st.p4)
+}
 
 // gated returns the value cell, or the suppression marker when the value
 // comes from fewer trips than the threshold.
@@ -626,11 +636,11 @@ func (b *book) comparison() {
 			b.count(a.Finding.Rank), b.str(a.Finding.ID), cell{string(a.Verdict), b.st.verdict[a.Verdict]}, cell{a.Focus, 0},
 			b.count(a.DaysBefore), b.count(a.TotalBefore), share(a.DaysBefore, a.TotalBefore),
 			b.count(a.DaysAfter), b.count(a.TotalAfter), share(a.DaysAfter, a.TotalAfter),
-			b.num(a.FisherP, b.st.p4), b.num(a.FisherPAdjusted, b.st.p4),
+			b.pval(a.FisherP), b.pval(a.FisherPAdjusted),
 			g(kmh(median(sp.Before)), b.st.dec1), g(kmh(median(sp.After)), b.st.dec1),
-			g(kmh(sp.Shift), b.st.dec1), g(kmh(sp.Low), b.st.dec1), g(kmh(sp.High), b.st.dec1), b.num(sp.P, b.st.p4), b.num(sp.PAdjusted, b.st.p4),
+			g(kmh(sp.Shift), b.st.dec1), g(kmh(sp.Low), b.st.dec1), g(kmh(sp.High), b.st.dec1), b.pval(sp.P), b.pval(sp.PAdjusted),
 			g(median(dt.Before), b.st.dec2), g(median(dt.After), b.st.dec2),
-			g(dt.Shift, b.st.dec2), g(dt.Low, b.st.dec2), g(dt.High, b.st.dec2), b.num(dt.P, b.st.p4), b.num(dt.PAdjusted, b.st.p4),
+			g(dt.Shift, b.st.dec2), g(dt.Low, b.st.dec2), g(dt.High, b.st.dec2), b.pval(dt.P), b.pval(dt.PAdjusted),
 			cell{a.Reason, b.st.text},
 		)
 	}

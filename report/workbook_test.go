@@ -12,6 +12,7 @@ import (
 	"strconv"
 	"strings"
 	"testing"
+	"unicode/utf8"
 
 	"github.com/xuri/excelize/v2"
 
@@ -117,7 +118,7 @@ func TestWorkbookValues(t *testing.T) {
 	cmp := rowsByKey(t, f, SheetComparison, "Weak link")
 	for id, cols := range map[string]map[string]string{
 		"1>2": {"Days recurring before": "10", "Days analysed before": "14", "Share after": "85.7%", "Fisher p": "0.6480", "Speed shift km/h": "-3.6", "Speed shift low": "-4.7", "Detour shift": "0.10", "Reason": "Significantly slower after."},
-		"8>9": {"Days recurring after": "0", "Fisher p adjusted": "0.0030", "Verdict": "cleared"},
+		"8>9": {"Days recurring after": "0", "Fisher p adjusted": "0.0030", "Fisher p": "6.00E-05", "Verdict": "cleared"},
 		"2>5": {"Speed shift km/h": "n<10", "Speed before km/h": "n<10", "Fisher p": "1.0000"},
 	} {
 		for col, v := range cols {
@@ -508,4 +509,58 @@ func TestWorkbookTextRoundTrip(t *testing.T) {
 			t.Errorf("Daily finding id %q became formula %q", tc.name, fm)
 		}
 	}
+}
+
+// xmlSafe is the oracle for how text reads back from the workbook: every
+// byte of invalid UTF-8 and every character XML cannot hold becomes U+FFFD.
+func xmlSafe(s string) string {
+	var b strings.Builder
+	for i, w := 0, 0; i < len(s); i += w {
+		r, size := utf8.DecodeRuneInString(s[i:])
+		w = size
+		if r == utf8.RuneError && size == 1 || !xmlChar(r) {
+			r = utf8.RuneError
+		}
+		b.WriteRune(r)
+	}
+	return b.String()
+}
+
+// FuzzWorkbookText writes an arbitrary road name and reads it back: the
+// workbook must be written, the cell must be a string equal to the text
+// (up to characters XML cannot hold) and never a formula.
+func FuzzWorkbookText(f *testing.F) {
+	for _, s := range []string{"Mill Lane", evilRoad, "_x0041_", "a\r\nb", "\x00", "\xff", " lead", "=1", "@A1", "-2+3", "+1"} {
+		f.Add(s)
+	}
+	f.Fuzz(func(t *testing.T, name string) {
+		if utf8.RuneCountInString(name) > 1000 {
+			t.Skip("long names are not the point here")
+		}
+		in := fxInput()
+		in.Regions.Regions[4].BorderRoads = []partition.BorderRoad{{Name: name, LengthKM: 1}}
+		v, err := newView(in)
+		if err != nil {
+			t.Fatal(err)
+		}
+		data, err := v.workbook()
+		if err != nil {
+			t.Fatal(err)
+		}
+		wb, err := excelize.OpenReader(bytes.NewReader(data))
+		if err != nil {
+			t.Fatal(err)
+		}
+		defer wb.Close()
+		got, err := wb.GetCellValue(SheetRegions, "D6")
+		if err != nil {
+			t.Fatal(err)
+		}
+		if want := xmlSafe(name); got != want {
+			t.Errorf("road %q read back as %q, want %q", name, got, want)
+		}
+		if fm, _ := wb.GetCellFormula(SheetRegions, "D6"); fm != "" {
+			t.Errorf("road %q became formula %q", name, fm)
+		}
+	})
 }

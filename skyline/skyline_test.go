@@ -88,6 +88,7 @@ func TestAgainstBruteForce(t *testing.T) {
 		{300, 6, 20},
 		{500, 1000, 10}, // mostly distinct: deep recursion, few ties
 		{700, 3, 10},    // tiny value sets: huge tie classes
+		{2000, 12, 3},   // deep recursion with ties on every axis
 	}
 	for _, c := range cases {
 		for seed := range c.seeds {

@@ -26,8 +26,8 @@ type odMatrix struct {
 	v    []float64 // m*m
 }
 
-// Assignment is the outcome of a congested assignment.
-type Assignment struct {
+// assignment is the outcome of a congested assignment.
+type assignment struct {
 	// Volume and Time are per link: peak-hour vehicles and seconds.
 	Volume, Time []float64
 	// RelativeGaps holds the relative gap after each MSA round from the
@@ -41,9 +41,9 @@ type Assignment struct {
 // loads on the current shortest paths, averaged with step 1/k, times from
 // BPR, for rounds rounds. Trees are computed per origin trip end, in fixed
 // chunks summed in chunk order (deterministic).
-func msa(ctx context.Context, nw *Network, od *odMatrix, rounds int) (*Assignment, error) {
+func msa(ctx context.Context, nw *Network, od *odMatrix, rounds int) (*assignment, error) {
 	L := len(nw.links)
-	a := &Assignment{Volume: make([]float64, L), Time: make([]float64, L)}
+	a := &assignment{Volume: make([]float64, L), Time: make([]float64, L)}
 	for i, l := range nw.links {
 		a.Time[i] = l.t0
 	}
@@ -94,7 +94,6 @@ func chunkRange(m, chunks, c int) (int, int) { return c * m / chunks, (c + 1) * 
 // allOrNothing loads od on the shortest paths under times and returns the
 // link loads and the total time on shortest paths.
 func allOrNothing(ctx context.Context, nw *Network, od *odMatrix, times []float64) ([]float64, float64, error) {
-	nw.setWeights(times)
 	chunks := chunksFor(od.m)
 	loads := make([][]float64, chunks)
 	sptts := make([]float64, chunks)
@@ -163,14 +162,18 @@ type routeTable struct {
 	m                int
 	length, t0, peak []float32
 	affected         [][]uint64 // per incident: bitset over origin*m+destination
+	parents          []int32    // if kept: per origin, the tree's parent link of every node
 }
 
 // routes builds the route table on the loaded network: one tree per origin
 // trip end under the congested times.
-func routes(ctx context.Context, nw *Network, od *odMatrix, a *Assignment, incidents []int32) (*routeTable, error) {
-	nw.setWeights(a.Time)
+func routes(ctx context.Context, nw *Network, od *odMatrix, a *assignment, incidents []int32, keepParents bool) (*routeTable, error) {
 	m := od.m
 	rt := &routeTable{m: m, length: make([]float32, m*m), t0: make([]float32, m*m), peak: make([]float32, m*m)}
+	n := len(nw.pos)
+	if keepParents {
+		rt.parents = make([]int32, m*n)
+	}
 	words := (m*m + 63) / 64
 	for range incidents {
 		rt.affected = append(rt.affected, make([]uint64, words))
@@ -179,7 +182,6 @@ func routes(ctx context.Context, nw *Network, od *odMatrix, a *Assignment, incid
 	// its own copy and the copies are OR-ed in chunk order afterwards.
 	chunks := chunksFor(m)
 	partial := make([][][]uint64, chunks)
-	n := len(nw.pos)
 	err := parallel(ctx, chunks, func(c int) {
 		tr := newTree(n)
 		length := make([]float64, n)
@@ -194,6 +196,9 @@ func routes(ctx context.Context, nw *Network, od *odMatrix, a *Assignment, incid
 		for s := lo; s < hi; s++ {
 			root := int(od.ends[s])
 			nw.shortestTree(root, a.Time, tr)
+			if keepParents {
+				copy(rt.parents[s*n:(s+1)*n], tr.parent)
+			}
 			length[root], t0[root], peak[root] = 0, 0, 0
 			for _, v := range tr.order {
 				li := tr.parent[v]

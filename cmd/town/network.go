@@ -9,6 +9,7 @@ import (
 	"strconv"
 	"sync"
 
+	"gonum.org/v1/gonum/graph"
 	"gonum.org/v1/gonum/graph/path"
 	"gonum.org/v1/gonum/graph/simple"
 )
@@ -16,12 +17,14 @@ import (
 // Network is a directed street network for routing: nodes with positions in
 // local metres and links with length, free-flow time and capacity.
 type Network struct {
-	pos     []xy
-	osm     []int64 // OSM node id per node (nil for GridNetwork)
-	links   []link
-	inStart []int32 // CSR of incoming links by head node
-	inLinks []int32
-	g       *simple.WeightedDirectedGraph
+	pos      []xy
+	osm      []int64 // OSM node id per node (nil for GridNetwork)
+	links    []link
+	inStart  []int32 // CSR of incoming links by head node
+	inLinks  []int32
+	outStart []int32 // CSR of outgoing links by tail node
+	outLinks []int32
+	nodes    []graph.Node // node i as a gonum node, boxed once
 }
 
 type link struct {
@@ -216,52 +219,140 @@ func (nw *Network) finish() {
 		nw.inLinks[fill[l.to]] = int32(li)
 		fill[l.to]++
 	}
-	nw.g = simple.NewWeightedDirectedGraph(0, math.Inf(1))
-	for i := 0; i < n; i++ {
-		nw.g.AddNode(simple.Node(i))
+	nw.outStart = make([]int32, n+1)
+	for _, l := range nw.links {
+		nw.outStart[l.from+1]++
 	}
-	nw.setWeights(nil)
+	for i := 0; i < n; i++ {
+		nw.outStart[i+1] += nw.outStart[i]
+	}
+	nw.outLinks = make([]int32, len(nw.links))
+	fill = append(fill[:0], nw.outStart[:n]...)
+	for li, l := range nw.links {
+		nw.outLinks[fill[l.from]] = int32(li)
+		fill[l.from]++
+	}
+	nw.nodes = make([]graph.Node, n)
+	for i := range nw.nodes {
+		nw.nodes[i] = simple.Node(i)
+	}
 }
 
-// setWeights sets the link weights for routing: times[l], or the free-flow
-// time when times is nil.
-func (nw *Network) setWeights(times []float64) {
-	for li, l := range nw.links {
-		w := l.t0
-		if times != nil {
-			w = times[li]
-		}
-		nw.g.SetWeightedEdge(simple.WeightedEdge{F: simple.Node(l.from), T: simple.Node(l.to), W: w})
+// weighted is the network as a gonum graph (traverse.Graph and
+// path.Weighted) under one set of link weights. It is read-only, so
+// several Dijkstra runs may share it.
+type weighted struct {
+	nw *Network
+	w  []float64
+}
+
+func (g weighted) From(id int64) graph.Nodes {
+	if id < 0 || id >= int64(len(g.nw.pos)) {
+		return graph.Empty
 	}
+	out := g.nw.outLinks[g.nw.outStart[id]:g.nw.outStart[id+1]]
+	if len(out) == 0 {
+		return graph.Empty
+	}
+	return &outNodes{nw: g.nw, out: out, pos: -1}
+}
+
+func (g weighted) Edge(uid, vid int64) graph.Edge {
+	if _, ok := g.Weight(uid, vid); !ok || uid == vid {
+		return nil
+	}
+	return simple.Edge{F: g.nw.nodes[uid], T: g.nw.nodes[vid]}
+}
+
+// Weight returns the weight of the link from x to y (0 for x == y).
+func (g weighted) Weight(xid, yid int64) (float64, bool) {
+	if xid < 0 || xid >= int64(len(g.nw.pos)) {
+		return 0, false
+	}
+	if xid == yid {
+		return 0, true
+	}
+	for _, li := range g.nw.outLinks[g.nw.outStart[xid]:g.nw.outStart[xid+1]] {
+		if int64(g.nw.links[li].to) == yid {
+			return g.w[li], true
+		}
+	}
+	return 0, false
+}
+
+// outNodes iterates over the heads of a node's outgoing links.
+type outNodes struct {
+	nw  *Network
+	out []int32
+	pos int
+}
+
+func (it *outNodes) Next() bool {
+	if it.pos+1 >= len(it.out) {
+		it.pos = len(it.out)
+		return false
+	}
+	it.pos++
+	return true
+}
+func (it *outNodes) Len() int { return max(len(it.out)-it.pos-1, 0) }
+func (it *outNodes) Reset()   { it.pos = -1 }
+func (it *outNodes) Node() graph.Node {
+	if it.pos < 0 || it.pos >= len(it.out) {
+		return nil
+	}
+	return it.nw.nodes[it.nw.links[it.out[it.pos]].to]
 }
 
 // Len returns the number of nodes and links.
 func (nw *Network) Len() (nodes, links int) { return len(nw.pos), len(nw.links) }
 
 // tree is one shortest-path tree: per node its distance (the weight), its
-// parent link (-1 for the root and unreachable nodes), and the nodes in
-// ascending distance order (reachable only).
+// parent link (-1 for the root and unreachable nodes), and the reachable
+// nodes in ascending (distance, index) order.
 type tree struct {
 	dist   []float64
 	parent []int32
 	order  []int32
+	heap   []heapItem // scratch for heapTree
 }
 
 func newTree(n int) *tree {
 	return &tree{dist: make([]float64, n), parent: make([]int32, n), order: make([]int32, 0, n)}
 }
 
-// shortestTree fills tr with the tree from root under the current weights
-// (weights[l] must be the weight set on the gonum graph). The distances come
-// from gonum's Dijkstra; the parent of each node is its incoming link with
-// the least dist(from)+weight, ties to the lower link index, which makes the
-// tree independent of map order.
+// gonumNodeLimit is the largest network routed with gonum's DijkstraFrom.
+// Its shortest-path tree keeps a map from node id to index and boxes every
+// node in the priority queue, about 1.7 MB of allocation per tree on the
+// city's 6,500 nodes, which makes a city assignment (8,000 trees) take
+// minutes. Larger networks use heapTree, the same algorithm on slices;
+// TestHeapTreeMatchesGonum checks that both give the same trees.
+const gonumNodeLimit = 2000
+
+// shortestTree fills tr with the tree from root under the link weights.
+// The parent of each node is its incoming link with the least
+// dist(from)+weight, ties to the lower link index, which makes the tree
+// independent of the order in which the search met the nodes.
 func (nw *Network) shortestTree(root int, weights []float64, tr *tree) {
-	sh := path.DijkstraFrom(simple.Node(root), nw.g)
 	n := len(nw.pos)
-	tr.order = tr.order[:0]
-	for v := 0; v < n; v++ {
-		tr.dist[v] = sh.WeightTo(int64(v))
+	if n > gonumNodeLimit {
+		nw.heapTree(root, weights, tr)
+	} else {
+		sh := path.DijkstraFrom(nw.nodes[root], weighted{nw, weights})
+		tr.order = tr.order[:0]
+		for v := 0; v < n; v++ {
+			tr.dist[v] = sh.WeightTo(int64(v))
+			if !math.IsInf(tr.dist[v], 1) {
+				tr.order = append(tr.order, int32(v))
+			}
+		}
+		sort.Slice(tr.order, func(a, b int) bool {
+			da, db := tr.dist[tr.order[a]], tr.dist[tr.order[b]]
+			if da != db {
+				return da < db
+			}
+			return tr.order[a] < tr.order[b]
+		})
 	}
 	for v := 0; v < n; v++ {
 		tr.parent[v] = -1
@@ -276,37 +367,87 @@ func (nw *Network) shortestTree(root int, weights []float64, tr *tree) {
 			}
 		}
 	}
-	for v := 0; v < n; v++ {
-		if !math.IsInf(tr.dist[v], 1) {
-			tr.order = append(tr.order, int32(v))
+}
+
+type heapItem struct {
+	dist float64
+	node int32
+}
+
+func (a heapItem) less(b heapItem) bool {
+	return a.dist < b.dist || (a.dist == b.dist && a.node < b.node)
+}
+
+// heapTree is Dijkstra's algorithm with a binary heap keyed by (distance,
+// node) and lazy deletion. Nodes settle in ascending (distance, node)
+// order: with positive weights every node of distance d is in the heap
+// with its final key before the first of them is popped.
+func (nw *Network) heapTree(root int, weights []float64, tr *tree) {
+	for v := range tr.dist {
+		tr.dist[v] = math.Inf(1)
+	}
+	tr.order = tr.order[:0]
+	h := tr.heap[:0]
+	tr.dist[root] = 0
+	h = append(h, heapItem{0, int32(root)})
+	for len(h) > 0 {
+		top := h[0]
+		last := len(h) - 1
+		h[0] = h[last]
+		h = h[:last]
+		for i := 0; ; { // sift down
+			l, r, m := 2*i+1, 2*i+2, i
+			if l < len(h) && h[l].less(h[m]) {
+				m = l
+			}
+			if r < len(h) && h[r].less(h[m]) {
+				m = r
+			}
+			if m == i {
+				break
+			}
+			h[i], h[m] = h[m], h[i]
+			i = m
+		}
+		u := top.node
+		if top.dist > tr.dist[u] {
+			continue // stale
+		}
+		tr.order = append(tr.order, u)
+		for _, li := range nw.outLinks[nw.outStart[u]:nw.outStart[u+1]] {
+			v := nw.links[li].to
+			if d := top.dist + weights[li]; d < tr.dist[v] {
+				tr.dist[v] = d
+				h = append(h, heapItem{d, v})
+				for i := len(h) - 1; i > 0; { // sift up
+					p := (i - 1) / 2
+					if !h[i].less(h[p]) {
+						break
+					}
+					h[i], h[p] = h[p], h[i]
+					i = p
+				}
+			}
 		}
 	}
-	sort.Slice(tr.order, func(a, b int) bool {
-		da, db := tr.dist[tr.order[a]], tr.dist[tr.order[b]]
-		if da != db {
-			return da < db
-		}
-		return tr.order[a] < tr.order[b]
-	})
+	tr.heap = h
 }
 
 // ShortestLengths returns, for each node in from, the length in metres of
 // the shortest-length path to every node (+Inf where unreachable). Node
 // indices of a GridNetwork are j*n+i.
 func (nw *Network) ShortestLengths(from ...int) ([][]float64, error) {
-	g := simple.NewWeightedDirectedGraph(0, math.Inf(1))
-	for i := range nw.pos {
-		g.AddNode(simple.Node(i))
+	lengths := make([]float64, len(nw.links))
+	for i, l := range nw.links {
+		lengths[i] = l.length
 	}
-	for _, l := range nw.links {
-		g.SetWeightedEdge(simple.WeightedEdge{F: simple.Node(l.from), T: simple.Node(l.to), W: l.length})
-	}
+	g := weighted{nw, lengths}
 	out := make([][]float64, len(from))
 	for k, f := range from {
 		if f < 0 || f >= len(nw.pos) {
 			return nil, fmt.Errorf("town: node %d out of range [0,%d)", f, len(nw.pos))
 		}
-		sh := path.DijkstraFrom(simple.Node(f), g)
+		sh := path.DijkstraFrom(nw.nodes[f], g)
 		row := make([]float64, len(nw.pos))
 		for v := range row {
 			row[v] = sh.WeightTo(int64(v))

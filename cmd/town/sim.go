@@ -2,15 +2,19 @@ package town
 
 import (
 	"bufio"
+	"cmp"
 	"context"
 	"errors"
 	"fmt"
 	"io"
 	"math"
 	"math/rand/v2"
+	"slices"
 	"sort"
 	"strconv"
 	"time"
+
+	"github.com/paulmach/orb"
 )
 
 // SimOptions controls Simulate. Zero Days, TripsPerDay, MSARounds,
@@ -45,6 +49,14 @@ type SimOptions struct {
 	// ends (the nodes nearest the zone's centre). 0: automatic, all the
 	// zone's nodes when the town has at most 1,000 such nodes, else 1.
 	ZoneNodes int
+	// TraceEvery gives every n-th trip (by trip id) a GPS trace, passed to
+	// OnTrace. 0: no traces.
+	TraceEvery int
+	// TraceInterval is the time between GPS fixes. Default 15 s.
+	TraceInterval time.Duration
+	// OnTrace receives the traces in trip order; an error from it stops
+	// the simulation. Write them with a PointsWriter or WriteGPX.
+	OnTrace func(Trace) error
 }
 
 // DefaultSimOptions returns the documented defaults.
@@ -136,10 +148,15 @@ func (t *Town) Simulate(ctx context.Context, opts SimOptions, trips io.Writer) (
 		rows := s.dayTrips(day, rs)
 		for i := range rows {
 			buf = s.appendRow(buf[:0], nextID, &rows[i], day)
-			nextID++
 			if _, err := bw.Write(buf); err != nil {
 				return st, fmt.Errorf("town: writing trips: %w", err)
 			}
+			if o.TraceEvery > 0 && nextID%int64(o.TraceEvery) == 0 {
+				if err := o.OnTrace(s.trace(rs, nextID, &rows[i], day)); err != nil {
+					return st, fmt.Errorf("town: trace of trip %d: %w", nextID, err)
+				}
+			}
+			nextID++
 		}
 		st.Trips += len(rows)
 		if day.incident {
@@ -184,6 +201,13 @@ func (t *Town) normalise(o SimOptions) (SimOptions, error) {
 		return o, fmt.Errorf("town: DayVariation = %v, want 0..1", o.DayVariation)
 	case o.ZoneNodes < 0:
 		return o, fmt.Errorf("town: ZoneNodes = %d, want >= 0", o.ZoneNodes)
+	case o.TraceEvery < 0 || (o.TraceEvery > 0 && o.OnTrace == nil):
+		return o, fmt.Errorf("town: TraceEvery = %d, want >= 0, and OnTrace set when positive", o.TraceEvery)
+	case o.TraceInterval < 0:
+		return o, fmt.Errorf("town: TraceInterval = %v, want > 0", o.TraceInterval)
+	}
+	if o.TraceInterval == 0 {
+		o.TraceInterval = 15 * time.Second
 	}
 	o.Start = o.Start.In(o.Location)
 	return o, nil
@@ -220,7 +244,7 @@ type netState struct {
 	totalC, totalO float64
 	peak           float64 // weekday traffic density at the peak minute (share of weekday trips per second)
 	od             *odMatrix
-	assign         *Assignment
+	assign         *assignment
 	table          *routeTable
 	incidents      map[int]int // day index -> incident number in table
 	extra          []float64   // per incident: peak-hour extra delay on the link, s
@@ -407,7 +431,7 @@ func (s *sim) build(ctx context.Context, withLink bool) (*netState, error) {
 		incLinks = append(incLinks, li)
 		rs.extra = append(rs.extra, BPR(l.t0, a.Volume[li], l.capacity*incidentCapacity)-a.Time[li])
 	}
-	rs.table, err = routes(ctx, nw, od, a, incLinks)
+	rs.table, err = routes(ctx, nw, od, a, incLinks, s.o.TraceEvery > 0)
 	if err != nil {
 		return nil, err
 	}
@@ -430,6 +454,7 @@ type trip struct {
 	o, d            orb2
 	distance        float64
 	seq             int
+	from, to        int32 // trip ends the route runs between
 }
 
 type orb2 struct{ lon, lat float64 }
@@ -476,6 +501,7 @@ func (s *sim) dayTrips(day dayPlan, rs *netState) []trip {
 		tb := rs.table
 		best, bestTime := -1, math.Inf(1)
 		var bestLen, bestDrive, bestAccess float64
+		var from, to int32
 		for _, a := range oEnds {
 			if a.end < 0 {
 				continue
@@ -511,6 +537,7 @@ func (s *sim) dayTrips(day dayPlan, rs *netState) []trip {
 				if tt := drive + access/accessSpeed; tt < bestTime {
 					best, bestTime = key, tt
 					bestLen, bestDrive, bestAccess = length, drive, access
+					from, to = a.end, b.end
 				}
 			}
 		}
@@ -518,14 +545,14 @@ func (s *sim) dayTrips(day dayPlan, rs *netState) []trip {
 			continue // unreachable (does not happen on a connected town)
 		}
 		dur := bestDrive*math.Exp(durationNoise*rng.NormFloat64()) + bestAccess/accessSpeed + 5 + 20*rng.Float64() // parking and starting
-		rows = append(rows, trip{start: sec, duration: dur, o: op, d: dp, distance: bestLen + bestAccess, seq: k})
+		rows = append(rows, trip{start: sec, duration: dur, o: op, d: dp, distance: bestLen + bestAccess, seq: k, from: from, to: to})
 	}
-	sort.SliceStable(rows, func(a, b int) bool {
-		ra, rb := math.Floor(rows[a].start), math.Floor(rows[b].start)
-		if ra != rb {
-			return ra < rb
+	// Rows by start second, then by draw (seq is unique).
+	slices.SortFunc(rows, func(a, b trip) int {
+		if c := cmp.Compare(math.Floor(a.start), math.Floor(b.start)); c != 0 {
+			return c
 		}
-		return rows[a].seq < rows[b].seq
+		return cmp.Compare(a.seq, b.seq)
 	})
 	return rows
 }
@@ -564,13 +591,13 @@ func (t *Town) tripEnd(rng *rand.Rand, z *zone, nw *Network) (orb2, [2]endChoice
 		f := 0.05 + 0.9*rng.Float64()
 		L := dist(a, b)
 		p := lerp(a, b, f)
+		off := (rng.Float64()*2 - 1) * setback
 		if L > 0 {
-			off := (rng.Float64()*2 - 1) * setback
 			p.X += -(b.Y - a.Y) / L * off
 			p.Y += (b.X - a.X) / L * off
 		}
-		out[0] = endChoice{end: z.ends[sg.k], access: f * L}
-		out[1] = endChoice{end: z.ends[sg.l], access: (1 - f) * L}
+		out[0] = endChoice{end: z.ends[sg.k], access: f*L + math.Abs(off)}
+		out[1] = endChoice{end: z.ends[sg.l], access: (1-f)*L + math.Abs(off)}
 		pt := t.proj.point(p)
 		return orb2{pt[0], pt[1]}, out
 	}
@@ -589,6 +616,31 @@ func (t *Town) tripEnd(rng *rand.Rand, z *zone, nw *Network) (orb2, [2]endChoice
 	out[0] = endChoice{end: z.ends[best], access: math.Abs(q.X-p.X) + math.Abs(q.Y-p.Y)}
 	pt := t.proj.point(p)
 	return orb2{pt[0], pt[1]}, out
+}
+
+// trace follows a trip's route through the network state's trees.
+func (s *sim) trace(rs *netState, id int64, tr *trip, day dayPlan) Trace {
+	nw, tb := rs.nw, rs.table
+	n := len(nw.pos)
+	root, v := rs.od.ends[tr.from], rs.od.ends[tr.to]
+	parents := tb.parents[int(tr.from)*n : (int(tr.from)+1)*n]
+	var nodes []int32
+	for v != root && v >= 0 {
+		nodes = append(nodes, v)
+		li := parents[v]
+		if li < 0 {
+			break
+		}
+		v = nw.links[li].from
+	}
+	nodes = append(nodes, root)
+	line := []orb.Point{{tr.o.lon, tr.o.lat}}
+	for k := len(nodes) - 1; k >= 0; k-- {
+		line = append(line, s.t.proj.point(nw.pos[nodes[k]]))
+	}
+	line = append(line, orb.Point{tr.d.lon, tr.d.lat})
+	start := day.midnight.Add(time.Duration(math.Floor(tr.start)) * time.Second)
+	return traceOf(id, line, start, math.Round(tr.duration), s.o.TraceInterval.Seconds())
 }
 
 func (s *sim) appendRow(b []byte, id int64, tr *trip, day dayPlan) []byte {

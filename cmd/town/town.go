@@ -14,10 +14,11 @@ type Size string
 
 const (
 	// SizeTown is the demo town: a 6 x 6 grid of arterial cells, about
-	// 5.4 km across, which partitions into about 50 regions.
+	// 6 km across, which partitions into about 50 regions (with the river
+	// and the railway as barriers).
 	SizeTown Size = "town"
-	// SizeCity is the benchmark city: a 38 x 38 grid of arterial cells,
-	// about 19 km across, which partitions into about 1,500 regions.
+	// SizeCity is the benchmark city: a 40 x 40 grid of arterial cells,
+	// about 20 km across, which partitions into about 1,450 regions.
 	SizeCity Size = "city"
 )
 
@@ -140,8 +141,8 @@ func layoutFor(s Size) (layout, error) {
 			riverRow: 3, riverGap: 300, railCol: 1, bridgeCols: []int{6, 15}, plantCol: 3, linkCol: 10,
 			lat0: 0.61, lon0: 0.83, population: 65000, beta: 1.0 / 1600, plantedHousing: 0.10, plantedJobs: 0.12}, nil
 	case SizeCity:
-		return layout{name: "Ostravel", nx: 38, ny: 38, k: 2, block: 250, margin: 500,
-			riverRow: 19, railCol: 12, bridgeCols: []int{8, 20, 34, 46, 56, 68}, plantCol: 14, linkCol: 29,
+		return layout{name: "Ostravel", nx: 40, ny: 40, k: 2, block: 250, margin: 500,
+			riverRow: 20, railCol: 12, bridgeCols: []int{8, 20, 34, 46, 56, 68}, plantCol: 14, linkCol: 29,
 			lat0: 0.52, lon0: 0.71, population: 1400000, beta: 1.0 / 3000, plantedHousing: 0.004, plantedJobs: 0.005}, nil
 	}
 	return layout{}, fmt.Errorf("town: unknown size %q (want %q or %q)", s, SizeTown, SizeCity)

@@ -7,6 +7,7 @@ import (
 	"errors"
 	"math"
 	"math/rand/v2"
+	"slices"
 	"strings"
 	"testing"
 	"time"
@@ -14,6 +15,7 @@ import (
 	"github.com/paulmach/orb"
 	"github.com/paulmach/osm"
 	"github.com/paulmach/osm/osmxml"
+	"gonum.org/v1/gonum/graph/path"
 )
 
 // TestGridDetourRatio checks the geometry of the routing: on a fine square
@@ -406,6 +408,47 @@ func TestScenario(t *testing.T) {
 		}
 		if _, off := p.Start.Zone(); off != 3600 {
 			t.Errorf("%s: start offset %d s, want +01:00", kind, off)
+		}
+	}
+}
+
+// TestHeapTreeMatchesGonum compares the package's heap Dijkstra with
+// gonum's DijkstraFrom (the oracle) on the town and the city under
+// perturbed weights: the same distances, and on the town (routed by gonum)
+// the same settle order.
+func TestHeapTreeMatchesGonum(t *testing.T) {
+	for _, size := range []Size{SizeTown, SizeCity} {
+		tw, err := Generate(Options{Size: size, Seed: 3})
+		if err != nil {
+			t.Fatal(err)
+		}
+		nw, err := tw.NetworkOf(true)
+		if err != nil {
+			t.Fatal(err)
+		}
+		rng := rand.New(rand.NewPCG(1, 2))
+		w := make([]float64, len(nw.links))
+		for i, l := range nw.links {
+			w[i] = l.t0 * (1 + rng.Float64())
+		}
+		n := len(nw.pos)
+		a, b := newTree(n), newTree(n)
+		for k := 0; k < 5; k++ {
+			root := rng.IntN(n)
+			nw.heapTree(root, w, a)
+			sh := path.DijkstraFrom(nw.nodes[root], weighted{nw, w})
+			for v := 0; v < n; v++ {
+				if a.dist[v] != sh.WeightTo(int64(v)) {
+					t.Fatalf("%s root %d node %d: heap %v, gonum %v", size, root, v, a.dist[v], sh.WeightTo(int64(v)))
+				}
+			}
+			if size == SizeTown { // the town is routed with gonum: compare whole trees
+				nw.shortestTree(root, w, b)
+				nw.heapTree(root, w, a)
+				if !slices.Equal(a.order, b.order) {
+					t.Fatalf("root %d: orders differ", root)
+				}
+			}
 		}
 	}
 }
