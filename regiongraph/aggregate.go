@@ -259,7 +259,7 @@ func finish(st *settings, loc *locator, tallies []*tally) ([]Edge, Quality) {
 	// The result holds at most one edge per record and per region pair in
 	// each bucket; sizing it up front avoids a second copy of the edges.
 	pairs := len(loc.regions) * (len(loc.regions) - 1)
-	var capacity int
+	var capacity, largest int
 	for _, k := range keys {
 		n := 0
 		for _, part := range parts[k] {
@@ -268,6 +268,7 @@ func finish(st *settings, loc *locator, tallies []*tally) ([]Edge, Quality) {
 			}
 		}
 		capacity += min(n, pairs)
+		largest = max(largest, n)
 	}
 	edges := make([]Edge, 0, capacity)
 
@@ -283,7 +284,13 @@ func finish(st *settings, loc *locator, tallies []*tally) ([]Edge, Quality) {
 	spare := make(chan []Edge, 2*workers) // buffers handed back once copied into edges
 	for w := 0; w < workers; w++ {
 		go func() {
-			var buf, tmp []record
+			// Sized once for the largest bucket: growing them would leave
+			// garbage while the records are still held.
+			buf := make([]record, 0, largest)
+			var tmp []record
+			if largest >= radixMin {
+				tmp = make([]record, largest)
+			}
 			var scratch []float32
 			for i := range next {
 				buf = buf[:0]
@@ -327,11 +334,14 @@ func finish(st *settings, loc *locator, tallies []*tally) ([]Edge, Quality) {
 	return edges, q
 }
 
+// radixMin is the least bucket size sorted by radix.
+const radixMin = 4096
+
 // sortByPair sorts records by region pair: a two-pass radix sort (destination
 // index, then origin index) for large buckets, pdqsort for small ones. tmp is
 // scratch space, returned for reuse.
 func sortByPair(recs, tmp []record, regions int) []record {
-	if len(recs) < 4096 {
+	if len(recs) < radixMin {
 		slices.SortFunc(recs, func(a, b record) int { return cmp.Compare(a.pair, b.pair) })
 		return tmp
 	}
