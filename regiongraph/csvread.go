@@ -14,7 +14,6 @@ import (
 	"os"
 	"path/filepath"
 	"strings"
-	"unicode/utf8"
 )
 
 const (
@@ -51,7 +50,7 @@ func openCSV(path string) (*csvFile, error) {
 		f.Close()
 		return nil, fmt.Errorf("regiongraph: %s: %w", path, err)
 	}
-	if err := checkText(path, head, len(head) < sniffSize); err != nil {
+	if err := checkText(path, head); err != nil {
 		f.Close()
 		return nil, err
 	}
@@ -82,23 +81,24 @@ func openCSV(path string) (*csvFile, error) {
 	return c, nil
 }
 
-// checkText rejects content that is not text: NUL bytes, or invalid UTF-8
-// (a truncated rune at the end of a partial sniff is allowed).
-func checkText(path string, head []byte, complete bool) error {
+// checkText rejects content that is not text: a NUL byte or more than one
+// control character in a hundred. Other encodings than UTF-8 (Latin-1 names
+// in an unused column, say) pass: the fields read are ASCII.
+func checkText(path string, head []byte) error {
 	if bytes.HasPrefix(head, []byte("PAR1")) {
 		return fmt.Errorf("regiongraph: %s: a Parquet file, not CSV text (read it as a trip table)", path)
 	}
 	if i := bytes.IndexByte(head, 0); i >= 0 {
 		return fmt.Errorf("regiongraph: %s: binary data at byte %d, not CSV text", path, i)
 	}
-	check := head
-	if !complete {
-		for k := 0; k < utf8.UTFMax && len(check) > 0 && !utf8.Valid(check); k++ {
-			check = check[:len(check)-1]
+	control := 0
+	for _, c := range head {
+		if c < 0x20 && c != '\t' && c != '\n' && c != '\r' || c == 0x7f {
+			control++
 		}
 	}
-	if !utf8.Valid(check) {
-		return fmt.Errorf("regiongraph: %s: not UTF-8 text (binary file?)", path)
+	if control > len(head)/100 {
+		return fmt.Errorf("regiongraph: %s: binary data (%d control bytes in the first %d), not CSV text", path, control, len(head))
 	}
 	return nil
 }

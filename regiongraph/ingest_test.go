@@ -430,7 +430,7 @@ func TestBadInputs(t *testing.T) {
 			func(o *Options) { *o = strict }, `trips.csv:3: unparseable start_time "2024-05-01 8:00"`},
 		{"binary file", FormatTrips, "\x1f\x8b\x08\x00\x00\x00\x00\x00\x00\x03trip_id", nil, "binary data"},
 		{"parquet magic as csv", FormatPoints, "PAR1\x00\x00", nil, "Parquet"},
-		{"not utf-8", FormatTrips, "trip_id,start_time\xff\xfe\n", nil, "not UTF-8"},
+		{"control bytes", FormatTrips, "trip_id,start_time\x01\x02\x03\n", nil, "binary data (3 control bytes"},
 		{"empty file", FormatTrips, "", nil, "empty file"},
 		{"unknown unit", FormatTrips, tripHeader + row, func(o *Options) { o.DistanceUnit = "furlong" }, `distance unit "furlong"`},
 		{"bad window", FormatTrips, tripHeader + row, func(o *Options) { o.Windows = []Window{{"a b", 0, 60}} }, "window name"},
@@ -455,6 +455,14 @@ func TestBadInputs(t *testing.T) {
 	if _, err := Ingest(context.Background(), p, "", []Input{{Path: "/nonexistent/trips.csv"}}, DefaultOptions()); err == nil ||
 		!strings.Contains(err.Error(), "/nonexistent/trips.csv") {
 		t.Errorf("missing file: %v", err)
+	}
+}
+
+func TestLatin1TextIsRead(t *testing.T) {
+	csv := tripHeader + "M\xfcller,2024-05-01T08:00:00Z,2024-05-01T08:10:00Z,13.010,52.010,13.030,52.010,2000\n"
+	s, err := ingestString(t, gridPartition(2, 1, 13.0, 52.0, 0.02), FormatTrips, csv, DefaultOptions())
+	if err != nil || s.Meta.Quality.Used != 1 {
+		t.Fatalf("Latin-1 trip id: %v", err)
 	}
 }
 

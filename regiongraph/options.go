@@ -250,7 +250,7 @@ func (w Window) check() error {
 	if w.StartMinute < 0 || w.StartMinute >= 24*60 || w.EndMinute < 0 || w.EndMinute > 24*60 {
 		return fmt.Errorf("times must be within 00:00-24:00")
 	}
-	if w.StartMinute == w.EndMinute || w.StartMinute == 0 && w.EndMinute == 0 {
+	if w.StartMinute == w.EndMinute {
 		return fmt.Errorf("window is empty (start equals end)")
 	}
 	return nil

@@ -81,22 +81,29 @@ func analyse(points []Point) analysis {
 	d.count = make([]int32, m)
 	d.best = make([]int32, m)
 	d.layer = make([]int32, m)
-	d.tmp = make([]int32, m)
+	d.tmp = make([]entry, m)
 	d.tree = make([]fenwickCell, m/2+2)
 	d.local = make([]int32, 2*m+64) // sizes along a path: m, ⌈m/2⌉, ...
 
-	bySpeed := make([]int32, m)
-	byDetour := make([]int32, m)
-	for i := range bySpeed {
-		bySpeed[i] = int32(i)
+	order = order[:m]
+	for i := range order {
+		order[i] = int32(i)
 		keys[i] = uint64(d.speed[i])
 	}
-	srt.sortIndices(bySpeed, keys[:m])
-	for i := range byDetour {
-		byDetour[i] = int32(i)
+	srt.sortIndices(order, keys[:m])
+	bySpeed := make([]entry, m)
+	for i, id := range order {
+		bySpeed[i] = entry{id, d.speed[id]}
+	}
+	for i := range order {
+		order[i] = int32(i)
 		keys[i] = uint64(d.detour[i])
 	}
-	srt.sortIndices(byDetour, keys[:m])
+	srt.sortIndices(order, keys[:m])
+	byDetour := make([]entry, m)
+	for i, id := range order {
+		byDetour[i] = entry{id, d.detour[id]}
+	}
 	d.solve(0, int32(m), bySpeed, byDetour, d.local)
 
 	for i := range n {
@@ -150,7 +157,7 @@ type divideConquer struct {
 	best          []int32 // highest layer among dominators found so far
 	layer         []int32 // final layer, set when the point is solved
 	tree          []fenwickCell
-	tmp           []int32
+	tmp           []entry
 	// local is a stack of the blocks' local detour ranks, about 2m long: a
 	// block's ranks stay in use while its left half is solved.
 	local []int32
@@ -162,22 +169,28 @@ type fenwickCell struct {
 	count, layer int32
 }
 
-// split partitions the ids in order stably into those below mid and the
-// rest.
-func (d *divideConquer) split(order []int32, mid int32, nl int) (left, right []int32) {
-	tmp := d.tmp[:len(order)]
+// entry is one unique point in a list ordered by one axis, with its rank
+// on that axis carried along so that sweeps read the list in order.
+type entry struct {
+	id, rank int32
+}
+
+// split partitions the entries stably into those with ids below mid (nl
+// of them) and the rest.
+func (d *divideConquer) split(list []entry, mid int32, nl int) (left, right []entry) {
+	tmp := d.tmp[:len(list)]
 	l, r := 0, nl
-	for _, id := range order {
-		if id < mid {
-			tmp[l] = id
+	for _, e := range list {
+		if e.id < mid {
+			tmp[l] = e
 			l++
 		} else {
-			tmp[r] = id
+			tmp[r] = e
 			r++
 		}
 	}
-	copy(order, tmp)
-	return order[:nl], order[nl:]
+	copy(list, tmp)
+	return list[:nl], list[nl:]
 }
 
 // solve finishes the unique points lo..hi-1. On entry every contribution
@@ -185,7 +198,7 @@ func (d *divideConquer) split(order []int32, mid int32, nl int) (left, right []i
 // lo..hi-1 by speed and by detour rank. On return the points are solved and
 // bySpeed is again ordered by speed rank (ties in any order); byDetour is
 // left in any order. local is free stack space for the local ranks.
-func (d *divideConquer) solve(lo, hi int32, bySpeed, byDetour, local []int32) {
+func (d *divideConquer) solve(lo, hi int32, bySpeed, byDetour []entry, local []int32) {
 	if hi-lo <= baseBlock {
 		for i := lo; i < hi; i++ {
 			for j := lo; j < i; j++ {
@@ -209,19 +222,19 @@ func (d *divideConquer) solve(lo, hi int32, bySpeed, byDetour, local []int32) {
 	// cross step spans the left half only and stays in cache.
 	ranks, rest := local[:hi-lo], local[hi-lo:]
 	k := int32(0)
-	for i, id := range leftD {
-		if i == 0 || d.detour[id] != d.detour[leftD[i-1]] {
+	for i, e := range leftD {
+		if i == 0 || e.rank != leftD[i-1].rank {
 			k++
 		}
-		ranks[id-lo] = k
+		ranks[e.id-lo] = k
 	}
 	p, last := 0, int32(0)
-	for _, id := range rightD {
-		for p < len(leftD) && d.detour[leftD[p]] <= d.detour[id] {
-			last = ranks[leftD[p]-lo]
+	for _, e := range rightD {
+		for p < len(leftD) && leftD[p].rank <= e.rank {
+			last = ranks[leftD[p].id-lo]
 			p++
 		}
-		ranks[id-lo] = last
+		ranks[e.id-lo] = last
 	}
 
 	d.solve(lo, mid, left, leftD, rest)
@@ -232,7 +245,7 @@ func (d *divideConquer) solve(lo, hi int32, bySpeed, byDetour, local []int32) {
 	tmp := d.tmp[:len(bySpeed)]
 	i, j, n := 0, 0, 0
 	for i < len(left) && j < len(right) {
-		if d.speed[right[j]] < d.speed[left[i]] {
+		if right[j].rank < left[i].rank {
 			tmp[n] = right[j]
 			j++
 		} else {
@@ -251,12 +264,12 @@ func (d *divideConquer) solve(lo, hi int32, bySpeed, byDetour, local []int32) {
 // a left point dominates a right one exactly when it is no worse on speed
 // and on detour. ranks holds the block's local detour ranks by id - lo,
 // from 1 to size for the left points.
-func (d *divideConquer) cross(lo int32, left, right, ranks []int32, size int) {
+func (d *divideConquer) cross(lo int32, left, right []entry, ranks []int32, size int) {
 	tree := d.tree[:size+1]
 	i := 0
 	for _, r := range right {
-		for i < len(left) && d.speed[left[i]] <= d.speed[r] {
-			p := left[i]
+		for i < len(left) && left[i].rank <= r.rank {
+			p := left[i].id
 			c, l := d.mult[p], d.layer[p]
 			for x := int(ranks[p-lo]); x < len(tree); x += x & -x {
 				tree[x].count += c
@@ -268,12 +281,12 @@ func (d *divideConquer) cross(lo int32, left, right, ranks []int32, size int) {
 			continue
 		}
 		var c, l int32
-		for x := int(ranks[r-lo]); x > 0; x -= x & -x {
+		for x := int(ranks[r.id-lo]); x > 0; x -= x & -x {
 			c += tree[x].count
 			l = max(l, tree[x].layer)
 		}
-		d.count[r] += c
-		d.best[r] = max(d.best[r], l)
+		d.count[r.id] += c
+		d.best[r.id] = max(d.best[r.id], l)
 	}
 	clear(tree)
 }

@@ -73,6 +73,8 @@ type District struct {
 
 // Town is a generated town.
 type Town struct {
+	// Name is the town's (invented) name; Size and Seed are the options it
+	// was generated with.
 	Name string
 	Size Size
 	Seed int64
@@ -95,7 +97,6 @@ type Town struct {
 	proj  projection
 	grid  []gridNode // index = (j*(NX+1) + i); present nodes only have id > 0
 	local []xy       // local metres of every node, index = id-1
-	extra []extraNode
 }
 
 // xy is a point in local metres (x east, y north).
@@ -105,12 +106,6 @@ type gridNode struct {
 	id     int64
 	gx, gy float64 // unperturbed grid position, metres
 	pos    xy      // perturbed position, metres
-}
-
-type extraNode struct {
-	pos  xy
-	tags []Tag
-	link bool // used only by the link (written only with the link)
 }
 
 // layout is the fixed plan of a size; the seed perturbs it, never changes it.
@@ -123,6 +118,7 @@ type layout struct {
 	riverRow   int     // cell row the river runs through
 	railCol    int     // cell column the railway runs through
 	bridgeCols []int   // grid columns (i) of the arterial bridges
+	oldBridges bool    // the arterial bridges are old single-lane ones
 	plantCol   int     // cell column of the planted districts
 	linkCol    int     // grid column (i) of the new link
 	lat0, lon0 float64 // south-west corner of the bounds
@@ -138,12 +134,12 @@ func layoutFor(s Size) (layout, error) {
 	switch s {
 	case SizeTown, "":
 		return layout{name: "Quillhaven", nx: 6, ny: 6, k: 3, block: 300, margin: 400,
-			riverRow: 3, riverGap: 300, railCol: 1, bridgeCols: []int{6, 15}, plantCol: 3, linkCol: 10,
+			riverRow: 3, riverGap: 300, oldBridges: true, railCol: 1, bridgeCols: []int{6, 15}, plantCol: 3, linkCol: 10,
 			lat0: 0.61, lon0: 0.83, population: 65000, beta: 1.0 / 1600, plantedHousing: 0.10, plantedJobs: 0.12}, nil
 	case SizeCity:
 		return layout{name: "Ostravel", nx: 40, ny: 40, k: 2, block: 250, margin: 500,
-			riverRow: 20, railCol: 12, bridgeCols: []int{8, 20, 34, 46, 56, 68}, plantCol: 14, linkCol: 29,
-			lat0: 0.52, lon0: 0.71, population: 1400000, beta: 1.0 / 3000, plantedHousing: 0.004, plantedJobs: 0.005}, nil
+			riverRow: 20, railCol: 12, bridgeCols: []int{8, 16, 24, 32, 40, 48, 56, 64, 72}, plantCol: 14, linkCol: 29,
+			lat0: 0.52, lon0: 0.71, population: 800000, beta: 1.0 / 2200, plantedHousing: 0.0012, plantedJobs: 0.0015}, nil
 	}
 	return layout{}, fmt.Errorf("town: unknown size %q (want %q or %q)", s, SizeTown, SizeCity)
 }
@@ -509,7 +505,9 @@ func (b *builder) streets() {
 			for k, c := range lay.bridgeCols {
 				if c == i {
 					s.bridgeOK = true
-					s.oldBridge = bridgeNames[k%len(bridgeNames)]
+					if lay.oldBridges {
+						s.oldBridge = bridgeNames[k%len(bridgeNames)]
+					}
 				}
 			}
 		} else if i%lay.k == 1 {
