@@ -44,6 +44,10 @@ func writeFileAtomic(path string, write func(w io.Writer) error) error {
 	if err := tmp.Close(); err != nil {
 		return fmt.Errorf("writing %s: %w", path, err)
 	}
+	// CreateTemp makes the file private; outputs are ordinary files.
+	if err := os.Chmod(name, 0o644); err != nil {
+		return err
+	}
 	return os.Rename(name, path)
 }
 

@@ -81,10 +81,14 @@ func runIngest(ctx context.Context, env *environment, args []string) error {
 	if err != nil {
 		return err
 	}
-	return ingest(ctx, env, regionsPath, trips, regiongraph.Format(inf.format), opts, merge, out)
+	return ingest(ctx, env, regionsPath, trips, nil, regiongraph.Format(inf.format), opts, merge, out)
 }
 
-func ingest(ctx context.Context, env *environment, regionsPath string, trips []string, format regiongraph.Format, opts regiongraph.Options, merge []string, out string) error {
+// ingest builds and writes the day-graph store. names, when given, maps a
+// trip file's path to the name recorded in the store (a study records its
+// files relative to the study file, so the store does not depend on where
+// the study folder sits).
+func ingest(ctx context.Context, env *environment, regionsPath string, trips []string, names map[string]string, format regiongraph.Format, opts regiongraph.Options, merge []string, out string) error {
 	start := time.Now()
 	regions, sum, err := readRegions(regionsPath)
 	if err != nil {
@@ -100,6 +104,11 @@ func ingest(ctx context.Context, env *environment, regionsPath string, trips []s
 	finish()
 	if err != nil {
 		return err
+	}
+	for i, src := range store.Meta.Sources {
+		if name, ok := names[src.Path]; ok {
+			store.Meta.Sources[i].Path = name
+		}
 	}
 	if len(merge) > 0 {
 		stores := []*regiongraph.Store{store}

@@ -14,7 +14,7 @@ import (
 // regionFlags are the options of the partition step, shared by regions and
 // the commands that build regions on the way.
 type regionFlags struct {
-	bbox, roads, barriers string
+	bbox, roads, barriers     string
 	snap, minArea, minCompact float64
 	exact                     bool
 }

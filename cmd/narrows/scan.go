@@ -168,13 +168,13 @@ func regionsFor(store *regiongraph.Store, path, storePath string) (*partition.Pa
 // writeFindingsJSON writes a scan's findings with their regions' names.
 func writeFindingsJSON(w io.Writer, scan *patterns.Scan, regions *partition.Partition) error {
 	type edgeOut struct {
-		From, To          int
+		From, To           int
 		FromRoads, ToRoads []string
-		TripsMedian       float64 `json:"trips_median"`
-		SpeedKMH          float64 `json:"speed_kmh_median"`
-		Detour            float64 `json:"detour_median"`
-		ExtraKMPerDay     float64 `json:"extra_vehicle_km_per_day"`
-		ExtraHoursPerDay  float64 `json:"extra_vehicle_hours_per_day"`
+		TripsMedian        float64 `json:"trips_median"`
+		SpeedKMH           float64 `json:"speed_kmh_median"`
+		Detour             float64 `json:"detour_median"`
+		ExtraKMPerDay      float64 `json:"extra_vehicle_km_per_day"`
+		ExtraHoursPerDay   float64 `json:"extra_vehicle_hours_per_day"`
 	}
 	type findingOut struct {
 		Rank             int       `json:"rank"`

@@ -194,12 +194,14 @@ func (s *study) run(ctx context.Context, env *environment, dir, file string) err
 		iopts.Columns = s.Trips.Columns
 	}
 	var trips []string
+	names := map[string]string{}
 	for _, t := range s.Trips.Files {
 		trips = append(trips, rel(t))
+		names[rel(t)] = t
 	}
 	graphs := filepath.Join(steps, "graphs.parquet")
 	fmt.Fprintln(env.stdout, "2/3 day graphs")
-	if err := ingest(ctx, env, regionsPath, trips, regiongraph.Format(inf.format), iopts, nil, graphs); err != nil {
+	if err := ingest(ctx, env, regionsPath, trips, names, regiongraph.Format(inf.format), iopts, nil, graphs); err != nil {
 		return err
 	}
 

@@ -175,8 +175,8 @@ func dist(a, b xy) float64 { return math.Hypot(a.X-b.X, a.Y-b.Y) }
 // metres apart, with two-way links of equal speed: the geometry check of
 // the routing (shortest paths on it are Manhattan paths).
 func GridNetwork(n int, spacing float64) (*Network, error) {
-	if n < 2 || spacing <= 0 || math.IsNaN(spacing) || math.IsInf(spacing, 0) {
-		return nil, fmt.Errorf("town: grid of %d x %d nodes at %v m: need n >= 2 and a positive finite spacing", n, n, spacing)
+	if n < 2 || n > 2000 || spacing <= 0 || math.IsNaN(spacing) || math.IsInf(spacing, 0) {
+		return nil, fmt.Errorf("town: grid of %d x %d nodes at %v m: need 2 <= n <= 2000 and a positive finite spacing", n, n, spacing)
 	}
 	nw := &Network{}
 	for j := 0; j < n; j++ {

@@ -122,6 +122,9 @@ const TripHeader = "trip_id,start_time,end_time,start_lon,start_lat,end_lon,end_
 // give the same bytes.
 func (t *Town) Simulate(ctx context.Context, opts SimOptions, trips io.Writer) (Stats, error) {
 	var st Stats
+	if t == nil || t.grid == nil {
+		return st, errors.New("town: Simulate needs a Town made by Generate")
+	}
 	o, err := t.normalise(opts)
 	if err != nil {
 		return st, err
@@ -191,8 +194,8 @@ func (t *Town) normalise(o SimOptions) (SimOptions, error) {
 	switch {
 	case o.Days < 0 || o.Days > 3660:
 		return o, fmt.Errorf("town: Days = %d, want 1..3660", o.Days)
-	case o.TripsPerDay < 0 || o.TripsPerDay > 50_000_000:
-		return o, fmt.Errorf("town: TripsPerDay = %d, want 1..50,000,000", o.TripsPerDay)
+	case o.TripsPerDay < 0 || o.TripsPerDay > 10_000_000:
+		return o, fmt.Errorf("town: TripsPerDay = %d, want 1..10,000,000", o.TripsPerDay)
 	case o.MSARounds < 0 || o.MSARounds > 100:
 		return o, fmt.Errorf("town: MSARounds = %d, want 1..100", o.MSARounds)
 	case !(o.IncidentRate >= 0 && o.IncidentRate <= 1):

@@ -87,7 +87,7 @@ func TestGridNetworkErrors(t *testing.T) {
 	for _, c := range []struct {
 		n       int
 		spacing float64
-	}{{1, 10}, {0, 10}, {5, 0}, {5, -1}, {5, math.NaN()}, {5, math.Inf(1)}} {
+	}{{1, 10}, {0, 10}, {2001, 10}, {5, 0}, {5, -1}, {5, math.NaN()}, {5, math.Inf(1)}} {
 		if _, err := GridNetwork(c.n, c.spacing); err == nil {
 			t.Errorf("GridNetwork(%d, %v): no error", c.n, c.spacing)
 		}
@@ -383,6 +383,9 @@ func TestSimulateOptionErrors(t *testing.T) {
 		if _, err := tw.Simulate(context.Background(), o, &bytes.Buffer{}); err == nil {
 			t.Errorf("%s: no error", c.name)
 		}
+	}
+	if _, err := (&Town{}).Simulate(context.Background(), DefaultSimOptions(), &bytes.Buffer{}); err == nil {
+		t.Error("zero Town: no error")
 	}
 	ctx, cancel := context.WithCancel(context.Background())
 	cancel()

@@ -1,0 +1,246 @@
+package main
+
+import (
+	"bytes"
+	"context"
+	"io/fs"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"github.com/paulmach/orb"
+	"github.com/paulmach/orb/planar"
+
+	"narrows/cmd/town"
+	"narrows/partition"
+	"narrows/patterns"
+	"narrows/regiongraph"
+)
+
+// The example study file in testdata is the one the demo writes: the test
+// keeps the two from drifting apart.
+func TestExampleStudyFileIsTheDemos(t *testing.T) {
+	tw, err := town.Generate(town.Options{Size: town.SizeTown, Seed: 1})
+	if err != nil {
+		t.Fatal(err)
+	}
+	plan, err := town.Scenario("link")
+	if err != nil {
+		t.Fatal(err)
+	}
+	want, err := os.ReadFile(filepath.Join("..", "..", "testdata", "study.toml"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got := studyTemplate(tw.Name, plan, focusOf(tw)); got != string(want) {
+		t.Errorf("testdata/study.toml differs from the demo's study file; the demo writes:\n%s", got)
+	}
+	if _, err := loadStudy(filepath.Join("..", "..", "testdata", "study.toml")); err != nil {
+		t.Errorf("the example study file does not load: %v", err)
+	}
+}
+
+// regionAt returns the id of the region containing pt, or 0.
+func regionAt(p *partition.Partition, pt orb.Point) int {
+	for _, r := range p.Regions {
+		if planar.PolygonContains(r.Polygon, pt) {
+			return r.ID
+		}
+	}
+	return 0
+}
+
+// studyOutputs runs a simulated study in dir and returns its regions and
+// day-graph store.
+func studyOutputs(t *testing.T, dir string) (*partition.Partition, *regiongraph.Store) {
+	t.Helper()
+	regions, _, err := readRegions(filepath.Join(dir, "out", "steps", "partition.geojson"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	store, err := regiongraph.ReadFile(filepath.Join(dir, "out", "steps", "graphs.parquet"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	return regions, store
+}
+
+// studyPeriods returns the scan options of a study file's two periods.
+func studyPeriods(t *testing.T, path string) (before, after patterns.ScanOptions) {
+	t.Helper()
+	s, err := loadStudy(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	before, after = patterns.DefaultScanOptions(), patterns.DefaultScanOptions()
+	for _, o := range []*patterns.ScanOptions{&before, &after} {
+		o.Days = patterns.DaySelector(s.Scan.Days)
+		o.Skyline.MinTrips = *s.Scan.MinTrips
+		o.Support = *s.Scan.Support
+	}
+	if before.From, before.To, err = parsePeriod(s.Compare.Before); err != nil {
+		t.Fatal(err)
+	}
+	if after.From, after.To, err = parsePeriod(s.Compare.After); err != nil {
+		t.Fatal(err)
+	}
+	return before, after
+}
+
+func hasEdge(f patterns.Finding, a, b int) bool {
+	for _, e := range f.Edges {
+		if (e.From == a && e.To == b) || (e.From == b && e.To == a) {
+			return true
+		}
+	}
+	return false
+}
+
+// The planted weakness of the demo town is found before the new bridge
+// opens, and the bridge clears or eases it.
+func TestDemoFindsThePlantedWeaknessAndTheFixWorks(t *testing.T) {
+	if testing.Short() {
+		t.Skip("end-to-end demo")
+	}
+	dir := t.TempDir()
+	code, stdout, stderr := runCLI(t, "demo", "--dir", dir)
+	if code != exitOK {
+		t.Fatalf("demo: exit %d\n%s\n%s", code, stdout, stderr)
+	}
+	for _, name := range []string{"report.xlsx", "report.html", "regions.geojson", "findings.geojson"} {
+		if !strings.Contains(stdout, filepath.Join(dir, "out", name)) {
+			t.Errorf("demo does not say where %s is:\n%s", name, stdout)
+		}
+		if _, err := os.Stat(filepath.Join(dir, "out", name)); err != nil {
+			t.Error(err)
+		}
+	}
+	regions, store := studyOutputs(t, dir)
+	tw, err := town.Generate(town.Options{Size: town.SizeTown, Seed: 1})
+	if err != nil {
+		t.Fatal(err)
+	}
+	housing, jobs := regionAt(regions, tw.Housing.Centre), regionAt(regions, tw.Jobs.Centre)
+	if housing == 0 || jobs == 0 || housing == jobs {
+		t.Fatalf("planted districts in regions %d and %d, want two distinct regions", housing, jobs)
+	}
+	before, after := studyPeriods(t, filepath.Join(dir, "study.toml"))
+	ctx := context.Background()
+	scan, err := patterns.ScanStore(ctx, store, before)
+	if err != nil {
+		t.Fatal(err)
+	}
+	// Among the top findings before: within the first three ranks.
+	top := -1
+	for i, f := range scan.Findings {
+		if hasEdge(f, housing, jobs) {
+			top = i
+			break
+		}
+	}
+	if top < 0 || top >= 3 {
+		t.Fatalf("the planted pair %d-%d is not among the top 3 findings before (first at index %d of %d)", housing, jobs, top, len(scan.Findings))
+	}
+	cmp, err := patterns.Compare(ctx, store, regions, before, after, patterns.DefaultCompareOptions())
+	if err != nil {
+		t.Fatal(err)
+	}
+	checked := 0
+	for _, a := range cmp.Assessments {
+		if !a.InBefore || !hasEdge(a.Finding, housing, jobs) {
+			continue
+		}
+		checked++
+		if a.Verdict != patterns.Cleared && a.Verdict != patterns.Eased {
+			t.Errorf("finding %s with the planted pair: verdict %s, want cleared or eased (%s)", a.Finding.ID, a.Verdict, a.Reason)
+		}
+		if a.Detour.Shift >= 0 {
+			t.Errorf("finding %s: detour shift %+.2f after the bridge opened, want a fall", a.Finding.ID, a.Detour.Shift)
+		}
+	}
+	if checked == 0 {
+		t.Error("no before finding holds the planted pair")
+	}
+}
+
+// With nothing changed between the periods, no finding is cleared and none
+// is worse.
+func TestControlScenarioHasNoClearedOrWorse(t *testing.T) {
+	if testing.Short() {
+		t.Skip("end-to-end control study")
+	}
+	dir := t.TempDir()
+	if code, stdout, stderr := runCLI(t, "simulate", "--scenario", "control", "--out", dir); code != exitOK {
+		t.Fatalf("simulate: exit %d\n%s\n%s", code, stdout, stderr)
+	}
+	study := filepath.Join(dir, "study.toml")
+	if code, stdout, stderr := runCLI(t, "run", study); code != exitOK {
+		t.Fatalf("run: exit %d\n%s\n%s", code, stdout, stderr)
+	}
+	regions, store := studyOutputs(t, dir)
+	before, after := studyPeriods(t, study)
+	cmp, err := patterns.Compare(context.Background(), store, regions, before, after, patterns.DefaultCompareOptions())
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(cmp.Before.Findings) == 0 {
+		t.Fatal("the control has no findings before: nothing was tested")
+	}
+	for _, a := range cmp.Assessments {
+		if a.Verdict == patterns.Cleared || a.Verdict == patterns.Worse {
+			t.Errorf("control: finding %s is %s: %s", a.Finding.ID, a.Verdict, a.Reason)
+		}
+	}
+}
+
+// Same seed, same bytes: two demo runs give identical files.
+func TestDemoIsDeterministic(t *testing.T) {
+	if testing.Short() {
+		t.Skip("two end-to-end demo runs")
+	}
+	dirs := []string{t.TempDir(), t.TempDir()}
+	for _, d := range dirs {
+		if code, stdout, stderr := runCLI(t, "demo", "--dir", d); code != exitOK {
+			t.Fatalf("demo: exit %d\n%s\n%s", code, stdout, stderr)
+		}
+	}
+	files := 0
+	err := filepath.WalkDir(dirs[0], func(path string, d fs.DirEntry, err error) error {
+		if err != nil || d.IsDir() {
+			return err
+		}
+		rel, _ := filepath.Rel(dirs[0], path)
+		a, err := os.ReadFile(path)
+		if err != nil {
+			return err
+		}
+		b, err := os.ReadFile(filepath.Join(dirs[1], rel))
+		if err != nil {
+			return err
+		}
+		files++
+		if !bytes.Equal(a, b) {
+			t.Errorf("%s differs between two demo runs with the same seed", rel)
+		}
+		return nil
+	})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if files < 9 {
+		t.Errorf("compared only %d files", files)
+	}
+}
+
+// BenchmarkDemo times the demo end to end (goal: under 30 s).
+func BenchmarkDemo(b *testing.B) {
+	for b.Loop() {
+		dir := b.TempDir()
+		var out bytes.Buffer
+		env := &environment{stdout: &out, stderr: &out}
+		if code := dispatch(context.Background(), env, []string{"demo", "--dir", dir}); code != exitOK {
+			b.Fatalf("demo: exit %d\n%s", code, out.String())
+		}
+	}
+}
