@@ -166,7 +166,7 @@ func fromExtract(ctx context.Context, ex *extract, o Options) (*Partition, error
 	p.Stats.Vertices, p.Stats.Edges, p.Stats.Components, p.Stats.Faces = fs.vertices, fs.edges, fs.components, fs.bounded
 	p.Stats.DanglesDropped, p.Stats.CutEdgesDropped = fs.dangles, fs.cutEdges
 	if !o.Exact {
-		group, merged := mergeSlivers(arr, fs, o.MinAreaKM2*1e6, o.MinCompactness)
+		group, merged := mergeSlivers(arr, fs, o.MinAreaKM2*1e6, o.MinCompactness, o.MaxSliverWidthMetres)
 		p.Stats.SliversMerged = merged
 		if merged > 0 {
 			arr = dissolve(arr, fs, group)

@@ -149,12 +149,13 @@ func (h *distHeap) Pop() any {
 	return it
 }
 
-// mergeSlivers merges faces smaller than minArea (m²) or less compact
-// than minPP (Polsby-Popper 4πA/P²) into the neighbour across their
-// longest shared border, smallest first, until every group passes or has
-// no neighbour. It returns each face's group (the id of a face in it) and
-// the number of merges.
-func mergeSlivers(a *arrangement, fs *faceSet, minArea, minPP float64) ([]int32, int) {
+// mergeSlivers merges faces smaller than minArea (m²), or less compact
+// than minPP (Polsby-Popper 4πA/P²) while narrower than maxWidth metres
+// (mean width 2A/P; maxWidth <= 0: any width), into the neighbour across
+// their longest shared border, smallest first, until every group passes or
+// has no neighbour. It returns each face's group (the id of a face in it)
+// and the number of merges.
+func mergeSlivers(a *arrangement, fs *faceSet, minArea, minPP, maxWidth float64) ([]int32, int) {
 	n := len(fs.faces)
 	area := make([]float64, n)
 	perim := make([]float64, n)
@@ -173,7 +174,12 @@ func mergeSlivers(a *arrangement, fs *faceSet, minArea, minPP float64) ([]int32,
 		adj[r][l] += d
 	}
 	fails := func(f int32) bool {
-		return area[f] < minArea || 4*math.Pi*area[f]/(perim[f]*perim[f]) < minPP
+		if area[f] < minArea {
+			return true
+		}
+		thin := 4*math.Pi*area[f]/(perim[f]*perim[f]) < minPP
+		narrow := maxWidth <= 0 || 2*area[f]/perim[f] < maxWidth
+		return thin && narrow
 	}
 	parent := make([]int32, n)
 	h := make(areaHeap, 0, n)

@@ -53,13 +53,15 @@
 //     is joined to the nearest point on it, unless the two are already
 //     linked nearby along the network;
 //   - merges slivers: a face smaller than Options.MinAreaKM2, or thinner
-//     than Options.MinCompactness by the Polsby-Popper measure 4πA/P², is
+//     than Options.MinCompactness by the Polsby-Popper measure 4πA/P² while
+//     narrower than Options.MaxSliverWidthMetres (mean width 2A/P), is
 //     merged into the neighbour across its longest shared border, smallest
 //     first, until none is left (a face without neighbours, such as the
 //     only face of the study area, stays). Thin faces are merged whatever
-//     their size:
-//     the strip between the two carriageways of a dual road can run the
-//     length of the study area and pass any area floor.
+//     their area: the strip between the two carriageways of a dual road can
+//     run the length of the study area and pass any area floor. The width
+//     limit keeps wide elongated faces (the ring outside a ring road) from
+//     counting as slivers and cascading merges through whole districts.
 //
 // Regions are numbered from 1 by representative point, north to south,
 // then west to east. The representative point is the middle of the widest

@@ -111,8 +111,9 @@ func TestExtracts(t *testing.T) {
 					if r.AreaKM2 < o.MinAreaKM2 {
 						t.Errorf("region %d: %.4f km², below the minimum %.2f", r.ID, r.AreaKM2, o.MinAreaKM2)
 					}
-					if pp := polsbyPopper(r); pp < o.MinCompactness {
-						t.Errorf("region %d: Polsby-Popper %.3f, below the floor %.2f (a sliver)", r.ID, pp, o.MinCompactness)
+					if pp, width := polsbyPopper(r), meanWidthMetres(r); pp < o.MinCompactness && width < o.MaxSliverWidthMetres {
+						t.Errorf("region %d: Polsby-Popper %.3f below the floor %.2f and mean width %.0f m under %.0f m (a sliver)",
+							r.ID, pp, o.MinCompactness, width, o.MaxSliverWidthMetres)
 					}
 				}
 				if len(p.Regions) >= p.Stats.Faces {
@@ -124,6 +125,10 @@ func TestExtracts(t *testing.T) {
 		})
 	}
 }
+
+// meanWidthMetres is 2A/P, the width of a strip of the same area and
+// perimeter.
+func meanWidthMetres(r Region) float64 { return 2 * r.AreaKM2 / r.PerimeterKM * 1000 }
 
 func polsbyPopper(r Region) float64 {
 	return 4 * math.Pi * r.AreaKM2 / (r.PerimeterKM * r.PerimeterKM)

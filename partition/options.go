@@ -49,6 +49,16 @@ type Options struct {
 	// parallel motorways (0.13) and keeps the block-wide strips between
 	// one-way street pairs (0.19 and more).
 	MinCompactness float64
+	// MaxSliverWidthMetres limits the compactness rule to narrow faces:
+	// a face counts as thin only when it fails MinCompactness and its
+	// mean width 2A/P is under this many metres. Default 100 m: wider than
+	// the strip between the carriageways of a dual road or two parallel
+	// motorways (tens of metres), narrower than a city block. Without it,
+	// a wide but elongated face (the ring between an outer ring road and
+	// the edge of the study area) counts as a sliver, and merging it into
+	// a neighbour leaves an elongated face again, so the merging cascades
+	// through whole districts. 0 means no limit.
+	MaxSliverWidthMetres float64
 	// Exact turns all cleaning off: the regions are the plain faces of the
 	// noded linework plus the study-area rectangle (dangles and cut edges
 	// dropped), as a polygonizer would give.
@@ -65,6 +75,8 @@ func DefaultOptions() Options {
 		SnapMetres:     20,
 		MinAreaKM2:     0.05,
 		MinCompactness: 0.15,
+
+		MaxSliverWidthMetres: 100,
 	}
 }
 
@@ -100,7 +112,7 @@ func (o *Options) validate() error {
 	for _, v := range []struct {
 		name string
 		x    float64
-	}{{"snap distance", o.SnapMetres}, {"minimum area", o.MinAreaKM2}, {"minimum compactness", o.MinCompactness}} {
+	}{{"snap distance", o.SnapMetres}, {"minimum area", o.MinAreaKM2}, {"minimum compactness", o.MinCompactness}, {"sliver width", o.MaxSliverWidthMetres}} {
 		if math.IsNaN(v.x) || math.IsInf(v.x, 0) || v.x < 0 {
 			return fmt.Errorf("%s %v must be a non-negative number", v.name, v.x)
 		}

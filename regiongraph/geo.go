@@ -47,6 +47,7 @@ type locator struct {
 	nx, ny       int
 	cellStart    []int32 // candidates of cell c: cellList[cellStart[c]:cellStart[c+1]]
 	cellList     []int32 // region indexes, ascending
+	cellRegion   []int32 // region index holding all of cell c (no border inside), or -1
 }
 
 type locRegion struct {
@@ -88,9 +89,10 @@ func newLocator(p *partition.Partition) (*locator, error) {
 	if len(l.regions) == 0 {
 		return l, nil
 	}
-	// About four cells per region, in the shape of the study area.
+	// About sixteen cells per region, in the shape of the study area: most
+	// points then fall in a cell that no border crosses.
 	w, h := all.Max[0]-all.Min[0], all.Max[1]-all.Min[1]
-	cells := float64(4 * len(l.regions))
+	cells := float64(16 * len(l.regions))
 	side := math.Sqrt(w * h / cells)
 	if !(side > 0) {
 		side = math.Max(w, h) + 1e-9
@@ -119,7 +121,56 @@ func newLocator(p *partition.Partition) (*locator, error) {
 		}
 	}
 	l.cellStart = append(l.cellStart, int32(len(l.cellList)))
+	l.markInteriorCells(pad)
 	return l, nil
+}
+
+// markInteriorCells finds the cells that lie wholly inside one region: no
+// edge of a candidate's rings comes near the cell (each edge's padded bounds
+// mark the cells they cover), and the cell's centre is inside the candidate.
+// Candidates are tried in id order, and a bordered one stops the search, so
+// the lowest-id rule holds when regions overlap.
+func (l *locator) markInteriorCells(pad float64) {
+	bordered := make([]bool, len(l.cellList))
+	cellOf := func(x, y float64) (int, int) {
+		cx := int(math.Floor((x - l.minX) / l.cellW))
+		cy := int(math.Floor((y - l.minY) / l.cellH))
+		return min(max(cx, 0), l.nx-1), min(max(cy, 0), l.ny-1)
+	}
+	for ri := range l.regions {
+		for _, ring := range l.regions[ri].rings {
+			for k := 1; k < len(ring); k++ {
+				a, b := ring[k-1], ring[k]
+				x0, y0 := cellOf(math.Min(a[0], b[0])-pad, math.Min(a[1], b[1])-pad)
+				x1, y1 := cellOf(math.Max(a[0], b[0])+pad, math.Max(a[1], b[1])+pad)
+				for cy := y0; cy <= y1; cy++ {
+					for cx := x0; cx <= x1; cx++ {
+						c := cy*l.nx + cx
+						for pos := l.cellStart[c]; pos < l.cellStart[c+1]; pos++ {
+							if l.cellList[pos] == int32(ri) {
+								bordered[pos] = true
+								break
+							}
+						}
+					}
+				}
+			}
+		}
+	}
+	l.cellRegion = make([]int32, l.nx*l.ny)
+	for c := range l.cellRegion {
+		l.cellRegion[c] = -1
+		centre := orb.Point{l.minX + (float64(c%l.nx)+0.5)*l.cellW, l.minY + (float64(c/l.nx)+0.5)*l.cellH}
+		for pos := l.cellStart[c]; pos < l.cellStart[c+1]; pos++ {
+			if bordered[pos] {
+				break
+			}
+			if i := l.cellList[pos]; l.regions[i].contains(centre) {
+				l.cellRegion[c] = i
+				break
+			}
+		}
+	}
 }
 
 // locate returns 1 + the index (in id order) of the region holding p, or 0
@@ -134,6 +185,9 @@ func (l *locator) locate(p orb.Point) int {
 	}
 	cx, cy := min(max(int(fx), 0), l.nx-1), min(max(int(fy), 0), l.ny-1)
 	c := cy*l.nx + cx
+	if i := l.cellRegion[c]; i >= 0 {
+		return int(i) + 1
+	}
 	for _, i := range l.cellList[l.cellStart[c]:l.cellStart[c+1]] {
 		if l.regions[i].contains(p) {
 			return int(i) + 1

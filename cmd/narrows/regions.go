@@ -16,6 +16,7 @@ import (
 type regionFlags struct {
 	bbox, roads, barriers     string
 	snap, minArea, minCompact float64
+	maxSliverWidth            float64
 	exact                     bool
 }
 
@@ -27,6 +28,7 @@ func (f *regionFlags) register(fs *flag.FlagSet) {
 	fs.Float64Var(&f.snap, "snap", d.SnapMetres, "close gaps where a road ends within this many `metres` of another")
 	fs.Float64Var(&f.minArea, "min-area", d.MinAreaKM2, "merge regions smaller than this (`km2`) into a neighbour")
 	fs.Float64Var(&f.minCompact, "min-compactness", d.MinCompactness, "merge regions thinner than this Polsby-Popper compactness (0-1)")
+	fs.Float64Var(&f.maxSliverWidth, "max-sliver-width", d.MaxSliverWidthMetres, "the compactness rule merges only regions narrower than this many `metres` (mean width 2A/P; 0: any)")
 	fs.BoolVar(&f.exact, "exact", false, "no cleaning: the plain faces of the noded linework plus the study-area rectangle")
 }
 
@@ -44,10 +46,11 @@ func (f *regionFlags) options() (partition.Options, error) {
 		return o, usagef("--roads: give at least one highway class, e.g. motorway,trunk,primary,secondary")
 	}
 	o.Barriers = splitList(f.barriers)
-	if f.snap < 0 || f.minArea < 0 || f.minCompact < 0 || f.minCompact > 1 {
-		return o, usagef("--snap and --min-area must be non-negative, --min-compactness between 0 and 1")
+	if f.snap < 0 || f.minArea < 0 || f.maxSliverWidth < 0 || f.minCompact < 0 || f.minCompact > 1 {
+		return o, usagef("--snap, --min-area and --max-sliver-width must be non-negative, --min-compactness between 0 and 1")
 	}
 	o.SnapMetres, o.MinAreaKM2, o.MinCompactness, o.Exact = f.snap, f.minArea, f.minCompact, f.exact
+	o.MaxSliverWidthMetres = f.maxSliverWidth
 	return o, nil
 }
 

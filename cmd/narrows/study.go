@@ -33,6 +33,7 @@ type study struct {
 		SnapMetres     *float64 `toml:"snap_metres"`
 		MinAreaKM2     *float64 `toml:"min_area_km2"`
 		MinCompactness *float64 `toml:"min_compactness"`
+		MaxSliverWidth *float64 `toml:"max_sliver_width_metres"`
 		Exact          bool     `toml:"exact"`
 	} `toml:"regions"`
 
@@ -165,6 +166,7 @@ func (s *study) run(ctx context.Context, env *environment, dir, file string) err
 		rf.barriers = strings.Join(s.Regions.Barriers, ",")
 	}
 	rf.snap, rf.minArea, rf.minCompact = deref(s.Regions.SnapMetres, popts.SnapMetres), deref(s.Regions.MinAreaKM2, popts.MinAreaKM2), deref(s.Regions.MinCompactness, popts.MinCompactness)
+	rf.maxSliverWidth = deref(s.Regions.MaxSliverWidth, popts.MaxSliverWidthMetres)
 	rf.exact = s.Regions.Exact
 	popts, err := rf.options()
 	if err != nil {
