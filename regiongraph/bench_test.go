@@ -15,6 +15,8 @@ import (
 	"syscall"
 	"testing"
 	"time"
+
+	"narrows/partition"
 )
 
 // The benchmark city: 100 regions of about 1.4 x 2.2 km, a month of trips
@@ -240,4 +242,42 @@ func BenchmarkIngest10M(b *testing.B) {
 		b.ReportMetric(float64(s.Meta.Quality.Used), "used")
 		b.ReportMetric(float64(len(s.Edges)), "edges")
 	}
+}
+
+// BenchmarkLocateAndorra places random points on the regions of the real
+// Andorra extract: the cost of the region lookup on OSM polygons.
+func BenchmarkLocateAndorra(b *testing.B) {
+	regions, err := partition.ReadFile(context.Background(), filepath.Join("..", "..", "shared", "data", "osm", "andorra.osm.pbf"), partition.DefaultOptions())
+	if err != nil {
+		b.Skipf("regions of andorra.osm.pbf: %v", err)
+	}
+	loc, err := newLocator(regions)
+	if err != nil {
+		b.Fatal(err)
+	}
+	rng := rand.New(rand.NewPCG(81, 82))
+	bd := regions.Bound
+	pts := make([][2]float64, 4096)
+	for i := range pts {
+		pts[i] = [2]float64{bd.Min[0] + rng.Float64()*(bd.Max[0]-bd.Min[0]), bd.Min[1] + rng.Float64()*(bd.Max[1]-bd.Min[1])}
+	}
+	vertices := 0
+	for _, r := range regions.Regions {
+		for _, ring := range r.Polygon {
+			vertices += len(ring)
+		}
+	}
+	interior := 0
+	for _, r := range loc.cellRegion {
+		if r >= 0 {
+			interior++
+		}
+	}
+	b.ResetTimer()
+	for i := 0; i < b.N; i++ {
+		loc.locate(pts[i%len(pts)])
+	}
+	b.ReportMetric(float64(len(regions.Regions)), "regions")
+	b.ReportMetric(float64(vertices), "vertices")
+	b.ReportMetric(float64(interior)/float64(len(loc.cellRegion)), "interior-cell-share")
 }

@@ -174,6 +174,9 @@ func (k *chunker) run(ctx context.Context) error {
 	line := int64(1)
 	var seq int64
 	for eof := false; !eof; seq++ {
+		if err := ctx.Err(); err != nil {
+			return err
+		}
 		var buf []byte
 		select {
 		case buf = <-k.free:

@@ -33,8 +33,10 @@ func GreatCircleMetres(a, b orb.Point) float64 {
 
 // locator finds the region holding a point. An R-tree over the region
 // bounds gives, once, the candidate regions of every cell of a uniform grid
-// over the study area; a point's cell then names its few candidates, which an
-// exact crossing-number test with holes decides. Points on a border shared by
+// over the study area. A point's cell either lies wholly inside one region
+// (no border crosses it: the answer without a test) or names its few
+// candidates, which an exact crossing-number test with holes decides, over
+// the edges of the point's latitude band only. Points on a border shared by
 // two regions belong to exactly one of them: the test is half-open (a region
 // holds its lower and left borders, not its upper and right ones), and when
 // regions overlap the lowest id wins.
@@ -54,6 +56,65 @@ type locRegion struct {
 	id    int
 	bound orb.Bound
 	rings []orb.Ring // exterior first, then holes
+
+	// Ring edges by horizontal band of the bound: the edges that can cross
+	// the horizontal line through a point are those of the point's band.
+	bandH     float64
+	bands     int
+	bandStart []int32 // edges of band k: bandEdges[bandStart[k]:bandStart[k+1]]
+	bandEdges []edge
+}
+
+// edge is a ring edge with its lower end first (a[1] <= b[1]). Both regions
+// that share an edge store it the same way round, so both compute the very
+// same crossing and a border point falls in exactly one of them.
+type edge struct{ a, b [2]float64 }
+
+func newLocRegion(id int, poly orb.Polygon) locRegion {
+	r := locRegion{id: id, bound: poly.Bound(), rings: poly}
+	var edges []edge
+	for _, ring := range poly {
+		for k := 1; k < len(ring); k++ {
+			a, b := ring[k-1], ring[k]
+			if a[1] == b[1] {
+				continue // horizontal: never crosses a horizontal line strictly
+			}
+			if a[1] > b[1] {
+				a, b = b, a
+			}
+			edges = append(edges, edge{a, b})
+		}
+	}
+	bands := max(1, min(1024, len(edges)/4))
+	r.bandH = (r.bound.Max[1] - r.bound.Min[1]) / float64(bands)
+	if !(r.bandH > 0) {
+		bands, r.bandH = 1, 1
+	}
+	r.bands = bands
+	counts := make([]int32, bands+1)
+	for _, e := range edges {
+		for k := r.band(e.a[1]); k <= r.band(e.b[1]); k++ {
+			counts[k+1]++
+		}
+	}
+	for k := 1; k <= bands; k++ {
+		counts[k] += counts[k-1]
+	}
+	r.bandStart = slices.Clone(counts)
+	r.bandEdges = make([]edge, counts[bands])
+	for _, e := range edges {
+		for k := r.band(e.a[1]); k <= r.band(e.b[1]); k++ {
+			r.bandEdges[counts[k]] = e
+			counts[k]++
+		}
+	}
+	return r
+}
+
+// band returns the band of latitude y, clamped to the bound's bands.
+func (r *locRegion) band(y float64) int {
+	k := int(math.Floor((y - r.bound.Min[1]) / r.bandH))
+	return min(max(k, 0), r.bands-1)
 }
 
 // maxRegions is the most regions a locator indexes: aggregation packs a
@@ -66,7 +127,7 @@ func newLocator(p *partition.Partition) (*locator, error) {
 		if len(r.Polygon) == 0 || len(r.Polygon[0]) < 3 {
 			continue
 		}
-		l.regions = append(l.regions, locRegion{id: r.ID, bound: r.Polygon.Bound(), rings: r.Polygon})
+		l.regions = append(l.regions, newLocRegion(r.ID, r.Polygon))
 	}
 	slices.SortStableFunc(l.regions, func(a, b locRegion) int { return cmp.Compare(a.id, b.id) })
 	if len(l.regions) > maxRegions {
@@ -204,46 +265,21 @@ func (l *locator) id(index int) int {
 	return l.regions[index-1].id
 }
 
+// contains is the crossing-number (even-odd) test over all rings, holes
+// included, with a half-open rule: an edge counts when its lower end is at
+// or below p's latitude and its upper end above, and it crosses that
+// latitude strictly east of p.
 func (r *locRegion) contains(p orb.Point) bool {
 	if p[0] < r.bound.Min[0] || p[0] > r.bound.Max[0] || p[1] < r.bound.Min[1] || p[1] > r.bound.Max[1] {
 		return false
 	}
-	if !ringContains(r.rings[0], p) {
-		return false
-	}
-	for _, hole := range r.rings[1:] {
-		if ringContains(hole, p) {
-			return false
-		}
-	}
-	return true
-}
-
-// ringContains is the crossing-number test with a half-open rule: an edge
-// counts when it straddles the horizontal line through p (one end strictly
-// above, the other not) and crosses it strictly right of p.
-func ringContains(ring orb.Ring, p orb.Point) bool {
-	n := len(ring)
-	if n < 3 {
-		return false
-	}
 	x, y := p[0], p[1]
+	k := r.band(y)
 	in := false
-	j := n - 1
-	for i := 0; i < n; i++ {
-		a, b := ring[i], ring[j]
-		if (a[1] > y) != (b[1] > y) {
-			// The same edge is walked in opposite directions by the two
-			// regions it separates; ordering its ends makes both compute
-			// the very same crossing, so a border point is in exactly one.
-			if a[1] > b[1] {
-				a, b = b, a
-			}
-			if x < (b[0]-a[0])*(y-a[1])/(b[1]-a[1])+a[0] {
-				in = !in
-			}
+	for _, e := range r.bandEdges[r.bandStart[k]:r.bandStart[k+1]] {
+		if e.a[1] <= y && y < e.b[1] && x < (e.b[0]-e.a[0])*(y-e.a[1])/(e.b[1]-e.a[1])+e.a[0] {
+			in = !in
 		}
-		j = i
 	}
 	return in
 }

@@ -132,7 +132,7 @@ func TestLocatorBordersAndHoles(t *testing.T) {
 		pt := orb.Point{13 - 3*f, 3.3 * f}
 		in3 := loc.regions[2].contains(pt)
 		in4 := loc.regions[3].contains(pt)
-		if in3 == in4 {
+		if in3 == in4 || in3 != polygonContains(orb.Polygon{tri1}, pt) {
 			t.Fatalf("point %v on shared edge: in 3 %v, in 4 %v", pt, in3, in4)
 		}
 	}
@@ -147,4 +147,33 @@ func TestLocatorRejectsBadPartitions(t *testing.T) {
 	if _, err := Ingest(context.Background(), &partition.Partition{}, "", []Input{{Path: "x.csv"}}, DefaultOptions()); err == nil {
 		t.Error("ingest without regions succeeded")
 	}
+}
+
+// ringContains is the plain crossing-number test of one ring with the same
+// half-open rule, the oracle for the banded test.
+func ringContains(ring orb.Ring, p orb.Point) bool {
+	in := false
+	for i := 1; i < len(ring); i++ {
+		a, b := ring[i-1], ring[i]
+		if a[1] > b[1] {
+			a, b = b, a
+		}
+		if a[1] <= p[1] && p[1] < b[1] && p[0] < (b[0]-a[0])*(p[1]-a[1])/(b[1]-a[1])+a[0] {
+			in = !in
+		}
+	}
+	return in
+}
+
+// polygonContains is the oracle: in the exterior ring and in no hole.
+func polygonContains(poly orb.Polygon, p orb.Point) bool {
+	if !ringContains(poly[0], p) {
+		return false
+	}
+	for _, h := range poly[1:] {
+		if ringContains(h, p) {
+			return false
+		}
+	}
+	return true
 }

@@ -82,6 +82,9 @@ func Ingest(ctx context.Context, regions *partition.Partition, regionsSHA256 str
 
 	var sources []Source
 	for _, f := range files {
+		if err := ctx.Err(); err != nil {
+			return nil, err
+		}
 		before := rowsRead()
 		var sum string
 		switch f.format {
@@ -116,6 +119,9 @@ func Ingest(ctx context.Context, regions *partition.Partition, regionsSHA256 str
 	var regionsJSON bytes.Buffer
 	if err := regions.WriteGeoJSON(&regionsJSON); err != nil {
 		return nil, fmt.Errorf("regiongraph: keeping the regions in the store: %v", err)
+	}
+	if err := ctx.Err(); err != nil {
+		return nil, err
 	}
 	edges, quality := finish(st, loc, tallies)
 	return &Store{

@@ -504,3 +504,49 @@ func TestGridPartitionHelper(t *testing.T) {
 		t.Fatalf("grid: %+v", p.Regions[4])
 	}
 }
+
+func TestQuotedFieldsAcrossChunks(t *testing.T) {
+	// The same trips with plain ids, and with quoted ids holding commas and
+	// newlines, in a file several chunks long: same edges and counts.
+	rng := rand.New(rand.NewPCG(91, 92))
+	trips := genTrips(rng, 30000, time.Date(2024, 5, 1, 0, 0, 0, 0, time.UTC))
+	plain := tripsCSV(trips, time.UTC, rand.New(rand.NewPCG(1, 1)))
+	quoted := tripsCSV(trips, time.UTC, rand.New(rand.NewPCG(1, 1)))
+	lines := strings.Split(quoted, "\n")
+	for i := 1; i < len(lines); i += 7 {
+		if id, rest, ok := strings.Cut(lines[i], ","); ok {
+			lines[i] = `"` + id + `, line one` + "\n" + `line ""two"""` + "," + rest
+		}
+	}
+	quoted = strings.Join(lines, "\n")
+	if len(quoted) < 2*chunkSize {
+		t.Fatalf("file of %d bytes is not several chunks", len(quoted))
+	}
+	p := gridPartition(gNX, gNY, gLon0, gLat0, gStep)
+	a, err := ingestString(t, p, FormatTrips, plain, DefaultOptions())
+	if err != nil {
+		t.Fatal(err)
+	}
+	b, err := ingestString(t, p, FormatTrips, quoted, DefaultOptions())
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !reflect.DeepEqual(a.Edges, b.Edges) || !reflect.DeepEqual(a.Meta.Quality, b.Meta.Quality) {
+		t.Fatalf("quoted ids changed the result: %+v vs %+v", a.Meta.Quality, b.Meta.Quality)
+	}
+
+	// Strict mode names the first bad row even when later chunks, parsed in
+	// parallel, also have one.
+	lines = []string{strings.TrimSuffix(tripHeader, "\n")}
+	for i := 0; i < 30000; i++ {
+		lines = append(lines, "t,2024-05-01T08:00:00Z,2024-05-01T08:10:00Z,13.01,52.01,13.03,52.01,2000")
+	}
+	lines[20001] = "bad,2024-05-01T08:00:00Z,soon,13.01,52.01,13.03,52.01,2000"
+	lines[29001] = "bad,never,2024-05-01T08:00:00Z,13.01,52.01,13.03,52.01,2000"
+	opts := DefaultOptions()
+	opts.Strict = true
+	_, err = ingestString(t, p, FormatTrips, strings.Join(lines, "\n"), opts)
+	if err == nil || !strings.Contains(err.Error(), `trips.csv:20002: unparseable end_time "soon"`) {
+		t.Errorf("strict: %v", err)
+	}
+}
