@@ -17,6 +17,12 @@ import (
 // line costs nothing extra that day, and no day's gain is allowed to offset
 // another day's loss. Each edge carries the median over the finding's days;
 // a finding's cost is the sum over its edges.
+//
+// Findings are ranked by their cost spread over the whole period, cost x
+// share: the extra vehicle-hours per analysed day. A group always costs at
+// least as much as any group inside it on the days it recurs, but recurs on
+// fewer days; ranking by the cost on recurrence days alone would put every
+// rarely seen superset above the core pair that recurs every day.
 func findings(scan *Scan, groups []Group) []Finding {
 	out := make([]Finding, 0, len(groups))
 	ref := scan.Options.ReferenceSpeed
@@ -73,10 +79,10 @@ func findings(scan *Scan, groups []Group) []Finding {
 		out = append(out, f)
 	}
 	slices.SortStableFunc(out, func(a, b Finding) int {
-		if c := cmp.Compare(b.ExtraHoursPerDay, a.ExtraHoursPerDay); c != 0 {
+		if c := cmp.Compare(b.ExtraHoursPerDay*b.Share, a.ExtraHoursPerDay*a.Share); c != 0 {
 			return c
 		}
-		if c := cmp.Compare(b.ExtraKMPerDay, a.ExtraKMPerDay); c != 0 {
+		if c := cmp.Compare(b.ExtraKMPerDay*b.Share, a.ExtraKMPerDay*a.Share); c != 0 {
 			return c
 		}
 		return strings.Compare(a.ID, b.ID)

@@ -23,8 +23,9 @@ func TestFindingsCostsAndRanking(t *testing.T) {
 			// Extra km 0.5 every day, 1 h every day.
 			b: {day("2025-03-03", 5, 1500, 1000, 3700), day("2025-03-04", 5, 1500, 1000, 3700),
 				day("2025-03-06", 5, 1500, 1000, 3700)},
-			// Same hours as b but more km: ranks before b.
-			c: {day("2025-03-03", 5, 3000, 1000, 3700), day("2025-03-04", 5, 3000, 1000, 3700)},
+			// Same hours and days as b but more km: ranks before b.
+			c: {day("2025-03-03", 5, 3000, 1000, 3700), day("2025-03-04", 5, 3000, 1000, 3700),
+				day("2025-03-06", 5, 3000, 1000, 3700)},
 			// Trips faster than the reference along the straight line, and
 			// (noise) shorter than the straight line: both floored at 0.
 			fast: {day("2025-03-03", 5, 900, 1000, 50), day("2025-03-04", 5, 900, 1000, 50)},
@@ -34,7 +35,7 @@ func TestFindingsCostsAndRanking(t *testing.T) {
 		{Edges: []EdgeKey{fast}, Days: []int{0, 1}},
 		{Edges: []EdgeKey{b}, Days: []int{0, 1, 3}},
 		{Edges: []EdgeKey{a, b}, Days: []int{0, 1, 3}},
-		{Edges: []EdgeKey{c}, Days: []int{0, 1}},
+		{Edges: []EdgeKey{c}, Days: []int{0, 1, 3}},
 	}
 	got := findings(scan, groups)
 	want := []struct {
@@ -82,5 +83,30 @@ func TestMedian(t *testing.T) {
 		if got := median(c.in); got != c.want {
 			t.Errorf("median(%v) = %v, want %v", c.in, got, c.want)
 		}
+	}
+}
+
+// Ranking spreads a finding's cost over the period: a group that costs
+// twice as much on the days it recurs but recurs on a third of the days
+// ranks below the pair that recurs on most days.
+func TestFindingsRankByCostOverThePeriod(t *testing.T) {
+	day := func(d string) DailyValue {
+		return DailyValue{Day: d, Trips: 10, Speed: 5, Detour: 2, Candidate: true,
+			DistanceSum: 2000, StraightSum: 1000, DurationSum: 3600 + 100}
+	}
+	core, extra := EdgeKey{1, 2}, EdgeKey{2, 3}
+	days := []string{"2025-03-03", "2025-03-04", "2025-03-05", "2025-03-06"}
+	scan := &Scan{
+		Options:   ScanOptions{ReferenceSpeed: 10},
+		Days:      days,
+		EdgeDaily: map[EdgeKey][]DailyValue{core: {day(days[0]), day(days[1]), day(days[2])}, extra: {day(days[0])}},
+	}
+	got := findings(scan, []Group{
+		{Edges: []EdgeKey{core, extra}, Days: []int{0}}, // 2 h on 1 of 4 days
+		{Edges: []EdgeKey{core}, Days: []int{0, 1, 2}},  // 1 h on 3 of 4 days
+	})
+	if got[0].ID != "1>2" || got[0].ExtraHoursPerDay >= got[1].ExtraHoursPerDay {
+		t.Errorf("ranking: %s (%.2f h on %.0f %% of days) first, then %s (%.2f h on %.0f %%); want the core pair first",
+			got[0].ID, got[0].ExtraHoursPerDay, 100*got[0].Share, got[1].ID, got[1].ExtraHoursPerDay, 100*got[1].Share)
 	}
 }

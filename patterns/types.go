@@ -68,7 +68,7 @@ type FindingEdge struct {
 // Finding is a closed connected group of candidate edges recurring on at
 // least the support share of the analysed days.
 type Finding struct {
-	Rank    int    // 1 = highest cost
+	Rank    int    // 1 = highest cost over the period (ExtraHoursPerDay x Share)
 	ID      string // stable key built from the edges, e.g. "12>15+15>18"
 	Regions []int  // ascending
 	Edges   []FindingEdge

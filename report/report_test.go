@@ -117,8 +117,8 @@ func TestHeadline(t *testing.T) {
 		in   Input
 		want string
 	}{
-		{"comparison", all, "1 of 4 weak links of the before period (2026-03-02 to 2026-03-15) cleared in the after period (2026-05-04 to 2026-05-17); 1 eased, 1 unchanged and 1 worse. 1 new weak link appeared; around the scheme 1 of 1 cleared and none eased."},
-		{"after-only without rise", afterOnly, "1 of 4 weak links of the before period (2026-03-02 to 2026-03-15) cleared in the after period (2026-05-04 to 2026-05-17); 1 eased, 1 unchanged and 1 worse. No new weak link appeared; 1 more recurs only after, without a significant rise; around the scheme 1 of 1 cleared and none eased."},
+		{"comparison", all, "Of 4 weak links recurring before (2026-03-02 to 2026-03-15), 1 cleared after (2026-05-04 to 2026-05-17), 1 eased, 1 unchanged and 1 worse. 1 new weak link appeared; around the scheme, of 1: 1 cleared and none eased."},
+		{"after-only without rise", afterOnly, "Of 4 weak links recurring before (2026-03-02 to 2026-03-15), 1 cleared after (2026-05-04 to 2026-05-17), 1 eased, 1 unchanged and 1 worse. No new weak link appeared; 1 more recurs only after, without a significant rise; around the scheme, of 1: 1 cleared and none eased."},
 		{"only new", noneBefore, "No weak link recurred in the before period (2026-03-02 to 2026-03-15). 1 new weak link appeared."},
 		// Costliest is rank 1, 1>2: 40 trips * 1.5 km = 60 km, 40 * 0.05 = 2 h.
 		{"scan", fxScanInput(), "4 weak links recurred on at least 20 % of the 14 analysed days (2026-03-02 to 2026-03-15). The costliest, regions 1>2, adds 60 km of travel and 2 vehicle-hours a day."},

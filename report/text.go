@@ -167,9 +167,9 @@ func comparisonHeadline(c *patterns.Comparison) string {
 	if nBefore == 0 {
 		fmt.Fprintf(&b, "No weak link recurred in the before period (%s)", dayRange(c.Before))
 	} else {
-		fmt.Fprintf(&b, "%d of %d %s of the before period (%s) cleared in the after period (%s); %s eased, %s unchanged and %s worse",
-			before[patterns.Cleared], nBefore, plural(nBefore, "weak link", "weak links"), dayRange(c.Before), dayRange(c.After),
-			numberWord(before[patterns.Eased]), numberWord(before[patterns.Unchanged]), numberWord(before[patterns.Worse]))
+		fmt.Fprintf(&b, "Of %d %s recurring before (%s), %s cleared after (%s), %s eased, %s unchanged and %s worse",
+			nBefore, plural(nBefore, "weak link", "weak links"), dayRange(c.Before),
+			numberWord(before[patterns.Cleared]), dayRange(c.After), numberWord(before[patterns.Eased]), numberWord(before[patterns.Unchanged]), numberWord(before[patterns.Worse]))
 	}
 	b.WriteString(".")
 	var second []string
@@ -183,7 +183,7 @@ func comparisonHeadline(c *patterns.Comparison) string {
 		second = append(second, fmt.Sprintf("%d more %s only after, without a significant rise", nAfterOnly, plural(nAfterOnly, "recurs", "recur")))
 	}
 	if nFocus > 0 {
-		second = append(second, fmt.Sprintf("around the scheme %d of %d cleared and %s eased", focus[patterns.Cleared], nFocus, numberWord(focus[patterns.Eased])))
+		second = append(second, fmt.Sprintf("around the scheme, of %d: %s cleared and %s eased", nFocus, numberWord(focus[patterns.Cleared]), numberWord(focus[patterns.Eased])))
 	}
 	if len(second) > 0 {
 		s := strings.Join(second, "; ")

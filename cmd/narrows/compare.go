@@ -143,6 +143,8 @@ func compareAndReport(ctx context.Context, env *environment, job compareJob) err
 	if err != nil {
 		return err
 	}
+	fmt.Fprintf(env.stdout, "Top weak links before (%s):\n", job.before.From+".."+job.before.To)
+	printFindings(env.stdout, cmp.Before, job.regions, 5)
 	fmt.Fprintln(env.stdout, report.Headline(in))
 	for _, p := range paths {
 		fmt.Fprintln(env.stdout, "  wrote", p)

@@ -5,7 +5,6 @@ import (
 	"flag"
 	"fmt"
 	"os"
-	"text/tabwriter"
 	"time"
 
 	"narrows/partition"
@@ -158,19 +157,17 @@ func countDays(s *regiongraph.Store) int {
 
 // printQuality prints the accounting of every input row.
 func printQuality(env *environment, q regiongraph.Quality) {
-	tw := tabwriter.NewWriter(env.stdout, 0, 0, 2, ' ', tabwriter.AlignRight)
 	pct := func(n int64) float64 {
 		if q.Read == 0 {
 			return 0
 		}
 		return 100 * float64(n) / float64(q.Read)
 	}
-	fmt.Fprintf(tw, "rows\t%d\t\t\n", q.Read)
-	fmt.Fprintf(tw, "used\t%d\t%.1f %%\t\n", q.Used, pct(q.Used))
+	fmt.Fprintf(env.stdout, "  %-34s %12d\n", "rows read", q.Read)
+	fmt.Fprintf(env.stdout, "  %-34s %12d %6.1f %%\n", "used", q.Used, pct(q.Used))
 	for _, reason := range regiongraph.RejectReasons() {
 		if n := q.Rejected[reason]; n > 0 {
-			fmt.Fprintf(tw, "rejected: %s\t%d\t%.1f %%\t\n", reason, n, pct(n))
+			fmt.Fprintf(env.stdout, "  %-34s %12d %6.1f %%\n", "rejected: "+reason, n, pct(n))
 		}
 	}
-	tw.Flush()
 }
