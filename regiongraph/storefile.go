@@ -169,8 +169,22 @@ var storeColumns = []string{"day", "window", "from_region", "to_region", "trips"
 	"speed_p25_mps", "speed_median_mps", "speed_p75_mps", "detour_p25", "detour_median", "detour_p75",
 	"distance_median_m", "duration_median_s", "distance_sum_m", "straight_sum_m", "duration_sum_s"}
 
-// ReadFile reads a store written by WriteFile.
-func ReadFile(path string) (*Store, error) {
+// ReadOptions selects what ReadFileOptions keeps of a store.
+type ReadOptions struct {
+	// MinTrips drops edges with fewer trips while reading (0 keeps all).
+	// A city's store holds mostly pairs with a trip or two a day; an
+	// analysis that ignores pairs under its own minimum need not hold them
+	// in memory.
+	MinTrips int
+}
+
+// ReadFile reads a store written by WriteFile, every edge.
+func ReadFile(path string) (*Store, error) { return ReadFileOptions(path, ReadOptions{}) }
+
+// ReadFileOptions reads a store written by WriteFile, keeping the edges
+// that opts selects. The quality accounting and metadata are the file's
+// whatever is dropped.
+func ReadFileOptions(path string, opts ReadOptions) (*Store, error) {
 	f, err := os.Open(path)
 	if err != nil {
 		return nil, fmt.Errorf("regiongraph: %w", err)
@@ -232,23 +246,47 @@ func ReadFile(path string) (*Store, error) {
 		s.Meta.Sources = append(s.Meta.Sources, Source{Path: src.Path, SHA256: src.SHA256, Rows: src.Rows})
 	}
 
+	// Rows are read in batches into one buffer, and the day and window
+	// strings, repeated on every row, are shared: a city's year of day
+	// graphs holds tens of millions of rows.
 	r := parquet.NewGenericReader[edgeRow](pf)
 	defer r.Close()
-	rows := make([]edgeRow, pf.NumRows())
-	n, err := r.Read(rows)
-	if err != nil && !errors.Is(err, io.EOF) {
-		return nil, fmt.Errorf("regiongraph: %s: %v", path, err)
+	const batch = 1 << 14
+	rows := make([]edgeRow, batch)
+	shared := map[string]string{}
+	intern := func(v string) string {
+		if c, ok := shared[v]; ok {
+			return c
+		}
+		shared[v] = v
+		return v
 	}
-	if int64(n) != pf.NumRows() {
-		return nil, fmt.Errorf("regiongraph: %s: read %d of %d rows", path, n, pf.NumRows())
+	var read int64
+	for {
+		n, err := r.Read(rows)
+		read += int64(n)
+		for _, e := range rows[:n] {
+			if int(e.Trips) < opts.MinTrips {
+				continue
+			}
+			s.Edges = append(s.Edges, Edge{Day: intern(e.Day), Window: intern(e.Window), From: int(e.FromRegion), To: int(e.ToRegion),
+				Trips: int(e.Trips), SpeedP25: e.SpeedP25, SpeedMedian: e.SpeedMedian, SpeedP75: e.SpeedP75,
+				DetourP25: e.DetourP25, DetourMedian: e.DetourMedian, DetourP75: e.DetourP75,
+				DistanceMedian: e.DistanceMedian, DurationMedian: e.DurationMedian,
+				DistanceSum: e.DistanceSum, StraightSum: e.StraightSum, DurationSum: e.DurationSum})
+		}
+		if errors.Is(err, io.EOF) {
+			break
+		}
+		if err != nil {
+			return nil, fmt.Errorf("regiongraph: %s: %v", path, err)
+		}
+		if n == 0 {
+			break
+		}
 	}
-	s.Edges = make([]Edge, n)
-	for i, e := range rows[:n] {
-		s.Edges[i] = Edge{Day: e.Day, Window: e.Window, From: int(e.FromRegion), To: int(e.ToRegion),
-			Trips: int(e.Trips), SpeedP25: e.SpeedP25, SpeedMedian: e.SpeedMedian, SpeedP75: e.SpeedP75,
-			DetourP25: e.DetourP25, DetourMedian: e.DetourMedian, DetourP75: e.DetourP75,
-			DistanceMedian: e.DistanceMedian, DurationMedian: e.DurationMedian,
-			DistanceSum: e.DistanceSum, StraightSum: e.StraightSum, DurationSum: e.DurationSum}
+	if read != pf.NumRows() {
+		return nil, fmt.Errorf("regiongraph: %s: read %d of %d rows", path, read, pf.NumRows())
 	}
 	if !slices.IsSortedFunc(s.Edges, compareEdges) {
 		slices.SortStableFunc(s.Edges, compareEdges)

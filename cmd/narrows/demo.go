@@ -20,7 +20,11 @@ type townFiles struct {
 
 // simulateTown generates a town, writes its before and after OSM files and
 // the trips of a scenario into dir, and returns the plan it simulated.
-func simulateTown(ctx context.Context, env *environment, dir string, size town.Size, seed int64, kind string, days, tripsPerDay int) (townFiles, town.Plan, error) {
+//
+// With gpsEvery > 0, every gpsEvery-th trip also gets a GPS trace, written
+// to points.csv (GPS points) and, for the first gpxTraces of them, to
+// traces.gpx: the other input kinds that ingest reads.
+func simulateTown(ctx context.Context, env *environment, dir string, size town.Size, seed int64, kind string, days, tripsPerDay, gpsEvery int) (townFiles, town.Plan, error) {
 	var files townFiles
 	plan, err := town.Scenario(kind)
 	if err != nil {
@@ -60,14 +64,45 @@ func simulateTown(ctx context.Context, env *environment, dir string, size town.S
 	}
 	start := time.Now()
 	var stats town.Stats
-	if err := writeFileAtomic(files.trips, func(w io.Writer) error {
-		bw := bufio.NewWriterSize(w, 1<<20)
-		var err error
-		if stats, err = t.Simulate(ctx, opts, bw); err != nil {
-			return err
+	simulate := func() error {
+		return writeFileAtomic(files.trips, func(w io.Writer) error {
+			bw := bufio.NewWriterSize(w, 1<<20)
+			var err error
+			if stats, err = t.Simulate(ctx, opts, bw); err != nil {
+				return err
+			}
+			return bw.Flush()
+		})
+	}
+	if gpsEvery > 0 {
+		var gpx []town.Trace
+		opts.TraceEvery = gpsEvery
+		err := writeFileAtomic(filepath.Join(dir, "points.csv"), func(w io.Writer) error {
+			bw := bufio.NewWriterSize(w, 1<<20)
+			points := town.NewPointsWriter(bw)
+			opts.OnTrace = func(tr town.Trace) error {
+				if len(gpx) < gpxTraces {
+					gpx = append(gpx, tr)
+				}
+				return points.Write(tr)
+			}
+			if err := simulate(); err != nil {
+				return err
+			}
+			if err := points.Flush(); err != nil {
+				return err
+			}
+			return bw.Flush()
+		})
+		if err != nil {
+			return files, plan, err
 		}
-		return bw.Flush()
-	}); err != nil {
+		if err := writeFileAtomic(filepath.Join(dir, "traces.gpx"), func(w io.Writer) error {
+			return town.WriteGPX(w, "narrows "+version, gpx)
+		}); err != nil {
+			return files, plan, err
+		}
+	} else if err := simulate(); err != nil {
 		return files, plan, err
 	}
 	fmt.Fprintf(env.stdout, "%s (%s, seed %d): %d trips on %d days (%d with an incident) in %.1f s -> %s\n",
@@ -78,6 +113,9 @@ func simulateTown(ctx context.Context, env *environment, dir string, size town.S
 	}
 	return files, plan, nil
 }
+
+// gpxTraces is how many GPS traces simulate also writes as GPX.
+const gpxTraces = 50
 
 // inclusive turns a plan's half-open period into the FROM..TO form of the
 // command line and study files.
@@ -126,23 +164,24 @@ func runSimulate(ctx context.Context, env *environment, args []string) error {
 	fs := newFlagSet(env, "simulate", "--size town|city --out DIR [--seed N] [--days N] [--scenario link|control] [--trips-per-day N]")
 	var size, out, kind string
 	var seed int64
-	var days, perDay int
+	var days, perDay, gpsEvery int
 	fs.StringVar(&size, "size", string(town.SizeTown), "town (the demo, about 50 regions) or city (about 1,500 regions, for benchmarks)")
 	fs.StringVar(&out, "out", "", "folder to write the OSM files, trips.csv and study.toml into")
 	fs.Int64Var(&seed, "seed", 1, "seed of every random draw: the same seed gives the same bytes")
 	fs.IntVar(&days, "days", 0, "days to simulate (default: the scenario's eight weeks)")
 	fs.IntVar(&perDay, "trips-per-day", 0, "fleet trips on an average weekday (default: the scenario's)")
 	fs.StringVar(&kind, "scenario", "link", "link (a new river crossing opens half-way) or control (nothing changes)")
+	fs.IntVar(&gpsEvery, "gps-every", 0, "also write GPS traces of every `n`-th trip to points.csv and the first 50 to traces.gpx")
 	if err := parseFlags(env, fs, args); err != nil {
 		return err
 	}
 	if out == "" {
 		return usagef("--out is required")
 	}
-	if days < 0 || perDay < 0 {
-		return usagef("--days and --trips-per-day must be positive")
+	if days < 0 || perDay < 0 || gpsEvery < 0 {
+		return usagef("--days, --trips-per-day and --gps-every must be positive")
 	}
-	files, plan, err := simulateTown(ctx, env, filepath.Join(out, "town"), town.Size(size), seed, kind, days, perDay)
+	files, plan, err := simulateTown(ctx, env, filepath.Join(out, "town"), town.Size(size), seed, kind, days, perDay, gpsEvery)
 	if err != nil {
 		return err
 	}
@@ -175,7 +214,7 @@ func runDemo(ctx context.Context, env *environment, args []string) error {
 	}
 	start := time.Now()
 	fmt.Fprintln(env.stdout, "narrows demo: a fictional town with a known weakness")
-	if _, _, err := simulateTown(ctx, env, filepath.Join(dir, "town"), town.SizeTown, seed, "link", 0, 0); err != nil {
+	if _, _, err := simulateTown(ctx, env, filepath.Join(dir, "town"), town.SizeTown, seed, "link", 0, 0, 0); err != nil {
 		return err
 	}
 	t, err := town.Generate(town.Options{Size: town.SizeTown, Seed: seed})

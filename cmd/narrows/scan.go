@@ -121,7 +121,7 @@ func runScan(ctx context.Context, env *environment, args []string) error {
 		}
 	}
 	opts.From, opts.To = from, to
-	store, err := regiongraph.ReadFile(graphs)
+	store, err := readStore(graphs, opts)
 	if err != nil {
 		return err
 	}
@@ -147,6 +147,16 @@ func runScan(ctx context.Context, env *environment, args []string) error {
 	fmt.Fprintf(env.stdout, "%d findings over %d days (window %s) in %.2f s -> %s, %s\n",
 		len(scan.Findings), len(scan.Days), scan.Window, elapsed.Seconds(), out, layer)
 	return nil
+}
+
+// readStore reads a day-graph store for an analysis with the given
+// thresholds. Edges under the analysis's minimum trips can never be
+// candidates and are dropped while reading: a city's store is mostly pairs
+// with a trip or two a day, and holding them would cost gigabytes. The
+// daily series of a comparison then also count only days on which an edge
+// had at least that many trips.
+func readStore(path string, opts patterns.ScanOptions) (*regiongraph.Store, error) {
+	return regiongraph.ReadFileOptions(path, regiongraph.ReadOptions{MinTrips: opts.Skyline.MinTrips})
 }
 
 // regionsFor returns the regions a store was built on: from the given file

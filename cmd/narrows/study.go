@@ -220,7 +220,7 @@ func (s *study) run(ctx context.Context, env *environment, dir, file string) err
 	if err != nil {
 		return fmt.Errorf("%s: [scan]: %v", where, err)
 	}
-	store, err := regiongraph.ReadFile(graphs)
+	store, err := readStore(graphs, scanOpts)
 	if err != nil {
 		return err
 	}

@@ -1,0 +1,45 @@
+package main
+
+import (
+	"path/filepath"
+	"regexp"
+	"strconv"
+	"testing"
+)
+
+// The simulated GPS points and GPX traces go through ingest like the trip
+// table: each input kind yields used rows on the town's regions.
+func TestSimulatedGPSAndGPXIngest(t *testing.T) {
+	if testing.Short() {
+		t.Skip("simulation and three ingests")
+	}
+	dir := t.TempDir()
+	if code, stdout, stderr := runCLI(t, "simulate", "--out", dir, "--days", "2", "--trips-per-day", "2000", "--gps-every", "20"); code != exitOK {
+		t.Fatalf("simulate: exit %d\n%s\n%s", code, stdout, stderr)
+	}
+	regions := filepath.Join(dir, "regions.geojson")
+	if code, stdout, stderr := runCLI(t, "regions", "--osm", filepath.Join(dir, "town", "quillhaven-before.osm"), "--barriers", "rail,river", "--out", regions); code != exitOK {
+		t.Fatalf("regions: exit %d\n%s\n%s", code, stdout, stderr)
+	}
+	used := regexp.MustCompile(`(?m)^\s+used\s+(\d+)`)
+	for _, tc := range []struct{ format, file string }{
+		{"trips", "trips.csv"},
+		{"points", "points.csv"},
+		{"gpx", "traces.gpx"},
+	} {
+		t.Run(tc.format, func(t *testing.T) {
+			code, stdout, stderr := runCLI(t, "ingest", "--regions", regions, "--format", tc.format, "--tz", "Etc/GMT-1",
+				"--trips", filepath.Join(dir, "town", tc.file), "--out", filepath.Join(dir, tc.format+".parquet"))
+			if code != exitOK {
+				t.Fatalf("ingest: exit %d\n%s\n%s", code, stdout, stderr)
+			}
+			m := used.FindStringSubmatch(stdout)
+			if m == nil {
+				t.Fatalf("no 'used' line in the summary:\n%s", stdout)
+			}
+			if n, _ := strconv.Atoi(m[1]); n == 0 {
+				t.Errorf("no %s row used:\n%s", tc.format, stdout)
+			}
+		})
+	}
+}
