@@ -19,7 +19,7 @@ import (
 // parseFocus parses --focus: region ids "12,15,18", or a point and radius
 // "LON,LAT@METRES" (the scheme's location).
 func parseFocus(s string) (*patterns.Focus, error) {
-	if s == "" {
+	if s = strings.TrimSpace(s); s == "" {
 		return nil, nil
 	}
 	if pt, radius, ok := strings.Cut(s, "@"); ok {
@@ -43,6 +43,9 @@ func parseFocus(s string) (*patterns.Focus, error) {
 			return nil, fmt.Errorf("want region ids such as 12,15 or LON,LAT@METRES, got %q", s)
 		}
 		f.Regions = append(f.Regions, n)
+	}
+	if len(f.Regions) == 0 {
+		return nil, fmt.Errorf("want region ids such as 12,15 or LON,LAT@METRES, got %q", s)
 	}
 	return f, nil
 }
