@@ -91,11 +91,7 @@ func runCompare(ctx context.Context, env *environment, args []string) error {
 	if !strings.HasSuffix(strings.ToLower(out), ".xlsx") {
 		return usagef("--out: the workbook name must end in .xlsx, got %q", out)
 	}
-	store, err := readStore(graphs, scanOpts)
-	if err != nil {
-		return err
-	}
-	regions, err := regionsFor(store, regionsPath, graphs)
+	store, regions, err := openStore(graphs, regionsPath, scanOpts)
 	if err != nil {
 		return err
 	}

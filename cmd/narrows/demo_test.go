@@ -3,6 +3,8 @@ package main
 import (
 	"bytes"
 	"context"
+	"encoding/json"
+	"fmt"
 	"io/fs"
 	"os"
 	"path/filepath"
@@ -10,6 +12,7 @@ import (
 	"testing"
 
 	"github.com/paulmach/orb"
+	"github.com/paulmach/orb/geojson"
 	"github.com/paulmach/orb/planar"
 
 	"narrows/cmd/town"
@@ -142,6 +145,7 @@ func TestDemoFindsThePlantedWeaknessAndTheFixWorks(t *testing.T) {
 	if top < 0 || top >= 3 {
 		t.Fatalf("the planted pair %d-%d is not among the top 3 findings before (first at index %d of %d)", housing, jobs, top, len(scan.Findings))
 	}
+	checkScanCommand(t, dir, before, housing, jobs, regions)
 	cmp, err := patterns.Compare(ctx, store, regions, before, after, patterns.DefaultCompareOptions())
 	if err != nil {
 		t.Fatal(err)
@@ -161,6 +165,71 @@ func TestDemoFindsThePlantedWeaknessAndTheFixWorks(t *testing.T) {
 	}
 	if checked == 0 {
 		t.Error("no before finding holds the planted pair")
+	}
+}
+
+// checkScanCommand runs "narrows scan" on the demo's store for the before
+// period and checks its outputs: the planted pair in the top finding of
+// findings.json, its border roads in the printed table, and a line per
+// finding edge in findings.geojson.
+func checkScanCommand(t *testing.T, dir string, before patterns.ScanOptions, housing, jobs int, regions *partition.Partition) {
+	t.Helper()
+	out := filepath.Join(dir, "scan", "findings.json")
+	if err := os.MkdirAll(filepath.Dir(out), 0o755); err != nil {
+		t.Fatal(err)
+	}
+	code, stdout, stderr := runCLI(t, "scan", "--graphs", filepath.Join(dir, "out", "steps", "graphs.parquet"),
+		"--from", before.From, "--to", before.To, "--days", string(before.Days),
+		"--support", fmt.Sprint(before.Support), "--out", out)
+	if code != exitOK {
+		t.Fatalf("scan: exit %d\n%s\n%s", code, stdout, stderr)
+	}
+	var doc struct {
+		Findings []struct {
+			Rank  int `json:"rank"`
+			Edges []struct{ From, To int }
+		} `json:"findings"`
+	}
+	data, err := os.ReadFile(out)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := json.Unmarshal(data, &doc); err != nil {
+		t.Fatalf("findings.json: %v", err)
+	}
+	if len(doc.Findings) == 0 || doc.Findings[0].Rank != 1 {
+		t.Fatalf("findings.json has no rank-1 finding: %s", data)
+	}
+	top := false
+	for _, e := range doc.Findings[0].Edges {
+		top = top || (e.From == housing && e.To == jobs) || (e.From == jobs && e.To == housing)
+	}
+	if !top {
+		t.Errorf("the rank-1 finding of 'narrows scan' does not hold the planted pair %d-%d: %+v", housing, jobs, doc.Findings[0])
+	}
+	if road := regions.Regions[housing-1].BorderRoads[0].Name; !strings.Contains(stdout, road) {
+		t.Errorf("the ranked table does not name %q, a border road of region %d:\n%s", road, housing, stdout)
+	}
+	layer, err := os.ReadFile(filepath.Join(dir, "scan", "findings.geojson"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	fc, err := geojson.UnmarshalFeatureCollection(layer)
+	if err != nil {
+		t.Fatalf("findings.geojson: %v", err)
+	}
+	edges := 0
+	for _, f := range doc.Findings {
+		edges += len(f.Edges)
+	}
+	if len(fc.Features) != edges {
+		t.Errorf("findings.geojson has %d features, want one per finding edge (%d)", len(fc.Features), edges)
+	}
+	for _, f := range fc.Features {
+		if _, ok := f.Geometry.(orb.LineString); !ok {
+			t.Errorf("findings.geojson feature is a %T, want a LineString", f.Geometry)
+			break
+		}
 	}
 }
 

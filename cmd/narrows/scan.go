@@ -121,11 +121,7 @@ func runScan(ctx context.Context, env *environment, args []string) error {
 		}
 	}
 	opts.From, opts.To = from, to
-	store, err := readStore(graphs, opts)
-	if err != nil {
-		return err
-	}
-	regions, err := regionsFor(store, regionsPath, graphs)
+	store, regions, err := openStore(graphs, regionsPath, opts)
 	if err != nil {
 		return err
 	}
@@ -157,6 +153,20 @@ func runScan(ctx context.Context, env *environment, args []string) error {
 // had at least that many trips.
 func readStore(path string, opts patterns.ScanOptions) (*regiongraph.Store, error) {
 	return regiongraph.ReadFileOptions(path, regiongraph.ReadOptions{MinTrips: opts.Skyline.MinTrips})
+}
+
+// openStore reads a store for an analysis and the regions it was built on
+// (see regionsFor).
+func openStore(path, regionsPath string, opts patterns.ScanOptions) (*regiongraph.Store, *partition.Partition, error) {
+	store, err := readStore(path, opts)
+	if err != nil {
+		return nil, nil, err
+	}
+	regions, err := regionsFor(store, regionsPath, path)
+	if err != nil {
+		return nil, nil, err
+	}
+	return store, regions, nil
 }
 
 // regionsFor returns the regions a store was built on: from the given file
