@@ -634,10 +634,20 @@ func describeShift(name string, s Shift, scale float64, format, unit string) str
 	}
 	ci := "too few days for a 95 % interval"
 	if !math.IsInf(s.Low, 0) && !math.IsInf(s.High, 0) {
-		ci = fmt.Sprintf("95 %% CI "+format+" to "+format+"%s", s.Low*scale, s.High*scale, unit)
+		ci = "95 % CI " + signed(format, s.Low*scale) + " to " + signed(format, s.High*scale) + unit
 	}
-	return fmt.Sprintf("%s changed by "+format+"%s (%s; Mann-Whitney p %s, adjusted %s)",
-		name, s.Shift*scale, unit, ci, formatP(s.P), formatP(s.PAdjusted))
+	return fmt.Sprintf("%s changed by %s%s (%s; Mann-Whitney p %s, adjusted %s)",
+		name, signed(format, s.Shift*scale), unit, ci, formatP(s.P), formatP(s.PAdjusted))
+}
+
+// signed formats v with a sign format such as "%+.1f", but writes a value
+// that rounds to zero without a sign: "0.0", never "-0.0" or "+0.0".
+func signed(format string, v float64) string {
+	text := fmt.Sprintf(format, v)
+	if strings.Trim(text, "+-0.") == "" {
+		return strings.TrimLeft(text, "+-")
+	}
+	return text
 }
 
 func formatP(p float64) string {

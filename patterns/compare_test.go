@@ -743,3 +743,23 @@ func TestCompareRejectsDifferentWindows(t *testing.T) {
 		t.Errorf("same window: %v", err)
 	}
 }
+
+func TestSignedNeverShowsASignedZero(t *testing.T) {
+	for _, tc := range []struct {
+		format string
+		v      float64
+		want   string
+	}{
+		{"%+.1f", -0.04, "0.0"},
+		{"%+.1f", 0.04, "0.0"},
+		{"%+.1f", math.Copysign(0, -1), "0.0"},
+		{"%+.1f", -0.06, "-0.1"},
+		{"%+.1f", 2.14, "+2.1"},
+		{"%+.2f", -0.004, "0.00"},
+		{"%+.2f", -2.391, "-2.39"},
+	} {
+		if got := signed(tc.format, tc.v); got != tc.want {
+			t.Errorf("signed(%q, %v) = %q, want %q", tc.format, tc.v, got, tc.want)
+		}
+	}
+}

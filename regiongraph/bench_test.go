@@ -3,12 +3,14 @@ package regiongraph
 import (
 	"bufio"
 	"bytes"
+	"cmp"
 	"context"
 	"io"
 	"math/rand/v2"
 	"os"
 	"path/filepath"
 	"runtime"
+	"slices"
 	"strconv"
 	"sync"
 	"sync/atomic"
@@ -280,4 +282,124 @@ func BenchmarkLocateAndorra(b *testing.B) {
 	b.ReportMetric(float64(len(regions.Regions)), "regions")
 	b.ReportMetric(float64(vertices), "vertices")
 	b.ReportMetric(float64(interior)/float64(len(loc.cellRegion)), "interior-cell-share")
+}
+
+// yearStore returns a synthetic store of a year of day graphs over 2,000
+// regions: 3,670 edges a day (1.34 M in all) in one window.
+func yearStore() *Store { return syntheticStore(365, 2000, 3670, "am") }
+
+// syntheticStore returns a store of perDay random edges a day and window
+// among the given number of regions, trips falling off exponentially
+// (about 5 % of the edges have 10 or more), and values of full float64
+// precision, the hardest case for compression.
+func syntheticStore(days, regions, perDay int, windows ...string) *Store {
+	rng := rand.New(rand.NewPCG(7, 8))
+	s := &Store{Meta: Meta{RegionsSHA256: "ab12", TimeZone: "Europe/Berlin", Quality: Quality{Rejected: map[string]int64{}}}}
+	for _, r := range RejectReasons() {
+		s.Meta.Quality.Rejected[r] = 0
+	}
+	for i, w := range windows {
+		s.Meta.Windows = append(s.Meta.Windows, Window{w, 60 * i, 60 * (i + 1)})
+	}
+	day0 := time.Date(2024, 1, 1, 0, 0, 0, 0, time.UTC)
+	type pair struct{ from, to int }
+	sorted := slices.Sorted(slices.Values(windows))
+	for d := 0; d < days; d++ {
+		day := day0.AddDate(0, 0, d).Format(time.DateOnly)
+		for _, w := range sorted {
+			seen := make(map[pair]bool, perDay)
+			var pairs []pair
+			for len(pairs) < perDay {
+				p := pair{rng.IntN(regions), rng.IntN(regions)}
+				if p.from != p.to && !seen[p] {
+					seen[p] = true
+					pairs = append(pairs, p)
+				}
+			}
+			slices.SortFunc(pairs, func(a, b pair) int { return cmp.Or(cmp.Compare(a.from, b.from), cmp.Compare(a.to, b.to)) })
+			for _, p := range pairs {
+				trips := 1 + int(rng.ExpFloat64()*3)
+				speed := 3 + 12*rng.Float64()
+				detour := 1 + rng.Float64()
+				dist := 1000 + 9000*rng.Float64()
+				s.Edges = append(s.Edges, Edge{Day: day, Window: w, From: p.from, To: p.to, Trips: trips,
+					SpeedP25: speed * 0.8, SpeedMedian: speed, SpeedP75: speed * 1.2,
+					DetourP25: detour * 0.9, DetourMedian: detour, DetourP75: detour * 1.1,
+					DistanceMedian: dist, DurationMedian: dist / speed,
+					DistanceSum: dist * float64(trips), StraightSum: dist / detour * float64(trips), DurationSum: dist / speed * float64(trips)})
+			}
+		}
+	}
+	return s
+}
+
+// BenchmarkReadStore reads a year's store of 1.34 M edges (yearStore) in
+// full and with the minimum trips of a scan, and reports file rows per
+// second, the edges kept and the peak heap in use.
+func BenchmarkReadStore(b *testing.B) {
+	s := yearStore()
+	path := filepath.Join(b.TempDir(), "graphs.parquet")
+	t0 := time.Now()
+	if err := WriteFile(path, s); err != nil {
+		b.Fatal(err)
+	}
+	write := time.Since(t0)
+	fi, err := os.Stat(path)
+	if err != nil {
+		b.Fatal(err)
+	}
+	rows := len(s.Edges)
+	b.Logf("wrote %d edges, %.1f MB, in %.2f s", rows, float64(fi.Size())/1e6, write.Seconds())
+	s = nil
+	for _, bc := range []struct {
+		name string
+		opts ReadOptions
+	}{{"all", ReadOptions{}}, {"min-trips-10", ReadOptions{MinTrips: 10}}} {
+		b.Run(bc.name, func(b *testing.B) {
+			var kept int
+			var peak uint64
+			b.ReportAllocs()
+			for b.Loop() {
+				var err error
+				var got *Store
+				peak = peakHeap(func() { got, err = ReadFileOptions(path, bc.opts) })
+				if err != nil {
+					b.Fatal(err)
+				}
+				kept = len(got.Edges)
+			}
+			b.ReportMetric(float64(rows)*float64(b.N)/b.Elapsed().Seconds(), "rows/s")
+			b.ReportMetric(float64(kept), "edges")
+			b.ReportMetric(float64(peak)/(1<<20), "peak-heap-MB")
+		})
+	}
+}
+
+// peakHeap runs f and returns the peak heap in use, sampled every
+// millisecond.
+func peakHeap(f func()) uint64 {
+	runtime.GC()
+	var peak atomic.Uint64
+	stop, done := make(chan struct{}), make(chan struct{})
+	go func() {
+		defer close(done)
+		var ms runtime.MemStats
+		tick := time.NewTicker(time.Millisecond)
+		defer tick.Stop()
+		for {
+			runtime.ReadMemStats(&ms)
+			if ms.HeapInuse > peak.Load() {
+				peak.Store(ms.HeapInuse)
+			}
+			select {
+			case <-stop:
+				return
+			case <-tick.C:
+			}
+		}
+	}()
+	f()
+	close(stop)
+	<-done
+	return peak.Load()
 }

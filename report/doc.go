@@ -7,19 +7,24 @@
 //
 // Out:
 //   - a workbook (.xlsx) with the sheets listed by Sheets: a summary with the
-//     headline, input files, settings, verdict counts, cautions and a map
-//     picture; the ranked weak links and their edges; the comparison; daily
-//     values per finding edge; a daily timeline with a line chart; edge-days
-//     with a speed-against-detour scatter chart (candidates as their own
-//     series); regions; data quality; and the method;
+//     headline, the cautions, key figures, verdict counts, a map picture
+//     (region ids, arrows coloured by verdict) below its caption, and the
+//     input files and settings; the ranked weak links and their edges (in a
+//     comparison each period ranks its own, so the period is shown beside
+//     the rank); the comparison; daily values per finding edge; a daily
+//     timeline with a line chart; edge-days with a speed-against-detour
+//     scatter chart (candidates as their own series); regions; data
+//     quality; and the method. Every sheet prints landscape, one page wide,
+//     with its header row repeated;
 //   - map layers regions.geojson (polygons, RFC 7946 ring orientation) and
 //     findings.geojson (a line per finding edge between the regions'
 //     representative points);
-//   - an HTML page that opens offline, with the headline, the verdict table,
-//     an inline SVG map coloured by verdict with a legend, and the cautions.
+//   - an HTML page that opens offline, with the headline and the cautions,
+//     the verdict table, an inline SVG map coloured by verdict with a
+//     caption and a legend, the weak links and the input files.
 //
-// Units in every output: km/h, km, km², hours; the types hold m/s and
-// metres.
+// Units in every output: km/h, km, km², hours; detours are ratios of
+// travel to straight-line distance; the types hold m/s and metres.
 //
 // Values computed from fewer trips than Input.PublicationMinTrips
 // (DefaultPublicationMinTrips) are suppressed: the workbook shows "<10"

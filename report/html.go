@@ -10,9 +10,10 @@ import (
 )
 
 // WriteHTML writes a single page that opens offline (no scripts, fonts or
-// links to fetch): the headline, the verdict table, an inline SVG map of
-// regions and weak links coloured by verdict with a legend, the ranked
-// weak links, and the cautions. The page is also well-formed XML.
+// links to fetch): the headline and the cautions, the verdict table, an
+// inline SVG map of regions and weak links coloured by verdict with a
+// legend, the ranked weak links, and the input files. The page is also
+// well-formed XML.
 func WriteHTML(path string, in Input) error {
 	v, err := newView(in)
 	if err != nil {
@@ -37,7 +38,9 @@ type htmlRow struct {
 	Share, Trips, Speed, Detour   string
 	ExtraKM, ExtraHours           string
 	ShareBefore, ShareAfter       string
+	Period                        string // the period that ranks the row
 	SpeedShift, DetourShift, Note string
+	SpeedCI, DetourCI             string // 95 % intervals of the shifts
 	Focus                         bool
 }
 
@@ -48,6 +51,7 @@ type htmlPage struct {
 	Verdicts                       []htmlVerdict
 	Rows                           []htmlRow
 	Map                            template.HTML
+	MapCaption                     string
 	Cautions                       []string
 	Inputs                         [][2]string
 	MinTrips                       int
@@ -60,10 +64,17 @@ var pageTemplate = template.Must(template.New("page").Parse(`<!DOCTYPE html>
 <meta name="viewport" content="width=device-width, initial-scale=1"/>
 <title>{{.Title}}</title>
 <style>
-body { font-family: sans-serif; margin: 1.5em auto; max-width: 60em; padding: 0 1em; color: #000000; }
+body { font-family: sans-serif; margin: 1.5em auto; max-width: 68em; padding: 0 1em; color: #000000; }
 table { border-collapse: collapse; margin: 0.5em 0 1.5em 0; }
 th, td { border: 1px solid #BBBBBB; padding: 0.2em 0.5em; text-align: left; vertical-align: top; }
-td.num { text-align: right; }
+td.num { text-align: right; white-space: nowrap; }
+td.why { font-size: 0.85em; min-width: 22em; }
+.ci { font-size: 0.85em; color: #444444; }
+table#findings { font-size: 0.95em; }
+.nowrap { white-space: nowrap; }
+.cautions { border: 1px solid #E69F00; background: #FFF8E6; padding: 0.3em 1em; margin: 0.5em 0 1.5em 0; }
+.cautions h2 { font-size: 1.1em; margin: 0.4em 0; }
+.caption { max-width: 50em; }
 .swatch { display: inline-block; min-width: 6em; padding: 0.1em 0.4em; }
 .headline { font-size: 1.2em; }
 .supp { color: #777777; }
@@ -76,22 +87,25 @@ td.num { text-align: right; }
 <table>
 {{range .Periods}}<tr><th>{{index . 0}}</th><td>{{index . 1}}</td></tr>
 {{end}}</table>
+<div class="cautions">
+<h2>Read with care</h2>
+<ul id="cautions">
+{{range .Cautions}}<li>{{.}}</li>
+{{end}}</ul>
+</div>
 {{if .Comparing}}<h2>Verdicts</h2>
 <table id="verdicts">
 <tr><th>Verdict</th><th>Weak links</th><th>Meaning</th>{{if .Focus}}<th>In focus area</th>{{end}}</tr>
 {{range .Verdicts}}<tr><td><span class="swatch" style="background: {{.Colour}}; color: {{.Text}}">{{.Name}}</span></td><td class="num">{{.Count}}</td><td>{{.Meaning}}</td>{{if $.Focus}}<td class="num">{{.Focus}}</td>{{end}}</tr>
 {{end}}</table>{{end}}
 <h2>Map</h2>
+<p class="caption">{{.MapCaption}}</p>
 {{.Map}}
 <h2>Weak links</h2>
 {{if .Rows}}<table id="findings">
-<tr><th>Rank</th><th>Weak link</th><th>Edges</th>{{if .Comparing}}<th>Verdict</th><th>Share before</th><th>Share after</th><th>Speed shift km/h</th><th>Detour shift</th><th>Why</th>{{else}}<th>Share of days</th><th>Trips per day</th><th>Speed km/h</th><th>Detour</th><th>Extra km per day</th><th>Extra vehicle-hours per day</th>{{end}}</tr>
-{{range .Rows}}<tr><td class="num">{{.Rank}}</td><td>{{.ID}}{{if .Focus}} (focus){{end}}</td><td>{{.Edges}}</td>{{if $.Comparing}}<td><span class="swatch" style="background: {{.Colour}}; color: {{.Text}}">{{.Verdict}}</span></td><td class="num">{{.ShareBefore}}</td><td class="num">{{.ShareAfter}}</td><td class="num">{{.SpeedShift}}</td><td class="num">{{.DetourShift}}</td><td>{{.Note}}</td>{{else}}<td class="num">{{.Share}}</td><td class="num">{{.Trips}}</td><td class="num">{{.Speed}}</td><td class="num">{{.Detour}}</td><td class="num">{{.ExtraKM}}</td><td class="num">{{.ExtraHours}}</td>{{end}}</tr>
+<tr>{{if .Comparing}}<th>Rank (period)</th>{{else}}<th>Rank</th>{{end}}<th>Weak link (edges)</th>{{if .Comparing}}<th>Verdict</th><th>Trips per day</th><th>Days recurring before</th><th>Days recurring after</th><th>Speed shift km/h (95 % CI)</th><th>Detour ratio shift (95 % CI)</th><th>Why</th>{{else}}<th>Share of days</th><th>Trips per day</th><th>Speed km/h</th><th>Detour ratio</th><th>Extra km per day</th><th>Extra vehicle-hours per day</th>{{end}}</tr>
+{{range .Rows}}<tr><td class="num">{{.Rank}}{{if $.Comparing}} ({{.Period}}){{end}}</td><td title="Edges {{.Edges}}">{{.ID}}{{if .Focus}} (focus){{end}}</td>{{if $.Comparing}}<td><span class="swatch" style="background: {{.Colour}}; color: {{.Text}}">{{.Verdict}}</span></td><td class="num">{{.Trips}}</td><td class="num">{{.ShareBefore}}</td><td class="num">{{.ShareAfter}}</td><td class="num">{{.SpeedShift}}{{if .SpeedCI}}<br/><span class="ci">{{.SpeedCI}}</span>{{end}}</td><td class="num">{{.DetourShift}}{{if .DetourCI}}<br/><span class="ci">{{.DetourCI}}</span>{{end}}</td><td class="why">{{.Note}}</td>{{else}}<td class="num">{{.Share}}</td><td class="num">{{.Trips}}</td><td class="num">{{.Speed}}</td><td class="num">{{.Detour}}</td><td class="num">{{.ExtraKM}}</td><td class="num">{{.ExtraHours}}</td>{{end}}</tr>
 {{end}}</table>{{else}}<p>No weak link recurred.</p>{{end}}
-<h2>Cautions</h2>
-<ul id="cautions">
-{{range .Cautions}}<li>{{.}}</li>
-{{end}}</ul>
 <h2>Inputs</h2>
 <table>
 <tr><th>File</th><th>SHA-256</th></tr>
@@ -104,15 +118,16 @@ td.num { text-align: right; }
 
 func (v *view) html() ([]byte, error) {
 	pg := htmlPage{
-		Title:     v.in.Title,
-		Area:      v.in.Area,
-		Headline:  Headline(v.in),
-		Version:   v.in.Version,
-		Comparing: v.comparing(),
-		Focus:     len(v.focusCounts) > 0,
-		Map:       template.HTML(v.svg()), // built from escaped parts in svg()
-		Cautions:  v.cautions(),
-		MinTrips:  v.minTrips,
+		Title:      v.in.Title,
+		Area:       v.in.Area,
+		Headline:   Headline(v.in),
+		Version:    v.in.Version,
+		Comparing:  v.comparing(),
+		Focus:      len(v.focusCounts) > 0,
+		Map:        template.HTML(v.svg()), // built from escaped parts in svg()
+		MapCaption: v.mapCaption(),
+		Cautions:   v.cautions(),
+		MinTrips:   v.minTrips,
 	}
 	if pg.Title == "" {
 		pg.Title = "narrows study"
@@ -141,7 +156,7 @@ func (v *view) html() ([]byte, error) {
 		if v.suppressed(t.Trips) {
 			row.Trips, row.Speed, row.Detour, row.ExtraKM, row.ExtraHours = v.countMark(), v.valueMark(), v.valueMark(), v.valueMark(), v.valueMark()
 		} else {
-			row.Trips = fmtFixed(t.Trips, 1)
+			row.Trips = strconv.FormatFloat(roundTo(t.Trips, 1), 'f', -1, 64)
 			row.Speed = fmtFixed(kmh(t.Speed), 1)
 			row.Detour = fmtFixed(t.Detour, 2)
 			row.ExtraKM = fmtFixed(f.ExtraKMPerDay, 1)
@@ -149,13 +164,17 @@ func (v *view) html() ([]byte, error) {
 		}
 		if a := it.Assessment; a != nil {
 			row.Focus = a.Focus
+			row.Period = "before"
+			if !a.InBefore {
+				row.Period = "after"
+			}
 			row.ShareBefore = fmtShare(a.DaysBefore, a.TotalBefore)
 			row.ShareAfter = fmtShare(a.DaysAfter, a.TotalAfter)
 			if v.suppressed(t.Trips) {
 				row.SpeedShift, row.DetourShift = v.valueMark(), v.valueMark()
 			} else {
-				row.SpeedShift = fmtInterval(kmh(a.Speed.Shift), kmh(a.Speed.Low), kmh(a.Speed.High), 1)
-				row.DetourShift = fmtInterval(a.Detour.Shift, a.Detour.Low, a.Detour.High, 2)
+				row.SpeedShift, row.SpeedCI = fmtInterval(kmh(a.Speed.Shift), kmh(a.Speed.Low), kmh(a.Speed.High), 1)
+				row.DetourShift, row.DetourCI = fmtInterval(a.Detour.Shift, a.Detour.Low, a.Detour.High, 2)
 			}
 			row.Note = a.Reason
 		}
@@ -187,18 +206,18 @@ func fmtShare(days, total int) string {
 	return fmt.Sprintf("%d/%d (%s)", days, total, formatPercent(float64(days)/float64(total)))
 }
 
-func fmtInterval(x, lo, hi float64, d int) string {
+func fmtInterval(x, lo, hi float64, d int) (shift, interval string) {
 	if !finite(x) {
-		return "n/a"
+		return "n/a", ""
 	}
-	s := fmtFixed(x, d)
-	if x > 0 {
-		s = "+" + s
+	shift = fmtFixed(x, d)
+	if roundTo(x, d) > 0 {
+		shift = "+" + shift
 	}
 	if finite(lo) && finite(hi) {
-		s += " (" + fmtFixed(lo, d) + " to " + fmtFixed(hi, d) + ")"
+		interval = "(" + fmtFixed(lo, d) + " to " + fmtFixed(hi, d) + ")"
 	}
-	return s
+	return shift, interval
 }
 
 // clean replaces, in every text of the page, the characters XML cannot
@@ -207,6 +226,7 @@ func fmtInterval(x, lo, hi float64, d int) string {
 // characters through.
 func (pg *htmlPage) clean() {
 	pg.Title, pg.Area, pg.Headline, pg.Version = cleanText(pg.Title), cleanText(pg.Area), cleanText(pg.Headline), cleanText(pg.Version)
+	pg.MapCaption = cleanText(pg.MapCaption)
 	for i := range pg.Periods {
 		pg.Periods[i] = [2]string{cleanText(pg.Periods[i][0]), cleanText(pg.Periods[i][1])}
 	}

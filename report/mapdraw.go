@@ -262,9 +262,9 @@ func pathData(p projection, poly orb.Polygon) string {
 	return b.String()
 }
 
-// png renders the map without text (the workbook has the legend next to
-// the picture): region polygons by scanline fill, region borders, and the
-// finding lines with arrowheads.
+// png renders the map without a legend (the workbook's verdict cells and
+// caption serve as one): region polygons by scanline fill, region borders,
+// the finding lines with arrowheads, and the region points with their ids.
 func (v *view) png() ([]byte, error) {
 	p := v.projection()
 	img := image.NewRGBA(image.Rect(0, 0, p.W, p.H))
@@ -309,9 +309,11 @@ func (v *view) png() ([]byte, error) {
 		bx, by := s.X2-ux*length, s.Y2-uy*length
 		fillPolygon(img, [][][2]float64{{{s.X2 + ux*2, s.Y2 + uy*2}, {bx - uy*half, by + ux*half}, {bx + uy*half, by - ux*half}}}, c)
 	}
+	label := color.RGBA{85, 85, 85, 255}
 	for _, r := range v.in.Regions.Regions {
 		x, y := p.xy(r.Point)
-		fillDisc(img, x, y, 2.5, color.RGBA{85, 85, 85, 255})
+		fillDisc(img, x, y, 2.5, label)
+		drawRegionLabel(img, r.ID, x, y, label)
 	}
 	var buf bytes.Buffer
 	if err := png.Encode(&buf, img); err != nil {

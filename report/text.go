@@ -243,3 +243,27 @@ func roundTo(x float64, d int) float64 {
 	}
 	return r
 }
+
+// mapCaption says how to read the map, in the workbook and on the page.
+func (v *view) mapCaption() string {
+	s := "Regions bounded by major roads are grey, numbered by region id"
+	if len(v.focus) > 0 {
+		s += "; the focus area is yellow"
+	}
+	s += ". Each weak link edge is an arrow from its origin region to its destination region, drawn a little to the right of travel so that both directions show."
+	if v.comparing() {
+		s += " Arrows are coloured by verdict as in the verdict table; dashed: cleared, dotted: new."
+	}
+	return s
+}
+
+// timelineTitle is the title of the daily timeline chart, which names the
+// periods because the chart draws them as one run of days.
+func (v *view) timelineTitle() string {
+	s := "Candidates and recurring weak links per day"
+	if v.comparing() {
+		b, a := v.periods[0].Scan, v.periods[1].Scan
+		s += " (before: " + dayRange(b) + "; after: " + dayRange(a) + ")"
+	}
+	return s
+}

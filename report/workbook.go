@@ -4,6 +4,7 @@ import (
 	"archive/zip"
 	"bytes"
 	"fmt"
+	"image/png"
 	"io"
 	"math"
 	"sort"
@@ -61,8 +62,8 @@ func WriteWorkbook(path string, in Input) error {
 
 // styles holds the workbook's cell style ids.
 type styles struct {
-	title, bold, header, text, wrap, integer, dec1, dec2, dec3, p4, sci, pct, supp int
-	verdict                                                                        map[patterns.Verdict]int
+	title, bold, header, text, wrap, integer, intLeft, intCentre, centre, indent, mono, dec1, signed1, signed2, dec2, dec3, p4, sci, pct, supp int
+	verdict                                                                                                                                    map[patterns.Verdict]int
 }
 
 // cell is one value to write: a string (always a string cell), int,
@@ -80,6 +81,10 @@ type sheet struct {
 	row      int // next row, 1-based
 	widths   map[int]int
 	maxWidth int // widest column in characters; below 60 means 60
+	// headRow and headNames are the table header, whose row height
+	// finish sets so that every wrapped header shows in full.
+	headRow   int
+	headNames []string
 }
 
 type book struct {
@@ -221,14 +226,10 @@ func (s *sheet) header(names ...string) int {
 	for i, n := range names {
 		prev := s.widths[i+1]
 		s.put(i+1, r, cell{n, s.b.st.header})
-		// Headers wrap onto two lines, so they count only up to a modest
-		// width.
-		s.widths[i+1] = max(prev, min(utf8.RuneCountInString(n), 14))
+		s.widths[i+1] = max(prev, headerWidth(n))
 	}
 	s.row++
-	if s.b.err == nil {
-		s.b.fail(s.b.f.SetRowHeight(s.name, r, 32))
-	}
+	s.headRow, s.headNames = r, names
 	if s.b.err == nil {
 		s.b.fail(s.b.f.SetPanes(s.name, &excelize.Panes{Freeze: true, YSplit: r, TopLeftCell: "A" + strconv.Itoa(r+1), ActivePane: "bottomLeft"}))
 	}
@@ -250,21 +251,101 @@ func (s *sheet) filter(head, cols int) {
 	s.b.fail(s.b.f.AutoFilter(s.name, "A"+strconv.Itoa(head)+":"+end, nil))
 }
 
-// finish sets column widths from the widest value, within limits.
+// finish sets column widths from the widest value, within limits, makes
+// the header row tall enough for its wrapped names and sets the sheet up
+// for printing.
 func (s *sheet) finish() {
 	cols := make([]int, 0, len(s.widths))
 	for c := range s.widths {
 		cols = append(cols, c)
 	}
 	sort.Ints(cols)
+	final := map[int]int{}
 	for _, c := range cols {
 		if s.b.err != nil {
 			return
 		}
 		name, err := excelize.ColumnNumberToName(c)
 		s.b.fail(err)
-		w := float64(min(max(s.widths[c]+2, 8), max(s.maxWidth, 60)))
-		s.b.fail(s.b.f.SetColWidth(s.name, name, name, w))
+		w := colWidth(s.widths[c], max(s.maxWidth, 60))
+		final[c] = w
+		s.b.fail(s.b.f.SetColWidth(s.name, name, name, float64(w)))
+	}
+	if s.headRow > 0 && s.b.err == nil {
+		lines := 1
+		for i, n := range s.headNames {
+			lines = max(lines, wrappedLines(n, final[i+1]))
+		}
+		s.b.fail(s.b.f.SetRowHeight(s.name, s.headRow, headerHeight(lines)))
+	}
+	s.b.printSetup(s.name, s.headRow)
+}
+
+// colWidth is the column width for values up to chars characters wide,
+// at most limit. Widths count in digit widths of the default font; ids
+// such as "18>24+24>18" and names are a little wider than digits, hence
+// the tenth added, and three characters of padding (text is indented).
+func colWidth(chars, limit int) int { return min(max(chars+chars/10+3, 8), limit) }
+
+// Header cells wrap at word boundaries. A header counts towards its
+// column's width only up to about half its length, so that long names take
+// two or three short lines rather than one wide column; the header row is
+// then made tall enough for the most lines any header needs.
+const headerMaxWidth = 16
+
+// headerWidth is the width in characters a header asks of its column.
+func headerWidth(name string) int {
+	longest := 0
+	for _, w := range strings.Fields(name) {
+		longest = max(longest, utf8.RuneCountInString(w))
+	}
+	half := (utf8.RuneCountInString(name) + 1) / 2
+	return min(max(longest, half), headerMaxWidth)
+}
+
+// wrappedLines counts the lines name takes when wrapped at spaces into a
+// column width characters wide. A cell holds about width-1 characters of
+// the default font a line (the rest is padding); a word longer than that
+// is broken.
+func wrappedLines(name string, width int) int {
+	perLine := max(width-1, 1)
+	lines, used := 1, 0
+	for _, w := range strings.Fields(name) {
+		n := utf8.RuneCountInString(w)
+		switch {
+		case used == 0:
+			used = n
+		case used+1+n <= perLine:
+			used += 1 + n
+		default:
+			lines++
+			used = n
+		}
+		for used > perLine {
+			lines++
+			used -= perLine
+		}
+	}
+	return lines
+}
+
+// headerHeight is the row height in points for lines of bold 11 pt text.
+func headerHeight(lines int) float64 { return float64(max(lines, 2))*15 + 2 }
+
+// printSetup makes a sheet print legibly: landscape, one page wide, the
+// header row (headRow, 0 for none) repeated on every page.
+func (b *book) printSetup(name string, headRow int) {
+	if b.err != nil {
+		return
+	}
+	landscape := "landscape"
+	wide, tall := 1, 0 // one page wide, as many pages tall as needed
+	fit := true
+	b.fail(b.f.SetSheetProps(name, &excelize.SheetPropsOptions{FitToPage: &fit}))
+	b.fail(b.f.SetPageLayout(name, &excelize.PageLayoutOptions{Orientation: &landscape, FitToWidth: &wide, FitToHeight: &tall}))
+	if headRow > 0 && b.err == nil {
+		r := strconv.Itoa(headRow)
+		b.fail(b.f.SetDefinedName(&excelize.DefinedName{Name: "_xlnm.Print_Titles", RefersTo: "'" + name + "'!$" + r + ":$" + r, Scope: name}))
 	}
 }
 
@@ -274,25 +355,42 @@ func (b *book) newStyles() {
 		if b.err != nil {
 			return 0
 		}
+		// Everything aligns to the top, so that the cells of a row whose
+		// text wraps (the reasons, the method) line up.
+		if st.Alignment == nil {
+			st.Alignment = &excelize.Alignment{}
+		}
+		if st.Alignment.Vertical == "" {
+			st.Alignment.Vertical = "top"
+		}
 		id, err := f.NewStyle(st)
 		b.fail(err)
 		return id
 	}
 	custom := func(format string) *excelize.Style { return &excelize.Style{CustomNumFmt: &format} }
 	b.st = styles{
-		title:   mk(&excelize.Style{Font: &excelize.Font{Bold: true, Size: 16}}),
-		bold:    mk(&excelize.Style{Font: &excelize.Font{Bold: true}}),
-		header:  mk(&excelize.Style{Font: &excelize.Font{Bold: true}, Fill: excelize.Fill{Type: "pattern", Pattern: 1, Color: []string{"#DDDDDD"}}, Alignment: &excelize.Alignment{WrapText: true, Vertical: "top"}, Border: []excelize.Border{{Type: "bottom", Color: "#888888", Style: 1}}}),
-		text:    mk(&excelize.Style{NumFmt: 49}), // "@": text
-		wrap:    mk(&excelize.Style{NumFmt: 49, Alignment: &excelize.Alignment{WrapText: true, Vertical: "top"}}),
-		integer: mk(&excelize.Style{NumFmt: 1}),
-		dec1:    mk(custom("0.0")),
-		dec2:    mk(&excelize.Style{NumFmt: 2}),
-		dec3:    mk(custom("0.000")),
+		title:     mk(&excelize.Style{Font: font(true, 16, "")}),
+		bold:      mk(&excelize.Style{Font: font(true, 0, "")}),
+		header:    mk(&excelize.Style{Font: font(true, 0, ""), Fill: excelize.Fill{Type: "pattern", Pattern: 1, Color: []string{"#DDDDDD"}}, Alignment: &excelize.Alignment{WrapText: true, Vertical: "top", Horizontal: "center"}, Border: []excelize.Border{{Type: "bottom", Color: "#888888", Style: 1}}}),
+		text:      mk(&excelize.Style{NumFmt: 49, Alignment: &excelize.Alignment{Indent: 1}}), // "@": text, set off from a number to its left
+		wrap:      mk(&excelize.Style{NumFmt: 49, Alignment: &excelize.Alignment{WrapText: true, Vertical: "top", Horizontal: "left"}}),
+		integer:   mk(&excelize.Style{NumFmt: 1}),
+		intLeft:   mk(&excelize.Style{NumFmt: 1, Alignment: &excelize.Alignment{Horizontal: "left"}}),
+		intCentre: mk(&excelize.Style{NumFmt: 1, Alignment: &excelize.Alignment{Horizontal: "center"}}),
+		indent:    mk(&excelize.Style{NumFmt: 49, Alignment: &excelize.Alignment{Indent: 1}}),
+		dec1:      mk(custom("0.0")),
+		dec2:      mk(&excelize.Style{NumFmt: 2}),
+		dec3:      mk(custom("0.000")),
+		// Shifts carry their sign, so that the direction of change reads
+		// at a glance.
+		signed1: mk(custom("+0.0;-0.0;0.0")),
+		signed2: mk(custom("+0.00;-0.00;0.00")),
+		centre:  mk(&excelize.Style{NumFmt: 49, Alignment: &excelize.Alignment{Horizontal: "center"}}),
+		mono:    mk(&excelize.Style{NumFmt: 49, Font: &excelize.Font{Family: "Consolas", Size: 10}}),
 		p4:      mk(custom("0.0000")),
 		sci:     mk(&excelize.Style{NumFmt: 11}), // 0.00E+00
 		pct:     mk(custom("0.0%")),
-		supp:    mk(&excelize.Style{NumFmt: 49, Font: &excelize.Font{Color: "#808080", Italic: true}, Alignment: &excelize.Alignment{Horizontal: "right"}}),
+		supp:    mk(&excelize.Style{NumFmt: 49, Font: &excelize.Font{Family: fontFamily, Size: fontSize, Color: "#808080", Italic: true}, Alignment: &excelize.Alignment{Horizontal: "right"}}),
 		verdict: map[patterns.Verdict]int{},
 	}
 	for _, vd := range append(append([]patterns.Verdict{""}, verdictOrder[:]...), b.v.verdicts...) {
@@ -300,8 +398,24 @@ func (b *book) newStyles() {
 			continue
 		}
 		lk := lookOf(vd)
-		b.st.verdict[vd] = mk(&excelize.Style{NumFmt: 49, Fill: excelize.Fill{Type: "pattern", Pattern: 1, Color: []string{lk.Hex}}, Font: &excelize.Font{Color: lk.Text}})
+		b.st.verdict[vd] = mk(&excelize.Style{NumFmt: 49, Alignment: &excelize.Alignment{Horizontal: "center"}, Fill: excelize.Fill{Type: "pattern", Pattern: 1, Color: []string{lk.Hex}}, Font: font(false, 0, lk.Text)})
 	}
+}
+
+// The workbook's font. Styles name it explicitly: a style font without a
+// family makes LibreOffice fall back to a serif face for those cells only.
+const (
+	fontFamily = "Calibri"
+	fontSize   = 11
+)
+
+// font is the workbook font, bold or not, at size points (0 for the
+// default size) in colour ("" for automatic).
+func font(bold bool, size float64, colour string) *excelize.Font {
+	if size == 0 {
+		size = fontSize
+	}
+	return &excelize.Font{Family: fontFamily, Size: size, Bold: bold, Color: colour}
 }
 
 // Cell constructors.
@@ -313,6 +427,9 @@ func (b *book) num(x float64, style int) cell {
 	return cell{x, style}
 }
 func (b *book) count(n int) cell { return cell{n, b.st.integer} }
+
+// leftCount is a count in a label-value list, aligned with the text values.
+func (b *book) leftCount(n int) cell { return cell{n, b.st.intLeft} }
 
 // pval is a p-value cell: four decimals, or scientific notation below
 // 0.0001 so that very small p-values do not read as zero.
@@ -391,7 +508,8 @@ func (v *view) workbook() ([]byte, error) {
 // writes stream-written sheets in map order, so without this two writes of
 // the same workbook differ. It rewrites [Content_Types].xml with its
 // Default elements sorted and puts the parts in descending name order;
-// every other part is copied unchanged (still compressed).
+// it also repairs the chart parts (see fixChart). Every other part is
+// copied unchanged (still compressed).
 func sortContentTypes(pkg []byte) ([]byte, error) {
 	zr, err := zip.NewReader(bytes.NewReader(pkg), int64(len(pkg)))
 	if err != nil {
@@ -404,7 +522,7 @@ func sortContentTypes(pkg []byte) ([]byte, error) {
 	var out bytes.Buffer
 	zw := zip.NewWriter(&out)
 	for _, zf := range files {
-		if zf.Name != "[Content_Types].xml" {
+		if zf.Name != "[Content_Types].xml" && !strings.HasPrefix(zf.Name, "xl/charts/chart") {
 			raw, err := zf.OpenRaw()
 			if err != nil {
 				return nil, err
@@ -431,7 +549,12 @@ func sortContentTypes(pkg []byte) ([]byte, error) {
 		if err != nil {
 			return nil, err
 		}
-		if _, err := w.Write(sortElements(data, "<Default ", "</Default>")); err != nil {
+		if zf.Name == "[Content_Types].xml" {
+			data = sortElements(data, "<Default ", "</Default>")
+		} else {
+			data = fixChart(data)
+		}
+		if _, err := w.Write(data); err != nil {
 			return nil, err
 		}
 	}
@@ -439,6 +562,20 @@ func sortContentTypes(pkg []byte) ([]byte, error) {
 		return nil, err
 	}
 	return out.Bytes(), nil
+}
+
+// fixChart repairs two things excelize v2.11.1 writes into chart parts:
+// a scatter chart's x values as a string reference, which spreadsheet
+// programs then plot as categories 1, 2, 3... instead of the detour ratios;
+// and series names only as cell references, so that the literal names of
+// the scatter series would show as "Column G" or an error.
+func fixChart(data []byte) []byte {
+	data = bytes.ReplaceAll(data, []byte("<xVal><strRef>"), []byte("<xVal><numRef>"))
+	data = bytes.ReplaceAll(data, []byte("</strRef></xVal>"), []byte("</numRef></xVal>"))
+	for _, name := range []string{scatterOthers, scatterCandidates} {
+		data = bytes.ReplaceAll(data, []byte("<tx><strRef><f>"+name+"</f></strRef></tx>"), []byte("<tx><v>"+name+"</v></tx>"))
+	}
+	return data
 }
 
 // sortElements sorts the elements that start with open and end with close
@@ -474,6 +611,18 @@ func sortElements(data []byte, open, close string) []byte {
 	return b.Bytes()
 }
 
+// pictureRowPixels is the height of the rows under the map picture: 20
+// pixels, 15 pt.
+const pictureRowPixels = 20
+
+// mapScale is the scale of the map picture on the summary sheet: at full
+// size its pixel-font region ids stay crisp.
+const mapScale = 1.0
+
+// summary writes the first sheet in the order a reader needs it: the
+// headline and the cautions, the study's key figures, the verdicts, the map
+// (below its caption, so that it shows without scrolling sideways), then
+// the input files and settings that make the study reproducible.
 func (b *book) summary() {
 	v := b.v
 	s := b.newSheet(SheetSummary)
@@ -482,7 +631,13 @@ func (b *book) summary() {
 		title = "narrows study"
 	}
 	s.add(cell{title, b.st.title})
-	s.para(Headline(v.in), "C", 110) // long: kept out of the widths
+	b.fail(b.f.SetRowHeight(s.name, 1, 24)) // room for the 16 pt title
+	s.para(Headline(v.in), "D", 90)         // long: kept out of the widths
+	s.skip(1)
+	s.add(cell{"Cautions", b.st.bold})
+	for _, c := range v.cautions() {
+		s.para(c, "D", 90)
+	}
 	s.skip(1)
 	kv := func(k string, val cell) { s.add(cell{k, b.st.bold}, val) }
 	if v.in.Area != "" {
@@ -490,23 +645,62 @@ func (b *book) summary() {
 	}
 	for _, p := range v.periods {
 		kv("Period "+p.Label, b.str(dayRange(p.Scan)))
-		kv("Analysed days "+p.Label, b.count(len(p.Scan.Days)))
-		kv("Weak links "+p.Label, b.count(len(p.Scan.Findings)))
+		kv("Analysed days "+p.Label, b.leftCount(len(p.Scan.Days)))
+		kv("Weak links "+p.Label, b.leftCount(len(p.Scan.Findings)))
 	}
 	if w := v.periods[0].Scan.Window; w != "" {
 		kv("Time window", b.str(w))
 	}
-	kv("Regions", b.count(len(v.in.Regions.Regions)))
-	kv("Publication threshold (trips)", b.count(v.minTrips))
+	kv("Regions", b.leftCount(len(v.in.Regions.Regions)))
+	kv("Publication threshold (trips)", b.leftCount(v.minTrips))
 	if v.in.Version != "" {
 		kv("Made by", b.str("narrows "+v.in.Version))
 	}
 	s.skip(1)
-
+	if v.comparing() {
+		s.add(cell{"Verdicts", b.st.bold})
+		// Meaning comes last so that its long text runs on to the right
+		// instead of being cut off by the next column.
+		s.add(cell{"Verdict", b.st.header}, cell{"Weak links", b.st.header}, cell{"In focus area", b.st.header}, cell{"Meaning", b.st.header})
+		for _, vd := range v.shownVerdicts() {
+			s.add(cell{string(vd), b.st.verdict[vd]}, cell{v.counts[vd], b.st.intCentre}, cell{v.focusCounts[vd], b.st.intCentre}, cell{verdictMeaning(vd), b.st.indent})
+		}
+		focus := 0
+		for _, n := range v.focusCounts {
+			focus += n
+		}
+		s.add(cell{"Total", b.st.bold}, cell{len(v.items), b.st.intCentre}, cell{focus, b.st.intCentre})
+		s.skip(1)
+	}
+	s.add(cell{"Map", b.st.bold})
+	s.para(v.mapCaption(), "D", 90)
+	picRow := s.row
+	pic, err := v.png()
+	if err != nil {
+		b.fail(err)
+		return
+	}
+	if cfg, err := png.DecodeConfig(bytes.NewReader(pic)); err == nil {
+		// Leave room for the picture. The rows it covers get an explicit
+		// height: programs differ in their default row height (LibreOffice
+		// uses less than 15 pt), and the picture must not cover the input
+		// files below it.
+		n := int(math.Ceil(float64(cfg.Height)*mapScale/pictureRowPixels)) + 1
+		for r := picRow; r < picRow+n && b.err == nil; r++ {
+			b.fail(b.f.SetRowHeight(s.name, r, pictureRowPixels*0.75))
+		}
+		s.skip(n)
+	}
 	s.add(cell{"Input files", b.st.bold})
-	s.add(cell{"File", b.st.header}, cell{"SHA-256", b.st.header}, cell{"Rows", b.st.header})
+	// The long SHA-256 comes last and runs on to the right, so that it
+	// does not widen column B for the whole sheet.
+	s.add(cell{"File", b.st.header}, cell{"Trip rows", b.st.header}, cell{"SHA-256", b.st.header})
 	for _, src := range v.in.Inputs {
-		s.add(b.str(src.Path), b.str(src.SHA256), cell{src.Rows, b.st.integer})
+		rows := cell{}
+		if src.Rows > 0 { // only trip files have rows counted
+			rows = cell{src.Rows, b.st.intLeft}
+		}
+		s.add(b.str(src.Path), rows, cell{src.SHA256, b.st.mono})
 	}
 	s.skip(1)
 	s.add(cell{"Settings", b.st.bold})
@@ -514,52 +708,32 @@ func (b *book) summary() {
 	for _, kv := range v.in.Settings {
 		s.add(b.str(kv[0]), b.str(kv[1]))
 	}
-	s.skip(1)
-	if v.comparing() {
-		s.add(cell{"Verdicts", b.st.bold})
-		s.add(cell{"Verdict", b.st.header}, cell{"Weak links", b.st.header}, cell{"Meaning", b.st.header}, cell{"In focus area", b.st.header})
-		for _, vd := range v.shownVerdicts() {
-			s.add(cell{string(vd), b.st.verdict[vd]}, b.count(v.counts[vd]), b.str(verdictMeaning(vd)), b.count(v.focusCounts[vd]))
-		}
-		focus := 0
-		for _, n := range v.focusCounts {
-			focus += n
-		}
-		s.add(cell{"Total", b.st.bold}, b.count(len(v.items)), cell{}, b.count(focus))
-		s.skip(1)
-	}
-	s.add(cell{"Cautions", b.st.bold})
-	for _, c := range v.cautions() {
-		s.para(c, "C", 110)
-	}
-	s.skip(1)
-	s.add(cell{"Map", b.st.bold})
-	s.para("The picture to the right shows the regions (grey, focus area yellow) and the weak links as arrows from origin to destination region, coloured as the verdict cells above; dashed: cleared, dotted: new.", "C", 110)
+	// Column B holds short values (dates, counts); longer ones, such as
+	// some settings, run on into the empty columns beside them.
 	s.widths[1] = min(max(s.widths[1], 30), 40)
-	s.widths[2] = max(min(s.widths[2], 66), 20)
-	s.widths[3] = max(min(s.widths[3], 40), 10)
+	s.widths[2] = max(min(s.widths[2], 24), 12)
+	s.widths[3] = max(min(s.widths[3], 14), 10)
+	s.widths[4] = 12 // the verdict meanings run on to the right
 	s.finish()
 	if b.err != nil {
 		return
 	}
-	pic, err := v.png()
-	if err != nil {
-		b.fail(err)
-		return
-	}
-	b.fail(b.f.AddPictureFromBytes(SheetSummary, "E2", &excelize.Picture{
+	b.fail(b.f.AddPictureFromBytes(SheetSummary, "A"+strconv.Itoa(picRow), &excelize.Picture{
 		Extension: ".png",
 		File:      pic,
-		Format:    &excelize.GraphicOptions{AltText: "Map of regions and weak links", ScaleX: 0.75, ScaleY: 0.75},
+		// Anchored at one cell, so that its size is its own: excelize
+		// computes the far corner of a two-cell anchor with 18 pixels for
+		// a 15 pt (20 pixel) row, which stretches the map by a ninth.
+		Format: &excelize.GraphicOptions{AltText: "Map of regions and weak links", ScaleX: mapScale, ScaleY: mapScale, OffsetX: 4, OffsetY: 4, Positioning: "oneCell"},
 	}))
 }
 
 func (b *book) findings() {
 	v := b.v
 	s := b.newSheet(SheetFindings)
-	cols := []string{"Rank", "Weak link", "Regions", "Edges", "Days recurring", "Share of days", "Trips per day", "Speed km/h", "Detour", "Extra km per day", "Extra vehicle-hours per day"}
+	cols := append(v.rankColumns(), "Weak link", "Regions", "Edges", "Days recurring", "Share of days", "Trips per day", "Speed km/h", "Detour ratio", "Extra km per day", "Extra vehicle-hours per day")
 	if v.comparing() {
-		cols = append(cols, "Verdict", "Focus", "Period of these values")
+		cols = append(cols, "Verdict", "Focus")
 	}
 	head := s.header(cols...)
 	for _, it := range v.items {
@@ -569,18 +743,13 @@ func (b *book) findings() {
 		for i, e := range f.Edges {
 			edges[i] = edgeLabel(e.From, e.To)
 		}
-		row := []cell{
-			b.count(f.Rank), b.str(f.ID), b.str(joinInts(f.Regions)), b.str(strings.Join(edges, ", ")),
+		row := append(b.rankCells(it), b.str(f.ID), b.str(joinInts(f.Regions)), b.str(strings.Join(edges, ", ")),
 			b.count(len(f.Days)), b.num(f.Share, b.st.pct),
 			b.trips(t.Trips), b.gated(t.Trips, kmh(t.Speed), b.st.dec1), b.gated(t.Trips, t.Detour, b.st.dec2),
 			b.gated(t.Trips, f.ExtraKMPerDay, b.st.dec1), b.gated(t.Trips, f.ExtraHoursPerDay, b.st.dec2),
-		}
+		)
 		if a := it.Assessment; a != nil {
-			p := "before"
-			if !a.InBefore {
-				p = "after"
-			}
-			row = append(row, cell{string(a.Verdict), b.st.verdict[a.Verdict]}, cell{a.Focus, 0}, b.str(p))
+			row = append(row, cell{string(a.Verdict), b.st.verdict[a.Verdict]}, cell{a.Focus, b.st.centre})
 		}
 		s.add(row...)
 	}
@@ -591,18 +760,17 @@ func (b *book) findings() {
 func (b *book) edges() {
 	v := b.v
 	s := b.newSheet(SheetEdges)
-	cols := []string{"Rank", "Weak link", "From", "To", "Trips per day", "Speed km/h", "Detour", "Extra km per day", "Extra vehicle-hours per day", "Days with trips"}
+	cols := append(v.rankColumns(), "Weak link", "From", "To", "Trips per day", "Speed km/h", "Detour ratio", "Extra km per day", "Extra vehicle-hours per day", "Days with trips")
 	if v.comparing() {
 		cols = append(cols, "Verdict")
 	}
 	head := s.header(cols...)
 	for _, it := range v.items {
 		for _, e := range it.Finding.Edges {
-			row := []cell{
-				b.count(it.Finding.Rank), b.str(it.Finding.ID), b.count(e.From), b.count(e.To),
+			row := append(b.rankCells(it), b.str(it.Finding.ID), b.count(e.From), b.count(e.To),
 				b.trips(e.TripsMedian), b.gated(e.TripsMedian, kmh(e.SpeedMedian), b.st.dec1), b.gated(e.TripsMedian, e.DetourMedian, b.st.dec2),
 				b.gated(e.TripsMedian, e.ExtraKMPerDay, b.st.dec1), b.gated(e.TripsMedian, e.ExtraHoursPerDay, b.st.dec2), b.count(len(e.Daily)),
-			}
+			)
 			if vd := it.Verdict(); v.comparing() {
 				row = append(row, cell{string(vd), b.st.verdict[vd]})
 			}
@@ -616,10 +784,10 @@ func (b *book) edges() {
 func (b *book) comparison() {
 	v := b.v
 	s := b.newSheet(SheetComparison)
-	cols := []string{"Rank", "Weak link", "Verdict", "Focus", "Days recurring before", "Days analysed before", "Share before",
+	cols := append(v.rankColumns(), "Weak link", "Verdict", "Focus", "Days recurring before", "Days analysed before", "Share before",
 		"Days recurring after", "Days analysed after", "Share after", "Fisher p", "Fisher p adjusted",
-		"Speed before km/h", "Speed after km/h", "Speed shift km/h", "Speed shift low", "Speed shift high", "Speed p", "Speed p adjusted",
-		"Detour before", "Detour after", "Detour shift", "Detour shift low", "Detour shift high", "Detour p", "Detour p adjusted", "Reason"}
+		"Speed before km/h", "Speed after km/h", "Speed shift km/h", "Speed shift CI low km/h", "Speed shift CI high km/h", "Speed p", "Speed p adjusted",
+		"Detour ratio before", "Detour ratio after", "Detour ratio shift", "Detour ratio shift CI low", "Detour ratio shift CI high", "Detour p", "Detour p adjusted", "Reason")
 	head := s.header(cols...)
 	share := func(days, total int) cell {
 		if total <= 0 {
@@ -632,20 +800,49 @@ func (b *book) comparison() {
 		t := totals(a.Finding)
 		sp, dt := a.Speed, a.Detour
 		g := func(x float64, style int) cell { return b.gated(t.Trips, x, style) }
-		s.add(
-			b.count(a.Finding.Rank), b.str(a.Finding.ID), cell{string(a.Verdict), b.st.verdict[a.Verdict]}, cell{a.Focus, 0},
+		// The reason wraps in its column; the row is made tall enough.
+		s.tall(wrappedLines(a.Reason, reasonWidth*9/10))
+		s.add(append(b.rankCells(it), b.str(a.Finding.ID), cell{string(a.Verdict), b.st.verdict[a.Verdict]}, cell{a.Focus, b.st.centre},
 			b.count(a.DaysBefore), b.count(a.TotalBefore), share(a.DaysBefore, a.TotalBefore),
 			b.count(a.DaysAfter), b.count(a.TotalAfter), share(a.DaysAfter, a.TotalAfter),
 			b.pval(a.FisherP), b.pval(a.FisherPAdjusted),
 			g(kmh(median(sp.Before)), b.st.dec1), g(kmh(median(sp.After)), b.st.dec1),
-			g(kmh(sp.Shift), b.st.dec1), g(kmh(sp.Low), b.st.dec1), g(kmh(sp.High), b.st.dec1), b.pval(sp.P), b.pval(sp.PAdjusted),
+			g(kmh(sp.Shift), b.st.signed1), g(kmh(sp.Low), b.st.signed1), g(kmh(sp.High), b.st.signed1), b.pval(sp.P), b.pval(sp.PAdjusted),
 			g(median(dt.Before), b.st.dec2), g(median(dt.After), b.st.dec2),
-			g(dt.Shift, b.st.dec2), g(dt.Low, b.st.dec2), g(dt.High, b.st.dec2), b.pval(dt.P), b.pval(dt.PAdjusted),
-			cell{a.Reason, b.st.text},
-		)
+			g(dt.Shift, b.st.signed2), g(dt.Low, b.st.signed2), g(dt.High, b.st.signed2), b.pval(dt.P), b.pval(dt.PAdjusted),
+			cell{a.Reason, b.st.wrap},
+		)...)
 	}
 	s.filter(head, len(cols))
+	s.widths[len(cols)], s.maxWidth = reasonWidth, reasonWidth
 	s.finish()
+}
+
+// reasonWidth is the width in characters of the Comparison sheet's Reason
+// column, whose text wraps.
+const reasonWidth = 60
+
+// rankColumns are the leading columns that identify a finding's rank. In
+// a comparison each period ranks its own findings, so rank 1 occurs twice
+// and the period it belongs to is shown beside it.
+func (v *view) rankColumns() []string {
+	if v.comparing() {
+		return []string{"Rank in period", "Ranked in"}
+	}
+	return []string{"Rank"}
+}
+
+// rankCells are the cells of rankColumns for it.
+func (b *book) rankCells(it item) []cell {
+	r := []cell{{it.Finding.Rank, b.st.intCentre}}
+	if a := it.Assessment; a != nil {
+		p := "before"
+		if !a.InBefore {
+			p = "after"
+		}
+		r = append(r, cell{p, b.st.centre})
+	}
+	return r
 }
 
 // median of xs (NaN when empty), without changing xs.
@@ -679,7 +876,7 @@ func recurredDays(sc *patterns.Scan, id string) map[string]bool {
 
 func (b *book) daily() {
 	v := b.v
-	cols := []string{"Rank", "Weak link", "Period", "Day", "From", "To", "Trips", "Speed km/h", "Detour", "Extra km", "Candidate", "Weak link recurred"}
+	cols := []string{"Rank", "Weak link", "Period", "Day", "From", "To", "Trips", "Speed km/h", "Detour ratio", "Extra km", "Candidate", "Weak link recurred"}
 	var rows [][]cell
 	for _, it := range v.items {
 		for _, p := range v.periods {
@@ -688,9 +885,9 @@ func (b *book) daily() {
 				for _, d := range dailyOf(p, it, patterns.EdgeKey{From: e.From, To: e.To}) {
 					tr := float64(d.Trips)
 					rows = append(rows, []cell{
-						b.count(it.Finding.Rank), b.str(it.Finding.ID), b.str(p.Label), b.str(d.Day), b.count(e.From), b.count(e.To),
+						{it.Finding.Rank, b.st.intCentre}, b.str(it.Finding.ID), b.str(p.Label), b.str(d.Day), b.count(e.From), b.count(e.To),
 						b.trips(tr), b.gated(tr, kmh(d.Speed), b.st.dec1), b.gated(tr, d.Detour, b.st.dec2),
-						b.gated(tr, (d.DistanceSum-d.StraightSum)/1000, b.st.dec1), {d.Candidate, 0}, {rec[d.Day], 0},
+						b.gated(tr, (d.DistanceSum-d.StraightSum)/1000, b.st.dec1), {d.Candidate, b.st.centre}, {rec[d.Day], b.st.centre},
 					})
 				}
 			}
@@ -745,17 +942,31 @@ func (b *book) timeline() {
 			{Name: "'" + SheetTimeline + "'!$C$" + strconv.Itoa(head), Categories: ref("A"), Values: ref("C"), Line: excelize.LineOptions{Width: 1.5}},
 			{Name: "'" + SheetTimeline + "'!$D$" + strconv.Itoa(head), Categories: ref("A"), Values: ref("D"), Line: excelize.LineOptions{Width: 2.25}},
 		},
-		Title:     excelize.ChartTitle{Paragraph: []excelize.RichTextRun{{Text: "Candidates and recurring weak links per day"}}},
-		Legend:    excelize.ChartLegend{Position: "bottom"},
-		XAxis:     excelize.ChartAxis{Title: excelize.ChartTitle{Paragraph: []excelize.RichTextRun{{Text: "Day"}}}},
-		YAxis:     excelize.ChartAxis{Title: excelize.ChartTitle{Paragraph: []excelize.RichTextRun{{Text: "Count"}}}, MajorGridLines: true},
-		Dimension: excelize.ChartDimension{Width: 720, Height: 360},
+		Title:  excelize.ChartTitle{Paragraph: []excelize.RichTextRun{{Text: v.timelineTitle()}}},
+		Legend: excelize.ChartLegend{Position: "bottom"},
+		// About eight slanted day labels keep the dates legible; programs
+		// that ignore the skip show every date, still slanted.
+		XAxis:     excelize.ChartAxis{Title: excelize.ChartTitle{Paragraph: []excelize.RichTextRun{{Text: "Day"}}}, TickLabelSkip: max(len(days)/8, 1), Alignment: excelize.Alignment{TextRotation: -45}, Font: axisFont},
+		YAxis:     excelize.ChartAxis{Title: excelize.ChartTitle{Paragraph: []excelize.RichTextRun{{Text: "Count"}}}, MajorGridLines: true, Font: axisFont},
+		Dimension: excelize.ChartDimension{Width: 760, Height: 400},
 	}))
 }
 
+// Series names of the speed-against-detour chart. excelize v2.11.1 writes
+// a series name only as a cell reference; fixCharts turns these literal
+// names into literal series text.
+const (
+	scatterOthers     = "Edge-day, not a candidate"
+	scatterCandidates = "Candidate edge-day"
+)
+
+// axisFont is the font of chart axis labels: excelize's default light grey
+// is hard to read on a projector.
+var axisFont = excelize.Font{Color: "#333333", Size: 9}
+
 func (b *book) scatter() {
 	v := b.v
-	cols := []string{"Candidate", "Period", "Day", "From", "To", "Trips", "Speed km/h", "Detour"}
+	cols := []string{"Candidate", "Period", "Day", "From", "To", "Trips", "Speed km/h", "Detour ratio"}
 	type point struct {
 		period int
 		key    patterns.EdgeKey
@@ -769,42 +980,63 @@ func (b *book) scatter() {
 			}
 		}
 	}
-	// Non-candidates first, so that each chart series is one block of rows.
-	sort.SliceStable(pts, func(i, j int) bool { return !pts[i].d.Candidate && pts[j].d.Candidate })
-	firstCand := len(pts)
+	// Shown non-candidates first, then shown candidates, so that each chart
+	// series is one block of rows; suppressed edge-days come last and stay
+	// out of the chart (their cells hold markers, not numbers).
+	block := func(pt point) int {
+		switch {
+		case v.suppressed(float64(pt.d.Trips)):
+			return 2
+		case pt.d.Candidate:
+			return 1
+		}
+		return 0
+	}
+	sort.SliceStable(pts, func(i, j int) bool { return block(pts[i]) < block(pts[j]) })
+	firstCand, firstSupp := len(pts), len(pts)
 	rows := make([][]cell, len(pts))
 	for i, pt := range pts {
-		if pt.d.Candidate && firstCand == len(pts) {
+		if k := block(pt); k >= 1 && firstCand == len(pts) {
 			firstCand = i
 		}
+		if block(pt) == 2 && firstSupp == len(pts) {
+			firstSupp = i
+		}
 		tr := float64(pt.d.Trips)
-		rows[i] = []cell{{pt.d.Candidate, 0}, b.str(v.periods[pt.period].Label), b.str(pt.d.Day), b.count(pt.key.From), b.count(pt.key.To),
+		rows[i] = []cell{{pt.d.Candidate, b.st.centre}, b.str(v.periods[pt.period].Label), b.str(pt.d.Day), b.count(pt.key.From), b.count(pt.key.To),
 			b.trips(tr), b.gated(tr, kmh(pt.d.Speed), b.st.dec1), b.gated(tr, pt.d.Detour, b.st.dec2)}
 	}
+	detourAxisMin := 1.0
 	b.streamTable(SheetScatter, cols, rows, func(head int) {
 		if len(pts) == 0 || head+len(pts) > excelize.TotalRows {
 			return
 		}
-		block := func(name string, from, to int) excelize.ChartSeries {
+		seriesOf := func(name, colour string, size, from, to int) excelize.ChartSeries {
 			r := func(col string) string {
 				return "'" + SheetScatter + "'!$" + col + "$" + strconv.Itoa(head+1+from) + ":$" + col + "$" + strconv.Itoa(head+to)
 			}
-			return excelize.ChartSeries{Name: name, Categories: r("H"), Values: r("G"), Marker: excelize.ChartMarker{Symbol: "circle", Size: 5}}
+			fill := excelize.Fill{Type: "pattern", Pattern: 1, Color: []string{colour}}
+			return excelize.ChartSeries{Name: name, Categories: r("H"), Values: r("G"),
+				Marker: excelize.ChartMarker{Symbol: "circle", Size: size, Fill: fill}, Fill: fill}
 		}
 		var series []excelize.ChartSeries
 		if firstCand > 0 {
-			series = append(series, block("Not a candidate", 0, firstCand))
+			series = append(series, seriesOf(scatterOthers, "#999999", 4, 0, firstCand))
 		}
-		if firstCand < len(pts) {
-			series = append(series, block("Candidate", firstCand, len(pts)))
+		if firstCand < firstSupp {
+			series = append(series, seriesOf(scatterCandidates, lookOf(patterns.Worse).Hex, 6, firstCand, firstSupp))
+		}
+		if len(series) == 0 {
+			return
 		}
 		b.fail(b.f.AddChart(SheetScatter, "J2", &excelize.Chart{
-			Type:      excelize.Scatter,
-			Series:    series,
-			Title:     excelize.ChartTitle{Paragraph: []excelize.RichTextRun{{Text: "Edge-days: speed against detour"}}},
-			Legend:    excelize.ChartLegend{Position: "bottom"},
-			XAxis:     excelize.ChartAxis{Title: excelize.ChartTitle{Paragraph: []excelize.RichTextRun{{Text: "Detour (travel / straight-line distance)"}}}},
-			YAxis:     excelize.ChartAxis{Title: excelize.ChartTitle{Paragraph: []excelize.RichTextRun{{Text: "Speed km/h"}}}, MajorGridLines: true},
+			Type:   excelize.Scatter,
+			Series: series,
+			Title:  excelize.ChartTitle{Paragraph: []excelize.RichTextRun{{Text: "Edge-days: speed against detour"}}},
+			Legend: excelize.ChartLegend{Position: "bottom"},
+			// Detour is at least 1 (a straight line): the axis starts there.
+			XAxis:     excelize.ChartAxis{Title: excelize.ChartTitle{Paragraph: []excelize.RichTextRun{{Text: "Detour ratio (travel / straight-line distance)"}}}, Minimum: &detourAxisMin, Font: axisFont},
+			YAxis:     excelize.ChartAxis{Title: excelize.ChartTitle{Paragraph: []excelize.RichTextRun{{Text: "Speed km/h"}}}, MajorGridLines: true, Font: axisFont},
 			Dimension: excelize.ChartDimension{Width: 640, Height: 420},
 		}))
 	})
@@ -825,6 +1057,10 @@ func (b *book) streamTable(name string, header []string, rows [][]cell, extra fu
 		b.fail(err)
 		return
 	}
+	// The stream writer takes the sheet's properties and page setup when
+	// it is created, so they are set first.
+	const head = 1
+	b.printSetup(name, head)
 	sw, err := b.f.NewStreamWriter(name)
 	if err != nil {
 		b.fail(err)
@@ -833,7 +1069,7 @@ func (b *book) streamTable(name string, header []string, rows [][]cell, extra fu
 	// Widths as sheet.finish computes them.
 	widths := make([]int, len(header))
 	for i, h := range header {
-		widths[i] = min(utf8.RuneCountInString(h), 14)
+		widths[i] = headerWidth(h)
 	}
 	for _, r := range rows {
 		for i, c := range r {
@@ -842,8 +1078,11 @@ func (b *book) streamTable(name string, header []string, rows [][]cell, extra fu
 			}
 		}
 	}
+	lines := 1
 	for i, w := range widths {
-		b.fail(sw.SetColWidth(i+1, i+1, float64(min(max(w+2, 8), 60))))
+		w = colWidth(w, 60)
+		lines = max(lines, wrappedLines(header[i], w))
+		b.fail(sw.SetColWidth(i+1, i+1, float64(w)))
 	}
 	b.fail(sw.SetPanes(&excelize.Panes{Freeze: true, YSplit: 1, TopLeftCell: "A2", ActivePane: "bottomLeft"}))
 	values := make([]any, len(header))
@@ -851,9 +1090,8 @@ func (b *book) streamTable(name string, header []string, rows [][]cell, extra fu
 		values[i] = excelize.Cell{StyleID: b.st.header, Value: h}
 	}
 	if b.err == nil {
-		b.fail(sw.SetRow("A1", values, excelize.RowOpts{Height: 32}))
+		b.fail(sw.SetRow("A1", values, excelize.RowOpts{Height: headerHeight(lines)}))
 	}
-	const head = 1
 	last := head
 	for i, r := range rows {
 		if b.err != nil {
@@ -949,7 +1187,7 @@ func (b *book) regionsSheet() {
 			nb[i] = n.ID
 		}
 		s.add(b.count(r.ID), b.num(r.AreaKM2, b.st.dec3), b.num(r.PerimeterKM, b.st.dec2), b.str(strings.Join(names, "; ")),
-			b.str(strings.Join(lengths, "; ")), b.str(joinInts(nb)), b.count(touching[r.ID]), cell{v.focus[r.ID], 0})
+			b.str(strings.Join(lengths, "; ")), b.str(joinInts(nb)), b.count(touching[r.ID]), cell{v.focus[r.ID], b.st.centre})
 	}
 	s.filter(head, len(cols))
 	s.widths[4] = min(s.widths[4], 50)
@@ -1010,14 +1248,30 @@ func (b *book) methodSheet() {
 	v := b.v
 	s := b.newSheet(SheetMethod)
 	head := s.header("Term", "Definition")
+	add := func(term, text string) {
+		// Programs do not all grow a row for wrapped text on opening, so
+		// the row gets the height of its lines.
+		s.tall(wrappedLines(text, methodWidth*9/10))
+		s.add(cell{term, b.st.bold}, cell{text, b.st.wrap})
+	}
 	for _, d := range v.method() {
-		s.add(cell{d.Term, b.st.bold}, cell{d.Text, b.st.wrap})
+		add(d.Term, d.Text)
 	}
 	for _, c := range v.cautions() {
-		s.add(cell{"Caution", b.st.bold}, cell{c, b.st.wrap})
+		add("Caution", c)
 	}
 	s.filter(head, 2)
 	s.widths[1] = min(s.widths[1], 28)
-	s.widths[2], s.maxWidth = 100, 102
+	s.widths[2], s.maxWidth = methodWidth-3, methodWidth
 	s.finish()
+}
+
+// methodWidth is the width of the Method sheet's definition column.
+const methodWidth = 100
+
+// tall makes the next row tall enough for lines lines of text.
+func (s *sheet) tall(lines int) {
+	if lines > 1 && s.b.err == nil {
+		s.b.fail(s.b.f.SetRowHeight(s.name, s.row, float64(min(lines, 25))*15+2))
+	}
 }

@@ -88,10 +88,10 @@ func TestWorkbookValues(t *testing.T) {
 	findings := rowsByKey(t, f, SheetFindings, "Weak link")
 	want := map[string]map[string]string{
 		// 40 trips at 5 m/s = 18 km/h, detour 1.8, extra 40*1.5 km, 40*0.05 h.
-		"1>2":     {"Rank": "1", "Verdict": "worse", "Trips per day": "40", "Speed km/h": "18.0", "Detour": "1.80", "Extra km per day": "60.0", "Extra vehicle-hours per day": "2.00", "Days recurring": "10", "Share of days": "71.4%"},
-		"4>5+5>6": {"Verdict": "new", "Trips per day": "30", "Regions": "4, 5, 6", "Period of these values": "after"},
+		"1>2":     {"Rank in period": "1", "Ranked in": "before", "Verdict": "worse", "Trips per day": "40", "Speed km/h": "18.0", "Detour ratio": "1.80", "Extra km per day": "60.0", "Extra vehicle-hours per day": "2.00", "Days recurring": "10", "Share of days": "71.4%"},
+		"4>5+5>6": {"Verdict": "new", "Trips per day": "30", "Regions": "4, 5, 6", "Ranked in": "after"},
 		"7>8":     {"Verdict": "unchanged", "Trips per day": "25", "Speed km/h": "21.6"},
-		"2>5":     {"Verdict": "eased", "Trips per day": "<10", "Speed km/h": "n<10", "Detour": "n<10", "Extra km per day": "n<10"},
+		"2>5":     {"Verdict": "eased", "Trips per day": "<10", "Speed km/h": "n<10", "Detour ratio": "n<10", "Extra km per day": "n<10"},
 		"8>9":     {"Verdict": "cleared", "Focus": "yes", "Speed km/h": "16.2"},
 	}
 	if len(findings) != len(want) {
@@ -117,7 +117,7 @@ func TestWorkbookValues(t *testing.T) {
 	// Comparison figures.
 	cmp := rowsByKey(t, f, SheetComparison, "Weak link")
 	for id, cols := range map[string]map[string]string{
-		"1>2": {"Days recurring before": "10", "Days analysed before": "14", "Share after": "85.7%", "Fisher p": "0.6480", "Speed shift km/h": "-3.6", "Speed shift low": "-4.7", "Detour shift": "0.10", "Reason": "Significantly slower after."},
+		"1>2": {"Days recurring before": "10", "Days analysed before": "14", "Share after": "85.7%", "Fisher p": "0.6480", "Speed shift km/h": "-3.6", "Speed shift CI low km/h": "-4.7", "Detour ratio shift": "+0.10", "Reason": "Significantly slower after."},
 		"8>9": {"Days recurring after": "0", "Fisher p adjusted": "0.0030", "Fisher p": "6.00E-05", "Verdict": "cleared"},
 		"2>5": {"Speed shift km/h": "n<10", "Speed before km/h": "n<10", "Fisher p": "1.0000"},
 	} {
@@ -279,7 +279,7 @@ func TestWorkbookSuppression(t *testing.T) {
 	f, path := writeBook(t, fxInput())
 	edges := rowsByKey(t, f, SheetEdges, "Weak link")
 	row := edges["2>5"]
-	for col, want := range map[string]string{"Trips per day": "<10", "Speed km/h": "n<10", "Detour": "n<10", "Extra km per day": "n<10", "Extra vehicle-hours per day": "n<10"} {
+	for col, want := range map[string]string{"Trips per day": "<10", "Speed km/h": "n<10", "Detour ratio": "n<10", "Extra km per day": "n<10", "Extra vehicle-hours per day": "n<10"} {
 		if row[col] != want {
 			t.Errorf("edge 2>5 %q = %q, want %q", col, row[col], want)
 		}
@@ -361,8 +361,28 @@ func TestWorkbookChartsAndPicture(t *testing.T) {
 	if n := strings.Count(sc, "<ser>"); n != 2 {
 		t.Errorf("scatter chart has %d series, want 2", n)
 	}
-	if !strings.Contains(sc, "Not a candidate") || !strings.Contains(sc, "Candidate") {
-		t.Error("scatter chart series are not named")
+	// The series names are literal text, not (broken) cell references.
+	for _, name := range []string{scatterOthers, scatterCandidates} {
+		if !strings.Contains(sc, "<tx><v>"+name+"</v></tx>") {
+			t.Errorf("scatter chart lacks the literal series name %q", name)
+		}
+	}
+	// The x values (detour) are numbers: as a string reference they would
+	// be plotted as categories 1, 2, 3...
+	if n := strings.Count(sc, "<xVal><numRef>"); n != 2 || strings.Contains(sc, "<xVal><strRef>") {
+		t.Errorf("scatter chart x values: %d numeric references, want 2 and no string reference", n)
+	}
+	// Both charts have a title and both axes a title; the timeline names
+	// the periods.
+	for name, wantTitles := range map[string][]string{
+		"xl/charts/chart1.xml": {"Candidates and recurring weak links per day (before: ", "Day", "Count"},
+		"xl/charts/chart2.xml": {"Edge-days: speed against detour", "Detour ratio (travel / straight-line distance)", "Speed km/h"},
+	} {
+		for _, title := range wantTitles {
+			if !strings.Contains(string(z[name]), "<a:t>"+title) {
+				t.Errorf("%s lacks the title %q", name, title)
+			}
+		}
 	}
 	pic, ok := z["xl/media/image1.png"]
 	if !ok {

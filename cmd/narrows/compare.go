@@ -3,6 +3,7 @@ package main
 import (
 	"context"
 	"fmt"
+	"math"
 	"path/filepath"
 	"strconv"
 	"strings"
@@ -142,7 +143,9 @@ func compareAndReport(ctx context.Context, env *environment, job compareJob) err
 	if err != nil {
 		return err
 	}
-	fmt.Fprintf(env.stdout, "Top weak links before (%s):\n", job.before.From+".."+job.before.To)
+	if days := cmp.Before.Days; len(days) > 0 {
+		fmt.Fprintf(env.stdout, "Top weak links before (%d analysed days, %s to %s):\n", len(days), days[0], days[len(days)-1])
+	}
 	printFindings(env.stdout, cmp.Before, job.regions, 5)
 	fmt.Fprintln(env.stdout, report.Headline(in))
 	for _, p := range paths {
@@ -177,6 +180,6 @@ func scanSettings(o patterns.ScanOptions) [][2]string {
 		{"speed gate", speed},
 		{"support (share of days)", f(o.Support)},
 		{"largest group (edges)", strconv.Itoa(o.MaxGroupEdges)},
-		{"reference speed (km/h)", f(o.ReferenceSpeed * 3.6)},
+		{"reference speed (km/h)", f(math.Round(o.ReferenceSpeed*3.6*1000) / 1000)},
 	}
 }

@@ -1,0 +1,296 @@
+package regiongraph
+
+import (
+	"os"
+	"path/filepath"
+	"reflect"
+	"strings"
+	"testing"
+	"time"
+
+	"github.com/parquet-go/parquet-go"
+	"github.com/parquet-go/parquet-go/format"
+)
+
+// legacyEdgeRow is edgeRow without dictionary encoding, the layout of the
+// first stores (one row group, plain-encoded strings).
+type legacyEdgeRow struct {
+	Day            string  `parquet:"day"`
+	Window         string  `parquet:"window"`
+	FromRegion     int32   `parquet:"from_region"`
+	ToRegion       int32   `parquet:"to_region"`
+	Trips          int64   `parquet:"trips"`
+	SpeedP25       float64 `parquet:"speed_p25_mps"`
+	SpeedMedian    float64 `parquet:"speed_median_mps"`
+	SpeedP75       float64 `parquet:"speed_p75_mps"`
+	DetourP25      float64 `parquet:"detour_p25"`
+	DetourMedian   float64 `parquet:"detour_median"`
+	DetourP75      float64 `parquet:"detour_p75"`
+	DistanceMedian float64 `parquet:"distance_median_m"`
+	DurationMedian float64 `parquet:"duration_median_s"`
+	DistanceSum    float64 `parquet:"distance_sum_m"`
+	StraightSum    float64 `parquet:"straight_sum_m"`
+	DurationSum    float64 `parquet:"duration_sum_s"`
+}
+
+// writeLegacy writes s in the first stores' layout, with pages of about
+// pageBytes bytes, and the metadata WriteFile gives it.
+func writeLegacy(t *testing.T, path string, s *Store, pageBytes int) {
+	t.Helper()
+	current := filepath.Join(t.TempDir(), "current.parquet")
+	if err := WriteFile(current, s); err != nil {
+		t.Fatal(err)
+	}
+	opts := []parquet.WriterOption{parquet.Compression(&parquet.Zstd), parquet.PageBufferSize(pageBytes)}
+	for _, kv := range openParquetFile(t, current).Metadata().KeyValueMetadata {
+		opts = append(opts, parquet.KeyValueMetadata(kv.Key, kv.Value))
+	}
+	f, err := os.Create(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer f.Close()
+	w := parquet.NewGenericWriter[legacyEdgeRow](f, opts...)
+	rows := make([]legacyEdgeRow, len(s.Edges))
+	for i, e := range s.Edges {
+		rows[i] = legacyEdgeRow(toRow(e))
+	}
+	if _, err := w.Write(rows); err != nil {
+		t.Fatal(err)
+	}
+	if err := w.Close(); err != nil {
+		t.Fatal(err)
+	}
+}
+
+func openParquetFile(t *testing.T, path string) *parquet.File {
+	t.Helper()
+	f, err := os.Open(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	t.Cleanup(func() { f.Close() })
+	fi, _ := f.Stat()
+	pf, err := parquet.OpenFile(f, fi.Size())
+	if err != nil {
+		t.Fatal(err)
+	}
+	return pf
+}
+
+// columnChunk returns the named column's chunk in row group g.
+func columnChunk(t *testing.T, pf *parquet.File, g int, name string) format.ColumnChunk {
+	t.Helper()
+	leaf, ok := pf.Schema().Lookup(name)
+	if !ok {
+		t.Fatalf("no column %s", name)
+	}
+	return pf.Metadata().RowGroups[g].Columns[leaf.ColumnIndex]
+}
+
+// keptEdges is the brute-force oracle of ReadOptions: the edges of s that
+// opts selects.
+func keptEdges(s *Store, opts ReadOptions) []Edge {
+	var kept []Edge
+	for _, e := range s.Edges {
+		if e.Trips >= opts.MinTrips && (opts.Window == "" || e.Window == opts.Window) &&
+			(opts.From == "" || e.Day >= opts.From) && (opts.To == "" || e.Day <= opts.To) {
+			kept = append(kept, e)
+		}
+	}
+	return kept
+}
+
+// TestReadFileOptionsMatchesFilter reads stores of every layout (the
+// current one, one with many small row groups and pages, and the first
+// stores' single row group of plain strings) in stretches of several
+// sizes, and compares each selection with filtering every edge.
+func TestReadFileOptionsMatchesFilter(t *testing.T) {
+	s := syntheticStore(9, 30, 120, "pm", "am")
+	dir := t.TempDir()
+	layouts := []struct {
+		name  string
+		write func(path string) error
+	}{
+		{"current", func(path string) error { return WriteFile(path, s) }},
+		{"small row groups and pages", func(path string) error { return writeFile(path, s, 100, parquet.PageBufferSize(512)) }},
+		{"first stores", func(path string) error { writeLegacy(t, path, s, 700); return nil }},
+	}
+	options := []ReadOptions{
+		{},
+		{MinTrips: 1},
+		{MinTrips: 4},
+		{MinTrips: 12},
+		{MinTrips: 1 << 30},
+		{Window: "am"},
+		{From: "2024-01-03", To: "2024-01-05"},
+		{From: "2024-01-08"},
+		{To: "2024-01-01"},
+		{From: "2024-01-04", To: "2024-01-04", Window: "pm", MinTrips: 3},
+		{From: "2024-02-01"},
+	}
+	for _, layout := range layouts {
+		path := filepath.Join(dir, strings.ReplaceAll(layout.name, " ", "-")+".parquet")
+		if err := layout.write(path); err != nil {
+			t.Fatal(err)
+		}
+		for _, opts := range options {
+			want := keptEdges(s, opts)
+			if opts == (ReadOptions{MinTrips: 4}) && (len(want) == 0 || len(want) == len(s.Edges)) {
+				t.Fatalf("MinTrips 4 keeps %d of %d edges: the test store does not test the filter", len(want), len(s.Edges))
+			}
+			for _, stretch := range []int64{stretchRows, 333, 37, 1} {
+				got, err := readFile(path, opts, stretch)
+				if err != nil {
+					t.Fatalf("%s, %+v, stretches of %d: %v", layout.name, opts, stretch, err)
+				}
+				if !reflect.DeepEqual(got.Edges, want) {
+					t.Errorf("%s, %+v, stretches of %d: %d edges, filtering every edge gives %d",
+						layout.name, opts, stretch, len(got.Edges), len(want))
+				}
+				if !reflect.DeepEqual(got.Meta, s.Meta) {
+					t.Errorf("%s, %+v: meta %+v, want %+v", layout.name, opts, got.Meta, s.Meta)
+				}
+			}
+		}
+	}
+}
+
+// TestWriteFileRowGroups writes an ingested store in row groups of at
+// least 150 rows ended at a change of day, and reads it back unchanged.
+func TestWriteFileRowGroups(t *testing.T) {
+	loc, _ := time.LoadLocation("Europe/Berlin")
+	s := sampleStore(t, 41, time.Date(2024, 5, 2, 0, 0, 0, 0, loc), 6000)
+	const groupRows = 150
+	path := filepath.Join(t.TempDir(), "graphs.parquet")
+	if err := writeFile(path, s, groupRows); err != nil {
+		t.Fatal(err)
+	}
+	back, err := ReadFile(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !reflect.DeepEqual(s, back) {
+		t.Fatal("round trip through several row groups changed the store")
+	}
+	pf := openParquetFile(t, path)
+	groups := pf.Metadata().RowGroups
+	if len(groups) < 3 {
+		t.Fatalf("%d row groups of %d edges", len(groups), len(s.Edges))
+	}
+	row := 0
+	for g, rg := range groups {
+		n := int(rg.NumRows)
+		last := g == len(groups)-1
+		switch {
+		case n == 2*groupRows:
+			// A day of more than 2 groupRows rows is split.
+		case n < groupRows && !last:
+			t.Errorf("row group %d has %d rows, want at least %d", g, n, groupRows)
+		case !last && s.Edges[row+n].Day == s.Edges[row+n-1].Day:
+			t.Errorf("row group %d ends inside day %s", g, s.Edges[row+n].Day)
+		}
+		row += n
+		for _, c := range []string{"day", "window"} {
+			if enc := columnChunk(t, pf, g, c).MetaData.Encoding; !strings.Contains(fmtEncodings(enc), "RLE_DICTIONARY") {
+				t.Errorf("row group %d, column %s: encodings %v, want a dictionary", g, c, enc)
+			}
+		}
+	}
+	if row != len(s.Edges) {
+		t.Errorf("row groups hold %d rows, the store %d", row, len(s.Edges))
+	}
+}
+
+func fmtEncodings(encs []format.Encoding) string {
+	var b strings.Builder
+	for _, e := range encs {
+		b.WriteString(e.String() + " ")
+	}
+	return b.String()
+}
+
+// TestReadFileFirstStores reads an ingested store in the first stores'
+// layout, as the files already written hold it.
+func TestReadFileFirstStores(t *testing.T) {
+	loc, _ := time.LoadLocation("Europe/Berlin")
+	s := sampleStore(t, 43, time.Date(2024, 6, 2, 0, 0, 0, 0, loc), 4000)
+	path := filepath.Join(t.TempDir(), "graphs.parquet")
+	writeLegacy(t, path, s, 1024)
+	pf := openParquetFile(t, path)
+	if enc := fmtEncodings(columnChunk(t, pf, 0, "day").MetaData.Encoding); strings.Contains(enc, "DICTIONARY") {
+		t.Fatalf("first-store layout has day encodings %s", enc)
+	}
+	if oi := pf.OffsetIndexes(); len(oi) == 0 || len(oi[0].PageLocations) < 3 {
+		t.Fatal("first-store layout has too few pages to test seeking")
+	}
+	back, err := ReadFile(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !reflect.DeepEqual(s, back) {
+		t.Fatal("reading the first-store layout changed the store")
+	}
+}
+
+func TestReadOptionsErrors(t *testing.T) {
+	path := filepath.Join(t.TempDir(), "graphs.parquet")
+	if err := WriteFile(path, syntheticStore(2, 5, 4, "am")); err != nil {
+		t.Fatal(err)
+	}
+	for _, c := range []struct {
+		opts ReadOptions
+		want string
+	}{
+		{ReadOptions{From: "2024-1-5"}, "From day \"2024-1-5\" is not YYYY-MM-DD"},
+		{ReadOptions{To: "yesterday"}, "To day \"yesterday\" is not YYYY-MM-DD"},
+		{ReadOptions{Window: "night"}, "no window \"night\" in the store (it has am)"},
+	} {
+		if _, err := ReadFileOptions(path, c.opts); err == nil || !strings.Contains(err.Error(), c.want) {
+			t.Errorf("%+v: %v, want %s", c.opts, err, c.want)
+		}
+	}
+	// An empty store reads back as one without edges.
+	empty := &Store{Meta: Meta{Quality: Quality{Rejected: map[string]int64{}}}}
+	if err := WriteFile(path, empty); err != nil {
+		t.Fatal(err)
+	}
+	back, err := ReadFile(path)
+	if err != nil || back.Edges != nil {
+		t.Errorf("empty store: %v, %d edges", err, len(back.Edges))
+	}
+}
+
+// FuzzReadFile reads damaged stores: an error, never a panic.
+func FuzzReadFile(f *testing.F) {
+	dir := f.TempDir()
+	path := filepath.Join(dir, "seed.parquet")
+	if err := writeFile(path, syntheticStore(3, 6, 8, "am", "pm"), 20, parquet.PageBufferSize(256)); err != nil {
+		f.Fatal(err)
+	}
+	seed, err := os.ReadFile(path)
+	if err != nil {
+		f.Fatal(err)
+	}
+	f.Add(seed)
+	f.Add(seed[:len(seed)/2])
+	for _, at := range []int{4, 40, 200, len(seed) / 3, len(seed) - 600} {
+		if at > 0 && at < len(seed) {
+			damaged := append([]byte(nil), seed...)
+			damaged[at] ^= 0x5a
+			f.Add(damaged)
+		}
+	}
+	f.Fuzz(func(t *testing.T, data []byte) {
+		path := filepath.Join(t.TempDir(), "graphs.parquet")
+		if err := os.WriteFile(path, data, 0o644); err != nil {
+			t.Fatal(err)
+		}
+		for _, opts := range []ReadOptions{{}, {MinTrips: 3, Window: "pm"}} {
+			s, err := ReadFileOptions(path, opts)
+			if err == nil && s == nil {
+				t.Fatal("no store and no error")
+			}
+		}
+	})
+}

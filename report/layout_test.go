@@ -1,0 +1,409 @@
+package report
+
+import (
+	"bytes"
+	"image"
+	"image/color"
+	"image/png"
+	"math"
+	"strconv"
+	"strings"
+	"testing"
+
+	"github.com/xuri/excelize/v2"
+)
+
+// tableSheets are the sheets that hold one table with its header in row 1.
+var tableSheets = []string{SheetFindings, SheetEdges, SheetComparison, SheetDaily, SheetTimeline, SheetScatter, SheetRegions, SheetDataQuality, SheetMethod}
+
+// TestHeadersNameUnits checks that every header of a speed or detour
+// column says its unit: km/h for speeds, "ratio" for detours (a ratio of
+// distances); p-value columns are unitless.
+func TestHeadersNameUnits(t *testing.T) {
+	for _, in := range []Input{fxInput(), fxScanInput()} {
+		f, _ := writeBook(t, in)
+		for _, sh := range f.GetSheetList() {
+			if sh == SheetSummary || sh == SheetMethod {
+				continue
+			}
+			rows, err := f.GetRows(sh)
+			if err != nil || len(rows) == 0 {
+				t.Fatalf("%s: %v", sh, err)
+			}
+			for _, h := range rows[0] {
+				pvalue := strings.HasSuffix(h, " p") || strings.HasSuffix(h, " p adjusted")
+				switch {
+				case pvalue:
+				case strings.Contains(h, "Speed") && !strings.Contains(h, "km/h"):
+					t.Errorf("%s header %q lacks km/h", sh, h)
+				case strings.HasPrefix(h, "Detour") && !strings.HasPrefix(h, "Detour ratio"):
+					t.Errorf("%s header %q does not say it is a ratio", sh, h)
+				}
+			}
+		}
+	}
+}
+
+// TestHeaderRowsShowInFull checks, for every table, that the header row is
+// tall enough for each header wrapped into its column, and that no word of
+// a header is wider than its column.
+func TestHeaderRowsShowInFull(t *testing.T) {
+	f, _ := writeBook(t, fxInput())
+	for _, sh := range tableSheets {
+		rows, err := f.GetRows(sh)
+		if err != nil || len(rows) == 0 {
+			t.Fatalf("%s: %v", sh, err)
+		}
+		height, err := f.GetRowHeight(sh, 1)
+		if err != nil {
+			t.Fatal(err)
+		}
+		for i, h := range rows[0] {
+			col, _ := excelize.ColumnNumberToName(i + 1)
+			width, err := f.GetColWidth(sh, col)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if need := float64(wrappedLines(h, int(width))) * 15; height < need { // 15 pt a line of 11 pt text
+				t.Errorf("%s header %q in a column %.0f wide needs %.0f pt, row is %.0f", sh, h, width, need, height)
+			}
+			for _, w := range strings.Fields(h) {
+				if float64(len([]rune(w))) > width-1 {
+					t.Errorf("%s header word %q is wider than its column (%.0f)", sh, w, width)
+				}
+			}
+		}
+	}
+}
+
+func TestWrappedLines(t *testing.T) {
+	tests := []struct {
+		text  string
+		width int
+		want  int
+	}{
+		// A column width w holds w-1 characters a line; worked by hand.
+		{"Rank", 8, 1},
+		{"Speed km/h", 12, 1},                  // 10 characters in 11
+		{"Speed km/h", 10, 2},                  // "Speed" / "km/h"
+		{"Extra vehicle-hours per day", 17, 3}, // "Extra" / "vehicle-hours" / "per day"
+		{"Extra vehicle-hours per day", 21, 2}, // "Extra vehicle-hours" / "per day"
+		{"Extra vehicle-hours per day", 28, 1}, // 27 characters in 27
+		{"Days recurring before", 10, 3},       // "Days" / "recurring" / "before"
+		{"Supercalifragilistic", 8, 3},         // 20 characters broken 7, 7, 6
+		{"", 10, 1},
+	}
+	for _, tc := range tests {
+		if got := wrappedLines(tc.text, tc.width); got != tc.want {
+			t.Errorf("wrappedLines(%q, %d) = %d, want %d", tc.text, tc.width, got, tc.want)
+		}
+	}
+}
+
+func TestHeaderWidth(t *testing.T) {
+	tests := []struct {
+		name string
+		want int
+	}{
+		{"Rank", 4},                         // one word: its length
+		{"Days recurring before", 11},       // half of 21, rounded up
+		{"Weak link", 5},                    // half of 9
+		{"Extra vehicle-hours per day", 14}, // half of 27
+		{"Detour ratio shift CI high", 13},
+		{"Supercalifragilisticexpialidocious", headerMaxWidth}, // capped
+	}
+	for _, tc := range tests {
+		if got := headerWidth(tc.name); got != tc.want {
+			t.Errorf("headerWidth(%q) = %d, want %d", tc.name, got, tc.want)
+		}
+	}
+}
+
+// TestSummaryOrder checks what the first screen of the summary shows: the
+// headline, then the cautions before any table, and the map picture in
+// column A below its caption, on rows left empty for it.
+func TestSummaryOrder(t *testing.T) {
+	f, _ := writeBook(t, fxInput())
+	rows, err := f.GetRows(SheetSummary)
+	if err != nil {
+		t.Fatal(err)
+	}
+	find := func(first string) int {
+		for i, r := range rows {
+			if len(r) > 0 && r[0] == first {
+				return i + 1
+			}
+		}
+		t.Fatalf("summary has no row starting %q", first)
+		return 0
+	}
+	cautions, verdicts, mapRow, inputs := find("Cautions"), find("Verdict"), find("Map"), find("Input files")
+	if cautions > 5 {
+		t.Errorf("cautions start at row %d, want them within the first five rows", cautions)
+	}
+	if !(cautions < verdicts && verdicts < mapRow && mapRow < inputs) {
+		t.Errorf("summary order: cautions %d, verdicts %d, map %d, input files %d; want them in that order", cautions, verdicts, mapRow, inputs)
+	}
+	if !strings.Contains(rows[cautions][0], "not all traffic") {
+		t.Errorf("row after Cautions = %q, want the first caution", rows[cautions][0])
+	}
+	pics, err := f.GetPictureCells(SheetSummary)
+	if err != nil || len(pics) != 1 {
+		t.Fatalf("summary pictures at %v (%v), want one", pics, err)
+	}
+	col, picRow, err := excelize.CellNameToCoordinates(pics[0])
+	if err != nil {
+		t.Fatal(err)
+	}
+	if col != 1 || picRow != mapRow+2 {
+		t.Errorf("map picture at %s, want A%d (below the Map caption)", pics[0], mapRow+2)
+	}
+	// The picture is mapMaxHeight pixels high at full scale; rows are 20
+	// pixels, so the rows it covers must hold nothing.
+	covered := int(math.Ceil(float64(mapMaxHeight) * mapScale / 20))
+	if picRow+covered > inputs {
+		t.Errorf("map picture covers rows %d to %d but the input files start at row %d", picRow, picRow+covered, inputs)
+	}
+	var pt float64 // height of the rows from the picture to the input files
+	for r := picRow; r < inputs; r++ {
+		if r <= len(rows) && len(rows[r-1]) > 0 {
+			t.Errorf("row %d under the map picture holds %q", r, rows[r-1])
+		}
+		h, err := f.GetRowHeight(SheetSummary, r)
+		if err != nil {
+			t.Fatal(err)
+		}
+		pt += h
+	}
+	// 0.75 pt a pixel at 96 dpi.
+	if px := pt / 0.75; px < float64(mapMaxHeight)*mapScale {
+		t.Errorf("rows under the map picture are %.0f px high, the picture %.0f px", px, float64(mapMaxHeight)*mapScale)
+	}
+}
+
+// TestPrintSetup checks that every sheet prints landscape, one page wide,
+// and that table sheets repeat their header row on each page.
+func TestPrintSetup(t *testing.T) {
+	f, _ := writeBook(t, fxInput())
+	titles := map[string]string{}
+	for _, dn := range f.GetDefinedName() {
+		if dn.Name == "_xlnm.Print_Titles" {
+			titles[dn.Scope] = dn.RefersTo
+		}
+	}
+	for _, sh := range f.GetSheetList() {
+		pl, err := f.GetPageLayout(sh)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if pl.Orientation == nil || *pl.Orientation != "landscape" || pl.FitToWidth == nil || *pl.FitToWidth != 1 {
+			t.Errorf("%s page layout = %+v, want landscape one page wide", sh, pl)
+		}
+		props, err := f.GetSheetProps(sh)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if props.FitToPage == nil || !*props.FitToPage {
+			t.Errorf("%s does not fit to page", sh)
+		}
+	}
+	for _, sh := range tableSheets {
+		if want := "'" + sh + "'!$1:$1"; titles[sh] != want {
+			t.Errorf("%s print titles = %q, want %q", sh, titles[sh], want)
+		}
+	}
+}
+
+// TestStylesNameTheFont checks that every font of the workbook names its
+// family and size: without them LibreOffice shows those cells in a
+// different (serif) face.
+func TestStylesNameTheFont(t *testing.T) {
+	_, path := writeBook(t, fxInput())
+	styles := string(zipEntries(t, path)["xl/styles.xml"])
+	start, end := strings.Index(styles, "<fonts"), strings.Index(styles, "</fonts>")
+	if start < 0 || end < start {
+		t.Fatal("styles have no font list")
+	}
+	fonts := strings.Split(styles[start:end], "<font>")[1:]
+	if len(fonts) < 3 {
+		t.Fatalf("styles have %d fonts, want several", len(fonts))
+	}
+	body := 0
+	for i, ft := range fonts {
+		if strings.Contains(ft, `<name val="`+fontFamily+`"`) {
+			body++
+		}
+		if !strings.Contains(ft, `<name val="`) || !strings.Contains(ft, "<sz val=") {
+			t.Errorf("font %d lacks family or size: %s", i, ft)
+		}
+	}
+	if body < len(fonts)-1 { // all but the one for the SHA-256 digests
+		t.Errorf("%d of %d fonts are %s, want all but one", body, len(fonts), fontFamily)
+	}
+}
+
+func TestGlyphsDistinct(t *testing.T) {
+	seen := map[[glyphH]uint8]rune{}
+	for r, g := range glyphs {
+		if other, dup := seen[g]; dup {
+			t.Errorf("glyphs %q and %q are identical", r, other)
+		}
+		seen[g] = r
+		for row, bits := range g {
+			if bits >= 1<<glyphW {
+				t.Errorf("glyph %q row %d is wider than %d pixels", r, row, glyphW)
+			}
+		}
+	}
+	for _, r := range "0123456789-" {
+		if _, ok := glyphs[r]; !ok {
+			t.Errorf("no glyph for %q", r)
+		}
+	}
+}
+
+func TestDrawRegionLabel(t *testing.T) {
+	ink := color.RGBA{85, 85, 85, 255}
+	tests := []struct {
+		id    int
+		chars int
+	}{{7, 1}, {42, 2}, {-3, 2}, {1234, 4}}
+	for _, tc := range tests {
+		img := image.NewRGBA(image.Rect(0, 0, 60, 30))
+		drawRegionLabel(img, tc.id, 30, 10, ink)
+		// Oracle: the ink pixels are exactly the glyph pixels, placed from
+		// the centre outwards.
+		want := map[image.Point]bool{}
+		w := tc.chars*(glyphW+glyphGap) - glyphGap
+		for _, p := range labelPixels(strconv.Itoa(tc.id), int(math.Floor(30-float64(w)/2)), 14) {
+			want[p] = true
+		}
+		got, white := 0, 0
+		for y := 0; y < 30; y++ {
+			for x := 0; x < 60; x++ {
+				c := img.RGBAAt(x, y)
+				switch {
+				case c == ink:
+					got++
+					if !want[image.Pt(x, y)] {
+						t.Errorf("id %d: ink at %d,%d outside the glyphs", tc.id, x, y)
+					}
+				case c == color.RGBA{255, 255, 255, 255}:
+					white++
+				}
+			}
+		}
+		if got != len(want) || got == 0 {
+			t.Errorf("id %d: %d ink pixels, want %d", tc.id, got, len(want))
+		}
+		if white == 0 {
+			t.Errorf("id %d: no halo drawn", tc.id)
+		}
+	}
+	// Off the picture: nothing drawn, no panic.
+	img := image.NewRGBA(image.Rect(0, 0, 10, 10))
+	drawRegionLabel(img, 99, -1e9, math.NaN(), ink)
+	drawRegionLabel(img, 99, 1e18, 5, ink)
+}
+
+// TestMapPictureHasRegionIDs checks that the workbook's map picture carries
+// the region ids: the label colour appears below every region point.
+func TestMapPictureHasRegionIDs(t *testing.T) {
+	in := fxInput()
+	v, err := newView(in)
+	if err != nil {
+		t.Fatal(err)
+	}
+	data, err := v.png()
+	if err != nil {
+		t.Fatal(err)
+	}
+	img, err := png.Decode(bytes.NewReader(data))
+	if err != nil {
+		t.Fatal(err)
+	}
+	p := v.projection()
+	for _, r := range in.Regions.Regions {
+		x, y := p.xy(r.Point)
+		ink := 0
+		for dy := 4; dy < 4+glyphH; dy++ {
+			for dx := -glyphW; dx <= glyphW; dx++ {
+				if c := color.RGBAModel.Convert(img.At(int(x)+dx, int(y)+dy)).(color.RGBA); c == (color.RGBA{85, 85, 85, 255}) {
+					ink++
+				}
+			}
+		}
+		if ink < 5 {
+			t.Errorf("region %d: %d label pixels below its point, want its id drawn", r.ID, ink)
+		}
+	}
+}
+
+// TestHTMLOrder checks that the page puts the cautions right after the
+// headline, before the verdicts and the map, that the map has its caption,
+// and that in a comparison each rank names its period.
+func TestHTMLOrder(t *testing.T) {
+	for _, tc := range []struct {
+		name string
+		in   Input
+	}{{"comparison", fxInput()}, {"scan", fxScanInput()}} {
+		t.Run(tc.name, func(t *testing.T) {
+			v, err := newView(tc.in)
+			if err != nil {
+				t.Fatal(err)
+			}
+			page, err := v.html()
+			if err != nil {
+				t.Fatal(err)
+			}
+			s := string(page)
+			at := func(sub string) int {
+				i := strings.Index(s, sub)
+				if i < 0 {
+					t.Fatalf("page lacks %q", sub)
+				}
+				return i
+			}
+			headline, cautions, mapAt, findings := at(`class="headline"`), at(`id="cautions"`), at("<h2>Map</h2>"), at(`id="findings"`)
+			if !(headline < cautions && cautions < mapAt && mapAt < findings) {
+				t.Errorf("page order: headline %d, cautions %d, map %d, weak links %d", headline, cautions, mapAt, findings)
+			}
+			if tc.in.Comparison != nil && cautions > at(`id="verdicts"`) {
+				t.Error("the cautions come after the verdict table")
+			}
+			if !strings.Contains(s, "from its origin region to its destination region") {
+				t.Error("the map lacks its caption")
+			}
+			comparing := tc.in.Comparison != nil
+			if got := strings.Contains(s, "<th>Rank (period)</th>"); got != comparing {
+				t.Errorf("rank header names the period: %v, want %v", got, comparing)
+			}
+			if comparing && !strings.Contains(s, "1 (before)</td>") {
+				t.Error("no rank cell names its period")
+			}
+			if !strings.Contains(s, "<th>Detour ratio") {
+				t.Error("the detour header does not say it is a ratio")
+			}
+		})
+	}
+}
+
+func TestFmtInterval(t *testing.T) {
+	tests := []struct {
+		x, lo, hi     float64
+		d             int
+		shift, within string
+	}{
+		{2.06, 1.78, 2.31, 1, "+2.1", "(1.8 to 2.3)"},
+		{-0.0177, -0.87, 0.73, 1, "0.0", "(-0.9 to 0.7)"}, // no "+0.0" nor "-0.0"
+		{-2.39, -2.42, -2.35, 2, "-2.39", "(-2.42 to -2.35)"},
+		{0.5, math.NaN(), 1, 1, "+0.5", ""},
+		{math.NaN(), 0, 1, 1, "n/a", ""},
+	}
+	for _, tc := range tests {
+		shift, within := fmtInterval(tc.x, tc.lo, tc.hi, tc.d)
+		if shift != tc.shift || within != tc.within {
+			t.Errorf("fmtInterval(%v, %v, %v, %d) = %q, %q; want %q, %q", tc.x, tc.lo, tc.hi, tc.d, shift, within, tc.shift, tc.within)
+		}
+	}
+}
