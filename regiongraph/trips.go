@@ -62,6 +62,13 @@ func parseTripFields(st *settings, z *zoneCache, c *tripColumns, fields [][]byte
 		}
 		v[k] = f
 	}
+	return tr.setPlaces(st, v)
+}
+
+// setPlaces checks a trip row's origin longitude and latitude,
+// destination longitude and latitude and distance, in that order, and sets
+// them on tr; shared by the CSV and Parquet readers.
+func (tr *trip) setPlaces(st *settings, v [5]float64) (reason, string) {
 	for k, limit := range [4]float64{180, 90, 180, 90} {
 		if v[k] < -limit || v[k] > limit {
 			return rUnparseable, tripRequired[2+k]

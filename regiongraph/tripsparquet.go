@@ -210,19 +210,7 @@ func parquetTrip(st *settings, z *zoneCache, row parquet.Row, idx *[7]int, tk *[
 			return rUnparseable, tripRequired[2+k]
 		}
 	}
-	for k, limit := range [4]float64{180, 90, 180, 90} {
-		if v[k] < -limit || v[k] > limit {
-			return rUnparseable, tripRequired[2+k]
-		}
-	}
-	if v[4] < 0 {
-		return rUnparseable, ColDistance
-	}
-	tr.origin = [2]float64{v[0], v[1]}
-	tr.dest = [2]float64{v[2], v[3]}
-	tr.distance = v[4] * st.distanceScale
-	tr.jump = false
-	return reasonUsed, ""
+	return tr.setPlaces(st, v)
 }
 
 func parquetTime(z *zoneCache, v parquet.Value, k parquetTimeKind) (int64, error) {
