@@ -180,6 +180,7 @@ func scanSettings(o patterns.ScanOptions) [][2]string {
 		{"speed gate", speed},
 		{"support (share of days)", f(o.Support)},
 		{"largest group (edges)", strconv.Itoa(o.MaxGroupEdges)},
+		{"maximal groups only", strconv.FormatBool(o.MaximalOnly)},
 		{"reference speed (km/h)", f(math.Round(o.ReferenceSpeed*3.6*1000) / 1000)},
 	}
 }

@@ -231,6 +231,44 @@ func checkScanCommand(t *testing.T, dir string, before patterns.ScanOptions, hou
 			break
 		}
 	}
+
+	// --maximal-only: a shorter list in which no group lies inside another.
+	code, stdout, stderr = runCLI(t, "scan", "--graphs", filepath.Join(dir, "out", "steps", "graphs.parquet"),
+		"--from", before.From, "--to", before.To, "--days", string(before.Days),
+		"--support", fmt.Sprint(before.Support), "--maximal-only", "--out", out)
+	if code != exitOK {
+		t.Fatalf("scan --maximal-only: exit %d\n%s\n%s", code, stdout, stderr)
+	}
+	all := len(doc.Findings)
+	doc.Findings = nil
+	if data, err = os.ReadFile(out); err != nil {
+		t.Fatal(err)
+	}
+	if err := json.Unmarshal(data, &doc); err != nil {
+		t.Fatal(err)
+	}
+	if len(doc.Findings) == 0 || len(doc.Findings) >= all {
+		t.Errorf("--maximal-only gives %d findings of %d", len(doc.Findings), all)
+	}
+	type edge struct{ From, To int }
+	sets := make([]map[edge]bool, len(doc.Findings))
+	for i, f := range doc.Findings {
+		sets[i] = map[edge]bool{}
+		for _, e := range f.Edges {
+			sets[i][edge{e.From, e.To}] = true
+		}
+	}
+	for i := range sets {
+		for j := range sets {
+			inside := i != j && len(sets[i]) <= len(sets[j])
+			for e := range sets[i] {
+				inside = inside && sets[j][e]
+			}
+			if inside {
+				t.Errorf("--maximal-only: finding %d lies inside finding %d", i+1, j+1)
+			}
+		}
+	}
 }
 
 // With nothing changed between the periods, no finding is cleared and none

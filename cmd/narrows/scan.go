@@ -26,6 +26,7 @@ type scanFlags struct {
 	noSpeedGate           bool
 	maxEdges              int
 	refSpeedKMH           float64
+	maximalOnly           bool
 }
 
 func (f *scanFlags) register(fs *flag.FlagSet) {
@@ -40,6 +41,7 @@ func (f *scanFlags) register(fs *flag.FlagSet) {
 	fs.BoolVar(&f.noDetourGate, "no-detour-gate", false, "switch the detour floor off")
 	fs.BoolVar(&f.noSpeedGate, "no-speed-gate", false, "switch off the gate 'slower than the day's median speed'")
 	fs.IntVar(&f.maxEdges, "max-edges", d.MaxGroupEdges, "largest group of edges to report")
+	fs.BoolVar(&f.maximalOnly, "maximal-only", false, "report only groups not contained in another reported group (a shorter list)")
 	fs.Float64Var(&f.refSpeedKMH, "reference-speed", d.ReferenceSpeed*3.6, "`km/h` against which extra vehicle-hours are counted")
 }
 
@@ -66,6 +68,7 @@ func (f *scanFlags) options() (patterns.ScanOptions, error) {
 	}
 	o.Support = f.support
 	o.MaxGroupEdges = f.maxEdges
+	o.MaximalOnly = f.maximalOnly
 	o.ReferenceSpeed = f.refSpeedKMH / 3.6
 	o.Skyline.MinTrips = f.minTrips
 	o.Skyline.K = f.k

@@ -63,6 +63,7 @@ type study struct {
 		NoDetourGate   bool     `toml:"no_detour_gate"`
 		NoSpeedGate    bool     `toml:"no_speed_gate"`
 		MaxEdges       *int     `toml:"max_edges"`
+		MaximalOnly    bool     `toml:"maximal_only"`
 		ReferenceSpeed *float64 `toml:"reference_speed_kmh"`
 		From           string   `toml:"from"`
 		To             string   `toml:"to"`
@@ -215,6 +216,7 @@ func (s *study) run(ctx context.Context, env *environment, dir, file string) err
 		support: deref(s.Scan.Support, d.Support), detourFloor: deref(s.Scan.DetourFloor, d.Skyline.DetourFloor),
 		noDetourGate: s.Scan.NoDetourGate, noSpeedGate: s.Scan.NoSpeedGate,
 		maxEdges: deref(s.Scan.MaxEdges, d.MaxGroupEdges), refSpeedKMH: deref(s.Scan.ReferenceSpeed, d.ReferenceSpeed*3.6),
+		maximalOnly: s.Scan.MaximalOnly,
 	}
 	scanOpts, err := sf.options()
 	if err != nil {
