@@ -137,7 +137,10 @@ func compareAndReport(ctx context.Context, env *environment, job compareJob) err
 		PublicationMinTrips: job.minPublish,
 		Version:             version,
 	}
-	dir := filepath.Dir(job.out)
+	dir, err := outputDir(job.out)
+	if err != nil {
+		return err
+	}
 	base := strings.TrimSuffix(filepath.Base(job.out), filepath.Ext(job.out))
 	paths, err := report.WriteAll(dir, base, in)
 	if err != nil {

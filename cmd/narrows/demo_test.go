@@ -174,10 +174,8 @@ func TestDemoFindsThePlantedWeaknessAndTheFixWorks(t *testing.T) {
 // finding edge in findings.geojson.
 func checkScanCommand(t *testing.T, dir string, before patterns.ScanOptions, housing, jobs int, regions *partition.Partition) {
 	t.Helper()
+	// A folder that does not exist yet: scan makes it.
 	out := filepath.Join(dir, "scan", "findings.json")
-	if err := os.MkdirAll(filepath.Dir(out), 0o755); err != nil {
-		t.Fatal(err)
-	}
 	code, stdout, stderr := runCLI(t, "scan", "--graphs", filepath.Join(dir, "out", "steps", "graphs.parquet"),
 		"--from", before.From, "--to", before.To, "--days", string(before.Days),
 		"--support", fmt.Sprint(before.Support), "--out", out)

@@ -30,7 +30,10 @@ func fileSHA256(path string) (string, error) {
 // directory and renames it into place, so a failed run never leaves a
 // half-written output.
 func writeFileAtomic(path string, write func(w io.Writer) error) error {
-	dir := filepath.Dir(path)
+	dir, err := outputDir(path)
+	if err != nil {
+		return err
+	}
 	tmp, err := os.CreateTemp(dir, "."+filepath.Base(path)+".tmp-*")
 	if err != nil {
 		return err
@@ -49,6 +52,16 @@ func writeFileAtomic(path string, write func(w io.Writer) error) error {
 		return err
 	}
 	return os.Rename(name, path)
+}
+
+// outputDir makes the folder an output goes into, as a user naming a new
+// folder for the results expects, and returns it.
+func outputDir(path string) (string, error) {
+	dir := filepath.Dir(path)
+	if err := os.MkdirAll(dir, 0o755); err != nil {
+		return "", fmt.Errorf("output folder for %s: %w", path, err)
+	}
+	return dir, nil
 }
 
 func stderrIsTerminal() bool { return term.IsTerminal(int(os.Stderr.Fd())) }

@@ -122,6 +122,9 @@ func ingest(ctx context.Context, env *environment, regionsPath string, trips []s
 			return err
 		}
 	}
+	if _, err := outputDir(out); err != nil {
+		return err
+	}
 	if err := regiongraph.WriteFile(out, store); err != nil {
 		return err
 	}
