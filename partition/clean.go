@@ -54,14 +54,21 @@ func closeGaps(a *arrangement, snap float64) []seg {
 		own := adj[start[v]]
 		p := a.pts[v]
 
-		// Network distances from v up to radius.
+		// Network distances from v up to radius, settling at most
+		// maxGapSearch vertices: real linework has a few dozen within
+		// 3 x snap of a line end, but a pathological file (thousands of
+		// lines criss-crossing in a few metres) has millions, and an
+		// unbounded search from every end would take hours. Vertices left
+		// unreached count as far, so at worst a connector is added and the
+		// sliver it makes is merged later.
 		netDist[v], stamp[v] = 0, round
 		pq = append(pq[:0], distItem{v, 0})
-		for pq.Len() > 0 {
+		for settled := 0; pq.Len() > 0 && settled < maxGapSearch; {
 			it := heap.Pop(&pq).(distItem)
 			if it.d > netDist[it.v] {
 				continue
 			}
+			settled++
 			for _, e := range adj[start[it.v]:start[it.v+1]] {
 				ed := a.edges[e]
 				w := ed.u
@@ -128,6 +135,9 @@ func closeGaps(a *arrangement, snap float64) []seg {
 	}
 	return out
 }
+
+// maxGapSearch bounds the network search around one line end in closeGaps.
+const maxGapSearch = 4096
 
 type distItem struct {
 	v int32

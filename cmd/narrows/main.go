@@ -79,6 +79,12 @@ func commands() []command {
 func main() {
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
 	defer stop()
+	// The first interrupt cancels the work (outputs are never half-written);
+	// a second one, should a step not notice, ends the process at once.
+	go func() {
+		<-ctx.Done()
+		stop()
+	}()
 	env := &environment{stdout: os.Stdout, stderr: os.Stderr, interactive: stderrIsTerminal()}
 	os.Exit(dispatch(ctx, env, os.Args[1:]))
 }
