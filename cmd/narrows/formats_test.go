@@ -22,6 +22,24 @@ func TestSimulatedGPSAndGPXIngest(t *testing.T) {
 		t.Fatalf("regions: exit %d\n%s\n%s", code, stdout, stderr)
 	}
 	used := regexp.MustCompile(`(?m)^\s+used\s+(\d+)`)
+
+	// The quality thresholds are settable: a speed ceiling of 20 km/h
+	// rejects trips of the town's arterials that the default 150 km/h keeps.
+	badSpeed := regexp.MustCompile(`(?m)^\s+rejected: bad speed\s+(\d+)`)
+	for _, tc := range []struct {
+		args    []string
+		rejects bool
+	}{{nil, false}, {[]string{"--max-speed", "20"}, true}} {
+		args := append([]string{"ingest", "--regions", regions, "--tz", "Etc/GMT-1",
+			"--trips", filepath.Join(dir, "town", "trips.csv"), "--out", filepath.Join(dir, "speed.parquet")}, tc.args...)
+		code, stdout, stderr := runCLI(t, args...)
+		if code != exitOK {
+			t.Fatalf("ingest %v: exit %d\n%s\n%s", tc.args, code, stdout, stderr)
+		}
+		if got := badSpeed.MatchString(stdout); got != tc.rejects {
+			t.Errorf("ingest %v: a bad-speed line is %v, want %v:\n%s", tc.args, got, tc.rejects, stdout)
+		}
+	}
 	for _, tc := range []struct{ format, file string }{
 		{"trips", "trips.csv"},
 		{"points", "points.csv"},

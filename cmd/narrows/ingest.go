@@ -17,6 +17,11 @@ type ingestFlags struct {
 	windows                   listFlag
 	strict                    bool
 	minOD                     float64
+	maxDuration               time.Duration
+	minSpeed, maxSpeed        float64
+	minDetour, maxJump        float64
+	gapMinutes                float64
+	dwellMinutes, dwellMetres float64
 }
 
 func (f *ingestFlags) register(fs *flag.FlagSet) {
@@ -28,6 +33,23 @@ func (f *ingestFlags) register(fs *flag.FlagSet) {
 	fs.Var(&f.windows, "window", "named time window `NAME=HH:MM-HH:MM` (repeatable; default one window 'all')")
 	fs.BoolVar(&f.strict, "strict", false, "stop at the first bad row, naming file and line")
 	fs.Float64Var(&f.minOD, "min-od", d.MinStraightMetres, "reject trips whose origin-destination distance is under this many `metres`")
+	fs.DurationVar(&f.maxDuration, "max-duration", d.MaxDuration, "reject trips longer than this")
+	fs.Float64Var(&f.minSpeed, "min-speed", d.MinSpeedKMH, "reject trips slower than this many `km/h`")
+	fs.Float64Var(&f.maxSpeed, "max-speed", d.MaxSpeedKMH, "reject trips faster than this many `km/h`")
+	fs.Float64Var(&f.minDetour, "min-detour", d.MinDetour, "reject trips whose travel distance is under this `ratio` of the straight line")
+	fs.Float64Var(&f.maxJump, "max-jump-speed", d.MaxJumpKMH, "GPS: reject a trace with a step faster than this many `km/h`")
+	fs.Float64Var(&f.gapMinutes, "gap", d.GapMinutes, "GPS without an occupied column: cut trips at time gaps over this many `minutes`")
+	fs.Float64Var(&f.dwellMinutes, "dwell-minutes", d.DwellMinutes, "GPS: cut trips where a vehicle stays put longer than this many `minutes`")
+	fs.Float64Var(&f.dwellMetres, "dwell-metres", d.DwellMetres, "GPS: the radius of such a dwell, in `metres`")
+}
+
+// defaultIngestFlags returns the flag values of the defaults (for study
+// files, which set only what they name).
+func defaultIngestFlags() ingestFlags {
+	d := regiongraph.DefaultOptions()
+	return ingestFlags{format: "trips", unit: d.DistanceUnit, tz: d.TimeZone, minOD: d.MinStraightMetres,
+		maxDuration: d.MaxDuration, minSpeed: d.MinSpeedKMH, maxSpeed: d.MaxSpeedKMH, minDetour: d.MinDetour,
+		maxJump: d.MaxJumpKMH, gapMinutes: d.GapMinutes, dwellMinutes: d.DwellMinutes, dwellMetres: d.DwellMetres}
 }
 
 func (f *ingestFlags) options() (regiongraph.Options, error) {
@@ -55,7 +77,15 @@ func (f *ingestFlags) options() (regiongraph.Options, error) {
 		}
 	}
 	o.Strict = f.strict
+	if f.minOD < 0 || f.maxDuration <= 0 || f.minSpeed < 0 || f.maxSpeed <= f.minSpeed || f.minDetour < 0 ||
+		f.maxJump <= 0 || f.gapMinutes <= 0 || f.dwellMinutes <= 0 || f.dwellMetres < 0 {
+		return o, usagef("quality thresholds: --min-od, --min-speed, --min-detour and --dwell-metres must be non-negative; --max-duration, --max-jump-speed, --gap and --dwell-minutes positive; --max-speed above --min-speed")
+	}
 	o.MinStraightMetres = f.minOD
+	o.MaxDuration = f.maxDuration
+	o.MinSpeedKMH, o.MaxSpeedKMH = f.minSpeed, f.maxSpeed
+	o.MinDetour, o.MaxJumpKMH = f.minDetour, f.maxJump
+	o.GapMinutes, o.DwellMinutes, o.DwellMetres = f.gapMinutes, f.dwellMinutes, f.dwellMetres
 	return o, nil
 }
 

@@ -8,6 +8,7 @@ import (
 	"path/filepath"
 	"strconv"
 	"strings"
+	"time"
 
 	"github.com/BurntSushi/toml"
 
@@ -44,6 +45,14 @@ type study struct {
 		DistanceUnit string            `toml:"distance_unit"`
 		Strict       bool              `toml:"strict"`
 		MinODMetres  *float64          `toml:"min_od_metres"`
+		MaxDuration  string            `toml:"max_duration"` // Go duration, e.g. "4h"
+		MinSpeedKMH  *float64          `toml:"min_speed_kmh"`
+		MaxSpeedKMH  *float64          `toml:"max_speed_kmh"`
+		MinDetour    *float64          `toml:"min_detour"`
+		MaxJumpKMH   *float64          `toml:"max_jump_speed_kmh"`
+		GapMinutes   *float64          `toml:"gap_minutes"`
+		DwellMinutes *float64          `toml:"dwell_minutes"`
+		DwellMetres  *float64          `toml:"dwell_metres"`
 	} `toml:"trips"`
 
 	Windows []struct {
@@ -180,16 +189,30 @@ func (s *study) run(ctx context.Context, env *environment, dir, file string) err
 	}
 
 	// 2. Day graphs.
-	inf := ingestFlags{format: s.Trips.Format, unit: s.Trips.DistanceUnit, tz: s.TimeZone, strict: s.Trips.Strict}
-	iopts := regiongraph.DefaultOptions()
-	if inf.unit == "" {
-		inf.unit = iopts.DistanceUnit
+	inf := defaultIngestFlags()
+	inf.format, inf.tz, inf.strict = s.Trips.Format, s.TimeZone, s.Trips.Strict
+	if s.Trips.DistanceUnit != "" {
+		inf.unit = s.Trips.DistanceUnit
 	}
-	inf.minOD = deref(s.Trips.MinODMetres, iopts.MinStraightMetres)
+	inf.minOD = deref(s.Trips.MinODMetres, inf.minOD)
+	if s.Trips.MaxDuration != "" {
+		d, err := time.ParseDuration(s.Trips.MaxDuration)
+		if err != nil {
+			return fmt.Errorf("%s: [trips] max_duration: %v", where, err)
+		}
+		inf.maxDuration = d
+	}
+	inf.minSpeed = deref(s.Trips.MinSpeedKMH, inf.minSpeed)
+	inf.maxSpeed = deref(s.Trips.MaxSpeedKMH, inf.maxSpeed)
+	inf.minDetour = deref(s.Trips.MinDetour, inf.minDetour)
+	inf.maxJump = deref(s.Trips.MaxJumpKMH, inf.maxJump)
+	inf.gapMinutes = deref(s.Trips.GapMinutes, inf.gapMinutes)
+	inf.dwellMinutes = deref(s.Trips.DwellMinutes, inf.dwellMinutes)
+	inf.dwellMetres = deref(s.Trips.DwellMetres, inf.dwellMetres)
 	for _, w := range s.Windows {
 		inf.windows = append(inf.windows, w.Name+"="+w.From+"-"+w.To)
 	}
-	iopts, err = inf.options()
+	iopts, err := inf.options()
 	if err != nil {
 		return fmt.Errorf("%s: [trips]/[[windows]]/time_zone: %v", where, err)
 	}
