@@ -349,3 +349,42 @@ func BenchmarkDemo(b *testing.B) {
 		}
 	}
 }
+
+// A study file without [compare] scans one period: findings.json, the map
+// layers, the workbook and the HTML page, and the scan headline.
+func TestStudyWithoutCompareScans(t *testing.T) {
+	if testing.Short() {
+		t.Skip("simulated study")
+	}
+	dir := t.TempDir()
+	if code, stdout, stderr := runCLI(t, "simulate", "--out", dir, "--days", "14", "--trips-per-day", "4000"); code != exitOK {
+		t.Fatalf("simulate: exit %d\n%s\n%s", code, stdout, stderr)
+	}
+	study := filepath.Join(dir, "study.toml")
+	text, err := os.ReadFile(study)
+	if err != nil {
+		t.Fatal(err)
+	}
+	head, _, ok := strings.Cut(string(text), "[compare]")
+	if !ok {
+		t.Fatal("the simulated study file has no [compare] section to drop")
+	}
+	if err := os.WriteFile(study, []byte(head), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	code, stdout, stderr := runCLI(t, "run", study)
+	if code != exitOK {
+		t.Fatalf("run: exit %d\n%s\n%s", code, stdout, stderr)
+	}
+	if !strings.Contains(stdout, "analysed days") {
+		t.Errorf("no scan headline:\n%s", stdout)
+	}
+	for _, name := range []string{"findings.json", "findings.geojson", "regions.geojson", "report.xlsx", "report.html"} {
+		if _, err := os.Stat(filepath.Join(dir, "out", name)); err != nil {
+			t.Errorf("scan-only study: %v", err)
+		}
+	}
+	if _, err := os.Stat(filepath.Join(dir, "out", "report.xlsx")); err == nil && strings.Contains(stdout, "cleared") {
+		t.Errorf("a scan-only study speaks of verdicts:\n%s", stdout)
+	}
+}
