@@ -107,10 +107,7 @@ func TestDemoFindsThePlantedWeaknessAndTheFixWorks(t *testing.T) {
 		t.Skip("end-to-end demo")
 	}
 	dir := t.TempDir()
-	code, stdout, stderr := runCLI(t, "demo", "--dir", dir)
-	if code != exitOK {
-		t.Fatalf("demo: exit %d\n%s\n%s", code, stdout, stderr)
-	}
+	stdout := mustRunCLI(t, "demo", "--dir", dir)
 	for _, name := range []string{"report.xlsx", "report.html", "regions.geojson", "findings.geojson"} {
 		if !strings.Contains(stdout, filepath.Join(dir, "out", name)) {
 			t.Errorf("demo does not say where %s is:\n%s", name, stdout)
@@ -176,12 +173,9 @@ func checkScanCommand(t *testing.T, dir string, before patterns.ScanOptions, hou
 	t.Helper()
 	// A folder that does not exist yet: scan makes it.
 	out := filepath.Join(dir, "scan", "findings.json")
-	code, stdout, stderr := runCLI(t, "scan", "--graphs", filepath.Join(dir, "out", "steps", "graphs.parquet"),
+	stdout := mustRunCLI(t, "scan", "--graphs", filepath.Join(dir, "out", "steps", "graphs.parquet"),
 		"--from", before.From, "--to", before.To, "--days", string(before.Days),
 		"--support", fmt.Sprint(before.Support), "--out", out)
-	if code != exitOK {
-		t.Fatalf("scan: exit %d\n%s\n%s", code, stdout, stderr)
-	}
 	var doc struct {
 		Findings []struct {
 			Rank  int `json:"rank"`
@@ -231,12 +225,9 @@ func checkScanCommand(t *testing.T, dir string, before patterns.ScanOptions, hou
 	}
 
 	// --maximal-only: a shorter list in which no group lies inside another.
-	code, stdout, stderr = runCLI(t, "scan", "--graphs", filepath.Join(dir, "out", "steps", "graphs.parquet"),
+	stdout = mustRunCLI(t, "scan", "--graphs", filepath.Join(dir, "out", "steps", "graphs.parquet"),
 		"--from", before.From, "--to", before.To, "--days", string(before.Days),
 		"--support", fmt.Sprint(before.Support), "--maximal-only", "--out", out)
-	if code != exitOK {
-		t.Fatalf("scan --maximal-only: exit %d\n%s\n%s", code, stdout, stderr)
-	}
 	all := len(doc.Findings)
 	doc.Findings = nil
 	if data, err = os.ReadFile(out); err != nil {
@@ -276,13 +267,9 @@ func TestControlScenarioHasNoClearedOrWorse(t *testing.T) {
 		t.Skip("end-to-end control study")
 	}
 	dir := t.TempDir()
-	if code, stdout, stderr := runCLI(t, "simulate", "--scenario", "control", "--out", dir); code != exitOK {
-		t.Fatalf("simulate: exit %d\n%s\n%s", code, stdout, stderr)
-	}
+	mustRunCLI(t, "simulate", "--scenario", "control", "--out", dir)
 	study := filepath.Join(dir, "study.toml")
-	if code, stdout, stderr := runCLI(t, "run", study); code != exitOK {
-		t.Fatalf("run: exit %d\n%s\n%s", code, stdout, stderr)
-	}
+	mustRunCLI(t, "run", study)
 	regions, store := studyOutputs(t, dir)
 	before, after := studyPeriods(t, study)
 	cmp, err := patterns.Compare(context.Background(), store, regions, before, after, patterns.DefaultCompareOptions())
@@ -306,9 +293,7 @@ func TestDemoIsDeterministic(t *testing.T) {
 	}
 	dirs := []string{t.TempDir(), t.TempDir()}
 	for _, d := range dirs {
-		if code, stdout, stderr := runCLI(t, "demo", "--dir", d); code != exitOK {
-			t.Fatalf("demo: exit %d\n%s\n%s", code, stdout, stderr)
-		}
+		mustRunCLI(t, "demo", "--dir", d)
 	}
 	files := 0
 	err := filepath.WalkDir(dirs[0], func(path string, d fs.DirEntry, err error) error {
@@ -357,9 +342,7 @@ func TestStudyWithoutCompareScans(t *testing.T) {
 		t.Skip("simulated study")
 	}
 	dir := t.TempDir()
-	if code, stdout, stderr := runCLI(t, "simulate", "--out", dir, "--days", "14", "--trips-per-day", "4000"); code != exitOK {
-		t.Fatalf("simulate: exit %d\n%s\n%s", code, stdout, stderr)
-	}
+	mustRunCLI(t, "simulate", "--out", dir, "--days", "14", "--trips-per-day", "4000")
 	study := filepath.Join(dir, "study.toml")
 	text, err := os.ReadFile(study)
 	if err != nil {
@@ -372,10 +355,7 @@ func TestStudyWithoutCompareScans(t *testing.T) {
 	if err := os.WriteFile(study, []byte(head), 0o644); err != nil {
 		t.Fatal(err)
 	}
-	code, stdout, stderr := runCLI(t, "run", study)
-	if code != exitOK {
-		t.Fatalf("run: exit %d\n%s\n%s", code, stdout, stderr)
-	}
+	stdout := mustRunCLI(t, "run", study)
 	if !strings.Contains(stdout, "analysed days") {
 		t.Errorf("no scan headline:\n%s", stdout)
 	}

@@ -13,14 +13,7 @@ func TestSimulatedGPSAndGPXIngest(t *testing.T) {
 	if testing.Short() {
 		t.Skip("simulation and three ingests")
 	}
-	dir := t.TempDir()
-	if code, stdout, stderr := runCLI(t, "simulate", "--out", dir, "--days", "2", "--trips-per-day", "2000", "--gps-every", "20"); code != exitOK {
-		t.Fatalf("simulate: exit %d\n%s\n%s", code, stdout, stderr)
-	}
-	regions := filepath.Join(dir, "regions.geojson")
-	if code, stdout, stderr := runCLI(t, "regions", "--osm", filepath.Join(dir, "town", "quillhaven-before.osm"), "--barriers", "rail,river", "--out", regions); code != exitOK {
-		t.Fatalf("regions: exit %d\n%s\n%s", code, stdout, stderr)
-	}
+	dir, regions := simulatedTown(t, "--days", "2", "--trips-per-day", "2000", "--gps-every", "20")
 	used := regexp.MustCompile(`(?m)^\s+used\s+(\d+)`)
 
 	// The quality thresholds are settable: a speed ceiling of 20 km/h
@@ -32,10 +25,7 @@ func TestSimulatedGPSAndGPXIngest(t *testing.T) {
 	}{{nil, false}, {[]string{"--max-speed", "20"}, true}} {
 		args := append([]string{"ingest", "--regions", regions, "--tz", "Etc/GMT-1",
 			"--trips", filepath.Join(dir, "town", "trips.csv"), "--out", filepath.Join(dir, "speed.parquet")}, tc.args...)
-		code, stdout, stderr := runCLI(t, args...)
-		if code != exitOK {
-			t.Fatalf("ingest %v: exit %d\n%s\n%s", tc.args, code, stdout, stderr)
-		}
+		stdout := mustRunCLI(t, args...)
 		if got := badSpeed.MatchString(stdout); got != tc.rejects {
 			t.Errorf("ingest %v: a bad-speed line is %v, want %v:\n%s", tc.args, got, tc.rejects, stdout)
 		}
@@ -46,11 +36,8 @@ func TestSimulatedGPSAndGPXIngest(t *testing.T) {
 		{"gpx", "traces.gpx"},
 	} {
 		t.Run(tc.format, func(t *testing.T) {
-			code, stdout, stderr := runCLI(t, "ingest", "--regions", regions, "--format", tc.format, "--tz", "Etc/GMT-1",
+			stdout := mustRunCLI(t, "ingest", "--regions", regions, "--format", tc.format, "--tz", "Etc/GMT-1",
 				"--trips", filepath.Join(dir, "town", tc.file), "--out", filepath.Join(dir, tc.format+".parquet"))
-			if code != exitOK {
-				t.Fatalf("ingest: exit %d\n%s\n%s", code, stdout, stderr)
-			}
 			m := used.FindStringSubmatch(stdout)
 			if m == nil {
 				t.Fatalf("no 'used' line in the summary:\n%s", stdout)

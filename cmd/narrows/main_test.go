@@ -18,6 +18,29 @@ func runCLI(t *testing.T, args ...string) (code int, stdout, stderr string) {
 	return code, out.String(), errOut.String()
 }
 
+// mustRunCLI runs the command line in-process, fails the test unless it
+// exits 0, and returns what it printed on stdout.
+func mustRunCLI(t *testing.T, args ...string) string {
+	t.Helper()
+	code, stdout, stderr := runCLI(t, args...)
+	if code != exitOK {
+		t.Fatalf("narrows %s: exit %d\n%s\n%s", strings.Join(args, " "), code, stdout, stderr)
+	}
+	return stdout
+}
+
+// simulatedTown simulates the demo town into a temporary folder with the
+// given simulate options and partitions it with the demo's barriers. It
+// returns the folder and the regions file.
+func simulatedTown(t *testing.T, simulateArgs ...string) (dir, regions string) {
+	t.Helper()
+	dir = t.TempDir()
+	mustRunCLI(t, append([]string{"simulate", "--out", dir}, simulateArgs...)...)
+	regions = filepath.Join(dir, "regions.geojson")
+	mustRunCLI(t, "regions", "--osm", filepath.Join(dir, "town", "quillhaven-before.osm"), "--barriers", "rail,river", "--out", regions)
+	return dir, regions
+}
+
 func TestHelpForEveryCommand(t *testing.T) {
 	for _, c := range commands() {
 		if c.name == "version" {

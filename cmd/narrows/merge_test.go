@@ -17,14 +17,7 @@ func TestIngestMergeEqualsOneIngest(t *testing.T) {
 	if testing.Short() {
 		t.Skip("simulation and three ingests")
 	}
-	dir := t.TempDir()
-	if code, stdout, stderr := runCLI(t, "simulate", "--out", dir, "--days", "14", "--trips-per-day", "3000"); code != exitOK {
-		t.Fatalf("simulate: exit %d\n%s\n%s", code, stdout, stderr)
-	}
-	regions := filepath.Join(dir, "regions.geojson")
-	if code, stdout, stderr := runCLI(t, "regions", "--osm", filepath.Join(dir, "town", "quillhaven-before.osm"), "--barriers", "rail,river", "--out", regions); code != exitOK {
-		t.Fatalf("regions: exit %d\n%s\n%s", code, stdout, stderr)
-	}
+	dir, regions := simulatedTown(t, "--days", "14", "--trips-per-day", "3000")
 	// Split the trips by start day: the first week, then the second.
 	all := filepath.Join(dir, "town", "trips.csv")
 	weeks := [2]string{filepath.Join(dir, "week1.csv"), filepath.Join(dir, "week2.csv")}
