@@ -269,7 +269,7 @@ func regions(a *arrangement, fs *faceSet, pr projection, ways []wayInfo) []Regio
 			ID:          i + 1,
 			AreaKM2:     f.area / 1e6,
 			PerimeterKM: f.perimeter / 1e3,
-			Point:       orb.Point{pr.lon0 + o.x*gridMetres/pr.kx, pr.lat0 + o.y*gridMetres/pr.ky},
+			Point:       pr.Inverse(o.x*gridMetres, o.y*gridMetres),
 		}
 		for _, ring := range f.rings {
 			rg := make(orb.Ring, 0, len(ring)+1)

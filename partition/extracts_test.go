@@ -12,6 +12,8 @@ import (
 
 	"github.com/paulmach/orb"
 	"github.com/paulmach/orb/planar"
+
+	"narrows/partition/geodesy"
 )
 
 // sharedDir holds the real OSM extracts and reference values, beside the
@@ -76,7 +78,7 @@ func readExtract(t testing.TB, name string, o Options) *extract {
 // R²·cos φ0·Δλ·Δφ (radians).
 func rectangleKM2(b orb.Bound) float64 {
 	rad := math.Pi / 180
-	return earthRadius * earthRadius * math.Cos(b.Center()[1]*rad) * (b.Max[0] - b.Min[0]) * rad * (b.Max[1] - b.Min[1]) * rad / 1e6
+	return geodesy.EarthRadiusMetres * geodesy.EarthRadiusMetres * math.Cos(b.Center()[1]*rad) * (b.Max[0] - b.Min[0]) * rad * (b.Max[1] - b.Min[1]) * rad / 1e6
 }
 
 func TestExtracts(t *testing.T) {

@@ -5,11 +5,9 @@ import (
 	"math/bits"
 
 	"github.com/paulmach/orb"
-)
 
-// earthRadius is the mean Earth radius in metres (IUGG), the radius of
-// the reference recipe's projection.
-const earthRadius = 6371008.8
+	"narrows/partition/geodesy"
+)
 
 // gridMetres is the spacing of the integer grid on which the noded
 // arrangement lives: 1 µm, far below the 1 cm resolution of OSM
@@ -17,26 +15,20 @@ const earthRadius = 6371008.8
 // integer coordinates make every orientation test exact.
 const gridMetres = 1e-6
 
-// projection is a local equirectangular projection about (lon0, lat0).
-type projection struct {
-	lon0, lat0 float64
-	kx, ky     float64 // metres per degree of longitude and latitude
-}
+// projection is the local equirectangular projection about the study
+// area's centre, with the micrometre grid on top.
+type projection struct{ geodesy.Projection }
 
 func newProjection(b orb.Bound) projection {
-	c := b.Center()
-	ky := earthRadius * math.Pi / 180
-	return projection{lon0: c[0], lat0: c[1], kx: ky * math.Cos(c[1]*math.Pi/180), ky: ky}
+	return projection{geodesy.NewProjection(b.Center())}
 }
 
 // forward returns the planar position of a WGS84 point, in metres.
-func (pr projection) forward(p orb.Point) (x, y float64) {
-	return pr.kx * (p[0] - pr.lon0), pr.ky * (p[1] - pr.lat0)
-}
+func (pr projection) forward(p orb.Point) (x, y float64) { return pr.Forward(p) }
 
 // inverse returns the WGS84 point of a grid position.
 func (pr projection) inverse(p ipt) orb.Point {
-	return orb.Point{pr.lon0 + float64(p.X)*gridMetres/pr.kx, pr.lat0 + float64(p.Y)*gridMetres/pr.ky}
+	return pr.Inverse(float64(p.X)*gridMetres, float64(p.Y)*gridMetres)
 }
 
 // ipt is a point on the micrometre grid.

@@ -11,6 +11,8 @@ import (
 
 	"github.com/paulmach/orb"
 	"github.com/paulmach/orb/planar"
+
+	"narrows/partition/geodesy"
 )
 
 // testdata/ashgrove.osm is a fictional town, drawn by hand (bounds
@@ -134,7 +136,7 @@ func TestTownExact(t *testing.T) {
 		t.Errorf("bow-tie triangles are one region")
 	}
 	// Each triangle: base 0.006° of latitude, height 0.005° of longitude.
-	wantTri := 0.5 * 0.006 * earthRadius * math.Pi / 180 * 0.005 * earthRadius * math.Pi / 180 * math.Cos(40.01*math.Pi/180) / 1e6
+	wantTri := 0.5 * 0.006 * geodesy.EarthRadiusMetres * math.Pi / 180 * 0.005 * geodesy.EarthRadiusMetres * math.Pi / 180 * math.Cos(40.01*math.Pi/180) / 1e6
 	for _, r := range []*Region{left, right} {
 		if math.Abs(r.AreaKM2-wantTri)/wantTri > 1e-4 {
 			t.Errorf("triangle %d: %.6f km², want %.6f", r.ID, r.AreaKM2, wantTri)
@@ -176,7 +178,7 @@ func TestTownDefault(t *testing.T) {
 	if len(island.Neighbours) != 1 || island.Neighbours[0].ID != around.ID {
 		t.Errorf("island neighbours %v, want only region %d", island.Neighbours, around.ID)
 	}
-	ringKM := 2 * (0.010*earthRadius*math.Pi/180*math.Cos(40.01*math.Pi/180) + 0.004*earthRadius*math.Pi/180) / 1e3
+	ringKM := 2 * (0.010*geodesy.EarthRadiusMetres*math.Pi/180*math.Cos(40.01*math.Pi/180) + 0.004*geodesy.EarthRadiusMetres*math.Pi/180) / 1e3
 	if math.Abs(island.PerimeterKM-ringKM) > 1e-4 || math.Abs(island.Neighbours[0].SharedKM-ringKM) > 1e-4 {
 		t.Errorf("island perimeter %.5f km, shared %.5f km; Ring Road is %.5f km", island.PerimeterKM, island.Neighbours[0].SharedKM, ringKM)
 	}

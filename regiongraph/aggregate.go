@@ -6,6 +6,8 @@ import (
 	"runtime"
 	"slices"
 	"strconv"
+
+	"narrows/partition/geodesy"
 )
 
 // record is one trip in one window, kept until the end of the ingest for
@@ -122,7 +124,7 @@ func (t *tally) add(tr *trip) reason {
 	if from == to {
 		return rIntraRegion
 	}
-	straight := GreatCircleMetres(tr.origin, tr.dest)
+	straight := geodesy.GreatCircleMetres(tr.origin, tr.dest)
 	if straight < st.minStraight {
 		return rShortTrip
 	}

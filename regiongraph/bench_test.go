@@ -19,6 +19,7 @@ import (
 	"time"
 
 	"narrows/partition"
+	"narrows/partition/geodesy"
 )
 
 // The benchmark city: 100 regions of about 1.4 x 2.2 km, a month of trips
@@ -52,7 +53,7 @@ func writeBenchCSV(tb testing.TB, path string, n int) int64 {
 		var dlon, dlat, straight float64
 		for try := 0; try < 20; try++ {
 			dlon, dlat = olon+rng.NormFloat64()*bSpread, olat+rng.NormFloat64()*bSpread
-			straight = GreatCircleMetres([2]float64{olon, olat}, [2]float64{dlon, dlat})
+			straight = geodesy.GreatCircleMetres([2]float64{olon, olat}, [2]float64{dlon, dlat})
 			if dlon > gLon0 && dlon < gLon0+bNX*bStep && dlat > gLat0 && dlat < gLat0+bNY*bStep && straight > 600 {
 				break
 			}

@@ -12,25 +12,6 @@ import (
 	"narrows/partition"
 )
 
-// EarthRadiusMetres is the mean Earth radius (IUGG R1) used for great-circle
-// distances.
-const EarthRadiusMetres = 6371008.8
-
-// GreatCircleMetres returns the great-circle (haversine) distance between two
-// WGS84 longitude/latitude points on a sphere of radius EarthRadiusMetres.
-// It is within 0.5 % of the ellipsoidal geodesic distance.
-func GreatCircleMetres(a, b orb.Point) float64 {
-	const rad = math.Pi / 180
-	lat1, lat2 := a[1]*rad, b[1]*rad
-	sdLat := math.Sin((lat2 - lat1) / 2)
-	sdLon := math.Sin((b[0] - a[0]) * rad / 2)
-	h := sdLat*sdLat + math.Cos(lat1)*math.Cos(lat2)*sdLon*sdLon
-	if h > 1 {
-		h = 1
-	}
-	return 2 * EarthRadiusMetres * math.Asin(math.Sqrt(h))
-}
-
 // locator finds the region holding a point. An R-tree over the region
 // bounds gives, once, the candidate regions of every cell of a uniform grid
 // over the study area. A point's cell either lies wholly inside one region

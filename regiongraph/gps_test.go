@@ -15,6 +15,7 @@ import (
 	"github.com/paulmach/orb"
 
 	"narrows/partition"
+	"narrows/partition/geodesy"
 )
 
 // pointsCSV writes GPS rows "vehicle,time,lon,lat[,occupied]".
@@ -51,7 +52,7 @@ func TestGPSPointsCutIntoTrips(t *testing.T) {
 		}
 		e := s.Edges[0]
 		// trip from point 3 (13.017) to point 8 (13.037): five steps of 0.004°.
-		want := 5 * GreatCircleMetres(orb.Point{13.017, 52.01}, orb.Point{13.021, 52.01})
+		want := 5 * geodesy.GreatCircleMetres(orb.Point{13.017, 52.01}, orb.Point{13.021, 52.01})
 		if len(s.Edges) != 1 || e.From != 1 || e.To != 2 || e.Trips != 1 || math.Abs(e.DistanceSum-want) > 0.01 || e.DurationSum != 300 {
 			t.Fatalf("edges %+v, want distance %v", s.Edges, want)
 		}
@@ -264,7 +265,7 @@ func TestAndorraDriveGPX(t *testing.T) {
 	for i := 1; i < len(pts); i++ {
 		a, b := pts[i-1], pts[i]
 		c := math.Sin(a[1]*rad)*math.Sin(b[1]*rad) + math.Cos(a[1]*rad)*math.Cos(b[1]*rad)*math.Cos((b[0]-a[0])*rad)
-		cosines += EarthRadiusMetres * math.Acos(math.Min(1, c))
+		cosines += geodesy.EarthRadiusMetres * math.Acos(math.Min(1, c))
 		vincenty += vincentyMetres(a, b)
 	}
 

@@ -13,6 +13,8 @@ import (
 	"time"
 
 	"github.com/paulmach/orb"
+
+	"narrows/partition/geodesy"
 )
 
 const (
@@ -36,7 +38,7 @@ func genTrips(rng *rand.Rand, n int, day0 time.Time) []genTrip {
 		tr := &trips[i]
 		tr.o = [2]float64{gLon0 - 0.01 + rng.Float64()*(gNX*gStep+0.02), gLat0 - 0.01 + rng.Float64()*(gNY*gStep+0.02)}
 		tr.d = [2]float64{gLon0 - 0.01 + rng.Float64()*(gNX*gStep+0.02), gLat0 - 0.01 + rng.Float64()*(gNY*gStep+0.02)}
-		straight := GreatCircleMetres(tr.o, tr.d)
+		straight := geodesy.GreatCircleMetres(tr.o, tr.d)
 		tr.distance = math.Round(straight*(0.9+rng.Float64()*1.5)*10) / 10
 		tr.start = day0.Add(time.Duration(rng.Int64N(int64(72 * time.Hour)))).Truncate(time.Second)
 		tr.end = tr.start.Add(time.Duration(rng.Int64N(int64(90*time.Minute))) - 2*time.Minute).Truncate(time.Second)
@@ -109,7 +111,7 @@ func oracle(trips []genTrip, loc *time.Location, windows []Window, o Options) (m
 		// Spherical law of cosines as an independent straight-line distance.
 		const rad = math.Pi / 180
 		c := math.Sin(org[1]*rad)*math.Sin(dst[1]*rad) + math.Cos(org[1]*rad)*math.Cos(dst[1]*rad)*math.Cos((dst[0]-org[0])*rad)
-		straight := EarthRadiusMetres * math.Acos(math.Min(1, c))
+		straight := geodesy.EarthRadiusMetres * math.Acos(math.Min(1, c))
 		dur := tr.end.Sub(tr.start).Seconds()
 		speedKMH := tr.distance / dur * 3.6
 		var r string

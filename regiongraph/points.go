@@ -6,6 +6,8 @@ import (
 	"fmt"
 	"slices"
 	"strconv"
+
+	"narrows/partition/geodesy"
 )
 
 // gpsPoint is one GPS fix. Points of all vehicles are held in memory until
@@ -240,7 +242,7 @@ func (s *pointSegmenter) dwells(p []gpsPoint) {
 	n := len(p)
 	start, anchor := 0, 0
 	for i := 1; i <= n; i++ {
-		if i < n && GreatCircleMetres([2]float64{p[anchor].lon, p[anchor].lat}, [2]float64{p[i].lon, p[i].lat}) <= s.st.dwellMetres {
+		if i < n && geodesy.GreatCircleMetres([2]float64{p[anchor].lon, p[anchor].lat}, [2]float64{p[i].lon, p[i].lat}) <= s.st.dwellMetres {
 			continue
 		}
 		last := i - 1 // cluster is anchor..last
@@ -288,7 +290,7 @@ func (s *pointSegmenter) trip(p []gpsPoint) {
 // between two different places counts as a jump.
 func pathLength(p []gpsPoint, maxJump float64) (metres float64, jump bool) {
 	for i := 1; i < len(p); i++ {
-		d := GreatCircleMetres([2]float64{p[i-1].lon, p[i-1].lat}, [2]float64{p[i].lon, p[i].lat})
+		d := geodesy.GreatCircleMetres([2]float64{p[i-1].lon, p[i-1].lat}, [2]float64{p[i].lon, p[i].lat})
 		metres += d
 		dt := float64(p[i].ms-p[i-1].ms) / 1000
 		if d > 0 && (dt <= 0 || d/dt > maxJump) {

@@ -6,6 +6,8 @@ import (
 	"strconv"
 	"sync"
 	"sync/atomic"
+
+	"narrows/partition/geodesy"
 )
 
 // tripColumns are the field indexes of the trip table columns.
@@ -86,7 +88,7 @@ func (tr *trip) setPlaces(st *settings, v [5]float64) (reason, string) {
 
 // explain says why a parsed trip was rejected, for strict mode messages.
 func explain(st *settings, tr *trip, r reason) string {
-	straight := GreatCircleMetres(tr.origin, tr.dest)
+	straight := geodesy.GreatCircleMetres(tr.origin, tr.dest)
 	duration := float64(tr.endMS-tr.startMS) / 1000
 	switch r {
 	case rShortTrip:
