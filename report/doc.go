@@ -16,9 +16,9 @@
 //     scatter chart (candidates as their own series); regions; data
 //     quality; and the method. Every sheet prints landscape, one page wide,
 //     with its header row repeated;
-//   - map layers regions.geojson (polygons, RFC 7946 ring orientation) and
-//     findings.geojson (a line per finding edge between the regions'
-//     representative points);
+//   - map layers of the regions (polygons, RFC 7946 ring orientation) and
+//     of the findings (a line per finding edge between the regions'
+//     representative points), as GeoJSON;
 //   - an HTML page that opens offline, with the headline and the cautions,
 //     the verdict table, an inline SVG map coloured by verdict with a
 //     caption and a legend, the weak links and the input files.
@@ -38,7 +38,10 @@
 // after the last analysed day), and the order of its parts and of its
 // content-type entries, which excelize v2.11.1 leaves to map order, is
 // sorted. The two large sheets (Daily, Speed v detour) go through
-// excelize's stream writer. Files are written to a
-// temporary name beside the target and renamed into place; WriteAll renders
-// all four files before writing any.
+// excelize's stream writer.
+//
+// Each output goes to an io.Writer (WriteWorkbook, WriteRegionsGeoJSON,
+// WriteFindingsGeoJSON, WriteHTML): the caller names the files and makes
+// their writing atomic. A writer checks its Input before it writes, so an
+// invalid Input writes nothing.
 package report

@@ -1,21 +1,23 @@
 package report_test
 
 import (
+	"bytes"
 	"fmt"
 	"log"
-	"os"
-	"path/filepath"
+	"regexp"
 
 	"github.com/paulmach/orb"
+	"github.com/paulmach/orb/geojson"
+	"github.com/xuri/excelize/v2"
 
 	"narrows/partition"
 	"narrows/patterns"
 	"narrows/report"
 )
 
-// A scan of two regions of a fictional town in which trips from region 1 to
-// region 2 were slow and circuitous on three of four days.
-func ExampleWriteAll() {
+// weirRoad is a scan of two regions of a fictional town in which trips from
+// region 1 to region 2 were slow and circuitous on three of four days.
+func weirRoad() report.Input {
 	square := func(x0 float64) orb.Polygon {
 		return orb.Polygon{{{x0, 50}, {x0 + 0.01, 50}, {x0 + 0.01, 50.01}, {x0, 50.01}, {x0, 50}}}
 	}
@@ -43,25 +45,79 @@ func ExampleWriteAll() {
 		Findings: []patterns.Finding{{Rank: 1, ID: "1>2", Regions: []int{1, 2}, Edges: []patterns.FindingEdge{edge},
 			Days: days[:3], Share: 0.75, ExtraKMPerDay: 48, ExtraHoursPerDay: 4.1}},
 	}
+	return report.Input{Title: "Weir Road study", Area: "Lowmere (fictional)", Regions: regions, Scan: scan, Version: "example"}
+}
 
-	dir, err := os.MkdirTemp("", "narrows-report")
-	if err != nil {
-		log.Fatal(err)
-	}
-	defer os.RemoveAll(dir)
-	in := report.Input{Title: "Weir Road study", Area: "Lowmere (fictional)", Regions: regions, Scan: scan, Version: "example"}
-	paths, err := report.WriteAll(dir, "weir", in)
-	if err != nil {
-		log.Fatal(err)
-	}
-	for _, p := range paths {
-		fmt.Println(filepath.Base(p))
-	}
-	fmt.Println(report.Headline(in))
+func ExampleHeadline() {
+	fmt.Println(report.Headline(weirRoad()))
 	// Output:
-	// weir.xlsx
-	// regions.geojson
-	// findings.geojson
-	// weir.html
 	// 1 weak link recurred on at least 50 % of the 4 analysed days (2026-03-02 to 2026-03-05). The costliest, regions 1>2, adds 48 km of travel and 4.1 vehicle-hours a day.
+}
+
+func ExampleWriteWorkbook() {
+	var buf bytes.Buffer
+	if err := report.WriteWorkbook(&buf, weirRoad()); err != nil {
+		log.Fatal(err)
+	}
+	f, err := excelize.OpenReader(&buf)
+	if err != nil {
+		log.Fatal(err)
+	}
+	defer f.Close()
+	fmt.Println(f.GetSheetList())
+	rows, err := f.GetRows(report.SheetFindings)
+	if err != nil {
+		log.Fatal(err)
+	}
+	for col := 6; col <= 8; col++ { // the trips, speed and detour of the weak link
+		fmt.Printf("%s: %s\n", rows[0][col], rows[1][col])
+	}
+	// Output:
+	// [Summary Weak links Edges Daily Timeline Speed v detour Regions Data quality Method]
+	// Trips per day: 24
+	// Speed km/h: 15.1
+	// Detour ratio: 2.30
+}
+
+func ExampleWriteHTML() {
+	var buf bytes.Buffer
+	if err := report.WriteHTML(&buf, weirRoad()); err != nil {
+		log.Fatal(err)
+	}
+	fmt.Println(regexp.MustCompile(`<title>.*</title>`).FindString(buf.String()))
+	// Output:
+	// <title>Weir Road study</title>
+}
+
+func ExampleWriteFindingsGeoJSON() {
+	var buf bytes.Buffer
+	if err := report.WriteFindingsGeoJSON(&buf, weirRoad()); err != nil {
+		log.Fatal(err)
+	}
+	fc, err := geojson.UnmarshalFeatureCollection(buf.Bytes())
+	if err != nil {
+		log.Fatal(err)
+	}
+	for _, f := range fc.Features {
+		fmt.Println(f.ID, f.Geometry.GeoJSONType(), f.Properties["speed_kmh"], "km/h")
+	}
+	// Output:
+	// 1>2/1>2 LineString 15.12 km/h
+}
+
+func ExampleWriteRegionsGeoJSON() {
+	var buf bytes.Buffer
+	if err := report.WriteRegionsGeoJSON(&buf, weirRoad()); err != nil {
+		log.Fatal(err)
+	}
+	fc, err := geojson.UnmarshalFeatureCollection(buf.Bytes())
+	if err != nil {
+		log.Fatal(err)
+	}
+	for _, f := range fc.Features {
+		fmt.Println("region", f.Properties["id"], "weak links:", f.Properties["findings"])
+	}
+	// Output:
+	// region 1 weak links: 1
+	// region 2 weak links: 1
 }

@@ -1,7 +1,10 @@
 package report
 
 import (
+	"bytes"
 	"fmt"
+	"io"
+	"testing"
 	"time"
 
 	"github.com/paulmach/orb"
@@ -222,4 +225,44 @@ func fxScanInput() Input {
 	in.Comparison = nil
 	in.Scan = fxComparison().Before
 	return in
+}
+
+// renderHTML renders v's HTML page.
+func renderHTML(t *testing.T, v *view) []byte {
+	t.Helper()
+	var buf bytes.Buffer
+	if err := v.html(&buf); err != nil {
+		t.Fatal(err)
+	}
+	return buf.Bytes()
+}
+
+// writer is one of the package's writers, by name.
+type writer struct {
+	name  string
+	write func(io.Writer, Input) error
+}
+
+// writers are the package's writers, in the order a study writes its files.
+func writers() []writer {
+	return []writer{
+		{"WriteWorkbook", WriteWorkbook},
+		{"WriteRegionsGeoJSON", WriteRegionsGeoJSON},
+		{"WriteFindingsGeoJSON", WriteFindingsGeoJSON},
+		{"WriteHTML", WriteHTML},
+	}
+}
+
+// writeAll writes every output of in to memory and returns their bytes in
+// the order of writers.
+func writeAll(in Input) ([][]byte, error) {
+	out := make([][]byte, len(writers()))
+	for i, w := range writers() {
+		var buf bytes.Buffer
+		if err := w.write(&buf, in); err != nil {
+			return nil, fmt.Errorf("%s: %w", w.name, err)
+		}
+		out[i] = buf.Bytes()
+	}
+	return out, nil
 }

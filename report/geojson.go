@@ -3,6 +3,7 @@ package report
 import (
 	"encoding/json"
 	"fmt"
+	"io"
 
 	"github.com/paulmach/orb"
 	"github.com/paulmach/orb/geojson"
@@ -12,42 +13,28 @@ import (
 // files small and their bytes stable.
 const coordDecimals = 7
 
-// WriteRegionsGeoJSON writes the regions as a GeoJSON FeatureCollection of
-// polygons (RFC 7946: exterior rings counter-clockwise, holes clockwise)
-// with properties id, area_km2, perimeter_km, border_roads (names, longest
-// first), neighbours (ids), in_focus and findings (the number of weak links
-// touching the region).
-func WriteRegionsGeoJSON(path string, in Input) error {
-	v, err := newView(in)
-	if err != nil {
-		return err
-	}
-	data, err := v.regionsGeoJSON()
-	if err != nil {
-		return err
-	}
-	return writeFileAtomic(path, data)
+// WriteRegionsGeoJSON writes to w the regions as a GeoJSON
+// FeatureCollection of polygons (RFC 7946: exterior rings counter-clockwise,
+// holes clockwise) with properties id, area_km2, perimeter_km, border_roads
+// (names, longest first), neighbours (ids), in_focus and findings (the
+// number of weak links touching the region). Nothing is written to w when in
+// is not valid.
+func WriteRegionsGeoJSON(w io.Writer, in Input) error {
+	return render(w, in, (*view).regionsGeoJSON)
 }
 
-// WriteFindingsGeoJSON writes one LineString per finding edge, from the
+// WriteFindingsGeoJSON writes to w one LineString per finding edge, from the
 // origin region's representative point to the destination's, with
 // properties finding, rank, from, to, trips (median per day), speed_kmh,
 // detour, extra_km_per_day, extra_hours_per_day, share, colour (the map's
-// colour for the verdict) and, with a comparison, verdict and focus. Values from fewer trips than the
-// publication threshold are null and the feature has suppressed = true.
-func WriteFindingsGeoJSON(path string, in Input) error {
-	v, err := newView(in)
-	if err != nil {
-		return err
-	}
-	data, err := v.findingsGeoJSON()
-	if err != nil {
-		return err
-	}
-	return writeFileAtomic(path, data)
+// colour for the verdict) and, with a comparison, verdict and focus. Values
+// from fewer trips than the publication threshold are null and the feature
+// has suppressed = true. Nothing is written to w when in is not valid.
+func WriteFindingsGeoJSON(w io.Writer, in Input) error {
+	return render(w, in, (*view).findingsGeoJSON)
 }
 
-func (v *view) regionsGeoJSON() ([]byte, error) {
+func (v *view) regionsGeoJSON(w io.Writer) error {
 	touching := map[int]int{}
 	for _, it := range v.items {
 		for _, id := range it.Finding.Regions {
@@ -75,10 +62,10 @@ func (v *view) regionsGeoJSON() ([]byte, error) {
 		f.Properties["findings"] = touching[r.ID]
 		fc.Append(f)
 	}
-	return marshalGeoJSON(fc, "regions")
+	return encodeGeoJSON(w, fc, "regions")
 }
 
-func (v *view) findingsGeoJSON() ([]byte, error) {
+func (v *view) findingsGeoJSON(w io.Writer) error {
 	fc := geojson.NewFeatureCollection()
 	for _, it := range v.items {
 		for _, e := range it.Finding.Edges {
@@ -111,15 +98,15 @@ func (v *view) findingsGeoJSON() ([]byte, error) {
 			fc.Append(f)
 		}
 	}
-	return marshalGeoJSON(fc, "findings")
+	return encodeGeoJSON(w, fc, "findings")
 }
 
-func marshalGeoJSON(fc *geojson.FeatureCollection, what string) ([]byte, error) {
-	data, err := json.Marshal(fc)
-	if err != nil {
-		return nil, fmt.Errorf("report: encoding %s GeoJSON: %w", what, err)
+// encodeGeoJSON writes fc to w as one line of JSON.
+func encodeGeoJSON(w io.Writer, fc *geojson.FeatureCollection, what string) error {
+	if err := json.NewEncoder(w).Encode(fc); err != nil {
+		return fmt.Errorf("report: encoding %s GeoJSON: %w", what, err)
 	}
-	return append(data, '\n'), nil
+	return nil
 }
 
 // jsonNumber rounds x, or gives nil (JSON null) for NaN and infinities,

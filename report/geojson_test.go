@@ -2,8 +2,7 @@ package report
 
 import (
 	"bytes"
-	"os"
-	"path/filepath"
+	"io"
 	"testing"
 
 	"github.com/paulmach/orb"
@@ -21,15 +20,16 @@ func signedArea(r orb.Ring) float64 {
 	return a / 2
 }
 
-func readFC(t *testing.T, path string) *geojson.FeatureCollection {
+// readFC writes in with write and decodes the FeatureCollection written.
+func readFC(t *testing.T, write func(io.Writer, Input) error, in Input) *geojson.FeatureCollection {
 	t.Helper()
-	data, err := os.ReadFile(path)
-	if err != nil {
+	var buf bytes.Buffer
+	if err := write(&buf, in); err != nil {
 		t.Fatal(err)
 	}
-	fc, err := geojson.UnmarshalFeatureCollection(data)
+	fc, err := geojson.UnmarshalFeatureCollection(buf.Bytes())
 	if err != nil {
-		t.Fatalf("%s: %v", path, err)
+		t.Fatal(err)
 	}
 	return fc
 }
@@ -46,14 +46,10 @@ func TestRegionsGeoJSON(t *testing.T) {
 	r2.Polygon[0] = r2.Polygon[0][:4]
 	before := r1.Polygon.Clone()
 
-	path := filepath.Join(t.TempDir(), "regions.geojson")
-	if err := WriteRegionsGeoJSON(path, in); err != nil {
-		t.Fatal(err)
-	}
+	fc := readFC(t, WriteRegionsGeoJSON, in)
 	if !orb.Equal(before, r1.Polygon) {
 		t.Error("WriteRegionsGeoJSON modified its input")
 	}
-	fc := readFC(t, path)
 	if len(fc.Features) != 9 {
 		t.Fatalf("%d features, want 9", len(fc.Features))
 	}
@@ -94,11 +90,7 @@ func TestRegionsGeoJSON(t *testing.T) {
 
 func TestFindingsGeoJSON(t *testing.T) {
 	in := fxInput()
-	path := filepath.Join(t.TempDir(), "findings.geojson")
-	if err := WriteFindingsGeoJSON(path, in); err != nil {
-		t.Fatal(err)
-	}
-	fc := readFC(t, path)
+	fc := readFC(t, WriteFindingsGeoJSON, in)
 	// 1 + 2 + 1 + 1 + 1 edges over the five assessments.
 	if len(fc.Features) != 6 {
 		t.Fatalf("%d features, want 6", len(fc.Features))
@@ -136,20 +128,18 @@ func TestFindingsGeoJSON(t *testing.T) {
 }
 
 func TestGeoJSONDeterministic(t *testing.T) {
-	dir := t.TempDir()
 	for _, name := range []string{"regions", "findings"} {
 		var got [][]byte
 		for i := 0; i < 2; i++ {
-			p := filepath.Join(dir, name+string(rune('a'+i))+".geojson")
 			write := WriteRegionsGeoJSON
 			if name == "findings" {
 				write = WriteFindingsGeoJSON
 			}
-			if err := write(p, fxInput()); err != nil {
+			var buf bytes.Buffer
+			if err := write(&buf, fxInput()); err != nil {
 				t.Fatal(err)
 			}
-			data, _ := os.ReadFile(p)
-			got = append(got, data)
+			got = append(got, buf.Bytes())
 		}
 		if !bytes.Equal(got[0], got[1]) {
 			t.Errorf("%s GeoJSON differs between two writes", name)

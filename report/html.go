@@ -1,29 +1,21 @@
 package report
 
 import (
-	"bytes"
 	"fmt"
 	"html/template"
+	"io"
 	"strconv"
 	"strings"
 	"unicode/utf8"
 )
 
-// WriteHTML writes a single page that opens offline (no scripts, fonts or
-// links to fetch): the headline and the cautions, the verdict table, an
+// WriteHTML writes to w a single page that opens offline (no scripts, fonts
+// or links to fetch): the headline and the cautions, the verdict table, an
 // inline SVG map of regions and weak links coloured by verdict with a
 // legend, the ranked weak links, and the input files. The page is also
-// well-formed XML.
-func WriteHTML(path string, in Input) error {
-	v, err := newView(in)
-	if err != nil {
-		return err
-	}
-	data, err := v.html()
-	if err != nil {
-		return err
-	}
-	return writeFileAtomic(path, data)
+// well-formed XML. Nothing is written to w when in is not valid.
+func WriteHTML(w io.Writer, in Input) error {
+	return render(w, in, (*view).html)
 }
 
 type htmlVerdict struct {
@@ -116,7 +108,7 @@ table#findings { font-size: 0.95em; }
 </html>
 `))
 
-func (v *view) html() ([]byte, error) {
+func (v *view) html(w io.Writer) error {
 	pg := htmlPage{
 		Title:      v.in.Title,
 		Area:       v.in.Area,
@@ -184,11 +176,10 @@ func (v *view) html() ([]byte, error) {
 		pg.Inputs = append(pg.Inputs, [2]string{s.Path, s.SHA256})
 	}
 	pg.clean()
-	var buf bytes.Buffer
-	if err := pageTemplate.Execute(&buf, pg); err != nil {
-		return nil, fmt.Errorf("report: HTML page: %w", err)
+	if err := pageTemplate.Execute(w, pg); err != nil {
+		return fmt.Errorf("report: HTML page: %w", err)
 	}
-	return buf.Bytes(), nil
+	return nil
 }
 
 // fmtFixed formats x with d decimals; non-finite values as "n/a".

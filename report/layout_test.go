@@ -218,8 +218,8 @@ func TestPrintSetup(t *testing.T) {
 // family and size: without them LibreOffice shows those cells in a
 // different (serif) face.
 func TestStylesNameTheFont(t *testing.T) {
-	_, path := writeBook(t, fxInput())
-	styles := string(zipEntries(t, path)["xl/styles.xml"])
+	_, pkg := writeBook(t, fxInput())
+	styles := string(zipEntries(t, pkg)["xl/styles.xml"])
 	start, end := strings.Index(styles, "<fonts"), strings.Index(styles, "</fonts>")
 	if start < 0 || end < start {
 		t.Fatal("styles have no font list")
@@ -352,11 +352,7 @@ func TestHTMLOrder(t *testing.T) {
 			if err != nil {
 				t.Fatal(err)
 			}
-			page, err := v.html()
-			if err != nil {
-				t.Fatal(err)
-			}
-			s := string(page)
+			s := string(renderHTML(t, v))
 			at := func(sub string) int {
 				i := strings.Index(s, sub)
 				if i < 0 {

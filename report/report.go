@@ -3,6 +3,7 @@ package report
 import (
 	"errors"
 	"fmt"
+	"io"
 	"math"
 	"sort"
 	"strconv"
@@ -96,6 +97,17 @@ type view struct {
 // verdictOrder lists the verdicts in the order the report shows them.
 var verdictOrder = [...]patterns.Verdict{patterns.Worse, patterns.New, patterns.Unchanged, patterns.Eased, patterns.Cleared}
 
+// render validates in, derives the view every output shares and has write
+// put one output to w. Nothing is written when in is not valid.
+func render(w io.Writer, in Input, write func(*view, io.Writer) error) error {
+	v, err := newView(in)
+	if err != nil {
+		return err
+	}
+	return write(v, w)
+}
+
+// newView checks in and derives what every output shows from it.
 func newView(in Input) (*view, error) {
 	if in.Regions == nil {
 		return nil, errors.New("report: input has no regions")
@@ -104,44 +116,73 @@ func newView(in Input) (*view, error) {
 	if v.minTrips <= 0 {
 		v.minTrips = DefaultPublicationMinTrips
 	}
-	for i := range in.Regions.Regions {
-		r := &in.Regions.Regions[i]
+	if err := v.indexRegions(); err != nil {
+		return nil, err
+	}
+	if err := v.collectItems(); err != nil {
+		return nil, err
+	}
+	if err := v.countItems(); err != nil {
+		return nil, err
+	}
+	v.orderVerdicts()
+	v.focusArea()
+	return v, nil
+}
+
+// indexRegions indexes the regions by id, checking that ids are unique and
+// coordinates finite.
+func (v *view) indexRegions() error {
+	for i := range v.in.Regions.Regions {
+		r := &v.in.Regions.Regions[i]
 		if _, dup := v.regions[r.ID]; dup {
-			return nil, fmt.Errorf("report: region %d appears twice in the partition", r.ID)
+			return fmt.Errorf("report: region %d appears twice in the partition", r.ID)
 		}
 		if !finite(r.Point[0]) || !finite(r.Point[1]) {
-			return nil, fmt.Errorf("report: region %d: representative point %v is not finite", r.ID, r.Point)
+			return fmt.Errorf("report: region %d: representative point %v is not finite", r.ID, r.Point)
 		}
 		for i, ring := range r.Polygon {
 			for j, pt := range ring {
 				if !finite(pt[0]) || !finite(pt[1]) {
-					return nil, fmt.Errorf("report: region %d: point %d of ring %d is not finite", r.ID, j, i)
+					return fmt.Errorf("report: region %d: point %d of ring %d is not finite", r.ID, j, i)
 				}
 			}
 		}
 		v.regions[r.ID] = r
 	}
+	return nil
+}
+
+// collectItems takes the periods and the findings from the comparison, or
+// else from the scan, whose findings it orders by rank.
+func (v *view) collectItems() error {
 	switch {
-	case in.Comparison != nil:
-		c := in.Comparison
+	case v.in.Comparison != nil:
+		c := v.in.Comparison
 		if c.Before == nil || c.After == nil {
-			return nil, errors.New("report: comparison lacks its before or after scan")
+			return errors.New("report: comparison lacks its before or after scan")
 		}
 		v.periods = []period{{"before", c.Before}, {"after", c.After}}
 		for i := range c.Assessments {
 			a := &c.Assessments[i]
 			v.items = append(v.items, item{Finding: a.Finding, Assessment: a, Key: a.Finding.ID})
 		}
-	case in.Scan != nil:
-		v.periods = []period{{"study", in.Scan}}
-		fs := append([]patterns.Finding(nil), in.Scan.Findings...)
+	case v.in.Scan != nil:
+		v.periods = []period{{"study", v.in.Scan}}
+		fs := append([]patterns.Finding(nil), v.in.Scan.Findings...)
 		sort.SliceStable(fs, func(i, j int) bool { return fs[i].Rank < fs[j].Rank })
 		for _, f := range fs {
 			v.items = append(v.items, item{Finding: f, Key: f.ID})
 		}
 	default:
-		return nil, errors.New("report: input has neither a scan nor a comparison")
+		return errors.New("report: input has neither a scan nor a comparison")
 	}
+	return nil
+}
+
+// countItems gives every item a unique key, checks that its edges join
+// regions of the partition and counts the verdicts.
+func (v *view) countItems() error {
 	seen := map[string]int{}
 	for i := range v.items {
 		it := &v.items[i]
@@ -152,7 +193,7 @@ func newView(in Input) (*view, error) {
 		for _, e := range it.Finding.Edges {
 			for _, id := range [2]int{e.From, e.To} {
 				if v.regions[id] == nil {
-					return nil, fmt.Errorf("report: finding %q edge %d>%d: region %d is not in the partition", it.Finding.ID, e.From, e.To, id)
+					return fmt.Errorf("report: finding %q edge %d>%d: region %d is not in the partition", it.Finding.ID, e.From, e.To, id)
 				}
 			}
 		}
@@ -163,6 +204,11 @@ func newView(in Input) (*view, error) {
 			}
 		}
 	}
+	return nil
+}
+
+// orderVerdicts lists the verdicts present in severity order.
+func (v *view) orderVerdicts() {
 	for _, vd := range verdictOrder {
 		if v.counts[vd] > 0 {
 			v.verdicts = append(v.verdicts, vd)
@@ -177,21 +223,24 @@ func newView(in Input) (*view, error) {
 	}
 	sort.Slice(extra, func(i, j int) bool { return extra[i] < extra[j] })
 	v.verdicts = append(v.verdicts, extra...)
+}
 
-	if len(in.FocusRegions) > 0 {
-		for _, id := range in.FocusRegions {
+// focusArea marks the focus regions: those given, or else the regions of
+// the assessments marked Focus.
+func (v *view) focusArea() {
+	if len(v.in.FocusRegions) > 0 {
+		for _, id := range v.in.FocusRegions {
 			v.focus[id] = true
 		}
-	} else {
-		for _, it := range v.items {
-			if it.Assessment != nil && it.Assessment.Focus {
-				for _, id := range it.Finding.Regions {
-					v.focus[id] = true
-				}
+		return
+	}
+	for _, it := range v.items {
+		if it.Assessment != nil && it.Assessment.Focus {
+			for _, id := range it.Finding.Regions {
+				v.focus[id] = true
 			}
 		}
 	}
-	return v, nil
 }
 
 // shownVerdicts lists every known verdict, then any other verdict present.

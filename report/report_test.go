@@ -7,8 +7,6 @@ import (
 	"image/png"
 	"math"
 	"math/rand"
-	"os"
-	"path/filepath"
 	"reflect"
 	"strings"
 	"testing"
@@ -159,67 +157,40 @@ func TestInputErrors(t *testing.T) {
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
-			dir := t.TempDir()
-			for _, write := range []func(string, Input) error{WriteWorkbook, WriteHTML, WriteRegionsGeoJSON, WriteFindingsGeoJSON} {
-				err := write(filepath.Join(dir, "out"), tc.in)
+			for _, w := range writers() {
+				var buf bytes.Buffer
+				err := w.write(&buf, tc.in)
 				if err == nil || !strings.Contains(err.Error(), tc.want) {
-					t.Errorf("error = %v, want one containing %q", err, tc.want)
+					t.Errorf("%s: error = %v, want one containing %q", w.name, err, tc.want)
+				}
+				if buf.Len() != 0 {
+					t.Errorf("%s failed but wrote %d bytes", w.name, buf.Len())
 				}
 			}
-			if _, err := WriteAll(dir, "study", tc.in); err == nil {
-				t.Error("WriteAll: no error")
-			}
-			if left, _ := os.ReadDir(dir); len(left) != 0 {
-				t.Errorf("failed writes left %d files", len(left))
+			if _, err := writeAll(tc.in); err == nil {
+				t.Error("writeAll: no error")
 			}
 		})
 	}
 }
 
-func TestWriteAll(t *testing.T) {
-	dir := t.TempDir()
-	paths, err := WriteAll(dir, "lowmere", fxInput())
+// TestWritersAgree checks that every writer writes the same bytes each
+// time, whichever writers ran before it.
+func TestWritersAgree(t *testing.T) {
+	all, err := writeAll(fxInput())
 	if err != nil {
 		t.Fatal(err)
 	}
-	want := []string{"lowmere.xlsx", "regions.geojson", "findings.geojson", "lowmere.html"}
-	for i := range want {
-		want[i] = filepath.Join(dir, want[i])
-	}
-	if !reflect.DeepEqual(paths, want) {
-		t.Errorf("paths = %q, want %q", paths, want)
-	}
-	entries, _ := os.ReadDir(dir)
-	if len(entries) != len(want) {
-		var names []string
-		for _, e := range entries {
-			names = append(names, e.Name())
+	for i, w := range writers() {
+		var buf bytes.Buffer
+		if err := w.write(&buf, fxInput()); err != nil {
+			t.Fatal(err)
 		}
-		t.Errorf("directory holds %q, want only the four outputs", names)
-	}
-	for _, p := range paths {
-		if fi, err := os.Stat(p); err != nil || fi.Size() == 0 {
-			t.Errorf("%s: %v", p, err)
+		if len(all[i]) == 0 {
+			t.Errorf("%s wrote nothing", w.name)
 		}
-	}
-	// Same bytes as the single writers.
-	single := filepath.Join(t.TempDir(), "x.xlsx")
-	if err := WriteWorkbook(single, fxInput()); err != nil {
-		t.Fatal(err)
-	}
-	a, _ := os.ReadFile(paths[0])
-	b, _ := os.ReadFile(single)
-	if string(a) != string(b) {
-		t.Error("WriteAll's workbook differs from WriteWorkbook's")
-	}
-
-	// A missing directory fails without leaving anything.
-	if _, err := WriteAll(filepath.Join(dir, "missing"), "x", fxInput()); err == nil {
-		t.Error("WriteAll into a missing directory: no error")
-	}
-	for _, base := range []string{"", "../up", "a/b"} {
-		if _, err := WriteAll(dir, base, fxInput()); err == nil {
-			t.Errorf("WriteAll with base %q: no error", base)
+		if !bytes.Equal(all[i], buf.Bytes()) {
+			t.Errorf("%s: two writes differ", w.name)
 		}
 	}
 }
@@ -230,9 +201,8 @@ func TestNonFiniteValues(t *testing.T) {
 	a.FisherP = math.NaN()
 	a.Speed.Shift, a.Speed.Low = math.NaN(), math.Inf(1)
 	a.Finding.Edges[0].DetourMedian = math.Inf(1)
-	dir := t.TempDir()
-	if _, err := WriteAll(dir, "nan", in); err != nil {
-		t.Fatalf("WriteAll with NaN and Inf values: %v", err)
+	if _, err := writeAll(in); err != nil {
+		t.Fatalf("writing every output with NaN and Inf values: %v", err)
 	}
 	f, _ := writeBook(t, in)
 	cmp := rowsByKey(t, f, SheetComparison, "Weak link")
@@ -317,8 +287,8 @@ func TestDegenerateInputs(t *testing.T) {
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
-			if _, err := WriteAll(t.TempDir(), "edge", tc.in); err != nil {
-				t.Fatalf("WriteAll: %v", err)
+			if _, err := writeAll(tc.in); err != nil {
+				t.Fatal(err)
 			}
 			v, err := newView(tc.in)
 			if err != nil {

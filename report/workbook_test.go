@@ -6,8 +6,6 @@ import (
 	"image/png"
 	"io"
 	"math"
-	"os"
-	"path/filepath"
 	"reflect"
 	"strconv"
 	"strings"
@@ -19,19 +17,20 @@ import (
 	"narrows/partition"
 )
 
-// writeBook writes in to a temporary workbook and opens it.
-func writeBook(t *testing.T, in Input) (*excelize.File, string) {
+// writeBook writes in as a workbook and opens it; it returns the workbook
+// and its bytes.
+func writeBook(t *testing.T, in Input) (*excelize.File, []byte) {
 	t.Helper()
-	path := filepath.Join(t.TempDir(), "study.xlsx")
-	if err := WriteWorkbook(path, in); err != nil {
+	var buf bytes.Buffer
+	if err := WriteWorkbook(&buf, in); err != nil {
 		t.Fatalf("WriteWorkbook: %v", err)
 	}
-	f, err := excelize.OpenFile(path)
+	f, err := excelize.OpenReader(bytes.NewReader(buf.Bytes()))
 	if err != nil {
 		t.Fatalf("reopening workbook: %v", err)
 	}
 	t.Cleanup(func() { f.Close() })
-	return f, path
+	return f, buf.Bytes()
 }
 
 // rowsByKey maps the value in column keyCol of each row below the header
@@ -224,7 +223,7 @@ func TestWorkbookNoFormulas(t *testing.T) {
 	in.Title = "=1+1"
 	in.Area = "@SUM(A1)"
 	in.Inputs[0].Path = "=cmd|' /C calc'!A0"
-	f, path := writeBook(t, in)
+	f, pkg := writeBook(t, in)
 
 	regions := rowsByKey(t, f, SheetRegions, "Region")
 	if got := regions["5"]["Border roads"]; got != evilRoad {
@@ -260,14 +259,14 @@ func TestWorkbookNoFormulas(t *testing.T) {
 		}
 	}
 	// And the raw sheet XML has no formula element at all.
-	for name, data := range zipEntries(t, path) {
+	for name, data := range zipEntries(t, pkg) {
 		if strings.HasPrefix(name, "xl/worksheets/") && (bytes.Contains(data, []byte("<f>")) || bytes.Contains(data, []byte("<f "))) {
 			t.Errorf("%s contains a formula element", name)
 		}
 	}
 	// Every formula-looking text made it into the shared strings verbatim
 	// (escaped as XML).
-	ss := string(zipEntries(t, path)["xl/sharedStrings.xml"])
+	ss := string(zipEntries(t, pkg)["xl/sharedStrings.xml"])
 	for _, s := range []string{"=1+1", "@SUM(A1)", "=cmd|&#39; /C calc&#39;!A0", "+1 and -1 and @x and =2+2"} {
 		if !strings.Contains(ss, s) && !strings.Contains(ss, strings.ReplaceAll(s, "&#39;", "'")) {
 			t.Errorf("shared strings lack %q", s)
@@ -276,7 +275,7 @@ func TestWorkbookNoFormulas(t *testing.T) {
 }
 
 func TestWorkbookSuppression(t *testing.T) {
-	f, path := writeBook(t, fxInput())
+	f, pkg := writeBook(t, fxInput())
 	edges := rowsByKey(t, f, SheetEdges, "Weak link")
 	row := edges["2>5"]
 	for col, want := range map[string]string{"Trips per day": "<10", "Speed km/h": "n<10", "Detour ratio": "n<10", "Extra km per day": "n<10", "Extra vehicle-hours per day": "n<10"} {
@@ -304,7 +303,7 @@ func TestWorkbookSuppression(t *testing.T) {
 	}
 	// The hidden speed (7.77 m/s = 27.972 km/h, after: 31.572 km/h) must not
 	// leak anywhere in the file, rounded or not.
-	for name, data := range zipEntries(t, path) {
+	for name, data := range zipEntries(t, pkg) {
 		for _, leak := range []string{"27.97", "31.57", "7.77", "8.77"} {
 			if bytes.Contains(data, []byte(leak)) {
 				t.Errorf("%s contains suppressed value %s", name, leak)
@@ -320,13 +319,12 @@ func TestWorkbookSuppression(t *testing.T) {
 	}
 }
 
-func zipEntries(t *testing.T, path string) map[string][]byte {
+func zipEntries(t *testing.T, pkg []byte) map[string][]byte {
 	t.Helper()
-	zr, err := zip.OpenReader(path)
+	zr, err := zip.NewReader(bytes.NewReader(pkg), int64(len(pkg)))
 	if err != nil {
 		t.Fatal(err)
 	}
-	defer zr.Close()
 	out := map[string][]byte{}
 	for _, zf := range zr.File {
 		rc, err := zf.Open()
@@ -344,8 +342,8 @@ func zipEntries(t *testing.T, path string) map[string][]byte {
 }
 
 func TestWorkbookChartsAndPicture(t *testing.T) {
-	_, path := writeBook(t, fxInput())
-	z := zipEntries(t, path)
+	_, pkg := writeBook(t, fxInput())
+	z := zipEntries(t, pkg)
 	for name, kind := range map[string]string{"xl/charts/chart1.xml": "<lineChart>", "xl/charts/chart2.xml": "<scatterChart>"} {
 		data, ok := z[name]
 		if !ok {
@@ -430,20 +428,18 @@ func TestWorkbookFrozenAndFiltered(t *testing.T) {
 }
 
 func TestWorkbookDeterministic(t *testing.T) {
-	dir := t.TempDir()
-	a, b := filepath.Join(dir, "a.xlsx"), filepath.Join(dir, "b.xlsx")
-	for _, p := range []string{a, b} {
-		if err := WriteWorkbook(p, fxInput()); err != nil {
+	var a, b bytes.Buffer
+	for _, w := range []*bytes.Buffer{&a, &b} {
+		if err := WriteWorkbook(w, fxInput()); err != nil {
 			t.Fatal(err)
 		}
 	}
-	da, _ := os.ReadFile(a)
-	db, _ := os.ReadFile(b)
+	da, db := a.Bytes(), b.Bytes()
 	if !bytes.Equal(da, db) {
 		t.Error("two writes of the same input differ")
 	}
 	// The creation time is the day after the last analysed day.
-	core := string(zipEntries(t, a)["docProps/core.xml"])
+	core := string(zipEntries(t, da)["docProps/core.xml"])
 	if !strings.Contains(core, "2026-05-18T00:00:00Z") {
 		t.Errorf("core properties lack the fixed creation time: %s", core)
 	}
@@ -456,10 +452,7 @@ func TestCautionsEverywhere(t *testing.T) {
 		t.Fatal(err)
 	}
 	f, _ := writeBook(t, in)
-	html, err := v.html()
-	if err != nil {
-		t.Fatal(err)
-	}
+	html := renderHTML(t, v)
 	for _, sh := range []string{SheetSummary, SheetMethod} {
 		rows, err := f.GetRows(sh)
 		if err != nil {
@@ -563,11 +556,11 @@ func FuzzWorkbookText(f *testing.F) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		data, err := v.workbook()
-		if err != nil {
+		var buf bytes.Buffer
+		if err := v.workbook(&buf); err != nil {
 			t.Fatal(err)
 		}
-		wb, err := excelize.OpenReader(bytes.NewReader(data))
+		wb, err := excelize.OpenReader(&buf)
 		if err != nil {
 			t.Fatal(err)
 		}

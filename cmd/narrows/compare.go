@@ -142,7 +142,7 @@ func compareAndReport(ctx context.Context, env *environment, job compareJob) err
 		return err
 	}
 	base := strings.TrimSuffix(filepath.Base(job.out), filepath.Ext(job.out))
-	paths, err := report.WriteAll(dir, base, in)
+	paths, err := writeReport(dir, base, in)
 	if err != nil {
 		return err
 	}

@@ -137,9 +137,9 @@ func runScan(ctx context.Context, env *environment, args []string) error {
 	if err := writeFileAtomic(out, func(w io.Writer) error { return writeFindingsJSON(w, scan, regions) }); err != nil {
 		return err
 	}
-	layer := filepath.Join(filepath.Dir(out), "findings.geojson")
+	layer := filepath.Join(filepath.Dir(out), findingsLayerName)
 	in := report.Input{Regions: regions, Store: &store.Meta, Scan: scan, Version: version}
-	if err := report.WriteFindingsGeoJSON(layer, in); err != nil {
+	if err := writeFileAtomic(layer, func(w io.Writer) error { return report.WriteFindingsGeoJSON(w, in) }); err != nil {
 		return err
 	}
 	printFindings(env.stdout, scan, regions, 20)

@@ -281,7 +281,7 @@ func (s *study) run(ctx context.Context, env *environment, dir, file string) err
 		printFindings(env.stdout, scan, regions, 10)
 		in := report.Input{Title: title, Inputs: append([]regiongraph.Source{studySource, osmSource}, store.Meta.Sources...),
 			Settings: settings, Regions: regions, Store: &store.Meta, Scan: scan, PublicationMinTrips: minPublish, Version: version}
-		paths, err := report.WriteAll(out, s.Name, in)
+		paths, err := writeReport(out, s.Name, in)
 		if err != nil {
 			return err
 		}

@@ -1,0 +1,43 @@
+package main
+
+import (
+	"fmt"
+	"io"
+	"path/filepath"
+
+	"narrows/report"
+)
+
+// File names of the map layers written beside a report.
+const (
+	regionsLayerName  = "regions.geojson"
+	findingsLayerName = "findings.geojson"
+)
+
+// writeReport writes the workbook dir/base.xlsx, the map layers
+// dir/regions.geojson and dir/findings.geojson, and the page dir/base.html,
+// in that order, each through writeFileAtomic, and returns their paths. An
+// input the report rejects fails on the first file, before any is written.
+func writeReport(dir, base string, in report.Input) ([]string, error) {
+	if base == "" || base != filepath.Base(base) {
+		return nil, fmt.Errorf("report: base name %q must be a plain file name", base)
+	}
+	outputs := []struct {
+		name  string
+		write func(io.Writer, report.Input) error
+	}{
+		{base + ".xlsx", report.WriteWorkbook},
+		{regionsLayerName, report.WriteRegionsGeoJSON},
+		{findingsLayerName, report.WriteFindingsGeoJSON},
+		{base + ".html", report.WriteHTML},
+	}
+	paths := make([]string, 0, len(outputs))
+	for _, o := range outputs {
+		p := filepath.Join(dir, o.name)
+		if err := writeFileAtomic(p, func(w io.Writer) error { return o.write(w, in) }); err != nil {
+			return nil, err
+		}
+		paths = append(paths, p)
+	}
+	return paths, nil
+}

@@ -1,0 +1,149 @@
+package report
+
+import (
+	"sort"
+
+	"github.com/xuri/excelize/v2"
+
+	"narrows/patterns"
+)
+
+// The sheets of days: daily values per finding edge, the timeline of
+// candidates and recurring weak links, and every edge-day for the
+// speed-against-detour chart. Their charts are in charts.go.
+
+func (b *book) daily() {
+	v := b.v
+	cols := []string{"Rank", "Weak link", "Period", "Day", "From", "To", "Trips", "Speed km/h", "Detour ratio", "Extra km", "Candidate", "Weak link recurred"}
+	var rows [][]cell
+	for _, it := range v.items {
+		for _, p := range v.periods {
+			rec := recurredDays(p.Scan, it.Finding.ID)
+			for _, e := range it.Finding.Edges {
+				for _, d := range dailyOf(p, it, patterns.EdgeKey{From: e.From, To: e.To}) {
+					tr := float64(d.Trips)
+					rows = append(rows, []cell{
+						intCell(it.Finding.Rank, b.st.intCentre), b.str(it.Finding.ID), b.str(p.Label), b.str(d.Day), b.count(e.From), b.count(e.To),
+						b.trips(tr), b.gated(tr, kmh(d.Speed), b.st.dec1), b.gated(tr, d.Detour, b.st.dec2),
+						b.gated(tr, (d.DistanceSum-d.StraightSum)/1000, b.st.dec1), yesNo(d.Candidate, b.st.centre), yesNo(rec[d.Day], b.st.centre),
+					})
+				}
+			}
+		}
+	}
+	b.streamTable(SheetDaily, cols, rows, nil)
+}
+
+// recurredDays returns the days on which the finding with id recurred in
+// scan sc, or nil when it did not recur there.
+func recurredDays(sc *patterns.Scan, id string) map[string]bool {
+	for _, f := range sc.Findings {
+		if f.ID == id {
+			m := make(map[string]bool, len(f.Days))
+			for _, d := range f.Days {
+				m[d] = true
+			}
+			return m
+		}
+	}
+	return nil
+}
+
+// timelineDay is one analysed day of the Timeline sheet.
+type timelineDay struct {
+	day, period      string
+	cands, recurring int
+}
+
+func (b *book) timeline() {
+	s := b.newSheet(SheetTimeline)
+	cols := []string{"Day", "Period", "Candidates", "Weak links recurring"}
+	head := s.header(cols...)
+	days := b.v.timelineDays()
+	for _, d := range days {
+		s.add(b.str(d.day), b.str(d.period), b.count(d.cands), b.count(d.recurring))
+	}
+	s.filter(head, len(cols))
+	s.finish()
+	if b.err != nil || len(days) == 0 {
+		return
+	}
+	b.timelineChart(head, len(days))
+}
+
+// timelineDays lists the analysed days of every period in day order, with
+// their candidate counts and the number of weak links recurring on them.
+func (v *view) timelineDays() []timelineDay {
+	var days []timelineDay
+	for _, p := range v.periods {
+		on := map[string]int{}
+		for _, f := range p.Scan.Findings {
+			for _, d := range f.Days {
+				on[d]++
+			}
+		}
+		for i, d := range p.Scan.Days {
+			c := 0
+			if i < len(p.Scan.CandidatesPerDay) {
+				c = p.Scan.CandidatesPerDay[i]
+			} else if i < len(p.Scan.DayCandidates) {
+				c = len(p.Scan.DayCandidates[i])
+			}
+			days = append(days, timelineDay{d, p.Label, c, on[d]})
+		}
+	}
+	sort.SliceStable(days, func(i, j int) bool { return days[i].day < days[j].day })
+	return days
+}
+
+// edgeDay is one edge on one day of one period (an index into v.periods).
+type edgeDay struct {
+	period int
+	key    patterns.EdgeKey
+	d      patterns.DailyValue
+}
+
+func (b *book) scatter() {
+	v := b.v
+	cols := []string{"Candidate", "Period", "Day", "From", "To", "Trips", "Speed km/h", "Detour ratio"}
+	var pts []edgeDay
+	for pi, p := range v.periods {
+		for _, k := range sortedEdgeKeys(p.Scan.EdgeDaily) {
+			for _, d := range p.Scan.EdgeDaily[k] {
+				pts = append(pts, edgeDay{pi, k, d})
+			}
+		}
+	}
+	// Shown non-candidates first, then shown candidates, so that each chart
+	// series is one block of rows; suppressed edge-days come last and stay
+	// out of the chart (their cells hold markers, not numbers).
+	block := func(pt edgeDay) int {
+		switch {
+		case v.suppressed(float64(pt.d.Trips)):
+			return 2
+		case pt.d.Candidate:
+			return 1
+		}
+		return 0
+	}
+	sort.SliceStable(pts, func(i, j int) bool { return block(pts[i]) < block(pts[j]) })
+	firstCand, firstSupp := len(pts), len(pts)
+	rows := make([][]cell, len(pts))
+	for i, pt := range pts {
+		if k := block(pt); k >= 1 && firstCand == len(pts) {
+			firstCand = i
+		}
+		if block(pt) == 2 && firstSupp == len(pts) {
+			firstSupp = i
+		}
+		tr := float64(pt.d.Trips)
+		rows[i] = []cell{yesNo(pt.d.Candidate, b.st.centre), b.str(v.periods[pt.period].Label), b.str(pt.d.Day), b.count(pt.key.From), b.count(pt.key.To),
+			b.trips(tr), b.gated(tr, kmh(pt.d.Speed), b.st.dec1), b.gated(tr, pt.d.Detour, b.st.dec2)}
+	}
+	b.streamTable(SheetScatter, cols, rows, func(head int) {
+		if len(pts) == 0 || head+len(pts) > excelize.TotalRows {
+			return
+		}
+		b.scatterChart(head, firstCand, firstSupp)
+	})
+}

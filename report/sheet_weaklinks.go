@@ -1,0 +1,138 @@
+package report
+
+import (
+	"math"
+	"sort"
+	"strings"
+)
+
+// The sheets of the weak links: one row per finding, one per finding edge,
+// and, in a comparison, one per assessment with its statistics.
+
+func (b *book) findings() {
+	v := b.v
+	s := b.newSheet(SheetFindings)
+	cols := append(v.rankColumns(), "Weak link", "Regions", "Edges", "Days recurring", "Share of days", "Trips per day", "Speed km/h", "Detour ratio", "Extra km per day", "Extra vehicle-hours per day")
+	if v.comparing() {
+		cols = append(cols, "Verdict", "Focus")
+	}
+	head := s.header(cols...)
+	for _, it := range v.items {
+		f := it.Finding
+		t := totals(f)
+		edges := make([]string, len(f.Edges))
+		for i, e := range f.Edges {
+			edges[i] = edgeLabel(e.From, e.To)
+		}
+		row := append(b.rankCells(it), b.str(f.ID), b.str(joinInts(f.Regions)), b.str(strings.Join(edges, ", ")),
+			b.count(len(f.Days)), numCell(f.Share, b.st.pct))
+		row = append(row, b.measures(t.Trips, t.Speed, t.Detour, f.ExtraKMPerDay, f.ExtraHoursPerDay)...)
+		if a := it.Assessment; a != nil {
+			row = append(row, textCell(string(a.Verdict), b.st.verdict[a.Verdict]), yesNo(a.Focus, b.st.centre))
+		}
+		s.add(row...)
+	}
+	s.filter(head, len(cols))
+	s.finish()
+}
+
+func (b *book) edges() {
+	v := b.v
+	s := b.newSheet(SheetEdges)
+	cols := append(v.rankColumns(), "Weak link", "From", "To", "Trips per day", "Speed km/h", "Detour ratio", "Extra km per day", "Extra vehicle-hours per day", "Days with trips")
+	if v.comparing() {
+		cols = append(cols, "Verdict")
+	}
+	head := s.header(cols...)
+	for _, it := range v.items {
+		for _, e := range it.Finding.Edges {
+			row := append(b.rankCells(it), b.str(it.Finding.ID), b.count(e.From), b.count(e.To))
+			row = append(row, b.measures(e.TripsMedian, e.SpeedMedian, e.DetourMedian, e.ExtraKMPerDay, e.ExtraHoursPerDay)...)
+			row = append(row, b.count(len(e.Daily)))
+			if vd := it.Verdict(); v.comparing() {
+				row = append(row, textCell(string(vd), b.st.verdict[vd]))
+			}
+			s.add(row...)
+		}
+	}
+	s.filter(head, len(cols))
+	s.finish()
+}
+
+func (b *book) comparison() {
+	v := b.v
+	s := b.newSheet(SheetComparison)
+	cols := append(v.rankColumns(), "Weak link", "Verdict", "Focus", "Days recurring before", "Days analysed before", "Share before",
+		"Days recurring after", "Days analysed after", "Share after", "Fisher p", "Fisher p adjusted",
+		"Speed before km/h", "Speed after km/h", "Speed shift km/h", "Speed shift CI low km/h", "Speed shift CI high km/h", "Speed p", "Speed p adjusted",
+		"Detour ratio before", "Detour ratio after", "Detour ratio shift", "Detour ratio shift CI low", "Detour ratio shift CI high", "Detour p", "Detour p adjusted", "Reason")
+	head := s.header(cols...)
+	share := func(days, total int) cell {
+		if total <= 0 {
+			return cell{}
+		}
+		return numCell(float64(days)/float64(total), b.st.pct)
+	}
+	for _, it := range v.items {
+		a := it.Assessment
+		t := totals(a.Finding)
+		sp, dt := a.Speed, a.Detour
+		g := func(x float64, style int) cell { return b.gated(t.Trips, x, style) }
+		// The reason wraps in its column; the row is made tall enough.
+		s.tall(wrappedLines(a.Reason, reasonWidth*9/10))
+		s.add(append(b.rankCells(it), b.str(a.Finding.ID), textCell(string(a.Verdict), b.st.verdict[a.Verdict]), yesNo(a.Focus, b.st.centre),
+			b.count(a.DaysBefore), b.count(a.TotalBefore), share(a.DaysBefore, a.TotalBefore),
+			b.count(a.DaysAfter), b.count(a.TotalAfter), share(a.DaysAfter, a.TotalAfter),
+			b.pval(a.FisherP), b.pval(a.FisherPAdjusted),
+			g(kmh(median(sp.Before)), b.st.dec1), g(kmh(median(sp.After)), b.st.dec1),
+			g(kmh(sp.Shift), b.st.signed1), g(kmh(sp.Low), b.st.signed1), g(kmh(sp.High), b.st.signed1), b.pval(sp.P), b.pval(sp.PAdjusted),
+			g(median(dt.Before), b.st.dec2), g(median(dt.After), b.st.dec2),
+			g(dt.Shift, b.st.signed2), g(dt.Low, b.st.signed2), g(dt.High, b.st.signed2), b.pval(dt.P), b.pval(dt.PAdjusted),
+			textCell(a.Reason, b.st.wrap),
+		)...)
+	}
+	s.filter(head, len(cols))
+	s.widths[len(cols)], s.maxWidth = reasonWidth, reasonWidth
+	s.finish()
+}
+
+// reasonWidth is the width in characters of the Comparison sheet's Reason
+// column, whose text wraps.
+const reasonWidth = 60
+
+// rankColumns are the leading columns that identify a finding's rank. In
+// a comparison each period ranks its own findings, so rank 1 occurs twice
+// and the period it belongs to is shown beside it.
+func (v *view) rankColumns() []string {
+	if v.comparing() {
+		return []string{"Rank in period", "Ranked in"}
+	}
+	return []string{"Rank"}
+}
+
+// rankCells are the cells of rankColumns for it.
+func (b *book) rankCells(it item) []cell {
+	r := []cell{intCell(it.Finding.Rank, b.st.intCentre)}
+	if a := it.Assessment; a != nil {
+		p := "before"
+		if !a.InBefore {
+			p = "after"
+		}
+		r = append(r, textCell(p, b.st.centre))
+	}
+	return r
+}
+
+// median of xs (NaN when empty), without changing xs.
+func median(xs []float64) float64 {
+	if len(xs) == 0 {
+		return math.NaN()
+	}
+	s := append([]float64(nil), xs...)
+	sort.Float64s(s)
+	n := len(s)
+	if n%2 == 1 {
+		return s[n/2]
+	}
+	return (s[n/2-1] + s[n/2]) / 2
+}
