@@ -1,6 +1,7 @@
 package main
 
 import (
+	"bytes"
 	"fmt"
 	"io"
 	"path/filepath"
@@ -16,8 +17,9 @@ const (
 
 // writeReport writes the workbook dir/base.xlsx, the map layers
 // dir/regions.geojson and dir/findings.geojson, and the page dir/base.html,
-// in that order, each through writeFileAtomic, and returns their paths. An
-// input the report rejects fails on the first file, before any is written.
+// in that order, and returns their paths. All four are rendered in memory
+// first, so a failure leaves no report half-written: either none of them is
+// replaced or, barring a failing disk, all are.
 func writeReport(dir, base string, in report.Input) ([]string, error) {
 	if base == "" || base != filepath.Base(base) {
 		return nil, fmt.Errorf("report: base name %q must be a plain file name", base)
@@ -31,10 +33,19 @@ func writeReport(dir, base string, in report.Input) ([]string, error) {
 		{findingsLayerName, report.WriteFindingsGeoJSON},
 		{base + ".html", report.WriteHTML},
 	}
+	rendered := make([]bytes.Buffer, len(outputs))
+	for i, o := range outputs {
+		if err := o.write(&rendered[i], in); err != nil {
+			return nil, err
+		}
+	}
 	paths := make([]string, 0, len(outputs))
-	for _, o := range outputs {
+	for i, o := range outputs {
 		p := filepath.Join(dir, o.name)
-		if err := writeFileAtomic(p, func(w io.Writer) error { return o.write(w, in) }); err != nil {
+		if err := writeFileAtomic(p, func(w io.Writer) error {
+			_, err := rendered[i].WriteTo(w)
+			return err
+		}); err != nil {
 			return nil, err
 		}
 		paths = append(paths, p)
