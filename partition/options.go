@@ -10,36 +10,37 @@ import (
 )
 
 // Options control which lines bound regions and how the partition is
-// cleaned. The zero value is not useful; start from DefaultOptions.
+// cleaned. The zero value is not useful; start from DefaultOptions. The toml
+// tags are the keys of a study file's [regions] table.
 type Options struct {
 	// Roads are the OSM highway classes whose ways bound regions, for
 	// example "primary" or "motorway_link". Default: motorway, trunk,
 	// primary, secondary, the classes that carry through traffic between
 	// districts; *_link ramps are left out because they only connect
 	// carriageways and would cut junctions into slivers.
-	Roads []string
+	Roads []string `toml:"roads"`
 	// Barriers are extra line features that bound regions: any of "rail"
 	// (railway=rail), "river" (waterway=river), "canal" (waterway=canal)
 	// and "coastline" (natural=coastline). Default: none, so that the
 	// regions depend on the road network alone unless asked otherwise.
-	Barriers []string
+	Barriers []string `toml:"barriers"`
 	// BBox is the study area in WGS84 degrees. Nil means the bounds in the
 	// file's header; if the file has none, the extent of the chosen lines
 	// is used and a warning is given.
-	BBox *orb.Bound
+	BBox *orb.Bound `toml:"-"`
 	// SnapMetres closes gaps: a line that ends within this distance of
 	// another line (and is not already joined to it nearby) is joined to it
 	// by a short connector. Default 20 m: wider than the usual offset of a
 	// road end mapped short of the road it meets (a few metres, common
 	// mapping practice) and well under a city block, so that it seldom
 	// closes a real opening. 0 turns gap closing off.
-	SnapMetres float64
+	SnapMetres float64 `toml:"snap_metres"`
 	// MinAreaKM2 is the smallest region kept: smaller faces (junction
 	// triangles, roundabouts, the strips between one-way carriageway
 	// pairs) are merged into the neighbour across the longest shared
 	// border. Default 0.05 km² (5 ha), about a small urban block, below
 	// which a face cannot hold a district's worth of trip ends.
-	MinAreaKM2 float64
+	MinAreaKM2 float64 `toml:"min_area_km2"`
 	// MinCompactness is the Polsby-Popper floor 4πA/P² (1 for a circle,
 	// π/4 for a square, near 0 for a strip). Thinner faces are merged like
 	// small ones, whatever their size, because the strip between two
@@ -48,7 +49,7 @@ type Options struct {
 	// Tuned on the Baltimore extract: it merges the 70 m strip between two
 	// parallel motorways (0.13) and keeps the block-wide strips between
 	// one-way street pairs (0.19 and more).
-	MinCompactness float64
+	MinCompactness float64 `toml:"min_compactness"`
 	// MaxSliverWidthMetres limits the compactness rule to narrow faces:
 	// a face counts as thin only when it fails MinCompactness and its
 	// mean width 2A/P is under this many metres. Default 100 m: wider than
@@ -58,14 +59,14 @@ type Options struct {
 	// the edge of the study area) counts as a sliver, and merging it into
 	// a neighbour leaves an elongated face again, so the merging cascades
 	// through whole districts. 0 means no limit.
-	MaxSliverWidthMetres float64
+	MaxSliverWidthMetres float64 `toml:"max_sliver_width_metres"`
 	// Exact turns all cleaning off: the regions are the plain faces of the
 	// noded linework plus the study-area rectangle (dangles and cut edges
 	// dropped), as a polygonizer would give.
-	Exact bool
+	Exact bool `toml:"exact"`
 	// Warn, if not nil, receives notes for the user as they arise; they
 	// are also kept in Partition.Warnings.
-	Warn func(string)
+	Warn func(string) `toml:"-"`
 }
 
 // DefaultOptions returns the defaults documented on each Options field.
@@ -93,39 +94,6 @@ func barrierTag(name string) (key, value string, ok bool) {
 		return "natural", "coastline", true
 	}
 	return "", "", false
-}
-
-func (o *Options) validate() error {
-	if len(o.Roads) == 0 && len(o.Barriers) == 0 {
-		return fmt.Errorf("no road classes or barriers chosen")
-	}
-	for _, r := range o.Roads {
-		if r == "" || strings.ContainsAny(r, " ,=") {
-			return fmt.Errorf("road class %q is not an OSM highway value", r)
-		}
-	}
-	for _, b := range o.Barriers {
-		if _, _, ok := barrierTag(b); !ok {
-			return fmt.Errorf("unknown barrier %q (want rail, river, canal or coastline)", b)
-		}
-	}
-	for _, v := range []struct {
-		name string
-		x    float64
-	}{{"snap distance", o.SnapMetres}, {"minimum area", o.MinAreaKM2}, {"minimum compactness", o.MinCompactness}, {"sliver width", o.MaxSliverWidthMetres}} {
-		if math.IsNaN(v.x) || math.IsInf(v.x, 0) || v.x < 0 {
-			return fmt.Errorf("%s %v must be a non-negative number", v.name, v.x)
-		}
-	}
-	if o.MinCompactness > 1 {
-		return fmt.Errorf("minimum compactness %v is above 1", o.MinCompactness)
-	}
-	if o.BBox != nil {
-		if err := checkBound(*o.BBox); err != nil {
-			return fmt.Errorf("bbox: %v", err)
-		}
-	}
-	return nil
 }
 
 // ParseBBox parses a study area written "W,S,E,N" in WGS84 degrees

@@ -32,24 +32,25 @@ type Focus struct {
 }
 
 // CompareOptions sets the decision rule of Compare. The zero value is not the
-// default; use DefaultCompareOptions.
+// default; use DefaultCompareOptions. The toml tags are the keys of a study
+// file's [compare] table.
 type CompareOptions struct {
 	// Alpha is the significance level applied to Benjamini-Hochberg adjusted
 	// p-values (default 0.05).
-	Alpha float64
+	Alpha float64 `toml:"alpha"`
 	// Focus, when not nil, marks the findings around a scheme.
-	Focus *Focus
+	Focus *Focus `toml:"-"`
 	// MinShiftSpeed is the smallest change of daily speed, in m/s, that
 	// counts as material (default 1 km/h): a significant shift smaller than
 	// this is treated as no change.
-	MinShiftSpeed float64
+	MinShiftSpeed float64 `toml:"-"`
 	// MinShiftDetour is the smallest change of the daily detour ratio that
 	// counts as material (default 0.05).
-	MinShiftDetour float64
+	MinShiftDetour float64 `toml:"-"`
 	// MinDayTrips leaves out of a finding's daily speed and detour series the
 	// days with fewer trips than this on the finding's edges together
 	// (default 1: every analysed day with trips).
-	MinDayTrips int
+	MinDayTrips int `toml:"-"`
 }
 
 // DefaultCompareOptions returns the documented defaults.

@@ -164,7 +164,7 @@ func checkScanOptions(opts *ScanOptions) error {
 	if !(opts.ReferenceSpeed > 0) || math.IsInf(opts.ReferenceSpeed, 0) {
 		return fmt.Errorf("patterns: scan: reference speed %v m/s, want a positive speed", opts.ReferenceSpeed)
 	}
-	return nil
+	return checkScanDays(opts)
 }
 
 // resolveWindow returns the window to scan: name, or the store's first

@@ -14,26 +14,35 @@ const (
 	Weekends DaySelector = "weekends"
 )
 
-// ScanOptions selects the days and thresholds of a scan.
+// ScanOptions selects the days and thresholds of a scan. The toml tags are
+// the keys of a study file's [scan] table.
 type ScanOptions struct {
-	From, To string // inclusive local days YYYY-MM-DD; empty = store's first/last day
-	Window   string // time window name; empty = the store's first window
-	Days     DaySelector
-	Exclude  []string // days to leave out (holidays, incidents)
-	Skyline  skyline.Options
+	// From and To are the inclusive local days YYYY-MM-DD of the period;
+	// empty means the store's first or last day.
+	From string `toml:"from"`
+	To   string `toml:"to"`
+	// Window names the time window; empty means the store's first window.
+	Window string `toml:"window"`
+	// Days selects the days by weekday (default AllDays).
+	Days DaySelector `toml:"days"`
+	// Exclude lists days YYYY-MM-DD to leave out (holidays, incidents).
+	Exclude []string `toml:"exclude"`
+	// Skyline holds the daily candidate rules; a study file gives its
+	// keys beside the scan's own.
+	Skyline skyline.Options `toml:"-"`
 	// Support is the share of analysed days on which a group must recur
 	// (default 0.2).
-	Support float64
+	Support float64 `toml:"support"`
 	// MaxGroupEdges caps the number of edges in a group (default 6); a
 	// group of edges that always recur together is reported whole even
 	// when larger (see MineOptions.MaxEdges).
-	MaxGroupEdges int
+	MaxGroupEdges int `toml:"max_edges"`
 	// MaximalOnly keeps only the groups not contained in another reported
 	// group (default false: every closed group, nested ones included).
-	MaximalOnly bool
+	MaximalOnly bool `toml:"maximal_only"`
 	// ReferenceSpeed in m/s against which extra vehicle-hours are counted
 	// (default 30 km/h).
-	ReferenceSpeed float64
+	ReferenceSpeed float64 `toml:"-"` // a study file gives it in km/h
 }
 
 // DailyValue is one edge on one analysed day.

@@ -131,54 +131,58 @@ func (r reason) String() string {
 }
 
 // Options control an ingest. The zero value is not useful; start from
-// DefaultOptions.
+// DefaultOptions. The toml tags are the keys of a study file's [trips]
+// table; the time zone, the windows and the longest duration are read
+// there in other forms.
 type Options struct {
 	// TimeZone is the study's IANA time zone (default "UTC"). Days are local
 	// calendar days of the trip start; times without an offset are read in
 	// this zone.
-	TimeZone string
+	TimeZone string `toml:"-"`
 	// Windows are the named time-of-day windows (default one window "all",
 	// 00:00-24:00). Windows may overlap: a trip is aggregated in every window
 	// that holds its local start time.
-	Windows []Window
+	Windows []Window `toml:"-"`
 	// Columns maps logical column names (see LogicalColumns) to the headers
 	// of the input files; unmapped names are expected as they are.
-	Columns map[string]string
+	Columns map[string]string `toml:"columns"`
 	// DistanceUnit is the unit of the trip table distance column: "m"
 	// (default), "km" or "mi".
-	DistanceUnit string
+	DistanceUnit string `toml:"distance_unit"`
 
 	// MinStraightMetres is the least great-circle origin-destination
 	// distance of a trip (default 500 m).
-	MinStraightMetres float64
+	MinStraightMetres float64 `toml:"min_od_metres"`
 	// MaxDuration is the longest trip (default 4 h).
-	MaxDuration time.Duration
+	MaxDuration time.Duration `toml:"-"`
 	// MinSpeedKMH and MaxSpeedKMH bound the travel speed (default 1 and 150).
-	MinSpeedKMH, MaxSpeedKMH float64
+	MinSpeedKMH float64 `toml:"min_speed_kmh"`
+	MaxSpeedKMH float64 `toml:"max_speed_kmh"`
 	// MinDetour is the floor of travel distance / great-circle distance
 	// (default 0.95: a little under 1 allows for odometer rounding).
-	MinDetour float64
+	MinDetour float64 `toml:"min_detour"`
 	// MaxJumpKMH is the highest implied speed between consecutive GPS points
 	// (default 200); a trip with a faster step is rejected as a GPS jump.
-	MaxJumpKMH float64
+	MaxJumpKMH float64 `toml:"max_jump_speed_kmh"`
 	// GapMinutes cuts GPS points of a vehicle into trips where consecutive
 	// points are further apart in time (default 5), when there is no
 	// occupied column.
-	GapMinutes float64
+	GapMinutes float64 `toml:"gap_minutes"`
 	// DwellMinutes and DwellMetres define a dwell, which also cuts trips: the
 	// vehicle stays within DwellMetres of a point for more than DwellMinutes
 	// (default 3 min and 50 m).
-	DwellMinutes, DwellMetres float64
+	DwellMinutes float64 `toml:"dwell_minutes"`
+	DwellMetres  float64 `toml:"dwell_metres"`
 
 	// Strict stops at the first row with bad data (unparseable, missing
 	// field, bad duration, GPS jump, bad speed, detour below floor) with an
 	// error "file:line: reason". Rows that only fail a filter (outside the
 	// study area, intra-region, short trip, not occupied, stationary,
 	// outside the time windows) are counted as usual.
-	Strict bool
+	Strict bool `toml:"strict"`
 	// Progress, when not nil, is called from one goroutine at a time with the
 	// bytes read so far and the total bytes of all inputs.
-	Progress func(done, total int64)
+	Progress func(done, total int64) `toml:"-"`
 }
 
 // DefaultOptions returns the documented defaults.

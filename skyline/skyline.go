@@ -7,21 +7,21 @@ import (
 )
 
 // Options sets the candidate rules. The zero value is not the default; use
-// DefaultOptions.
+// DefaultOptions. The toml tags are the keys of a study file's [scan] table.
 type Options struct {
 	// MinTrips excludes edges with fewer trips (default 10). Edges with
 	// fewer than one trip are always excluded.
-	MinTrips int
+	MinTrips int `toml:"min_trips"`
 	// DetourFloor: candidates need a median detour ratio at least this
 	// (default 1.3). NoDetourGate switches the gate off.
-	DetourFloor  float64
-	NoDetourGate bool
+	DetourFloor  float64 `toml:"detour_floor"`
+	NoDetourGate bool    `toml:"no_detour_gate"`
 	// NoSpeedGate switches off the gate "median speed below the day's
 	// trip-weighted median speed".
-	NoSpeedGate bool
+	NoSpeedGate bool `toml:"no_speed_gate"`
 	// K widens the skyline to the k-skyband: edges dominated by fewer than
 	// K others (default 1, the plain skyline). K below 1 is taken as 1.
-	K int
+	K int `toml:"k"`
 }
 
 // DefaultOptions returns the default candidate rules:

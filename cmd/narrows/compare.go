@@ -2,6 +2,7 @@ package main
 
 import (
 	"context"
+	"flag"
 	"fmt"
 	"math"
 	"path/filepath"
@@ -9,101 +10,55 @@ import (
 	"strings"
 	"time"
 
-	"github.com/paulmach/orb"
-
 	"narrows/partition"
 	"narrows/patterns"
 	"narrows/regiongraph"
 	"narrows/report"
 )
 
-// parseFocus parses --focus: region ids "12,15,18", or a point and radius
-// "LON,LAT@METRES" (the scheme's location).
-func parseFocus(s string) (*patterns.Focus, error) {
-	if s = strings.TrimSpace(s); s == "" {
-		return nil, nil
-	}
-	if pt, radius, ok := strings.Cut(s, "@"); ok {
-		parts := strings.Split(pt, ",")
-		if len(parts) != 2 {
-			return nil, fmt.Errorf("want LON,LAT@METRES such as 8.512,0.734@600, got %q", s)
-		}
-		lon, err1 := strconv.ParseFloat(strings.TrimSpace(parts[0]), 64)
-		lat, err2 := strconv.ParseFloat(strings.TrimSpace(parts[1]), 64)
-		r, err3 := strconv.ParseFloat(strings.TrimSpace(radius), 64)
-		if err1 != nil || err2 != nil || err3 != nil || lon < -180 || lon > 180 || lat < -90 || lat > 90 || r <= 0 {
-			return nil, fmt.Errorf("want LON,LAT@METRES with a positive radius, got %q", s)
-		}
-		p := orb.Point{lon, lat}
-		return &patterns.Focus{Point: &p, RadiusMetres: r}, nil
-	}
-	f := &patterns.Focus{}
-	for _, id := range splitList(s) {
-		n, err := strconv.Atoi(id)
-		if err != nil || n < 1 {
-			return nil, fmt.Errorf("want region ids such as 12,15 or LON,LAT@METRES, got %q", s)
-		}
-		f.Regions = append(f.Regions, n)
-	}
-	if len(f.Regions) == 0 {
-		return nil, fmt.Errorf("want region ids such as 12,15 or LON,LAT@METRES, got %q", s)
-	}
-	return f, nil
-}
-
 func runCompare(ctx context.Context, env *environment, args []string) error {
 	fs := newFlagSet(env, "compare", "--graphs G.parquet --before D1..D2 --after D3..D4 [scan options] [--focus IDS|LON,LAT@METRES] --out report.xlsx")
-	var graphs, regionsPath, before, after, focus, out, title string
-	var alpha float64
-	var minPublish int
-	var sf scanFlags
-	fs.StringVar(&graphs, "graphs", "", "day-graph store written by 'narrows ingest'")
-	fs.StringVar(&regionsPath, "regions", "", "regions GeoJSON (default: the regions recorded in the store)")
-	fs.StringVar(&before, "before", "", "before period `FROM..TO` (inclusive days YYYY-MM-DD)")
-	fs.StringVar(&after, "after", "", "after period `FROM..TO` (inclusive days YYYY-MM-DD)")
-	fs.StringVar(&focus, "focus", "", "pairs around a scheme: region ids `12,15` or a point and radius LON,LAT@METRES")
-	fs.Float64Var(&alpha, "alpha", patterns.DefaultCompareOptions().Alpha, "significance level after Benjamini-Hochberg adjustment")
-	fs.IntVar(&minPublish, "min-publish", 10, "cells from fewer trips than this are shown suppressed")
+	var in storeFlags
+	var before, after periodValue
+	var out, title string
+	in.register(fs)
+	fs.Var(&before, "before", "before period `FROM..TO` (inclusive days YYYY-MM-DD)")
+	fs.Var(&after, "after", "after period `FROM..TO` (inclusive days YYYY-MM-DD)")
+	scanOpts, copts := patterns.DefaultScanOptions(), patterns.DefaultCompareOptions()
+	var focus *focusValue
+	compareFlags := bindOptions(fs, func(fs *flag.FlagSet) { focus = bindCompare(fs, &copts) })
+	minPublish := report.DefaultPublicationMinTrips
+	fs.IntVar(&minPublish, "min-publish", minPublish, "cells from fewer trips than this are shown suppressed")
 	fs.StringVar(&title, "title", "", "study title for the report")
 	fs.StringVar(&out, "out", "", "workbook (.xlsx) to write; map layers and the HTML page are written beside it")
-	sf.register(fs)
+	scanFlags := bindOptions(fs, func(fs *flag.FlagSet) { bindScan(fs, &scanOpts) })
 	if err := parseFlags(env, fs, args); err != nil {
 		return err
 	}
-	if graphs == "" || before == "" || after == "" || out == "" {
+	if in.graphs == "" || before.from == "" || after.from == "" || out == "" {
 		return usagef("--graphs, --before, --after and --out are required")
 	}
-	scanOpts, err := sf.options()
-	if err != nil {
+	if err := scanFlags.check(scanOpts.Validate()); err != nil {
 		return err
 	}
-	b, a := scanOpts, scanOpts
-	if b.From, b.To, err = parsePeriod(before); err != nil {
-		return usagef("--before: %v", err)
-	}
-	if a.From, a.To, err = parsePeriod(after); err != nil {
-		return usagef("--after: %v", err)
-	}
-	copts := patterns.DefaultCompareOptions()
-	copts.Alpha = alpha
-	if copts.Focus, err = parseFocus(focus); err != nil {
-		return usagef("--focus: %v", err)
+	if err := compareFlags.check(copts.Validate()); err != nil {
+		return err
 	}
 	if !strings.HasSuffix(strings.ToLower(out), ".xlsx") {
 		return usagef("--out: the workbook name must end in .xlsx, got %q", out)
 	}
-	store, regions, err := openStore(graphs, regionsPath, scanOpts)
+	store, regions, err := in.open(scanOpts)
 	if err != nil {
 		return err
 	}
 	if title == "" {
-		title = "Before and after: " + before + " against " + after
+		title = "Before and after: " + before.String() + " against " + after.String()
 	}
-	settings := [][2]string{{"day-graph store", graphs}, {"before", before}, {"after", after}, {"focus", focus}}
+	settings := [][2]string{{"day-graph store", in.graphs}, {"before", before.String()}, {"after", after.String()}, {"focus", focus.String()}}
 	settings = append(settings, scanSettings(scanOpts)...)
-	settings = append(settings, [2]string{"alpha", strconv.FormatFloat(alpha, 'g', -1, 64)})
+	settings = append(settings, [2]string{"alpha", strconv.FormatFloat(copts.Alpha, 'g', -1, 64)})
 	return compareAndReport(ctx, env, compareJob{
-		store: store, regions: regions, before: b, after: a, opts: copts,
+		store: store, regions: regions, before: before.apply(scanOpts), after: after.apply(scanOpts), opts: copts,
 		out: out, title: title, minPublish: minPublish, settings: settings,
 	})
 }
@@ -141,20 +96,29 @@ func compareAndReport(ctx context.Context, env *environment, job compareJob) err
 	if err != nil {
 		return err
 	}
-	base := strings.TrimSuffix(filepath.Base(job.out), filepath.Ext(job.out))
-	paths, err := writeReport(dir, base, in)
-	if err != nil {
-		return err
-	}
 	if days := cmp.Before.Days; len(days) > 0 {
 		fmt.Fprintf(env.stdout, "Top weak links before (%d analysed days, %s to %s):\n", len(days), days[0], days[len(days)-1])
 	}
 	printFindings(env.stdout, cmp.Before, job.regions, 5)
+	base := strings.TrimSuffix(filepath.Base(job.out), filepath.Ext(job.out))
+	if err := writeReport(env, dir, base, in); err != nil {
+		return err
+	}
+	fmt.Fprintf(env.stdout, "compared %d + %d days in %.2f s\n", len(cmp.Before.Days), len(cmp.After.Days), time.Since(start).Seconds())
+	return nil
+}
+
+// writeReport writes the workbook, map layers and HTML page of a study
+// into dir under the base name, and prints the headline and what it wrote.
+func writeReport(env *environment, dir, base string, in report.Input) error {
+	paths, err := writeReportFiles(dir, base, in)
+	if err != nil {
+		return err
+	}
 	fmt.Fprintln(env.stdout, report.Headline(in))
 	for _, p := range paths {
 		fmt.Fprintln(env.stdout, "  wrote", p)
 	}
-	fmt.Fprintf(env.stdout, "compared %d + %d days in %.2f s\n", len(cmp.Before.Days), len(cmp.After.Days), time.Since(start).Seconds())
 	return nil
 }
 

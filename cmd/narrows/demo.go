@@ -1,7 +1,6 @@
 package main
 
 import (
-	"bufio"
 	"context"
 	"fmt"
 	"io"
@@ -10,6 +9,7 @@ import (
 	"strings"
 	"time"
 
+	"narrows/cmd/internal/atomicfile"
 	"narrows/cmd/town"
 )
 
@@ -19,23 +19,24 @@ type townFiles struct {
 }
 
 // simulateTown generates a town, writes its before and after OSM files and
-// the trips of a scenario into dir, and returns the plan it simulated.
+// the trips of a scenario into dir, and returns the town and the plan it
+// simulated.
 //
 // With gpsEvery > 0, every gpsEvery-th trip also gets a GPS trace, written
 // to points.csv (GPS points) and, for the first gpxTraces of them, to
 // traces.gpx: the other input kinds that ingest reads.
-func simulateTown(ctx context.Context, env *environment, dir string, size town.Size, seed int64, kind string, days, tripsPerDay, gpsEvery int) (townFiles, town.Plan, error) {
+func simulateTown(ctx context.Context, env *environment, dir string, size town.Size, seed int64, kind string, days, tripsPerDay, gpsEvery int) (townFiles, *town.Town, town.Plan, error) {
 	var files townFiles
 	plan, err := town.Scenario(kind)
 	if err != nil {
-		return files, plan, usagef("--scenario: %v", err)
+		return files, nil, plan, usagef("--scenario: %v", err)
 	}
 	t, err := town.Generate(town.Options{Size: size, Seed: seed})
 	if err != nil {
-		return files, plan, usagef("--size: %v", err)
+		return files, nil, plan, usagef("--size: %v", err)
 	}
 	if err := os.MkdirAll(dir, 0o755); err != nil {
-		return files, plan, err
+		return files, nil, plan, err
 	}
 	slug := strings.ToLower(t.Name)
 	files.before = filepath.Join(dir, slug+"-before.osm")
@@ -45,14 +46,8 @@ func simulateTown(ctx context.Context, env *environment, dir string, size town.S
 		path     string
 		withLink bool
 	}{{files.before, false}, {files.after, true}} {
-		if err := writeFileAtomic(f.path, func(w io.Writer) error {
-			bw := bufio.NewWriter(w)
-			if err := t.WriteOSM(bw, f.withLink); err != nil {
-				return err
-			}
-			return bw.Flush()
-		}); err != nil {
-			return files, plan, err
+		if err := atomicfile.Write(f.path, func(w io.Writer) error { return t.WriteOSM(w, f.withLink) }); err != nil {
+			return files, nil, plan, err
 		}
 	}
 	opts := plan.SimOptions(seed)
@@ -63,47 +58,9 @@ func simulateTown(ctx context.Context, env *environment, dir string, size town.S
 		opts.TripsPerDay = tripsPerDay
 	}
 	start := time.Now()
-	var stats town.Stats
-	simulate := func() error {
-		return writeFileAtomic(files.trips, func(w io.Writer) error {
-			bw := bufio.NewWriterSize(w, 1<<20)
-			var err error
-			if stats, err = t.Simulate(ctx, opts, bw); err != nil {
-				return err
-			}
-			return bw.Flush()
-		})
-	}
-	if gpsEvery > 0 {
-		var gpx []town.Trace
-		opts.TraceEvery = gpsEvery
-		err := writeFileAtomic(filepath.Join(dir, "points.csv"), func(w io.Writer) error {
-			bw := bufio.NewWriterSize(w, 1<<20)
-			points := town.NewPointsWriter(bw)
-			opts.OnTrace = func(tr town.Trace) error {
-				if len(gpx) < gpxTraces {
-					gpx = append(gpx, tr)
-				}
-				return points.Write(tr)
-			}
-			if err := simulate(); err != nil {
-				return err
-			}
-			if err := points.Flush(); err != nil {
-				return err
-			}
-			return bw.Flush()
-		})
-		if err != nil {
-			return files, plan, err
-		}
-		if err := writeFileAtomic(filepath.Join(dir, "traces.gpx"), func(w io.Writer) error {
-			return town.WriteGPX(w, "narrows "+version, gpx)
-		}); err != nil {
-			return files, plan, err
-		}
-	} else if err := simulate(); err != nil {
-		return files, plan, err
+	stats, err := simulateTrips(ctx, t, opts, files.trips, dir, gpsEvery)
+	if err != nil {
+		return files, nil, plan, err
 	}
 	fmt.Fprintf(env.stdout, "%s (%s, seed %d): %d trips on %d days (%d with an incident) in %.1f s -> %s\n",
 		t.Name, size, seed, stats.Trips, stats.Days, stats.IncidentDays, time.Since(start).Seconds(), dir)
@@ -111,7 +68,44 @@ func simulateTown(ctx context.Context, env *environment, dir string, size town.S
 		fmt.Fprintf(env.stdout, "  the new %s opens on %s at %.5f,%.5f\n", t.Link.Tag("name"),
 			plan.LinkOpens.Format(time.DateOnly), t.LinkMidpoint[0], t.LinkMidpoint[1])
 	}
-	return files, plan, nil
+	return files, t, plan, nil
+}
+
+// simulateTrips simulates the trips of t into the file trips and, with
+// gpsEvery > 0, their GPS traces into points.csv and traces.gpx in dir.
+func simulateTrips(ctx context.Context, t *town.Town, opts town.SimOptions, trips, dir string, gpsEvery int) (town.Stats, error) {
+	var stats town.Stats
+	simulate := func() error {
+		return atomicfile.Write(trips, func(w io.Writer) error {
+			var err error
+			stats, err = t.Simulate(ctx, opts, w)
+			return err
+		})
+	}
+	if gpsEvery <= 0 {
+		return stats, simulate()
+	}
+	var gpx []town.Trace
+	opts.TraceEvery = gpsEvery
+	err := atomicfile.Write(filepath.Join(dir, "points.csv"), func(w io.Writer) error {
+		points := town.NewPointsWriter(w)
+		opts.OnTrace = func(tr town.Trace) error {
+			if len(gpx) < gpxTraces {
+				gpx = append(gpx, tr)
+			}
+			return points.Write(tr)
+		}
+		if err := simulate(); err != nil {
+			return err
+		}
+		return points.Flush()
+	})
+	if err != nil {
+		return stats, err
+	}
+	return stats, atomicfile.Write(filepath.Join(dir, "traces.gpx"), func(w io.Writer) error {
+		return town.WriteGPX(w, "narrows "+version, gpx)
+	})
 }
 
 // gpxTraces is how many GPS traces simulate also writes as GPX.
@@ -181,20 +175,26 @@ func runSimulate(ctx context.Context, env *environment, args []string) error {
 	if days < 0 || perDay < 0 || gpsEvery < 0 {
 		return usagef("--days, --trips-per-day and --gps-every must be positive")
 	}
-	files, plan, err := simulateTown(ctx, env, filepath.Join(out, "town"), town.Size(size), seed, kind, days, perDay, gpsEvery)
+	files, t, plan, err := simulateTown(ctx, env, filepath.Join(out, "town"), town.Size(size), seed, kind, days, perDay, gpsEvery)
 	if err != nil {
 		return err
 	}
-	t, _ := town.Generate(town.Options{Size: town.Size(size), Seed: seed})
-	studyPath := filepath.Join(out, "study.toml")
-	if err := writeFileAtomic(studyPath, func(w io.Writer) error {
-		_, err := io.WriteString(w, studyTemplate(t.Name, plan, focusOf(t)))
-		return err
-	}); err != nil {
+	studyPath, err := writeStudy(out, t, plan)
+	if err != nil {
 		return err
 	}
 	fmt.Fprintf(env.stdout, "wrote %s, %s, %s and %s\n", files.before, files.after, files.trips, studyPath)
 	return nil
+}
+
+// writeStudy writes the study file of a simulated town into dir, whose
+// subfolder "town" holds the town's files, and returns its path.
+func writeStudy(dir string, t *town.Town, plan town.Plan) (string, error) {
+	path := filepath.Join(dir, "study.toml")
+	return path, atomicfile.Write(path, func(w io.Writer) error {
+		_, err := io.WriteString(w, studyTemplate(t.Name, plan, focusOf(t)))
+		return err
+	})
 }
 
 // focusOf is the --focus of a town's new link: its midpoint and a radius
@@ -214,22 +214,12 @@ func runDemo(ctx context.Context, env *environment, args []string) error {
 	}
 	start := time.Now()
 	fmt.Fprintln(env.stdout, "narrows demo: a fictional town with a known weakness")
-	if _, _, err := simulateTown(ctx, env, filepath.Join(dir, "town"), town.SizeTown, seed, "link", 0, 0, 0); err != nil {
-		return err
-	}
-	t, err := town.Generate(town.Options{Size: town.SizeTown, Seed: seed})
+	_, t, plan, err := simulateTown(ctx, env, filepath.Join(dir, "town"), town.SizeTown, seed, "link", 0, 0, 0)
 	if err != nil {
 		return err
 	}
-	plan, err := town.Scenario("link")
+	studyPath, err := writeStudy(dir, t, plan)
 	if err != nil {
-		return err
-	}
-	studyPath := filepath.Join(dir, "study.toml")
-	if err := writeFileAtomic(studyPath, func(w io.Writer) error {
-		_, err := io.WriteString(w, studyTemplate(t.Name, plan, focusOf(t)))
-		return err
-	}); err != nil {
 		return err
 	}
 	s, err := loadStudy(studyPath)

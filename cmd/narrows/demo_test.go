@@ -76,16 +76,7 @@ func studyPeriods(t *testing.T, path string) (before, after patterns.ScanOptions
 	if err != nil {
 		t.Fatal(err)
 	}
-	before, after = patterns.DefaultScanOptions(), patterns.DefaultScanOptions()
-	for _, o := range []*patterns.ScanOptions{&before, &after} {
-		o.Days = patterns.DaySelector(s.Scan.Days)
-		o.Skyline.MinTrips = *s.Scan.MinTrips
-		o.Support = *s.Scan.Support
-	}
-	if before.From, before.To, err = parsePeriod(s.Compare.Before); err != nil {
-		t.Fatal(err)
-	}
-	if after.From, after.To, err = parsePeriod(s.Compare.After); err != nil {
+	if before, after, err = s.periods(); err != nil {
 		t.Fatal(err)
 	}
 	return before, after

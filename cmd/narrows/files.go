@@ -26,34 +26,6 @@ func fileSHA256(path string) (string, error) {
 	return hex.EncodeToString(h.Sum(nil)), nil
 }
 
-// writeFileAtomic writes a file through a temporary file in the same
-// directory and renames it into place, so a failed run never leaves a
-// half-written output.
-func writeFileAtomic(path string, write func(w io.Writer) error) error {
-	dir, err := outputDir(path)
-	if err != nil {
-		return err
-	}
-	tmp, err := os.CreateTemp(dir, "."+filepath.Base(path)+".tmp-*")
-	if err != nil {
-		return err
-	}
-	name := tmp.Name()
-	defer os.Remove(name) // no-op after a successful rename
-	if err := write(tmp); err != nil {
-		tmp.Close()
-		return fmt.Errorf("writing %s: %w", path, err)
-	}
-	if err := tmp.Close(); err != nil {
-		return fmt.Errorf("writing %s: %w", path, err)
-	}
-	// CreateTemp makes the file private; outputs are ordinary files.
-	if err := os.Chmod(name, 0o644); err != nil {
-		return err
-	}
-	return os.Rename(name, path)
-}
-
 // outputDir makes the folder an output goes into, as a user naming a new
 // folder for the results expects, and returns it.
 func outputDir(path string) (string, error) {

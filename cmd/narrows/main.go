@@ -24,6 +24,7 @@ import (
 	"io"
 	"os"
 	"os/signal"
+	"strings"
 )
 
 // Exit codes.
@@ -156,23 +157,7 @@ func newFlagSet(env *environment, name, synopsis string) *flag.FlagSet {
 // parseFlags parses args, turning flag errors into usage errors. --help
 // returns flag.ErrHelp after printing usage to stdout.
 func parseFlags(env *environment, fs *flag.FlagSet, args []string) error {
-	for _, a := range args {
-		if a == "-h" || a == "--help" || a == "-help" {
-			fs.SetOutput(env.stdout)
-			fs.Usage()
-			return flag.ErrHelp
-		}
-	}
-	// Silence the flag package's own message; dispatch prints ours.
-	fs.SetOutput(io.Discard)
-	if err := fs.Parse(args); err != nil {
-		return usageError{err.Error()}
-	}
-	fs.SetOutput(env.stderr)
-	if fs.NArg() > 0 {
-		return usagef("unexpected argument %q", fs.Arg(0))
-	}
-	return nil
+	return parseFlagsWithRest(env, fs, args, nil)
 }
 
 // listFlag is a repeatable string flag.
@@ -182,7 +167,8 @@ func (l *listFlag) String() string     { return fmt.Sprint([]string(*l)) }
 func (l *listFlag) Set(s string) error { *l = append(*l, s); return nil }
 
 // parseFlagsWithRest is parseFlags for commands that take a list of files:
-// arguments that are not options, wherever they stand, go to rest.
+// arguments that are not options, wherever they stand, go to rest. With
+// rest nil, such an argument is a usage error.
 func parseFlagsWithRest(env *environment, fs *flag.FlagSet, args []string, rest func([]string)) error {
 	for _, a := range args {
 		if a == "-h" || a == "--help" || a == "-help" {
@@ -191,11 +177,12 @@ func parseFlagsWithRest(env *environment, fs *flag.FlagSet, args []string, rest 
 			return flag.ErrHelp
 		}
 	}
+	// Silence the flag package's own message; dispatch prints ours.
 	fs.SetOutput(io.Discard)
 	defer fs.SetOutput(env.stderr)
 	for {
 		if err := fs.Parse(args); err != nil {
-			return usageError{err.Error()}
+			return flagError(err)
 		}
 		args = fs.Args()
 		i := 0
@@ -203,6 +190,9 @@ func parseFlagsWithRest(env *environment, fs *flag.FlagSet, args []string, rest 
 			i++
 		}
 		if i > 0 {
+			if rest == nil {
+				return usagef("unexpected argument %q", args[0])
+			}
 			rest(args[:i])
 		}
 		if i == len(args) {
@@ -210,4 +200,17 @@ func parseFlagsWithRest(env *environment, fs *flag.FlagSet, args []string, rest 
 		}
 		args = args[i:]
 	}
+}
+
+// flagError is a usage error with the flag package's message, the flag
+// named with two dashes as in the rest of narrows' messages.
+func flagError(err error) error {
+	msg := err.Error()
+	for _, before := range []string{"for flag -", "for -", "defined: -", "argument: -"} {
+		if i := strings.Index(msg, before); i >= 0 {
+			msg = msg[:i+len(before)] + "-" + msg[i+len(before):]
+			break
+		}
+	}
+	return usageError{msg}
 }

@@ -81,7 +81,7 @@ func TestUsageErrors(t *testing.T) {
 		{"unknown zone", []string{"ingest", "--regions", "r.geojson", "--trips", "t.csv", "--out", "g.parquet", "--tz", "Mars/Olympus"}, "unknown time zone"},
 		{"bad window", []string{"ingest", "--regions", "r.geojson", "--trips", "t.csv", "--out", "g.parquet", "--window", "am=7-10"}, "--window"},
 		{"run without file", []string{"run"}, "exactly one study file"},
-		{"speed bounds reversed", []string{"ingest", "--regions", "r.geojson", "--trips", "t.csv", "--out", "g.parquet", "--min-speed", "50", "--max-speed", "40"}, "--max-speed above --min-speed"},
+		{"speed bounds reversed", []string{"ingest", "--regions", "r.geojson", "--trips", "t.csv", "--out", "g.parquet", "--min-speed", "50", "--max-speed", "40"}, "--max-speed, --min-speed: regiongraph: MinSpeedKMH 50 is above MaxSpeedKMH 40"},
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {

@@ -6,6 +6,7 @@ import (
 	"io"
 	"path/filepath"
 
+	"narrows/cmd/internal/atomicfile"
 	"narrows/report"
 )
 
@@ -15,12 +16,12 @@ const (
 	findingsLayerName = "findings.geojson"
 )
 
-// writeReport writes the workbook dir/base.xlsx, the map layers
+// writeReportFiles writes the workbook dir/base.xlsx, the map layers
 // dir/regions.geojson and dir/findings.geojson, and the page dir/base.html,
 // in that order, and returns their paths. All four are rendered in memory
 // first, so a failure leaves no report half-written: either none of them is
 // replaced or, barring a failing disk, all are.
-func writeReport(dir, base string, in report.Input) ([]string, error) {
+func writeReportFiles(dir, base string, in report.Input) ([]string, error) {
 	if base == "" || base != filepath.Base(base) {
 		return nil, fmt.Errorf("report: base name %q must be a plain file name", base)
 	}
@@ -42,7 +43,7 @@ func writeReport(dir, base string, in report.Input) ([]string, error) {
 	paths := make([]string, 0, len(outputs))
 	for i, o := range outputs {
 		p := filepath.Join(dir, o.name)
-		if err := writeFileAtomic(p, func(w io.Writer) error {
+		if err := atomicfile.Write(p, func(w io.Writer) error {
 			_, err := rendered[i].WriteTo(w)
 			return err
 		}); err != nil {

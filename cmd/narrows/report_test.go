@@ -39,7 +39,7 @@ func smallReport() report.Input {
 
 func TestWriteReport(t *testing.T) {
 	dir := t.TempDir()
-	paths, err := writeReport(dir, "lowmere", smallReport())
+	paths, err := writeReportFiles(dir, "lowmere", smallReport())
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -69,15 +69,15 @@ func TestWriteReport(t *testing.T) {
 		t.Fatal(err)
 	}
 	if a, _ := os.ReadFile(paths[0]); !bytes.Equal(a, single.Bytes()) {
-		t.Error("writeReport's workbook differs from WriteWorkbook's")
+		t.Error("writeReportFiles's workbook differs from WriteWorkbook's")
 	}
 
 	// A folder that cannot be made fails without leaving anything.
-	if _, err := writeReport(filepath.Join(paths[0], "sub"), "x", smallReport()); err == nil {
-		t.Error("writeReport below a file: no error")
+	if _, err := writeReportFiles(filepath.Join(paths[0], "sub"), "x", smallReport()); err == nil {
+		t.Error("writeReportFiles below a file: no error")
 	}
 	for _, base := range []string{"", "../up", "a/b"} {
-		if _, err := writeReport(dir, base, smallReport()); err == nil {
+		if _, err := writeReportFiles(dir, base, smallReport()); err == nil {
 			t.Errorf("writeReport with base %q: no error", base)
 		}
 	}
@@ -91,8 +91,8 @@ func TestWriteReportInvalidInput(t *testing.T) {
 	dir := t.TempDir()
 	in := smallReport()
 	in.Scan = nil
-	if _, err := writeReport(dir, "study", in); err == nil {
-		t.Fatal("writeReport without a scan: no error")
+	if _, err := writeReportFiles(dir, "study", in); err == nil {
+		t.Fatal("writeReportFiles without a scan: no error")
 	}
 	if left, _ := os.ReadDir(dir); len(left) != 0 {
 		t.Errorf("failed writes left %d files", len(left))

@@ -11,135 +11,76 @@ import (
 	"text/tabwriter"
 	"time"
 
+	"narrows/cmd/internal/atomicfile"
 	"narrows/partition"
 	"narrows/patterns"
 	"narrows/regiongraph"
 	"narrows/report"
 )
 
-// scanFlags are the thresholds shared by scan, compare and run.
-type scanFlags struct {
-	window, days, exclude string
-	minTrips, k           int
-	support, detourFloor  float64
-	noDetourGate          bool
-	noSpeedGate           bool
-	maxEdges              int
-	refSpeedKMH           float64
-	maximalOnly           bool
+// storeFlags name a day-graph store and, optionally, the regions it was
+// built on: the input of scan and compare.
+type storeFlags struct{ graphs, regions string }
+
+func (f *storeFlags) register(fs *flag.FlagSet) {
+	fs.StringVar(&f.graphs, "graphs", "", "day-graph store written by 'narrows ingest'")
+	fs.StringVar(&f.regions, "regions", "", "regions GeoJSON (default: the regions recorded in the store)")
 }
 
-func (f *scanFlags) register(fs *flag.FlagSet) {
-	d := patterns.DefaultScanOptions()
-	fs.StringVar(&f.window, "window", "", "time window to analyse (default: the store's first window)")
-	fs.StringVar(&f.days, "days", string(d.Days), "days to analyse: all, weekdays or weekends")
-	fs.StringVar(&f.exclude, "exclude", "", "days to leave out, `YYYY-MM-DD,...` (holidays, incidents)")
-	fs.IntVar(&f.minTrips, "min-trips", d.Skyline.MinTrips, "ignore region pairs with fewer trips on a day")
-	fs.Float64Var(&f.support, "support", d.Support, "share of days (0-1] on which a group must recur")
-	fs.IntVar(&f.k, "k", d.Skyline.K, "widen the daily skyline to the k-skyband (dominated by fewer than k pairs)")
-	fs.Float64Var(&f.detourFloor, "detour-floor", d.Skyline.DetourFloor, "candidates need a median detour ratio at least this")
-	fs.BoolVar(&f.noDetourGate, "no-detour-gate", false, "switch the detour floor off")
-	fs.BoolVar(&f.noSpeedGate, "no-speed-gate", false, "switch off the gate 'slower than the day's median speed'")
-	fs.IntVar(&f.maxEdges, "max-edges", d.MaxGroupEdges, "largest group of edges to report")
-	fs.BoolVar(&f.maximalOnly, "maximal-only", false, "report only groups not contained in another reported group (a shorter list)")
-	fs.Float64Var(&f.refSpeedKMH, "reference-speed", d.ReferenceSpeed*3.6, "`km/h` against which extra vehicle-hours are counted")
-}
-
-func (f *scanFlags) options() (patterns.ScanOptions, error) {
-	o := patterns.DefaultScanOptions()
-	o.Window = f.window
-	switch patterns.DaySelector(f.days) {
-	case patterns.AllDays, patterns.Weekdays, patterns.Weekends:
-		o.Days = patterns.DaySelector(f.days)
-	default:
-		return o, usagef("--days: want all, weekdays or weekends, got %q", f.days)
+// open reads the store for an analysis with the given thresholds and the
+// regions it was built on (see readStore and regionsFor).
+func (f *storeFlags) open(opts patterns.ScanOptions) (*regiongraph.Store, *partition.Partition, error) {
+	store, err := readStore(f.graphs, opts)
+	if err != nil {
+		return nil, nil, err
 	}
-	for _, d := range splitList(f.exclude) {
-		if _, err := time.Parse(time.DateOnly, d); err != nil {
-			return o, usagef("--exclude: %q is not a date YYYY-MM-DD", d)
-		}
-		o.Exclude = append(o.Exclude, d)
+	regions, err := regionsFor(store, f.regions, f.graphs)
+	if err != nil {
+		return nil, nil, err
 	}
-	if f.support <= 0 || f.support > 1 {
-		return o, usagef("--support: want a share in (0, 1], got %g", f.support)
-	}
-	if f.minTrips < 1 || f.k < 1 || f.maxEdges < 1 || f.refSpeedKMH <= 0 {
-		return o, usagef("--min-trips, --k, --max-edges and --reference-speed must be positive")
-	}
-	o.Support = f.support
-	o.MaxGroupEdges = f.maxEdges
-	o.MaximalOnly = f.maximalOnly
-	o.ReferenceSpeed = f.refSpeedKMH / 3.6
-	o.Skyline.MinTrips = f.minTrips
-	o.Skyline.K = f.k
-	o.Skyline.DetourFloor = f.detourFloor
-	o.Skyline.NoDetourGate = f.noDetourGate
-	o.Skyline.NoSpeedGate = f.noSpeedGate
-	return o, nil
-}
-
-// parsePeriod parses "D1..D2" (inclusive local days).
-func parsePeriod(s string) (from, to string, err error) {
-	a, b, ok := strings.Cut(s, "..")
-	if !ok {
-		return "", "", fmt.Errorf("want FROM..TO such as 2026-03-02..2026-03-29, got %q", s)
-	}
-	for _, d := range []string{a, b} {
-		if _, err := time.Parse(time.DateOnly, d); err != nil {
-			return "", "", fmt.Errorf("%q is not a date YYYY-MM-DD", d)
-		}
-	}
-	if a > b {
-		return "", "", fmt.Errorf("period %q ends before it starts", s)
-	}
-	return a, b, nil
+	return store, regions, nil
 }
 
 func runScan(ctx context.Context, env *environment, args []string) error {
 	fs := newFlagSet(env, "scan", "--graphs G.parquet [--from DATE] [--to DATE] [--window NAME] [--days all|weekdays|weekends] [--exclude DATE,...] [--min-trips N] [--support FRACTION] [--k K] --out findings.json")
-	var graphs, regionsPath, from, to, out string
-	var sf scanFlags
-	fs.StringVar(&graphs, "graphs", "", "day-graph store written by 'narrows ingest'")
-	fs.StringVar(&regionsPath, "regions", "", "regions GeoJSON (default: the regions recorded in the store)")
-	fs.StringVar(&from, "from", "", "first day `YYYY-MM-DD` (default: the store's first)")
-	fs.StringVar(&to, "to", "", "last day `YYYY-MM-DD` (default: the store's last)")
+	var in storeFlags
+	var out string
+	in.register(fs)
+	opts := patterns.DefaultScanOptions()
+	optFlags := bindOptions(fs, func(fs *flag.FlagSet) {
+		fs.StringVar(&opts.From, "from", "", "first day `YYYY-MM-DD` (default: the store's first)")
+		fs.StringVar(&opts.To, "to", "", "last day `YYYY-MM-DD` (default: the store's last)")
+		bindScan(fs, &opts)
+	})
 	fs.StringVar(&out, "out", "", "findings JSON to write; findings.geojson is written beside it")
-	sf.register(fs)
 	if err := parseFlags(env, fs, args); err != nil {
 		return err
 	}
-	if graphs == "" || out == "" {
+	if in.graphs == "" || out == "" {
 		return usagef("--graphs and --out are required")
 	}
-	opts, err := sf.options()
-	if err != nil {
+	if err := optFlags.check(opts.Validate()); err != nil {
 		return err
 	}
-	for _, d := range []string{from, to} {
-		if d == "" {
-			continue
-		}
-		if _, err := time.Parse(time.DateOnly, d); err != nil {
-			return usagef("--from/--to: %q is not a date YYYY-MM-DD", d)
-		}
-	}
-	opts.From, opts.To = from, to
-	store, regions, err := openStore(graphs, regionsPath, opts)
+	store, regions, err := in.open(opts)
 	if err != nil {
 		return err
 	}
 	start := time.Now()
 	scan, err := patterns.ScanStore(ctx, store, opts)
 	if err != nil {
-		return fmt.Errorf("%s: %w", graphs, err)
+		return fmt.Errorf("%s: %w", in.graphs, err)
 	}
 	elapsed := time.Since(start)
-	if err := writeFileAtomic(out, func(w io.Writer) error { return writeFindingsJSON(w, scan, regions) }); err != nil {
+	if _, err := outputDir(out); err != nil {
+		return err
+	}
+	if err := atomicfile.Write(out, func(w io.Writer) error { return writeFindingsJSON(w, scan, regions) }); err != nil {
 		return err
 	}
 	layer := filepath.Join(filepath.Dir(out), findingsLayerName)
-	in := report.Input{Regions: regions, Store: &store.Meta, Scan: scan, Version: version}
-	if err := writeFileAtomic(layer, func(w io.Writer) error { return report.WriteFindingsGeoJSON(w, in) }); err != nil {
+	rin := report.Input{Regions: regions, Store: &store.Meta, Scan: scan, Version: version}
+	if err := atomicfile.Write(layer, func(w io.Writer) error { return report.WriteFindingsGeoJSON(w, rin) }); err != nil {
 		return err
 	}
 	printFindings(env.stdout, scan, regions, 20)
@@ -156,20 +97,6 @@ func runScan(ctx context.Context, env *environment, args []string) error {
 // had at least that many trips.
 func readStore(path string, opts patterns.ScanOptions) (*regiongraph.Store, error) {
 	return regiongraph.ReadFileOptions(path, regiongraph.ReadOptions{MinTrips: opts.Skyline.MinTrips})
-}
-
-// openStore reads a store for an analysis and the regions it was built on
-// (see regionsFor).
-func openStore(path, regionsPath string, opts patterns.ScanOptions) (*regiongraph.Store, *partition.Partition, error) {
-	store, err := readStore(path, opts)
-	if err != nil {
-		return nil, nil, err
-	}
-	regions, err := regionsFor(store, regionsPath, path)
-	if err != nil {
-		return nil, nil, err
-	}
-	return store, regions, nil
 }
 
 // regionsFor returns the regions a store was built on: from the given file

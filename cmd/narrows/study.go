@@ -8,90 +8,89 @@ import (
 	"path/filepath"
 	"strconv"
 	"strings"
-	"time"
 
 	"github.com/BurntSushi/toml"
 
+	"narrows/cmd/internal/atomicfile"
 	"narrows/partition"
 	"narrows/patterns"
 	"narrows/regiongraph"
 	"narrows/report"
+	"narrows/skyline"
 )
 
 // study is a study file: everything needed to re-run a study next year.
-// Paths are relative to the study file.
+// Paths are relative to the study file. The options of the steps decode
+// into the libraries' Options, pre-filled with their defaults (newStudy),
+// so a study file sets only what it names.
 type study struct {
 	Title    string `toml:"title"`
-	TimeZone string `toml:"time_zone"`
-	Output   string `toml:"output"` // folder for all outputs (default "out")
-	Name     string `toml:"name"`   // base name of the workbook and HTML page (default "report")
+	TimeZone string `toml:"time_zone"` // of the day graphs (default: the ingest's)
+	Output   string `toml:"output"`    // folder for all outputs (default "out")
+	Name     string `toml:"name"`      // base name of the workbook and HTML page (default "report")
 
-	Regions struct {
-		OSM            string   `toml:"osm"`
-		BBox           string   `toml:"bbox"`
-		Roads          []string `toml:"roads"`
-		Barriers       []string `toml:"barriers"`
-		SnapMetres     *float64 `toml:"snap_metres"`
-		MinAreaKM2     *float64 `toml:"min_area_km2"`
-		MinCompactness *float64 `toml:"min_compactness"`
-		MaxSliverWidth *float64 `toml:"max_sliver_width_metres"`
-		Exact          bool     `toml:"exact"`
-	} `toml:"regions"`
+	Regions studyRegions  `toml:"regions"`
+	Trips   studyTrips    `toml:"trips"`
+	Windows []studyWindow `toml:"windows"`
+	Scan    studyScan     `toml:"scan"`
+	Compare studyCompare  `toml:"compare"`
+}
 
-	Trips struct {
-		Files        []string          `toml:"files"`
-		Format       string            `toml:"format"`
-		Columns      map[string]string `toml:"columns"`
-		DistanceUnit string            `toml:"distance_unit"`
-		Strict       bool              `toml:"strict"`
-		MinODMetres  *float64          `toml:"min_od_metres"`
-		MaxDuration  string            `toml:"max_duration"` // Go duration, e.g. "4h"
-		MinSpeedKMH  *float64          `toml:"min_speed_kmh"`
-		MaxSpeedKMH  *float64          `toml:"max_speed_kmh"`
-		MinDetour    *float64          `toml:"min_detour"`
-		MaxJumpKMH   *float64          `toml:"max_jump_speed_kmh"`
-		GapMinutes   *float64          `toml:"gap_minutes"`
-		DwellMinutes *float64          `toml:"dwell_minutes"`
-		DwellMetres  *float64          `toml:"dwell_metres"`
-	} `toml:"trips"`
+type studyRegions struct {
+	OSM  string    `toml:"osm"`
+	BBox bboxValue `toml:"bbox"`
+	partition.Options
+}
 
-	Windows []struct {
-		Name string `toml:"name"`
-		From string `toml:"from"`
-		To   string `toml:"to"`
-	} `toml:"windows"`
+type studyTrips struct {
+	Files       []string           `toml:"files"`
+	Format      regiongraph.Format `toml:"format"`
+	MaxDuration durationText       `toml:"max_duration"` // Go duration, e.g. "4h"
+	regiongraph.Options
+}
 
-	Scan struct {
-		Window         string   `toml:"window"`
-		Days           string   `toml:"days"`
-		Exclude        []string `toml:"exclude"`
-		MinTrips       *int     `toml:"min_trips"`
-		Support        *float64 `toml:"support"`
-		K              *int     `toml:"k"`
-		DetourFloor    *float64 `toml:"detour_floor"`
-		NoDetourGate   bool     `toml:"no_detour_gate"`
-		NoSpeedGate    bool     `toml:"no_speed_gate"`
-		MaxEdges       *int     `toml:"max_edges"`
-		MaximalOnly    bool     `toml:"maximal_only"`
-		ReferenceSpeed *float64 `toml:"reference_speed_kmh"`
-		From           string   `toml:"from"`
-		To             string   `toml:"to"`
-	} `toml:"scan"`
+type studyWindow struct {
+	Name string `toml:"name"`
+	From string `toml:"from"`
+	To   string `toml:"to"`
+}
 
-	Compare struct {
-		Before     string   `toml:"before"`
-		After      string   `toml:"after"`
-		Focus      string   `toml:"focus"`
-		Alpha      *float64 `toml:"alpha"`
-		MinPublish *int     `toml:"min_publish"`
-	} `toml:"compare"`
+type studyScan struct {
+	ReferenceSpeed kmhValue `toml:"reference_speed_kmh"`
+	patterns.ScanOptions
+	*skyline.Options // the ScanOptions' Skyline, whose keys stand in [scan]
+}
+
+type studyCompare struct {
+	Before     periodValue `toml:"before"`
+	After      periodValue `toml:"after"`
+	Focus      focusValue  `toml:"focus"`
+	MinPublish int         `toml:"min_publish"`
+	patterns.CompareOptions
+}
+
+// newStudy returns a study with every option at its default and the
+// adapters pointing at the fields they fill.
+func newStudy() *study {
+	s := &study{
+		Regions: studyRegions{Options: partition.DefaultOptions()},
+		Trips:   studyTrips{Format: regiongraph.FormatTrips, Options: regiongraph.DefaultOptions()},
+		Scan:    studyScan{ScanOptions: patterns.DefaultScanOptions()},
+		Compare: studyCompare{MinPublish: report.DefaultPublicationMinTrips, CompareOptions: patterns.DefaultCompareOptions()},
+	}
+	s.Regions.BBox.b = &s.Regions.Options.BBox
+	s.Trips.MaxDuration.d = &s.Trips.Options.MaxDuration
+	s.Scan.ReferenceSpeed.mps = &s.Scan.ScanOptions.ReferenceSpeed
+	s.Scan.Options = &s.Scan.ScanOptions.Skyline
+	s.Compare.Focus.f = &s.Compare.CompareOptions.Focus
+	return s
 }
 
 // loadStudy reads and checks a study file. Unknown keys are errors, so a
 // misspelt threshold never silently falls back to its default.
 func loadStudy(path string) (*study, error) {
-	var s study
-	md, err := toml.DecodeFile(path, &s)
+	s := newStudy()
+	md, err := toml.DecodeFile(path, s)
 	if err != nil {
 		return nil, fmt.Errorf("study file %s: %w", path, err)
 	}
@@ -114,16 +113,53 @@ func loadStudy(path string) (*study, error) {
 	if s.Name == "" {
 		s.Name = "report"
 	}
-	if s.TimeZone == "" {
-		s.TimeZone = "UTC"
+	if s.TimeZone != "" {
+		s.Trips.TimeZone = s.TimeZone
 	}
 	if s.Trips.Format == "" {
-		s.Trips.Format = "trips"
+		s.Trips.Format = regiongraph.FormatTrips
 	}
 	if s.Scan.Days == "" {
-		s.Scan.Days = string(patterns.AllDays)
+		s.Scan.Days = patterns.AllDays
 	}
-	return &s, nil
+	if err := s.windows(); err != nil {
+		return nil, fmt.Errorf("study file %s: %v", path, err)
+	}
+	if s.Compare.Before.from != "" || s.Compare.After.from != "" {
+		if _, _, err := s.periods(); err != nil {
+			return nil, fmt.Errorf("study file %s: %v", path, err)
+		}
+	}
+	for _, v := range []struct {
+		where string
+		err   error
+	}{
+		{"[regions]", s.Regions.Validate()},
+		{"[trips], [[windows]] or time_zone", s.Trips.Validate()},
+		{"[scan]", s.Scan.Validate()},
+		{"[compare]", s.Compare.Validate()},
+	} {
+		if v.err != nil {
+			return nil, fmt.Errorf("study file %s: %s: %v", path, v.where, v.err)
+		}
+	}
+	return s, nil
+}
+
+// windows sets the ingest's windows to the study's, if it names any.
+func (s *study) windows() error {
+	if len(s.Windows) == 0 {
+		return nil
+	}
+	s.Trips.Windows = nil
+	for _, w := range s.Windows {
+		win, err := regiongraph.ParseWindow(w.Name + "=" + w.From + "-" + w.To)
+		if err != nil {
+			return fmt.Errorf("[[windows]]: %v", err)
+		}
+		s.Trips.Windows = append(s.Trips.Windows, win)
+	}
+	return nil
 }
 
 func runStudy(ctx context.Context, env *environment, args []string) error {
@@ -149,175 +185,137 @@ func runStudy(ctx context.Context, env *environment, args []string) error {
 	return s.run(ctx, env, filepath.Dir(file), file)
 }
 
-// run runs the whole pipeline of a study whose paths are relative to dir.
+// studyRun is one run of a study whose paths are relative to dir.
+type studyRun struct {
+	*study
+	file, dir  string // the study file and its folder
+	out, steps string // the output folder and its folder of intermediate files
+}
+
+// rel resolves a path of the study file.
+func (r *studyRun) rel(p string) string {
+	if filepath.IsAbs(p) {
+		return p
+	}
+	return filepath.Join(r.dir, p)
+}
+
+// run runs the whole pipeline of a study whose paths are relative to dir:
+// regions, day graphs, then a scan of one period or a comparison of two,
+// each with its report.
 func (s *study) run(ctx context.Context, env *environment, dir, file string) error {
-	rel := func(p string) string {
-		if filepath.IsAbs(p) {
-			return p
-		}
-		return filepath.Join(dir, p)
-	}
-	where := "study file " + file
-	out := rel(s.Output)
-	steps := filepath.Join(out, "steps")
-	if err := os.MkdirAll(steps, 0o755); err != nil {
+	r := &studyRun{study: s, file: file, dir: dir}
+	r.out = r.rel(s.Output)
+	r.steps = filepath.Join(r.out, "steps")
+	if err := os.MkdirAll(r.steps, 0o755); err != nil {
 		return err
 	}
-
-	// 1. Regions.
-	rf := regionFlags{}
-	popts := partition.DefaultOptions()
-	rf.bbox = s.Regions.BBox
-	rf.roads, rf.barriers = strings.Join(popts.Roads, ","), strings.Join(popts.Barriers, ",")
-	if s.Regions.Roads != nil {
-		rf.roads = strings.Join(s.Regions.Roads, ",")
-	}
-	if s.Regions.Barriers != nil {
-		rf.barriers = strings.Join(s.Regions.Barriers, ",")
-	}
-	rf.snap, rf.minArea, rf.minCompact = deref(s.Regions.SnapMetres, popts.SnapMetres), deref(s.Regions.MinAreaKM2, popts.MinAreaKM2), deref(s.Regions.MinCompactness, popts.MinCompactness)
-	rf.maxSliverWidth = deref(s.Regions.MaxSliverWidth, popts.MaxSliverWidthMetres)
-	rf.exact = s.Regions.Exact
-	popts, err := rf.options()
-	if err != nil {
-		return fmt.Errorf("%s: [regions]: %v", where, err)
-	}
-	regionsPath := filepath.Join(steps, "partition.geojson")
 	fmt.Fprintln(env.stdout, "1/3 regions")
-	if _, err := buildRegions(ctx, env, rel(s.Regions.OSM), popts, regionsPath); err != nil {
+	regions, sum, err := buildRegions(ctx, env, r.rel(s.Regions.OSM), s.Regions.Options, filepath.Join(r.steps, "partition.geojson"))
+	if err != nil {
 		return err
 	}
-
-	// 2. Day graphs.
-	inf := defaultIngestFlags()
-	inf.format, inf.tz, inf.strict = s.Trips.Format, s.TimeZone, s.Trips.Strict
-	if s.Trips.DistanceUnit != "" {
-		inf.unit = s.Trips.DistanceUnit
-	}
-	inf.minOD = deref(s.Trips.MinODMetres, inf.minOD)
-	if s.Trips.MaxDuration != "" {
-		d, err := time.ParseDuration(s.Trips.MaxDuration)
-		if err != nil {
-			return fmt.Errorf("%s: [trips] max_duration: %v", where, err)
-		}
-		inf.maxDuration = d
-	}
-	inf.minSpeed = deref(s.Trips.MinSpeedKMH, inf.minSpeed)
-	inf.maxSpeed = deref(s.Trips.MaxSpeedKMH, inf.maxSpeed)
-	inf.minDetour = deref(s.Trips.MinDetour, inf.minDetour)
-	inf.maxJump = deref(s.Trips.MaxJumpKMH, inf.maxJump)
-	inf.gapMinutes = deref(s.Trips.GapMinutes, inf.gapMinutes)
-	inf.dwellMinutes = deref(s.Trips.DwellMinutes, inf.dwellMinutes)
-	inf.dwellMetres = deref(s.Trips.DwellMetres, inf.dwellMetres)
-	for _, w := range s.Windows {
-		inf.windows = append(inf.windows, w.Name+"="+w.From+"-"+w.To)
-	}
-	iopts, err := inf.options()
-	if err != nil {
-		return fmt.Errorf("%s: [trips]/[[windows]]/time_zone: %v", where, err)
-	}
-	if len(s.Trips.Columns) > 0 {
-		iopts.Columns = s.Trips.Columns
-	}
-	var trips []string
-	names := map[string]string{}
-	for _, t := range s.Trips.Files {
-		trips = append(trips, rel(t))
-		names[rel(t)] = t
-	}
-	graphs := filepath.Join(steps, "graphs.parquet")
 	fmt.Fprintln(env.stdout, "2/3 day graphs")
-	if err := ingest(ctx, env, regionsPath, trips, names, regiongraph.Format(inf.format), iopts, nil, graphs); err != nil {
-		return err
-	}
-
-	// 3. Scan, or compare.
-	d := patterns.DefaultScanOptions()
-	sf := scanFlags{
-		window: s.Scan.Window, days: s.Scan.Days, exclude: strings.Join(s.Scan.Exclude, ","),
-		minTrips: deref(s.Scan.MinTrips, d.Skyline.MinTrips), k: deref(s.Scan.K, d.Skyline.K),
-		support: deref(s.Scan.Support, d.Support), detourFloor: deref(s.Scan.DetourFloor, d.Skyline.DetourFloor),
-		noDetourGate: s.Scan.NoDetourGate, noSpeedGate: s.Scan.NoSpeedGate,
-		maxEdges: deref(s.Scan.MaxEdges, d.MaxGroupEdges), refSpeedKMH: deref(s.Scan.ReferenceSpeed, d.ReferenceSpeed*3.6),
-		maximalOnly: s.Scan.MaximalOnly,
-	}
-	scanOpts, err := sf.options()
-	if err != nil {
-		return fmt.Errorf("%s: [scan]: %v", where, err)
-	}
-	store, err := readStore(graphs, scanOpts)
+	store, err := r.dayGraphs(ctx, env, regions, sum)
 	if err != nil {
 		return err
 	}
-	regions, _, err := readRegions(regionsPath)
+	in, err := r.reportInput(store, regions)
 	if err != nil {
 		return err
 	}
-	studySource, err := sourceOf(file)
-	if err != nil {
-		return err
-	}
-	osmSource, err := sourceOf(rel(s.Regions.OSM))
-	if err != nil {
-		return err
-	}
-	title := s.Title
-	if title == "" {
-		title = "narrows study " + filepath.Base(file)
-	}
-	settings := append([][2]string{{"study file", filepath.Base(file)}, {"time zone", s.TimeZone}}, scanSettings(scanOpts)...)
-	minPublish := deref(s.Compare.MinPublish, 10)
-
-	if s.Compare.Before == "" && s.Compare.After == "" {
+	if s.Compare.Before.from == "" && s.Compare.After.from == "" {
 		fmt.Fprintln(env.stdout, "3/3 scan")
-		scanOpts.From, scanOpts.To = s.Scan.From, s.Scan.To
-		scan, err := patterns.ScanStore(ctx, store, scanOpts)
-		if err != nil {
-			return fmt.Errorf("%s: %w", where, err)
-		}
-		if err := writeFileAtomic(filepath.Join(out, "findings.json"), func(w io.Writer) error { return writeFindingsJSON(w, scan, regions) }); err != nil {
-			return err
-		}
-		printFindings(env.stdout, scan, regions, 10)
-		in := report.Input{Title: title, Inputs: append([]regiongraph.Source{studySource, osmSource}, store.Meta.Sources...),
-			Settings: settings, Regions: regions, Store: &store.Meta, Scan: scan, PublicationMinTrips: minPublish, Version: version}
-		paths, err := writeReport(out, s.Name, in)
-		if err != nil {
-			return err
-		}
-		fmt.Fprintln(env.stdout, report.Headline(in))
-		for _, p := range paths {
-			fmt.Fprintln(env.stdout, "  wrote", p)
-		}
-		return nil
+		return r.scan(ctx, env, store, in)
 	}
 	fmt.Fprintln(env.stdout, "3/3 compare")
-	b, a := scanOpts, scanOpts
-	if b.From, b.To, err = parsePeriod(s.Compare.Before); err != nil {
-		return fmt.Errorf("%s: [compare] before: %v", where, err)
+	return r.compare(ctx, env, store, in)
+}
+
+// dayGraphs ingests the study's trips onto the regions, whose GeoJSON has
+// the SHA-256 sum, and returns the store as the analysis reads it.
+func (r *studyRun) dayGraphs(ctx context.Context, env *environment, regions *partition.Partition, sum string) (*regiongraph.Store, error) {
+	var trips []string
+	names := map[string]string{}
+	for _, t := range r.Trips.Files {
+		trips = append(trips, r.rel(t))
+		names[r.rel(t)] = t
 	}
-	if a.From, a.To, err = parsePeriod(s.Compare.After); err != nil {
-		return fmt.Errorf("%s: [compare] after: %v", where, err)
+	graphs := filepath.Join(r.steps, "graphs.parquet")
+	if err := ingest(ctx, env, regions, sum, trips, names, r.Trips.Format, r.Trips.Options, nil, graphs); err != nil {
+		return nil, err
 	}
-	copts := patterns.DefaultCompareOptions()
-	copts.Alpha = deref(s.Compare.Alpha, copts.Alpha)
-	if copts.Focus, err = parseFocus(s.Compare.Focus); err != nil {
-		return fmt.Errorf("%s: [compare] focus: %v", where, err)
+	return readStore(graphs, r.Scan.ScanOptions)
+}
+
+// reportInput returns what the reports of both kinds of study share; the
+// inputs are the study file and the extract.
+func (r *studyRun) reportInput(store *regiongraph.Store, regions *partition.Partition) (report.Input, error) {
+	studySource, err := sourceOf(r.file)
+	if err != nil {
+		return report.Input{}, err
 	}
-	settings = append(settings, [][2]string{{"before", s.Compare.Before}, {"after", s.Compare.After},
-		{"focus", s.Compare.Focus}, {"alpha", strconv.FormatFloat(copts.Alpha, 'g', -1, 64)}}...)
+	osmSource, err := sourceOf(r.rel(r.Regions.OSM))
+	if err != nil {
+		return report.Input{}, err
+	}
+	title := r.Title
+	if title == "" {
+		title = "narrows study " + filepath.Base(r.file)
+	}
+	return report.Input{
+		Title:               title,
+		Inputs:              []regiongraph.Source{studySource, osmSource},
+		Settings:            append([][2]string{{"study file", filepath.Base(r.file)}, {"time zone", r.Trips.TimeZone}}, scanSettings(r.Scan.ScanOptions)...),
+		Regions:             regions,
+		Store:               &store.Meta,
+		PublicationMinTrips: r.Compare.MinPublish,
+		Version:             version,
+	}, nil
+}
+
+// scan scans the study's period and writes the findings and the report.
+func (r *studyRun) scan(ctx context.Context, env *environment, store *regiongraph.Store, in report.Input) error {
+	scan, err := patterns.ScanStore(ctx, store, r.Scan.ScanOptions)
+	if err != nil {
+		return fmt.Errorf("study file %s: %w", r.file, err)
+	}
+	if err := atomicfile.Write(filepath.Join(r.out, "findings.json"), func(w io.Writer) error { return writeFindingsJSON(w, scan, in.Regions) }); err != nil {
+		return err
+	}
+	printFindings(env.stdout, scan, in.Regions, 10)
+	in.Inputs = append(in.Inputs, store.Meta.Sources...)
+	in.Scan = scan
+	return writeReport(env, r.out, r.Name, in)
+}
+
+// compare compares the study's two periods and writes the report.
+func (r *studyRun) compare(ctx context.Context, env *environment, store *regiongraph.Store, in report.Input) error {
+	before, after, err := r.periods()
+	if err != nil {
+		return fmt.Errorf("study file %s: %v", r.file, err)
+	}
+	settings := append(in.Settings, [][2]string{{"before", r.Compare.Before.String()}, {"after", r.Compare.After.String()},
+		{"focus", r.Compare.Focus.String()}, {"alpha", strconv.FormatFloat(r.Compare.Alpha, 'g', -1, 64)}}...)
 	return compareAndReport(ctx, env, compareJob{
-		store: store, regions: regions, before: b, after: a, opts: copts,
-		out: filepath.Join(out, s.Name+".xlsx"), title: title, minPublish: minPublish, settings: settings,
-		extraInputs: []regiongraph.Source{studySource, osmSource},
+		store: store, regions: in.Regions, before: before, after: after, opts: r.Compare.CompareOptions,
+		out: filepath.Join(r.out, r.Name+".xlsx"), title: in.Title, minPublish: in.PublicationMinTrips, settings: settings,
+		extraInputs: in.Inputs,
 	})
 }
 
-func deref[T any](p *T, def T) T {
-	if p == nil {
-		return def
+// periods returns the scan options of the study's before and after periods.
+func (s *study) periods() (before, after patterns.ScanOptions, err error) {
+	for _, p := range []struct {
+		key    string
+		period *periodValue
+	}{{"before", &s.Compare.Before}, {"after", &s.Compare.After}} {
+		if p.period.from == "" {
+			_, _, err := parsePeriod("")
+			return before, after, fmt.Errorf("[compare] %s: %v", p.key, err)
+		}
 	}
-	return *p
+	return s.Compare.Before.apply(s.Scan.ScanOptions), s.Compare.After.apply(s.Scan.ScanOptions), nil
 }
 
 // sourceOf describes an input file for the report's provenance table.
