@@ -316,7 +316,7 @@ func unionFindings(before, after []Finding) []unionEntry {
 func findingKeys(f Finding) []EdgeKey {
 	keys := make([]EdgeKey, len(f.Edges))
 	for i, e := range f.Edges {
-		keys[i] = EdgeKey{e.From, e.To}
+		keys[i] = EdgeKey{From: e.From, To: e.To}
 	}
 	return keys
 }
@@ -374,7 +374,7 @@ func edgeDayValues(store *regiongraph.Store, s *Scan, keys []EdgeKey) map[EdgeKe
 		if e.Window != s.Window || e.Trips <= 0 {
 			continue
 		}
-		k := EdgeKey{e.From, e.To}
+		k := EdgeKey{From: e.From, To: e.To}
 		if !wanted[k] {
 			continue
 		}

@@ -95,7 +95,7 @@ func syntheticStore(r *rand.Rand, dayList []string, plants func(day int) []plant
 		planted := plants(d)
 		isPlanted := map[EdgeKey]bool{}
 		for _, p := range planted {
-			isPlanted[EdgeKey{p.From, p.To}] = true
+			isPlanted[EdgeKey{From: p.From, To: p.To}] = true
 		}
 		all := append([]plant{}, planted...)
 		for id := 1; id <= gridCols*gridRows; id++ {
@@ -103,7 +103,7 @@ func syntheticStore(r *rand.Rand, dayList []string, plants func(day int) []plant
 				if (nb == id+1 && (id-1)%gridCols == gridCols-1) || nb > gridCols*gridRows {
 					continue
 				}
-				for _, k := range []EdgeKey{{id, nb}, {nb, id}} {
+				for _, k := range []EdgeKey{{From: id, To: nb}, {From: nb, To: id}} {
 					if !isPlanted[k] {
 						all = append(all, plant{From: k.From, To: k.To, Trips: 40, SpeedKMH: 36, Detour: 1.15})
 					}
@@ -437,7 +437,7 @@ func TestDecide(t *testing.T) {
 }
 
 func TestDailySeriesAndRecurrence(t *testing.T) {
-	a, b := EdgeKey{1, 2}, EdgeKey{2, 3}
+	a, b := EdgeKey{From: 1, To: 2}, EdgeKey{From: 2, To: 3}
 	values := map[EdgeKey]map[int]edgeValue{
 		a: {0: {trips: 10, speed: 5, detour: 1.5}, 1: {trips: 2, speed: 8, detour: 1.2}},
 		b: {0: {trips: 30, speed: 9, detour: 1.1}, 2: {trips: 4, speed: 7, detour: 1.4}},
@@ -454,11 +454,11 @@ func TestDailySeriesAndRecurrence(t *testing.T) {
 	if !closeSlices(speed, []float64{8, 7}) {
 		t.Errorf("with at least 3 trips a day: %v, want [8 7]", speed)
 	}
-	s := &Scan{Days: dayList, DayCandidates: [][]EdgeKey{{a, b}, {a}, {{0, 9}, b}, nil}}
+	s := &Scan{Days: dayList, DayCandidates: [][]EdgeKey{{a, b}, {a}, {{From: 0, To: 9}, b}, nil}}
 	for _, tc := range []struct {
 		keys []EdgeKey
 		want int
-	}{{[]EdgeKey{a, b}, 1}, {[]EdgeKey{a}, 2}, {[]EdgeKey{b}, 2}, {[]EdgeKey{{5, 5}}, 0}, {nil, 0}} {
+	}{{[]EdgeKey{a, b}, 1}, {[]EdgeKey{a}, 2}, {[]EdgeKey{b}, 2}, {[]EdgeKey{{From: 5, To: 5}}, 0}, {nil, 0}} {
 		if got := recurrenceDays(s, tc.keys); got != tc.want {
 			t.Errorf("recurrence of %v: %d, want %d", tc.keys, got, tc.want)
 		}
@@ -486,9 +486,9 @@ func TestEdgeDayValuesReadsOnlyTheScanWindowAndDays(t *testing.T) {
 		{Day: "2026-01-07", Window: "am", From: 2, To: 1, Trips: 3, SpeedMedian: 6, DetourMedian: 1.2},
 	}}
 	s := &Scan{Window: "am", Days: []string{"2026-01-05", "2026-01-06"}}
-	got := edgeDayValues(store, s, []EdgeKey{{1, 2}})
+	got := edgeDayValues(store, s, []EdgeKey{{From: 1, To: 2}})
 	want := map[int]edgeValue{0: {trips: 5, speed: 4, detour: 1.4}}
-	if len(got) != 1 || len(got[EdgeKey{1, 2}]) != 1 || got[EdgeKey{1, 2}][0] != want[0] {
+	if len(got) != 1 || len(got[EdgeKey{From: 1, To: 2}]) != 1 || got[EdgeKey{From: 1, To: 2}][0] != want[0] {
 		t.Errorf("values %v, want only the am value of 2026-01-05: %v", got, want)
 	}
 }

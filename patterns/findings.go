@@ -5,6 +5,8 @@ import (
 	"fmt"
 	"slices"
 	"strings"
+
+	"narrows/patterns/groups"
 )
 
 // findings turns the mined groups of scan into ranked findings.
@@ -23,10 +25,10 @@ import (
 // least as much as any group inside it on the days it recurs, but recurs on
 // fewer days; ranking by the cost on recurrence days alone would put every
 // rarely seen superset above the core pair that recurs every day.
-func findings(scan *Scan, groups []Group) []Finding {
-	out := make([]Finding, 0, len(groups))
+func findings(scan *Scan, found []groups.Group) []Finding {
+	out := make([]Finding, 0, len(found))
 	ref := scan.Options.ReferenceSpeed
-	for _, g := range groups {
+	for _, g := range found {
 		f := Finding{
 			ID:    groupID(g.Edges),
 			Days:  make([]string, len(g.Days)),

@@ -9,6 +9,7 @@ import (
 	"strings"
 	"time"
 
+	"narrows/patterns/groups"
 	"narrows/regiongraph"
 	"narrows/skyline"
 )
@@ -99,7 +100,7 @@ func ScanStore(ctx context.Context, store *regiongraph.Store, opts ScanOptions) 
 		keys := make([]EdgeKey, len(res.Indices))
 		candidate[d] = make([]bool, len(graph))
 		for j, i := range res.Indices {
-			keys[j] = EdgeKey{graph[i].From, graph[i].To}
+			keys[j] = EdgeKey{From: graph[i].From, To: graph[i].To}
 			candidate[d][i] = true
 			scan.EdgeDaily[keys[j]] = nil
 		}
@@ -109,7 +110,7 @@ func ScanStore(ctx context.Context, store *regiongraph.Store, opts ScanOptions) 
 	for d, graph := range graphs {
 		for i := range graph {
 			e := &graph[i]
-			key := EdgeKey{e.From, e.To}
+			key := EdgeKey{From: e.From, To: e.To}
 			daily, ok := scan.EdgeDaily[key]
 			if !ok {
 				continue
@@ -127,7 +128,7 @@ func ScanStore(ctx context.Context, store *regiongraph.Store, opts ScanOptions) 
 		}
 	}
 
-	groups, err := Mine(ctx, scan.DayCandidates, MineOptions{
+	found, err := groups.Mine(ctx, scan.DayCandidates, groups.Options{
 		MinSupport:  MinSupport(opts.Support, len(days)),
 		MaxEdges:    opts.MaxGroupEdges,
 		MaximalOnly: opts.MaximalOnly,
@@ -135,7 +136,7 @@ func ScanStore(ctx context.Context, store *regiongraph.Store, opts ScanOptions) 
 	if err != nil {
 		return nil, err
 	}
-	scan.Findings = findings(scan, groups)
+	scan.Findings = findings(scan, found)
 	return scan, nil
 }
 
@@ -326,5 +327,5 @@ func dayGraphs(edges []regiongraph.Edge, window string, dayIndex map[string]int)
 }
 
 func compareEdgePairs(a, b regiongraph.Edge) int {
-	return compareEdgeKeys(EdgeKey{a.From, a.To}, EdgeKey{b.From, b.To})
+	return groups.CompareEdges(EdgeKey{From: a.From, To: a.To}, EdgeKey{From: b.From, To: b.To})
 }

@@ -10,6 +10,7 @@ import (
 	"testing"
 	"time"
 
+	"narrows/patterns/groups"
 	"narrows/regiongraph"
 )
 
@@ -72,7 +73,7 @@ func scanTestStore(seed uint64, side, nDays, perDay int, plants []scanPlant) *re
 			if x < 0 || y < 0 || x >= side || y >= side {
 				continue
 			}
-			key := EdgeKey{from, y*side + x}
+			key := EdgeKey{From: from, To: y*side + x}
 			if key.From == key.To || seen[key] || planted[key] {
 				continue
 			}
@@ -84,7 +85,7 @@ func scanTestStore(seed uint64, side, nDays, perDay int, plants []scanPlant) *re
 		slices.SortFunc(edges, compareEdgePairs)
 		store.Edges = append(store.Edges, edges...)
 		// Every day has data in the other window, so no day is missing.
-		store.Edges = append(store.Edges, scanEdge(day, "pm", EdgeKey{0, 1}, 5, 1000, 1.2, 10))
+		store.Edges = append(store.Edges, scanEdge(day, "pm", EdgeKey{From: 0, To: 1}, 5, 1000, 1.2, 10))
 	}
 	return store
 }
@@ -93,9 +94,9 @@ func scanTestStore(seed uint64, side, nDays, perDay int, plants []scanPlant) *re
 // roundabout edges on 80 % of days, and B, a single edge, slower still but
 // with fewer trips and shorter trips, on half of the days.
 var (
-	scanPlantA = scanPlant{edges: []EdgeKey{{10, 11}, {11, 12}}, trips: 80, straight: 2000, detour: 2.2, speed: 3,
+	scanPlantA = scanPlant{edges: []EdgeKey{{From: 10, To: 11}, {From: 11, To: 12}}, trips: 80, straight: 2000, detour: 2.2, speed: 3,
 		present: func(d int) bool { return d%5 != 4 }}
-	scanPlantB = scanPlant{edges: []EdgeKey{{300, 301}}, trips: 40, straight: 1000, detour: 1.6, speed: 2.5,
+	scanPlantB = scanPlant{edges: []EdgeKey{{From: 300, To: 301}}, trips: 40, straight: 1000, detour: 1.6, speed: 2.5,
 		present: func(d int) bool { return d%2 == 0 }}
 )
 
@@ -159,8 +160,8 @@ func TestScanStorePlanted(t *testing.T) {
 		}
 	}
 	for d, keys := range scan.DayCandidates {
-		if len(keys) != scan.CandidatesPerDay[d] || !slices.IsSortedFunc(keys, compareEdgeKeys) {
-			t.Errorf("day %d: %d candidates, CandidatesPerDay %d, sorted %v", d, len(keys), scan.CandidatesPerDay[d], slices.IsSortedFunc(keys, compareEdgeKeys))
+		if len(keys) != scan.CandidatesPerDay[d] || !slices.IsSortedFunc(keys, groups.CompareEdges) {
+			t.Errorf("day %d: %d candidates, CandidatesPerDay %d, sorted %v", d, len(keys), scan.CandidatesPerDay[d], slices.IsSortedFunc(keys, groups.CompareEdges))
 		}
 	}
 	for key, daily := range scan.EdgeDaily {
@@ -327,19 +328,6 @@ func TestMinSupport(t *testing.T) {
 		if got := MinSupport(c.share, c.days); got != c.want {
 			t.Errorf("MinSupport(%v, %d) = %d, want %d", c.share, c.days, got, c.want)
 		}
-	}
-}
-
-func TestMaximalOnly(t *testing.T) {
-	a, b, c := EdgeKey{1, 2}, EdgeKey{2, 3}, EdgeKey{7, 8}
-	days := [][]EdgeKey{{a, b, c}, {a, b}, {a}, {c}}
-	got, err := Mine(context.Background(), days, MineOptions{MinSupport: 2, MaximalOnly: true})
-	if err != nil {
-		t.Fatal(err)
-	}
-	want := fmt.Sprint([]Group{{[]EdgeKey{a, b}, []int{0, 1}}, {[]EdgeKey{c}, []int{0, 3}}})
-	if fmt.Sprint(got) != want {
-		t.Errorf("Mine(MaximalOnly) = %v, want %v", got, want)
 	}
 }
 

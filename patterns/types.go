@@ -1,9 +1,13 @@
 package patterns
 
-import "narrows/skyline"
+import (
+	"narrows/patterns/groups"
+	"narrows/skyline"
+)
 
-// EdgeKey is a directed region pair.
-type EdgeKey struct{ From, To int }
+// EdgeKey is a directed region pair, the edge of the groups the scan
+// mines.
+type EdgeKey = groups.Edge
 
 // DaySelector filters the days of a period.
 type DaySelector string
@@ -26,7 +30,7 @@ type ScanOptions struct {
 	Support float64
 	// MaxGroupEdges caps the number of edges in a group (default 6); a
 	// group of edges that always recur together is reported whole even
-	// when larger (see MineOptions.MaxEdges).
+	// when larger (see groups.Options.MaxEdges).
 	MaxGroupEdges int
 	// MaximalOnly keeps only the groups not contained in another reported
 	// group (default false: every closed group, nested ones included).
