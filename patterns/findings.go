@@ -7,6 +7,7 @@ import (
 	"strings"
 
 	"narrows/patterns/groups"
+	"narrows/patterns/stats"
 )
 
 // findings turns the mined groups of scan into ranked findings.
@@ -67,11 +68,11 @@ func findings(scan *Scan, found []groups.Group) []Finding {
 			fe := FindingEdge{
 				From:             key.From,
 				To:               key.To,
-				TripsMedian:      median(trips),
-				SpeedMedian:      median(speed),
-				DetourMedian:     median(detour),
-				ExtraKMPerDay:    median(km),
-				ExtraHoursPerDay: median(hours),
+				TripsMedian:      stats.Median(trips),
+				SpeedMedian:      stats.Median(speed),
+				DetourMedian:     stats.Median(detour),
+				ExtraKMPerDay:    stats.Median(km),
+				ExtraHoursPerDay: stats.Median(hours),
 				Daily:            slices.Clone(daily),
 			}
 			f.ExtraKMPerDay += fe.ExtraKMPerDay
@@ -105,18 +106,4 @@ func groupID(edges []EdgeKey) string {
 		fmt.Fprintf(&b, "%d>%d", e.From, e.To)
 	}
 	return b.String()
-}
-
-// median returns the median of values (the mean of the two middle values
-// for an even count), or 0 for none. It reorders values.
-func median(values []float64) float64 {
-	n := len(values)
-	if n == 0 {
-		return 0
-	}
-	slices.Sort(values)
-	if n%2 == 1 {
-		return values[n/2]
-	}
-	return (values[n/2-1] + values[n/2]) / 2
 }

@@ -71,23 +71,6 @@ func TestFindingsCostsAndRanking(t *testing.T) {
 	}
 }
 
-func TestMedian(t *testing.T) {
-	cases := []struct {
-		in   []float64
-		want float64
-	}{
-		{nil, 0},
-		{[]float64{3}, 3},
-		{[]float64{5, 1, 3}, 3},
-		{[]float64{4, 1, 3, 2}, 2.5},
-	}
-	for _, c := range cases {
-		if got := median(c.in); got != c.want {
-			t.Errorf("median(%v) = %v, want %v", c.in, got, c.want)
-		}
-	}
-}
-
 // Ranking spreads a finding's cost over the period: a group that costs
 // twice as much on the days it recurs but recurs on a third of the days
 // ranks below the pair that recurs on most days.
