@@ -84,8 +84,9 @@ func scanTestStore(seed uint64, side, nDays, perDay int, plants []scanPlant) *re
 		}
 		slices.SortFunc(edges, compareEdgePairs)
 		store.Edges = append(store.Edges, edges...)
-		// Every day has data in the other window, so no day is missing.
-		store.Edges = append(store.Edges, scanEdge(day, "pm", EdgeKey{From: 0, To: 1}, 5, 1000, 1.2, 10))
+		// Every day has data in the other window, so no day is missing
+		// (with enough trips not to be left out by the scan's minimum).
+		store.Edges = append(store.Edges, scanEdge(day, "pm", EdgeKey{From: 0, To: 1}, 20, 1000, 1.2, 10))
 	}
 	return store
 }
@@ -241,7 +242,7 @@ func TestScanStoreDaySelection(t *testing.T) {
 func TestScanStoreErrors(t *testing.T) {
 	store := scanTestStore(3, 10, 5, 50, nil)
 	bad := *store
-	bad.Edges = append([]regiongraph.Edge{{Day: "2025-1-6", Window: "am", From: 1, To: 2, Trips: 3}}, store.Edges...)
+	bad.Edges = append([]regiongraph.Edge{{Day: "2025-1-6", Window: "am", From: 1, To: 2, Trips: 30}}, store.Edges...)
 	dup := *store
 	dup.Edges = append(slices.Clone(store.Edges), store.Edges[0]) // out of order too
 	cases := []struct {

@@ -53,8 +53,11 @@ type edgeValue struct {
 }
 
 // edgeDayValues reads from the store the values of the given edges on the
-// analysed days of s, in its time window: result[key][dayIndex].
+// analysed days of s, in its time window: result[key][dayIndex]. Like the
+// scan, it leaves out the edges with fewer trips than the scan's
+// Skyline.MinTrips.
 func edgeDayValues(store *regiongraph.Store, s *Scan, keys []EdgeKey) map[EdgeKey]map[int]edgeValue {
+	minTrips := s.Options.Skyline.MinTrips
 	dayIndex := make(map[string]int, len(s.Days))
 	for i, d := range s.Days {
 		dayIndex[d] = i
@@ -65,7 +68,7 @@ func edgeDayValues(store *regiongraph.Store, s *Scan, keys []EdgeKey) map[EdgeKe
 	}
 	out := make(map[EdgeKey]map[int]edgeValue, len(keys))
 	for _, e := range store.Edges {
-		if e.Window != s.Window || e.Trips <= 0 {
+		if e.Window != s.Window || e.Trips <= 0 || e.Trips < minTrips {
 			continue
 		}
 		k := EdgeKey{From: e.From, To: e.To}
