@@ -2,7 +2,6 @@ package patterns
 
 import (
 	"context"
-	"fmt"
 	"math"
 	"math/rand/v2"
 	"slices"
@@ -330,39 +329,6 @@ func TestMinSupport(t *testing.T) {
 			t.Errorf("MinSupport(%v, %d) = %d, want %d", c.share, c.days, got, c.want)
 		}
 	}
-}
-
-func ExampleScanStore() {
-	// Ten mornings in a fictional town. The pair 10>11>12 across the river
-	// jams on eight of them; the other pairs are busy but quick or direct.
-	store := &regiongraph.Store{Meta: regiongraph.Meta{
-		Windows: []regiongraph.Window{{Name: "am", StartMinute: 420, EndMinute: 600}},
-	}}
-	edge := func(day string, from, to, trips int, speed, detour float64) regiongraph.Edge {
-		straight := 2000 * float64(trips) // 2 km a trip
-		return regiongraph.Edge{Day: day, Window: "am", From: from, To: to, Trips: trips,
-			SpeedMedian: speed, DetourMedian: detour,
-			StraightSum: straight, DistanceSum: straight * detour, DurationSum: straight * detour / speed}
-	}
-	for d := 1; d <= 10; d++ {
-		day := fmt.Sprintf("2025-03-%02d", d)
-		if d%5 != 0 {
-			store.Edges = append(store.Edges, edge(day, 10, 11, 80, 3, 2.2), edge(day, 11, 12, 60, 2.8, 2.0))
-		}
-		store.Edges = append(store.Edges,
-			edge(day, 12, 20, 150, 11, 1.2), edge(day, 20, 21, 90, 12, 1.4), edge(day, 21, 22, 40, 9, 1.1))
-	}
-	scan, err := ScanStore(context.Background(), store, DefaultScanOptions())
-	if err != nil {
-		fmt.Println(err)
-		return
-	}
-	for _, f := range scan.Findings {
-		fmt.Printf("%d. %s on %d of %d days: %.0f extra veh-km, %.1f extra veh-h a day\n",
-			f.Rank, f.ID, len(f.Days), len(scan.Days), f.ExtraKMPerDay, f.ExtraHoursPerDay)
-	}
-	// Output:
-	// 1. 10>11+11>12 on 8 of 10 days: 312 extra veh-km, 47.1 extra veh-h a day
 }
 
 // BenchmarkScanStoreYear scans a year of one window over a 45 x 45 grid
