@@ -7,6 +7,7 @@ import (
 	"narrows/regiongraph"
 )
 
+// findingKeys lists the edges of f, in its order (sorted by From, To).
 func findingKeys(f Finding) []EdgeKey {
 	keys := make([]EdgeKey, len(f.Edges))
 	for i, e := range f.Edges {
