@@ -5,6 +5,9 @@ import (
 	"fmt"
 	"slices"
 	"strings"
+
+	"narrows/patterns/groups"
+	"narrows/patterns/stats"
 )
 
 // findings turns the mined groups of scan into ranked findings.
@@ -23,10 +26,10 @@ import (
 // least as much as any group inside it on the days it recurs, but recurs on
 // fewer days; ranking by the cost on recurrence days alone would put every
 // rarely seen superset above the core pair that recurs every day.
-func findings(scan *Scan, groups []Group) []Finding {
-	out := make([]Finding, 0, len(groups))
+func findings(scan *Scan, found []groups.Group) []Finding {
+	out := make([]Finding, 0, len(found))
 	ref := scan.Options.ReferenceSpeed
-	for _, g := range groups {
+	for _, g := range found {
 		f := Finding{
 			ID:    groupID(g.Edges),
 			Days:  make([]string, len(g.Days)),
@@ -65,11 +68,11 @@ func findings(scan *Scan, groups []Group) []Finding {
 			fe := FindingEdge{
 				From:             key.From,
 				To:               key.To,
-				TripsMedian:      median(trips),
-				SpeedMedian:      median(speed),
-				DetourMedian:     median(detour),
-				ExtraKMPerDay:    median(km),
-				ExtraHoursPerDay: median(hours),
+				TripsMedian:      stats.Median(trips),
+				SpeedMedian:      stats.Median(speed),
+				DetourMedian:     stats.Median(detour),
+				ExtraKMPerDay:    stats.Median(km),
+				ExtraHoursPerDay: stats.Median(hours),
 				Daily:            slices.Clone(daily),
 			}
 			f.ExtraKMPerDay += fe.ExtraKMPerDay
@@ -103,18 +106,4 @@ func groupID(edges []EdgeKey) string {
 		fmt.Fprintf(&b, "%d>%d", e.From, e.To)
 	}
 	return b.String()
-}
-
-// median returns the median of values (the mean of the two middle values
-// for an even count), or 0 for none. It reorders values.
-func median(values []float64) float64 {
-	n := len(values)
-	if n == 0 {
-		return 0
-	}
-	slices.Sort(values)
-	if n%2 == 1 {
-		return values[n/2]
-	}
-	return (values[n/2-1] + values[n/2]) / 2
 }

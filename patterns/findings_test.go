@@ -3,6 +3,8 @@ package patterns
 import (
 	"math"
 	"testing"
+
+	"narrows/patterns/groups"
 )
 
 func TestFindingsCostsAndRanking(t *testing.T) {
@@ -11,7 +13,7 @@ func TestFindingsCostsAndRanking(t *testing.T) {
 		return DailyValue{Day: d, Trips: trips, Speed: distance / duration, Detour: distance / straight, Candidate: true,
 			DistanceSum: distance, StraightSum: straight, DurationSum: duration}
 	}
-	a, b, c, fast := EdgeKey{1, 2}, EdgeKey{2, 3}, EdgeKey{5, 6}, EdgeKey{7, 8}
+	a, b, c, fast := EdgeKey{From: 1, To: 2}, EdgeKey{From: 2, To: 3}, EdgeKey{From: 5, To: 6}, EdgeKey{From: 7, To: 8}
 	scan := &Scan{
 		Options: ScanOptions{ReferenceSpeed: ref},
 		Days:    []string{"2025-03-03", "2025-03-04", "2025-03-05", "2025-03-06"},
@@ -31,13 +33,13 @@ func TestFindingsCostsAndRanking(t *testing.T) {
 			fast: {day("2025-03-03", 5, 900, 1000, 50), day("2025-03-04", 5, 900, 1000, 50)},
 		},
 	}
-	groups := []Group{
+	found := []groups.Group{
 		{Edges: []EdgeKey{fast}, Days: []int{0, 1}},
 		{Edges: []EdgeKey{b}, Days: []int{0, 1, 3}},
 		{Edges: []EdgeKey{a, b}, Days: []int{0, 1, 3}},
 		{Edges: []EdgeKey{c}, Days: []int{0, 1, 3}},
 	}
-	got := findings(scan, groups)
+	got := findings(scan, found)
 	want := []struct {
 		id        string
 		km, hours float64
@@ -69,23 +71,6 @@ func TestFindingsCostsAndRanking(t *testing.T) {
 	}
 }
 
-func TestMedian(t *testing.T) {
-	cases := []struct {
-		in   []float64
-		want float64
-	}{
-		{nil, 0},
-		{[]float64{3}, 3},
-		{[]float64{5, 1, 3}, 3},
-		{[]float64{4, 1, 3, 2}, 2.5},
-	}
-	for _, c := range cases {
-		if got := median(c.in); got != c.want {
-			t.Errorf("median(%v) = %v, want %v", c.in, got, c.want)
-		}
-	}
-}
-
 // Ranking spreads a finding's cost over the period: a group that costs
 // twice as much on the days it recurs but recurs on a third of the days
 // ranks below the pair that recurs on most days.
@@ -94,14 +79,14 @@ func TestFindingsRankByCostOverThePeriod(t *testing.T) {
 		return DailyValue{Day: d, Trips: 10, Speed: 5, Detour: 2, Candidate: true,
 			DistanceSum: 2000, StraightSum: 1000, DurationSum: 3600 + 100}
 	}
-	core, extra := EdgeKey{1, 2}, EdgeKey{2, 3}
+	core, extra := EdgeKey{From: 1, To: 2}, EdgeKey{From: 2, To: 3}
 	days := []string{"2025-03-03", "2025-03-04", "2025-03-05", "2025-03-06"}
 	scan := &Scan{
 		Options:   ScanOptions{ReferenceSpeed: 10},
 		Days:      days,
 		EdgeDaily: map[EdgeKey][]DailyValue{core: {day(days[0]), day(days[1]), day(days[2])}, extra: {day(days[0])}},
 	}
-	got := findings(scan, []Group{
+	got := findings(scan, []groups.Group{
 		{Edges: []EdgeKey{core, extra}, Days: []int{0}}, // 2 h on 1 of 4 days
 		{Edges: []EdgeKey{core}, Days: []int{0, 1, 2}},  // 1 h on 3 of 4 days
 	})

@@ -9,6 +9,7 @@ import (
 	"strings"
 	"time"
 
+	"narrows/patterns/groups"
 	"narrows/regiongraph"
 	"narrows/skyline"
 )
@@ -42,6 +43,11 @@ func DefaultScanOptions() ScanOptions {
 // connected groups of candidates that recur on at least opts.Support of the
 // analysed days, and turns the closed groups into ranked findings.
 //
+// Edges with fewer than opts.Skyline.MinTrips trips are left out first, as
+// regiongraph.ReadOptions.MinTrips leaves them out when reading a store: a
+// store held in memory with every edge gives the same scan as the same
+// store read with that minimum.
+//
 // The analysed days are the calendar days from opts.From to opts.To
 // (inclusive; empty means the store's first or last day) on which the store
 // has edges in any window, that pass opts.Days (by the weekday of the date)
@@ -60,12 +66,13 @@ func ScanStore(ctx context.Context, store *regiongraph.Store, opts ScanOptions) 
 	if err := checkScanOptions(&opts); err != nil {
 		return nil, err
 	}
-	window, err := resolveWindow(store, opts.Window)
+	edges := keptEdges(store.Edges, opts.Skyline.MinTrips)
+	window, err := resolveWindow(store.Meta.Windows, edges, opts.Window)
 	if err != nil {
 		return nil, err
 	}
 	opts.Window = window
-	storeDays, err := distinctDays(store.Edges)
+	storeDays, err := distinctDays(edges)
 	if err != nil {
 		return nil, err
 	}
@@ -77,7 +84,7 @@ func ScanStore(ctx context.Context, store *regiongraph.Store, opts ScanOptions) 
 	for i, d := range days {
 		dayIndex[d] = i
 	}
-	graphs, err := dayGraphs(store.Edges, window, dayIndex)
+	graphs, err := dayGraphs(edges, window, dayIndex)
 	if err != nil {
 		return nil, err
 	}
@@ -90,16 +97,35 @@ func ScanStore(ctx context.Context, store *regiongraph.Store, opts ScanOptions) 
 		DayCandidates:    make([][]EdgeKey, len(days)),
 		EdgeDaily:        make(map[EdgeKey][]DailyValue),
 	}
-	candidate := make([][]bool, len(days)) // per day, per edge of its graph
+	if err := findCandidates(ctx, scan, graphs); err != nil {
+		return nil, err
+	}
+	found, err := groups.Mine(ctx, scan.DayCandidates, groups.Options{
+		MinSupport:  MinSupport(opts.Support, len(days)),
+		MaxEdges:    opts.MaxGroupEdges,
+		MaximalOnly: opts.MaximalOnly,
+	})
+	if err != nil {
+		return nil, err
+	}
+	scan.Findings = findings(scan, found)
+	return scan, nil
+}
+
+// findCandidates finds the skyline candidates of each day's graph and
+// records them in scan, with the daily values of every edge that was a
+// candidate on at least one day.
+func findCandidates(ctx context.Context, scan *Scan, graphs [][]regiongraph.Edge) error {
+	candidate := make([][]bool, len(graphs)) // per day, per edge of its graph
 	for d, graph := range graphs {
 		if err := ctx.Err(); err != nil {
-			return nil, err
+			return err
 		}
-		res := skyline.Candidates(graph, opts.Skyline)
+		res := skyline.Candidates(graph, scan.Options.Skyline)
 		keys := make([]EdgeKey, len(res.Indices))
 		candidate[d] = make([]bool, len(graph))
 		for j, i := range res.Indices {
-			keys[j] = EdgeKey{graph[i].From, graph[i].To}
+			keys[j] = EdgeKey{From: graph[i].From, To: graph[i].To}
 			candidate[d][i] = true
 			scan.EdgeDaily[keys[j]] = nil
 		}
@@ -109,13 +135,13 @@ func ScanStore(ctx context.Context, store *regiongraph.Store, opts ScanOptions) 
 	for d, graph := range graphs {
 		for i := range graph {
 			e := &graph[i]
-			key := EdgeKey{e.From, e.To}
+			key := EdgeKey{From: e.From, To: e.To}
 			daily, ok := scan.EdgeDaily[key]
 			if !ok {
 				continue
 			}
 			scan.EdgeDaily[key] = append(daily, DailyValue{
-				Day:         days[d],
+				Day:         scan.Days[d],
 				Trips:       e.Trips,
 				Speed:       e.SpeedMedian,
 				Detour:      e.DetourMedian,
@@ -126,17 +152,27 @@ func ScanStore(ctx context.Context, store *regiongraph.Store, opts ScanOptions) 
 			})
 		}
 	}
+	return nil
+}
 
-	groups, err := Mine(ctx, scan.DayCandidates, MineOptions{
-		MinSupport:  MinSupport(opts.Support, len(days)),
-		MaxEdges:    opts.MaxGroupEdges,
-		MaximalOnly: opts.MaximalOnly,
-	})
-	if err != nil {
-		return nil, err
+// keptEdges returns the edges with at least minTrips trips (every edge when
+// minTrips is 0 or less), the rule of regiongraph.ReadOptions.MinTrips. A
+// store read with that minimum has no edge to drop and is used as it is.
+func keptEdges(edges []regiongraph.Edge, minTrips int) []regiongraph.Edge {
+	if minTrips <= 0 {
+		return edges
 	}
-	scan.Findings = findings(scan, groups)
-	return scan, nil
+	first := slices.IndexFunc(edges, func(e regiongraph.Edge) bool { return e.Trips < minTrips })
+	if first < 0 {
+		return edges
+	}
+	kept := slices.Clone(edges[:first])
+	for _, e := range edges[first+1:] {
+		if e.Trips >= minTrips {
+			kept = append(kept, e)
+		}
+	}
+	return kept
 }
 
 // MinSupport returns the number of days a group must recur on out of
@@ -169,16 +205,16 @@ func checkScanOptions(opts *ScanOptions) error {
 
 // resolveWindow returns the window to scan: name, or the store's first
 // window when name is empty. A store whose Meta lists no windows offers the
-// window names of its edges, in sorted order.
-func resolveWindow(store *regiongraph.Store, name string) (string, error) {
+// window names of its (kept) edges, in sorted order.
+func resolveWindow(windows []regiongraph.Window, edges []regiongraph.Edge, name string) (string, error) {
 	var names []string
-	for _, w := range store.Meta.Windows {
+	for _, w := range windows {
 		names = append(names, w.Name)
 	}
 	if len(names) == 0 {
 		seen := map[string]bool{}
-		for i := range store.Edges {
-			if w := store.Edges[i].Window; !seen[w] {
+		for i := range edges {
+			if w := edges[i].Window; !seen[w] {
 				seen[w] = true
 				names = append(names, w)
 			}
@@ -326,5 +362,5 @@ func dayGraphs(edges []regiongraph.Edge, window string, dayIndex map[string]int)
 }
 
 func compareEdgePairs(a, b regiongraph.Edge) int {
-	return compareEdgeKeys(EdgeKey{a.From, a.To}, EdgeKey{b.From, b.To})
+	return groups.CompareEdges(EdgeKey{From: a.From, To: a.To}, EdgeKey{From: b.From, To: b.To})
 }

@@ -2,7 +2,6 @@ package patterns
 
 import (
 	"context"
-	"fmt"
 	"math"
 	"math/rand/v2"
 	"slices"
@@ -10,6 +9,7 @@ import (
 	"testing"
 	"time"
 
+	"narrows/patterns/groups"
 	"narrows/regiongraph"
 )
 
@@ -72,7 +72,7 @@ func scanTestStore(seed uint64, side, nDays, perDay int, plants []scanPlant) *re
 			if x < 0 || y < 0 || x >= side || y >= side {
 				continue
 			}
-			key := EdgeKey{from, y*side + x}
+			key := EdgeKey{From: from, To: y*side + x}
 			if key.From == key.To || seen[key] || planted[key] {
 				continue
 			}
@@ -83,8 +83,9 @@ func scanTestStore(seed uint64, side, nDays, perDay int, plants []scanPlant) *re
 		}
 		slices.SortFunc(edges, compareEdgePairs)
 		store.Edges = append(store.Edges, edges...)
-		// Every day has data in the other window, so no day is missing.
-		store.Edges = append(store.Edges, scanEdge(day, "pm", EdgeKey{0, 1}, 5, 1000, 1.2, 10))
+		// Every day has data in the other window, so no day is missing
+		// (with enough trips not to be left out by the scan's minimum).
+		store.Edges = append(store.Edges, scanEdge(day, "pm", EdgeKey{From: 0, To: 1}, 20, 1000, 1.2, 10))
 	}
 	return store
 }
@@ -93,9 +94,9 @@ func scanTestStore(seed uint64, side, nDays, perDay int, plants []scanPlant) *re
 // roundabout edges on 80 % of days, and B, a single edge, slower still but
 // with fewer trips and shorter trips, on half of the days.
 var (
-	scanPlantA = scanPlant{edges: []EdgeKey{{10, 11}, {11, 12}}, trips: 80, straight: 2000, detour: 2.2, speed: 3,
+	scanPlantA = scanPlant{edges: []EdgeKey{{From: 10, To: 11}, {From: 11, To: 12}}, trips: 80, straight: 2000, detour: 2.2, speed: 3,
 		present: func(d int) bool { return d%5 != 4 }}
-	scanPlantB = scanPlant{edges: []EdgeKey{{300, 301}}, trips: 40, straight: 1000, detour: 1.6, speed: 2.5,
+	scanPlantB = scanPlant{edges: []EdgeKey{{From: 300, To: 301}}, trips: 40, straight: 1000, detour: 1.6, speed: 2.5,
 		present: func(d int) bool { return d%2 == 0 }}
 )
 
@@ -159,8 +160,8 @@ func TestScanStorePlanted(t *testing.T) {
 		}
 	}
 	for d, keys := range scan.DayCandidates {
-		if len(keys) != scan.CandidatesPerDay[d] || !slices.IsSortedFunc(keys, compareEdgeKeys) {
-			t.Errorf("day %d: %d candidates, CandidatesPerDay %d, sorted %v", d, len(keys), scan.CandidatesPerDay[d], slices.IsSortedFunc(keys, compareEdgeKeys))
+		if len(keys) != scan.CandidatesPerDay[d] || !slices.IsSortedFunc(keys, groups.CompareEdges) {
+			t.Errorf("day %d: %d candidates, CandidatesPerDay %d, sorted %v", d, len(keys), scan.CandidatesPerDay[d], slices.IsSortedFunc(keys, groups.CompareEdges))
 		}
 	}
 	for key, daily := range scan.EdgeDaily {
@@ -240,7 +241,7 @@ func TestScanStoreDaySelection(t *testing.T) {
 func TestScanStoreErrors(t *testing.T) {
 	store := scanTestStore(3, 10, 5, 50, nil)
 	bad := *store
-	bad.Edges = append([]regiongraph.Edge{{Day: "2025-1-6", Window: "am", From: 1, To: 2, Trips: 3}}, store.Edges...)
+	bad.Edges = append([]regiongraph.Edge{{Day: "2025-1-6", Window: "am", From: 1, To: 2, Trips: 30}}, store.Edges...)
 	dup := *store
 	dup.Edges = append(slices.Clone(store.Edges), store.Edges[0]) // out of order too
 	cases := []struct {
@@ -328,52 +329,6 @@ func TestMinSupport(t *testing.T) {
 			t.Errorf("MinSupport(%v, %d) = %d, want %d", c.share, c.days, got, c.want)
 		}
 	}
-}
-
-func TestMaximalOnly(t *testing.T) {
-	a, b, c := EdgeKey{1, 2}, EdgeKey{2, 3}, EdgeKey{7, 8}
-	days := [][]EdgeKey{{a, b, c}, {a, b}, {a}, {c}}
-	got, err := Mine(context.Background(), days, MineOptions{MinSupport: 2, MaximalOnly: true})
-	if err != nil {
-		t.Fatal(err)
-	}
-	want := fmt.Sprint([]Group{{[]EdgeKey{a, b}, []int{0, 1}}, {[]EdgeKey{c}, []int{0, 3}}})
-	if fmt.Sprint(got) != want {
-		t.Errorf("Mine(MaximalOnly) = %v, want %v", got, want)
-	}
-}
-
-func ExampleScanStore() {
-	// Ten mornings in a fictional town. The pair 10>11>12 across the river
-	// jams on eight of them; the other pairs are busy but quick or direct.
-	store := &regiongraph.Store{Meta: regiongraph.Meta{
-		Windows: []regiongraph.Window{{Name: "am", StartMinute: 420, EndMinute: 600}},
-	}}
-	edge := func(day string, from, to, trips int, speed, detour float64) regiongraph.Edge {
-		straight := 2000 * float64(trips) // 2 km a trip
-		return regiongraph.Edge{Day: day, Window: "am", From: from, To: to, Trips: trips,
-			SpeedMedian: speed, DetourMedian: detour,
-			StraightSum: straight, DistanceSum: straight * detour, DurationSum: straight * detour / speed}
-	}
-	for d := 1; d <= 10; d++ {
-		day := fmt.Sprintf("2025-03-%02d", d)
-		if d%5 != 0 {
-			store.Edges = append(store.Edges, edge(day, 10, 11, 80, 3, 2.2), edge(day, 11, 12, 60, 2.8, 2.0))
-		}
-		store.Edges = append(store.Edges,
-			edge(day, 12, 20, 150, 11, 1.2), edge(day, 20, 21, 90, 12, 1.4), edge(day, 21, 22, 40, 9, 1.1))
-	}
-	scan, err := ScanStore(context.Background(), store, DefaultScanOptions())
-	if err != nil {
-		fmt.Println(err)
-		return
-	}
-	for _, f := range scan.Findings {
-		fmt.Printf("%d. %s on %d of %d days: %.0f extra veh-km, %.1f extra veh-h a day\n",
-			f.Rank, f.ID, len(f.Days), len(scan.Days), f.ExtraKMPerDay, f.ExtraHoursPerDay)
-	}
-	// Output:
-	// 1. 10>11+11>12 on 8 of 10 days: 312 extra veh-km, 47.1 extra veh-h a day
 }
 
 // BenchmarkScanStoreYear scans a year of one window over a 45 x 45 grid

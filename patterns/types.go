@@ -1,9 +1,13 @@
 package patterns
 
-import "narrows/skyline"
+import (
+	"narrows/patterns/groups"
+	"narrows/skyline"
+)
 
-// EdgeKey is a directed region pair.
-type EdgeKey struct{ From, To int }
+// EdgeKey is a directed region pair, the edge of the groups the scan
+// mines.
+type EdgeKey = groups.Edge
 
 // DaySelector filters the days of a period.
 type DaySelector string
@@ -35,7 +39,7 @@ type ScanOptions struct {
 	Support float64 `toml:"support"`
 	// MaxGroupEdges caps the number of edges in a group (default 6); a
 	// group of edges that always recur together is reported whole even
-	// when larger (see MineOptions.MaxEdges).
+	// when larger (see groups.Options.MaxEdges).
 	MaxGroupEdges int `toml:"max_edges"`
 	// MaximalOnly keeps only the groups not contained in another reported
 	// group (default false: every closed group, nested ones included).
@@ -104,49 +108,4 @@ type Scan struct {
 	// Iterate in sorted key order for deterministic output.
 	EdgeDaily map[EdgeKey][]DailyValue
 	Findings  []Finding
-}
-
-// Verdict is the outcome of comparing a finding across two periods.
-type Verdict string
-
-const (
-	Cleared   Verdict = "cleared"   // recurred before, no longer recurs
-	Eased     Verdict = "eased"     // still recurs, significantly faster or less circuitous
-	Unchanged Verdict = "unchanged" // no significant change
-	Worse     Verdict = "worse"     // significantly slower, more circuitous or more frequent
-	New       Verdict = "new"       // recurs only after
-)
-
-// Shift is a Mann-Whitney U test with the Hodges-Lehmann shift (after minus
-// before) and its 95 % confidence interval.
-type Shift struct {
-	Before, After []float64 // daily values
-	U             float64   // statistic of the after sample
-	P             float64   // two-sided
-	PAdjusted     float64   // Benjamini-Hochberg across findings
-	Shift         float64   // Hodges-Lehmann estimate, after - before
-	Low, High     float64   // 95 % confidence interval of Shift
-}
-
-// Assessment is one finding's verdict with its evidence.
-type Assessment struct {
-	Finding           Finding // from the before scan when present there, else after
-	Verdict           Verdict
-	InBefore, InAfter bool
-	// Recurrence: days on which the group recurred / analysed days.
-	DaysBefore, TotalBefore  int
-	DaysAfter, TotalAfter    int
-	FisherP, FisherPAdjusted float64
-	Speed                    Shift  // daily trip-weighted median speed of the finding's edges, m/s
-	Detour                   Shift  // daily median detour of the finding's edges
-	Focus                    bool   // within the focus area
-	Reason                   string // one sentence: why this verdict
-}
-
-// Comparison is the before/after study.
-type Comparison struct {
-	Before, After *Scan
-	Assessments   []Assessment // ordered by verdict severity then rank
-	Counts        map[Verdict]int
-	Alpha         float64 // significance level after adjustment (default 0.05)
 }

@@ -61,7 +61,7 @@ func bigInput(side, nFindings, nEdges, days int) Input {
 	for i, f := range c.Before.Findings {
 		vd := verdictOrder[i%len(verdictOrder)]
 		c.Assessments = append(c.Assessments, patterns.Assessment{Finding: f, Verdict: vd, InBefore: true, InAfter: vd != patterns.Cleared,
-			DaysBefore: days / 2, TotalBefore: days, TotalAfter: days, FisherP: 0.5, FisherPAdjusted: 0.6, Reason: "synthetic"})
+			DaysBefore: days / 2, TotalBefore: days, TotalAfter: days, FisherP: 0.5, FisherPAdjusted: 0.6})
 	}
 	return Input{Title: "Synthetic", Regions: p, Comparison: c}
 }

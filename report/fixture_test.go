@@ -187,17 +187,18 @@ func fxComparison() *patterns.Comparison {
 	shift := func(b, a float64) patterns.Shift {
 		return patterns.Shift{Before: []float64{b, b, b + 0.2}, After: []float64{a, a, a + 0.2}, U: 1, P: 0.004, PAdjusted: 0.01, Shift: a - b, Low: a - b - 0.3, High: a - b + 0.3}
 	}
+	moved := func(s patterns.Shift, c patterns.Change) patterns.Shift { s.Change = c; return s }
 	c.Assessments = []patterns.Assessment{
 		{Finding: c.Before.Findings[0], Verdict: patterns.Worse, InBefore: true, InAfter: true, DaysBefore: 10, TotalBefore: 14, DaysAfter: 12, TotalAfter: 14,
-			FisherP: 0.648, FisherPAdjusted: 0.81, Speed: shift(5, 4), Detour: shift(1.8, 1.9), Reason: "Significantly slower after."},
+			FisherP: 0.648, FisherPAdjusted: 0.81, Speed: moved(shift(5, 4), patterns.Down), Detour: shift(1.8, 1.9)},
 		{Finding: c.After.Findings[1], Verdict: patterns.New, InAfter: true, DaysAfter: 5, TotalBefore: 14, TotalAfter: 14,
-			FisherP: 0.041, FisherPAdjusted: 0.1, Speed: shift(6, 5.5), Detour: shift(1.6, 1.7), Reason: "Recurs only after."},
+			FisherP: 0.041, FisherPAdjusted: 0.1, Recurrence: patterns.Up, Speed: shift(6, 5.5), Detour: shift(1.6, 1.7)},
 		{Finding: c.Before.Findings[2], Verdict: patterns.Unchanged, InBefore: true, InAfter: true, DaysBefore: 8, TotalBefore: 14, DaysAfter: 8, TotalAfter: 14,
-			FisherP: 1, FisherPAdjusted: 1, Speed: shift(6, 6.1), Detour: shift(1.6, 1.6), Reason: "No significant change."},
+			FisherP: 1, FisherPAdjusted: 1, Speed: shift(6, 6.1), Detour: shift(1.6, 1.6)},
 		{Finding: c.Before.Findings[3], Verdict: patterns.Eased, InBefore: true, InAfter: true, DaysBefore: 7, TotalBefore: 14, DaysAfter: 6, TotalAfter: 14,
-			FisherP: 1, FisherPAdjusted: 1, Speed: shift(suppressedSpeed, suppressedSpeed+1), Detour: shift(1.7, 1.5), Reason: "Significantly faster after."},
+			FisherP: 1, FisherPAdjusted: 1, Speed: moved(shift(suppressedSpeed, suppressedSpeed+1), patterns.Up), Detour: shift(1.7, 1.5)},
 		{Finding: c.Before.Findings[1], Verdict: patterns.Cleared, InBefore: true, DaysBefore: 9, TotalBefore: 14, TotalAfter: 14,
-			FisherP: 0.00006, FisherPAdjusted: 0.003, Speed: shift(4.5, 0), Detour: shift(2.1, 0), Focus: true, Reason: "No longer recurs."},
+			FisherP: 0.00006, FisherPAdjusted: 0.003, Recurrence: patterns.Down, Speed: shift(4.5, 0), Detour: shift(2.1, 0), Focus: true},
 	}
 	for _, a := range c.Assessments {
 		c.Counts[a.Verdict]++

@@ -168,7 +168,7 @@ func (v *view) html(w io.Writer) error {
 				row.SpeedShift, row.SpeedCI = fmtInterval(kmh(a.Speed.Shift), kmh(a.Speed.Low), kmh(a.Speed.High), 1)
 				row.DetourShift, row.DetourCI = fmtInterval(a.Detour.Shift, a.Detour.Low, a.Detour.High, 2)
 			}
-			row.Note = a.Reason
+			row.Note = Reason(a)
 		}
 		pg.Rows = append(pg.Rows, row)
 	}

@@ -166,18 +166,18 @@ func TestSVGDeterministic(t *testing.T) {
 }
 
 // FuzzSVGText feeds arbitrary data text (title, road name, finding id and
-// reason) through the SVG and HTML writers: the SVG must stay well-formed
+// area) through the SVG and HTML writers: the SVG must stay well-formed
 // XML and the page must render.
 func FuzzSVGText(f *testing.F) {
 	f.Add("Lowmere", "Mill Lane", "1>2", "No change.")
 	f.Add("=1+1", evilRoad, "<x>", "&amp; ]]> <!--")
 	f.Add("\x00\x01\ufffe", "\xff\xfe", "\"'", "</svg>")
-	f.Fuzz(func(t *testing.T, title, road, id, reason string) {
+	f.Fuzz(func(t *testing.T, title, road, id, area string) {
 		in := fxInput()
 		in.Title = title
 		in.Regions.Regions[0].BorderRoads[0].Name = road
 		in.Comparison.Assessments[0].Finding.ID = id
-		in.Comparison.Assessments[0].Reason = reason
+		in.Area = area
 		v, err := newView(in)
 		if err != nil {
 			t.Fatal(err)

@@ -116,7 +116,7 @@ func TestWorkbookValues(t *testing.T) {
 	// Comparison figures.
 	cmp := rowsByKey(t, f, SheetComparison, "Weak link")
 	for id, cols := range map[string]map[string]string{
-		"1>2": {"Days recurring before": "10", "Days analysed before": "14", "Share after": "85.7%", "Fisher p": "0.6480", "Speed shift km/h": "-3.6", "Speed shift CI low km/h": "-4.7", "Detour ratio shift": "+0.10", "Reason": "Significantly slower after."},
+		"1>2": {"Days recurring before": "10", "Days analysed before": "14", "Share after": "85.7%", "Fisher p": "0.6480", "Speed shift km/h": "-3.6", "Speed shift CI low km/h": "-4.7", "Detour ratio shift": "+0.10", "Reason": "It is significantly slower; recurred on 10 of 14 days before and 12 of 14 after (Fisher p 0.6480, adjusted 0.8100); daily speed changed by -3.6 km/h (95 % CI -4.7 to -2.5 km/h; Mann-Whitney p 0.0040, adjusted 0.0100); detour ratio changed by +0.10 (95 % CI -0.20 to +0.40; Mann-Whitney p 0.0040, adjusted 0.0100)."},
 		"8>9": {"Days recurring after": "0", "Fisher p adjusted": "0.0030", "Fisher p": "6.00E-05", "Verdict": "cleared"},
 		"2>5": {"Speed shift km/h": "n<10", "Speed before km/h": "n<10", "Fisher p": "1.0000"},
 	} {

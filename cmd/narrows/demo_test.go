@@ -19,6 +19,7 @@ import (
 	"narrows/partition"
 	"narrows/patterns"
 	"narrows/regiongraph"
+	"narrows/report"
 )
 
 // The example study file in testdata is the one the demo writes: the test
@@ -145,7 +146,7 @@ func TestDemoFindsThePlantedWeaknessAndTheFixWorks(t *testing.T) {
 		}
 		checked++
 		if a.Verdict != patterns.Cleared && a.Verdict != patterns.Eased {
-			t.Errorf("finding %s with the planted pair: verdict %s, want cleared or eased (%s)", a.Finding.ID, a.Verdict, a.Reason)
+			t.Errorf("finding %s with the planted pair: verdict %s, want cleared or eased (%s)", a.Finding.ID, a.Verdict, report.Reason(&a))
 		}
 		if a.Detour.Shift >= 0 {
 			t.Errorf("finding %s: detour shift %+.2f after the bridge opened, want a fall", a.Finding.ID, a.Detour.Shift)
@@ -272,7 +273,7 @@ func TestControlScenarioHasNoClearedOrWorse(t *testing.T) {
 	}
 	for _, a := range cmp.Assessments {
 		if a.Verdict == patterns.Cleared || a.Verdict == patterns.Worse {
-			t.Errorf("control: finding %s is %s: %s", a.Finding.ID, a.Verdict, a.Reason)
+			t.Errorf("control: finding %s is %s: %s", a.Finding.ID, a.Verdict, report.Reason(&a))
 		}
 	}
 }

@@ -16,6 +16,7 @@
 //   - FisherExact: the two-sided Fisher exact test of a 2×2 table.
 //   - BenjaminiHochberg: step-up adjusted p-values controlling the false
 //     discovery rate.
+//   - Median: the median of a sample, NaN for an empty one.
 //
 // The p-values follow the conventions of SciPy 1.10 (scipy.stats.mannwhitneyu
 // and scipy.stats.fisher_exact) so that results can be compared with that

@@ -38,3 +38,12 @@ func ExampleBenjaminiHochberg() {
 	// Output:
 	// [0.020 0.040 0.040 0.020]
 }
+
+func ExampleMedian() {
+	// Daily median speeds (km/h) of one pair over four mornings.
+	fmt.Println(stats.Median([]float64{18.2, 17.5, 19.1, 16.8}))
+	fmt.Println(stats.Median(nil))
+	// Output:
+	// 17.85
+	// NaN
+}

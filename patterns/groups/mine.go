@@ -1,16 +1,15 @@
-package patterns
+package groups
 
 import (
-	"cmp"
 	"context"
 	"fmt"
 	"math/bits"
 	"slices"
 )
 
-// MineOptions sets the rules of Mine. The zero value asks for every closed
+// Options sets the rules of Mine. The zero value asks for every closed
 // group recurring on at least one day, of any size.
-type MineOptions struct {
+type Options struct {
 	// MinSupport is the least number of days on which a group must recur;
 	// values below 1 are taken as 1.
 	MinSupport int
@@ -36,8 +35,8 @@ type MineOptions struct {
 // Group is a connected set of edges and the days on which all of them
 // occur.
 type Group struct {
-	Edges []EdgeKey // sorted by From, then To
-	Days  []int     // indices into the days given to Mine, ascending
+	Edges []Edge // sorted by From, then To
+	Days  []int  // indices into the days given to Mine, ascending
 }
 
 // Mine finds the connected groups of edges that occur together on at least
@@ -53,9 +52,9 @@ type Group struct {
 //
 // Groups are returned sorted by their edge lists. Mine returns the
 // context's error if it is cancelled.
-func Mine(ctx context.Context, days [][]EdgeKey, opts MineOptions) ([]Group, error) {
+func Mine(ctx context.Context, days [][]Edge, opts Options) ([]Group, error) {
 	if opts.MaxEdges < 0 {
-		return nil, fmt.Errorf("patterns: MaxEdges is %d, want 0 (no bound) or more", opts.MaxEdges)
+		return nil, fmt.Errorf("groups: MaxEdges is %d, want 0 (no bound) or more", opts.MaxEdges)
 	}
 	m := newMiner(days, max(opts.MinSupport, 1))
 	m.ctx = ctx
@@ -74,17 +73,9 @@ func Mine(ctx context.Context, days [][]EdgeKey, opts MineOptions) ([]Group, err
 	return m.groups, nil
 }
 
-// compareEdgeKeys orders edges by From, then To.
-func compareEdgeKeys(a, b EdgeKey) int {
-	if c := cmp.Compare(a.From, b.From); c != 0 {
-		return c
-	}
-	return cmp.Compare(a.To, b.To)
-}
-
 // compareEdgeLists orders sorted edge lists lexicographically.
-func compareEdgeLists(a, b []EdgeKey) int {
-	return slices.CompareFunc(a, b, compareEdgeKeys)
+func compareEdgeLists(a, b []Edge) int {
+	return slices.CompareFunc(a, b, CompareEdges)
 }
 
 // miner holds the frequent edges (items), their day sets and adjacency,
@@ -96,7 +87,7 @@ type miner struct {
 	maxEdges    int
 	allFrequent bool
 
-	items     []EdgeKey
+	items     []Edge
 	words     int      // uint64 words per day set
 	daySets   []uint64 // item i's days at [i*words, (i+1)*words)
 	neighbors [][]int32
@@ -115,18 +106,18 @@ type miner struct {
 	seen     []bool
 }
 
-func newMiner(days [][]EdgeKey, minSupport int) *miner {
+func newMiner(days [][]Edge, minSupport int) *miner {
 	m := &miner{minSupport: minSupport, words: (len(days) + 63) / 64}
-	var all []EdgeKey
+	var all []Edge
 	for _, day := range days {
 		all = append(all, day...)
 	}
-	slices.SortFunc(all, compareEdgeKeys)
+	slices.SortFunc(all, CompareEdges)
 	all = slices.Compact(all)
 	sets := make([]uint64, len(all)*m.words)
 	for d, day := range days {
 		for _, e := range day {
-			i, _ := slices.BinarySearchFunc(all, e, compareEdgeKeys)
+			i, _ := slices.BinarySearchFunc(all, e, CompareEdges)
 			sets[i*m.words+d/64] |= 1 << (d % 64)
 		}
 	}
@@ -357,7 +348,7 @@ func (m *miner) closure(set []uint64) []int32 {
 func (m *miner) record(items []int32, set []uint64) {
 	sorted := slices.Clone(items)
 	slices.Sort(sorted)
-	g := Group{Edges: make([]EdgeKey, len(sorted)), Days: make([]int, 0, popcount(set))}
+	g := Group{Edges: make([]Edge, len(sorted)), Days: make([]int, 0, popcount(set))}
 	for i, it := range sorted {
 		g.Edges[i] = m.items[it]
 	}
@@ -373,7 +364,7 @@ func (m *miner) record(items []int32, set []uint64) {
 // maximalGroups returns the groups, in order, that no other group
 // contains.
 func maximalGroups(groups []Group) []Group {
-	containing := make(map[EdgeKey][]int) // edge -> groups holding it
+	containing := make(map[Edge][]int) // edge -> groups holding it
 	for i, g := range groups {
 		for _, e := range g.Edges {
 			containing[e] = append(containing[e], i)
@@ -397,10 +388,10 @@ func maximalGroups(groups []Group) []Group {
 
 // containsEdges reports whether sorted list a holds every edge of sorted
 // list b.
-func containsEdges(a, b []EdgeKey) bool {
+func containsEdges(a, b []Edge) bool {
 	i := 0
 	for _, e := range b {
-		for i < len(a) && compareEdgeKeys(a[i], e) < 0 {
+		for i < len(a) && CompareEdges(a[i], e) < 0 {
 			i++
 		}
 		if i == len(a) || a[i] != e {

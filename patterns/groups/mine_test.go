@@ -1,4 +1,4 @@
-package patterns
+package groups
 
 import (
 	"context"
@@ -14,14 +14,14 @@ import (
 // bruteIndex enumerates every subset of the distinct edges of days, as
 // bit masks over the sorted edge list, with its connectivity and days.
 type bruteIndex struct {
-	items     []EdgeKey
+	items     []Edge
 	connected []bool
 	daysOf    []uint64 // bit d set: the subset occurs on day d
 }
 
-func newBruteIndex(days [][]EdgeKey) bruteIndex {
+func newBruteIndex(days [][]Edge) bruteIndex {
 	var b bruteIndex
-	seen := map[EdgeKey]bool{}
+	seen := map[Edge]bool{}
 	for _, day := range days {
 		for _, e := range day {
 			if !seen[e] {
@@ -30,7 +30,7 @@ func newBruteIndex(days [][]EdgeKey) bruteIndex {
 			}
 		}
 	}
-	slices.SortFunc(b.items, compareEdgeKeys)
+	slices.SortFunc(b.items, CompareEdges)
 	n := len(b.items)
 	dayMasks := make([]uint64, len(days))
 	for d, day := range days {
@@ -134,15 +134,15 @@ func bruteMine(b bruteIndex, minSupport, maxEdges int, allFrequent bool) []Group
 	return out
 }
 
-func randomDays(rng *rand.Rand, regions, items, days int) [][]EdgeKey {
-	var pool []EdgeKey
+func randomDays(rng *rand.Rand, regions, items, days int) [][]Edge {
+	var pool []Edge
 	for len(pool) < items {
-		e := EdgeKey{rng.IntN(regions), rng.IntN(regions)}
+		e := Edge{rng.IntN(regions), rng.IntN(regions)}
 		if e.From != e.To && !slices.Contains(pool, e) {
 			pool = append(pool, e)
 		}
 	}
-	out := make([][]EdgeKey, days)
+	out := make([][]Edge, days)
 	for d := range out {
 		p := 0.3 + 0.5*rng.Float64()
 		for _, e := range pool {
@@ -157,7 +157,7 @@ func randomDays(rng *rand.Rand, regions, items, days int) [][]EdgeKey {
 	return out
 }
 
-func maskOf(b bruteIndex, edges []EdgeKey) uint64 {
+func maskOf(b bruteIndex, edges []Edge) uint64 {
 	var mask uint64
 	for _, e := range edges {
 		mask |= 1 << slices.Index(b.items, e)
@@ -177,7 +177,7 @@ func TestMineAgainstBruteForce(t *testing.T) {
 			for _, maxEdges := range []int{0, 1, 2, 3} {
 				for _, allFrequent := range []bool{false, true} {
 					name := fmt.Sprintf("seed%d/support%d/max%d/all%v", seed, minSupport, maxEdges, allFrequent)
-					got, err := Mine(ctx, days, MineOptions{MinSupport: minSupport, MaxEdges: maxEdges, AllFrequent: allFrequent})
+					got, err := Mine(ctx, days, Options{MinSupport: minSupport, MaxEdges: maxEdges, AllFrequent: allFrequent})
 					if err != nil {
 						t.Fatalf("%s: %v", name, err)
 					}
@@ -221,11 +221,11 @@ var allElectronicsFrequent = map[string]int{
 
 // starDays takes item Ik as the edge from hub region 0 to region k, so
 // every item set is connected.
-func starDays(transactions [][]int) [][]EdgeKey {
-	days := make([][]EdgeKey, len(transactions))
+func starDays(transactions [][]int) [][]Edge {
+	days := make([][]Edge, len(transactions))
 	for d, items := range transactions {
 		for _, it := range items {
-			days[d] = append(days[d], EdgeKey{0, it})
+			days[d] = append(days[d], Edge{0, it})
 		}
 	}
 	return days
@@ -241,7 +241,7 @@ func itemsOf(g Group) []int {
 
 func TestMineAllElectronics(t *testing.T) {
 	days := starDays(allElectronics)
-	groups, err := Mine(context.Background(), days, MineOptions{MinSupport: 2, AllFrequent: true})
+	groups, err := Mine(context.Background(), days, Options{MinSupport: 2, AllFrequent: true})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -255,7 +255,7 @@ func TestMineAllElectronics(t *testing.T) {
 
 	// The closed sets carry the same information: the support of any set is
 	// the largest support of a closed set containing it.
-	closed, err := Mine(context.Background(), days, MineOptions{MinSupport: 2})
+	closed, err := Mine(context.Background(), days, Options{MinSupport: 2})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -298,38 +298,38 @@ func isSubset(a, b []int) bool {
 }
 
 func TestMineEdgeCases(t *testing.T) {
-	a, b, c, d := EdgeKey{1, 2}, EdgeKey{2, 3}, EdgeKey{3, 4}, EdgeKey{4, 5}
-	x := EdgeKey{8, 9}
-	back := EdgeKey{2, 1}
+	a, b, c, d := Edge{1, 2}, Edge{2, 3}, Edge{3, 4}, Edge{4, 5}
+	x := Edge{8, 9}
+	back := Edge{2, 1}
 	cases := []struct {
 		name string
-		days [][]EdgeKey
-		opts MineOptions
+		days [][]Edge
+		opts Options
 		want []Group
 	}{
-		{"no days", nil, MineOptions{MinSupport: 1}, nil},
-		{"one empty day", [][]EdgeKey{{}}, MineOptions{MinSupport: 1}, nil},
-		{"one day", [][]EdgeKey{{b, a, x}}, MineOptions{MinSupport: 1},
-			[]Group{{[]EdgeKey{a, b}, []int{0}}, {[]EdgeKey{x}, []int{0}}}},
-		{"support all days", [][]EdgeKey{{a, b}, {a, b, c}, {a}}, MineOptions{MinSupport: 3},
-			[]Group{{[]EdgeKey{a}, []int{0, 1, 2}}}},
-		{"support above days", [][]EdgeKey{{a}, {a}}, MineOptions{MinSupport: 3}, nil},
-		{"day without candidates", [][]EdgeKey{{a, b}, {}, {b, a}}, MineOptions{MinSupport: 2},
-			[]Group{{[]EdgeKey{a, b}, []int{0, 2}}}},
-		{"zero support taken as one", [][]EdgeKey{{a}}, MineOptions{}, []Group{{[]EdgeKey{a}, []int{0}}}},
-		{"both directions are two connected edges", [][]EdgeKey{{a, back}, {a, back}}, MineOptions{MinSupport: 2},
-			[]Group{{[]EdgeKey{a, back}, []int{0, 1}}}},
-		{"together but not connected", [][]EdgeKey{{a, x}, {a, x}}, MineOptions{MinSupport: 2},
-			[]Group{{[]EdgeKey{a}, []int{0, 1}}, {[]EdgeKey{x}, []int{0, 1}}}},
-		{"nested closed groups", [][]EdgeKey{{a, b}, {a, b}, {a}}, MineOptions{MinSupport: 2},
-			[]Group{{[]EdgeKey{a}, []int{0, 1, 2}}, {[]EdgeKey{a, b}, []int{0, 1}}}},
+		{"no days", nil, Options{MinSupport: 1}, nil},
+		{"one empty day", [][]Edge{{}}, Options{MinSupport: 1}, nil},
+		{"one day", [][]Edge{{b, a, x}}, Options{MinSupport: 1},
+			[]Group{{[]Edge{a, b}, []int{0}}, {[]Edge{x}, []int{0}}}},
+		{"support all days", [][]Edge{{a, b}, {a, b, c}, {a}}, Options{MinSupport: 3},
+			[]Group{{[]Edge{a}, []int{0, 1, 2}}}},
+		{"support above days", [][]Edge{{a}, {a}}, Options{MinSupport: 3}, nil},
+		{"day without candidates", [][]Edge{{a, b}, {}, {b, a}}, Options{MinSupport: 2},
+			[]Group{{[]Edge{a, b}, []int{0, 2}}}},
+		{"zero support taken as one", [][]Edge{{a}}, Options{}, []Group{{[]Edge{a}, []int{0}}}},
+		{"both directions are two connected edges", [][]Edge{{a, back}, {a, back}}, Options{MinSupport: 2},
+			[]Group{{[]Edge{a, back}, []int{0, 1}}}},
+		{"together but not connected", [][]Edge{{a, x}, {a, x}}, Options{MinSupport: 2},
+			[]Group{{[]Edge{a}, []int{0, 1}}, {[]Edge{x}, []int{0, 1}}}},
+		{"nested closed groups", [][]Edge{{a, b}, {a, b}, {a}}, Options{MinSupport: 2},
+			[]Group{{[]Edge{a}, []int{0, 1, 2}}, {[]Edge{a, b}, []int{0, 1}}}},
 		// A chain that always recurs whole is reported whole even beyond
 		// the bound, instead of as its many two-edge pieces.
-		{"closure beyond MaxEdges", [][]EdgeKey{{a, b, c, d}, {a, b, c, d}}, MineOptions{MinSupport: 2, MaxEdges: 2},
-			[]Group{{[]EdgeKey{a, b, c, d}, []int{0, 1}}}},
-		{"all frequent with bound", [][]EdgeKey{{a, b, c}}, MineOptions{MinSupport: 1, MaxEdges: 2, AllFrequent: true},
-			[]Group{{[]EdgeKey{a}, []int{0}}, {[]EdgeKey{a, b}, []int{0}}, {[]EdgeKey{b}, []int{0}},
-				{[]EdgeKey{b, c}, []int{0}}, {[]EdgeKey{c}, []int{0}}}},
+		{"closure beyond MaxEdges", [][]Edge{{a, b, c, d}, {a, b, c, d}}, Options{MinSupport: 2, MaxEdges: 2},
+			[]Group{{[]Edge{a, b, c, d}, []int{0, 1}}}},
+		{"all frequent with bound", [][]Edge{{a, b, c}}, Options{MinSupport: 1, MaxEdges: 2, AllFrequent: true},
+			[]Group{{[]Edge{a}, []int{0}}, {[]Edge{a, b}, []int{0}}, {[]Edge{b}, []int{0}},
+				{[]Edge{b, c}, []int{0}}, {[]Edge{c}, []int{0}}}},
 	}
 	for _, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {
@@ -345,35 +345,15 @@ func TestMineEdgeCases(t *testing.T) {
 }
 
 func TestMineErrors(t *testing.T) {
-	days := [][]EdgeKey{{{1, 2}}}
-	if _, err := Mine(context.Background(), days, MineOptions{MaxEdges: -1}); err == nil {
+	days := [][]Edge{{{1, 2}}}
+	if _, err := Mine(context.Background(), days, Options{MaxEdges: -1}); err == nil {
 		t.Error("negative MaxEdges accepted")
 	}
 	ctx, cancel := context.WithCancel(context.Background())
 	cancel()
-	if _, err := Mine(ctx, days, MineOptions{MinSupport: 1}); !errors.Is(err, context.Canceled) {
+	if _, err := Mine(ctx, days, Options{MinSupport: 1}); !errors.Is(err, context.Canceled) {
 		t.Errorf("cancelled Mine: err = %v, want context.Canceled", err)
 	}
-}
-
-func ExampleMine() {
-	// Three days of candidate edges between regions 1..4.
-	days := [][]EdgeKey{
-		{{1, 2}, {2, 3}, {4, 1}},
-		{{1, 2}, {2, 3}},
-		{{1, 2}, {3, 4}},
-	}
-	groups, err := Mine(context.Background(), days, MineOptions{MinSupport: 2})
-	if err != nil {
-		fmt.Println(err)
-		return
-	}
-	for _, g := range groups {
-		fmt.Println(g.Edges, g.Days)
-	}
-	// Output:
-	// [{1 2}] [0 1 2]
-	// [{1 2} {2 3}] [0 1]
 }
 
 // benchmarkDays draws a year of daily candidates over a 45 x 45 grid of
@@ -381,7 +361,7 @@ func ExampleMine() {
 // between neighbouring regions, each spot present on a share of days drawn
 // from [pLow, pHigh), and the rest of each day's 300 candidates drawn at
 // random between nearby regions.
-func benchmarkDays(seed uint64, hotSpots, spread int, pLow, pHigh float64) [][]EdgeKey {
+func benchmarkDays(seed uint64, hotSpots, spread int, pLow, pHigh float64) [][]Edge {
 	const side, perDay = 45, 300
 	rng := rand.New(rand.NewPCG(seed, 11))
 	region := func(x, y int) int { return y*side + x }
@@ -395,7 +375,7 @@ func benchmarkDays(seed uint64, hotSpots, spread int, pLow, pHigh float64) [][]E
 		}
 	}
 	type chronic struct {
-		edge EdgeKey
+		edge Edge
 		p    float64
 	}
 	var hot []chronic
@@ -407,12 +387,12 @@ func benchmarkDays(seed uint64, hotSpots, spread int, pLow, pHigh float64) [][]E
 			if rng.IntN(2) == 0 {
 				from = nearby(centre)
 			}
-			hot = append(hot, chronic{EdgeKey{from, nearby(from)}, min(0.9, p*(0.7+0.6*rng.Float64()))})
+			hot = append(hot, chronic{Edge{from, nearby(from)}, min(0.9, p*(0.7+0.6*rng.Float64()))})
 		}
 	}
-	days := make([][]EdgeKey, 365)
+	days := make([][]Edge, 365)
 	for d := range days {
-		day := make([]EdgeKey, 0, perDay)
+		day := make([]Edge, 0, perDay)
 		for _, c := range hot {
 			if rng.Float64() < c.p {
 				day = append(day, c.edge)
@@ -420,7 +400,7 @@ func benchmarkDays(seed uint64, hotSpots, spread int, pLow, pHigh float64) [][]E
 		}
 		for len(day) < perDay {
 			from := rng.IntN(side * side)
-			day = append(day, EdgeKey{from, nearby(from)})
+			day = append(day, Edge{from, nearby(from)})
 		}
 		days[d] = day
 	}
@@ -437,8 +417,8 @@ func BenchmarkMineYearDense(b *testing.B) {
 	benchmarkMine(b, benchmarkDays(2, 60, 12, 0.3, 0.9))
 }
 
-func benchmarkMine(b *testing.B, days [][]EdgeKey) {
-	opts := MineOptions{MinSupport: 37, MaxEdges: 6} // support 0.1 of 365 days
+func benchmarkMine(b *testing.B, days [][]Edge) {
+	opts := Options{MinSupport: 37, MaxEdges: 6} // support 0.1 of 365 days
 	var groups []Group
 	for b.Loop() {
 		var err error
@@ -447,4 +427,17 @@ func benchmarkMine(b *testing.B, days [][]EdgeKey) {
 		}
 	}
 	b.ReportMetric(float64(len(groups)), "groups")
+}
+
+func TestMaximalOnly(t *testing.T) {
+	a, b, c := Edge{1, 2}, Edge{2, 3}, Edge{7, 8}
+	days := [][]Edge{{a, b, c}, {a, b}, {a}, {c}}
+	got, err := Mine(context.Background(), days, Options{MinSupport: 2, MaximalOnly: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := fmt.Sprint([]Group{{[]Edge{a, b}, []int{0, 1}}, {[]Edge{c}, []int{0, 3}}})
+	if fmt.Sprint(got) != want {
+		t.Errorf("Mine(MaximalOnly) = %v, want %v", got, want)
+	}
 }
