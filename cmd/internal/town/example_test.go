@@ -8,7 +8,7 @@ import (
 	"log"
 	"strings"
 
-	"narrows/cmd/town"
+	"narrows/cmd/internal/town"
 )
 
 // Generate the demo town, write the OSM files before and after the new
