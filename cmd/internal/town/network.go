@@ -12,6 +12,8 @@ import (
 	"gonum.org/v1/gonum/graph"
 	"gonum.org/v1/gonum/graph/path"
 	"gonum.org/v1/gonum/graph/simple"
+
+	"narrows/partition/geodesy"
 )
 
 // Network is a directed street network for routing: nodes with positions in
@@ -98,7 +100,7 @@ func (t *Town) NetworkOf(withLink bool) (*Network, error) {
 		if oneway {
 			perDir = float64(lanes)
 		}
-		v := speed / 3.6 * freeFlowShare
+		v := geodesy.MPS(speed) * freeFlowShare
 		for k := 1; k < len(w.Nodes); k++ {
 			a, b := w.Nodes[k-1], w.Nodes[k]
 			if a <= 0 || b <= 0 || int(a) >= len(index) || int(b) >= len(index) {

@@ -453,14 +453,12 @@ func (s *sim) build(ctx context.Context, withLink bool) (*netState, error) {
 
 // trip is one simulated trip before formatting.
 type trip struct {
-	start, duration float64 // seconds after midnight, seconds
-	o, d            orb2
+	start, duration float64   // seconds after midnight, seconds
+	o, d            orb.Point // WGS84 origin and destination
 	distance        float64
 	seq             int
 	from, to        int32 // trip ends the route runs between
 }
-
-type orb2 struct{ lon, lat float64 }
 
 func (s *sim) dayTrips(day dayPlan, rs *netState) []trip {
 	o := s.o
@@ -586,7 +584,7 @@ type endChoice struct {
 // otherwise the point is uniform in the zone and joins the nearest trip-end
 // node, the access distance being the Manhattan distance, as if driven
 // along the block's streets.
-func (t *Town) tripEnd(rng *rand.Rand, z *zone, nw *Network) (orb2, [2]endChoice) {
+func (t *Town) tripEnd(rng *rand.Rand, z *zone, nw *Network) (orb.Point, [2]endChoice) {
 	out := [2]endChoice{{end: -1}, {end: -1}}
 	if len(z.segs) > 0 {
 		sg := z.segs[rng.IntN(len(z.segs))]
@@ -601,8 +599,7 @@ func (t *Town) tripEnd(rng *rand.Rand, z *zone, nw *Network) (orb2, [2]endChoice
 		}
 		out[0] = endChoice{end: z.ends[sg.k], access: f*L + math.Abs(off)}
 		out[1] = endChoice{end: z.ends[sg.l], access: (1-f)*L + math.Abs(off)}
-		pt := t.proj.point(p)
-		return orb2{pt[0], pt[1]}, out
+		return t.lonLat(p), out
 	}
 	gx := z.px0 + rng.Float64()*(z.px1-z.px0)
 	gy := z.py0 + rng.Float64()*(z.py1-z.py0)
@@ -617,8 +614,7 @@ func (t *Town) tripEnd(rng *rand.Rand, z *zone, nw *Network) (orb2, [2]endChoice
 	}
 	q := nw.pos[z.nodes[best]]
 	out[0] = endChoice{end: z.ends[best], access: math.Abs(q.X-p.X) + math.Abs(q.Y-p.Y)}
-	pt := t.proj.point(p)
-	return orb2{pt[0], pt[1]}, out
+	return t.lonLat(p), out
 }
 
 // trace follows a trip's route through the network state's trees.
@@ -637,11 +633,11 @@ func (s *sim) trace(rs *netState, id int64, tr *trip, day dayPlan) Trace {
 		v = nw.links[li].from
 	}
 	nodes = append(nodes, root)
-	line := []orb.Point{{tr.o.lon, tr.o.lat}}
+	line := []orb.Point{tr.o}
 	for k := len(nodes) - 1; k >= 0; k-- {
-		line = append(line, s.t.proj.point(nw.pos[nodes[k]]))
+		line = append(line, s.t.lonLat(nw.pos[nodes[k]]))
 	}
-	line = append(line, orb.Point{tr.d.lon, tr.d.lat})
+	line = append(line, tr.d)
 	start := day.midnight.Add(time.Duration(math.Floor(tr.start)) * time.Second)
 	return traceOf(id, line, start, math.Round(tr.duration), s.o.TraceInterval.Seconds())
 }
@@ -655,13 +651,13 @@ func (s *sim) appendRow(b []byte, id int64, tr *trip, day dayPlan) []byte {
 	b = append(b, ',')
 	b = end.AppendFormat(b, time.RFC3339)
 	b = append(b, ',')
-	b = strconv.AppendFloat(b, tr.o.lon, 'f', 6, 64)
+	b = strconv.AppendFloat(b, tr.o[0], 'f', 6, 64)
 	b = append(b, ',')
-	b = strconv.AppendFloat(b, tr.o.lat, 'f', 6, 64)
+	b = strconv.AppendFloat(b, tr.o[1], 'f', 6, 64)
 	b = append(b, ',')
-	b = strconv.AppendFloat(b, tr.d.lon, 'f', 6, 64)
+	b = strconv.AppendFloat(b, tr.d[0], 'f', 6, 64)
 	b = append(b, ',')
-	b = strconv.AppendFloat(b, tr.d.lat, 'f', 6, 64)
+	b = strconv.AppendFloat(b, tr.d[1], 'f', 6, 64)
 	b = append(b, ',')
 	b = strconv.AppendFloat(b, tr.distance, 'f', 1, 64)
 	b = append(b, '\n')

@@ -7,6 +7,8 @@ import (
 	"sort"
 
 	"github.com/paulmach/orb"
+
+	"narrows/partition/geodesy"
 )
 
 // Size selects the extent of the generated town.
@@ -94,7 +96,7 @@ type Town struct {
 
 	lay   layout
 	warp  warp
-	proj  projection
+	proj  geodesy.Projection
 	grid  []gridNode // index = (j*(NX+1) + i); present nodes only have id > 0
 	local []xy       // local metres of every node, index = id-1
 }
@@ -111,19 +113,19 @@ type gridNode struct {
 // layout is the fixed plan of a size; the seed perturbs it, never changes it.
 type layout struct {
 	name       string
-	nx, ny     int     // arterial cells
-	k          int     // local blocks per cell side
-	block      float64 // metres between local streets
-	margin     float64 // metres from the ring to the bounds
-	riverRow   int     // cell row the river runs through
-	railCol    int     // cell column the railway runs through
-	bridgeCols []int   // grid columns (i) of the arterial bridges
-	oldBridges bool    // the arterial bridges are old single-lane ones
-	plantCol   int     // cell column of the planted districts
-	linkCol    int     // grid column (i) of the new link
-	lat0, lon0 float64 // south-west corner of the bounds
-	riverGap   float64 // metres the river widens the grid by
-	population float64 // residents
+	nx, ny     int       // arterial cells
+	k          int       // local blocks per cell side
+	block      float64   // metres between local streets
+	margin     float64   // metres from the ring to the bounds
+	riverRow   int       // cell row the river runs through
+	railCol    int       // cell column the railway runs through
+	bridgeCols []int     // grid columns (i) of the arterial bridges
+	oldBridges bool      // the arterial bridges are old single-lane ones
+	plantCol   int       // cell column of the planted districts
+	linkCol    int       // grid column (i) of the new link
+	origin     orb.Point // south-west corner of the bounds (longitude, latitude)
+	riverGap   float64   // metres the river widens the grid by
+	population float64   // residents
 	// plantedHousing and plantedJobs are the planted districts' shares of
 	// the residents and of the jobs.
 	plantedHousing, plantedJobs float64
@@ -135,11 +137,11 @@ func layoutFor(s Size) (layout, error) {
 	case SizeTown, "":
 		return layout{name: "Quillhaven", nx: 6, ny: 6, k: 3, block: 300, margin: 400,
 			riverRow: 3, riverGap: 300, oldBridges: true, railCol: 1, bridgeCols: []int{6, 15}, plantCol: 3, linkCol: 10,
-			lat0: 0.61, lon0: 0.83, population: 65000, beta: 1.0 / 1600, plantedHousing: 0.10, plantedJobs: 0.12}, nil
+			origin: orb.Point{0.83, 0.61}, population: 65000, beta: 1.0 / 1600, plantedHousing: 0.10, plantedJobs: 0.12}, nil
 	case SizeCity:
 		return layout{name: "Ostravel", nx: 40, ny: 40, k: 2, block: 250, margin: 500,
 			riverRow: 20, railCol: 12, bridgeCols: []int{8, 16, 24, 32, 40, 48, 56, 64, 72}, plantCol: 14, linkCol: 29,
-			lat0: 0.52, lon0: 0.71, population: 800000, beta: 1.0 / 2200, plantedHousing: 0.0012, plantedJobs: 0.0015}, nil
+			origin: orb.Point{0.71, 0.52}, population: 800000, beta: 1.0 / 2200, plantedHousing: 0.0012, plantedJobs: 0.0015}, nil
 	}
 	return layout{}, fmt.Errorf("town: unknown size %q (want %q or %q)", s, SizeTown, SizeCity)
 }
@@ -168,28 +170,9 @@ func (l layout) railX() float64      { return (float64(l.railCol*l.k) + float64(
 func (l layout) meander() float64    { return 0.1 * l.block }
 func (l layout) bridgeHalf() float64 { return 0.22*l.block + 0.4*l.riverGap }
 
-// projection maps local metres to WGS84 by an equirectangular projection
-// about the south-west corner of the bounds (exact enough at town scale).
-type projection struct {
-	lat0, lon0 float64
-	mPerDegLat float64
-	mPerDegLon float64
-}
-
-const earthRadius = 6371008.8 // mean Earth radius, metres (IUGG)
-
-func newProjection(lat0, lon0 float64) projection {
-	mLat := earthRadius * math.Pi / 180
-	return projection{lat0: lat0, lon0: lon0, mPerDegLat: mLat, mPerDegLon: mLat * math.Cos(lat0*math.Pi/180)}
-}
-
-func (p projection) point(q xy) orb.Point {
-	return orb.Point{p.lon0 + q.X/p.mPerDegLon, p.lat0 + q.Y/p.mPerDegLat}
-}
-
-func (p projection) local(q orb.Point) xy {
-	return xy{(q[0] - p.lon0) * p.mPerDegLon, (q[1] - p.lat0) * p.mPerDegLat}
-}
+// lonLat maps local metres to WGS84 by the local projection about the
+// south-west corner of the bounds (exact enough at town scale).
+func (t *Town) lonLat(p xy) orb.Point { return t.proj.Inverse(p.X, p.Y) }
 
 // warp bends the grid gently: a smooth, monotone displacement of a few
 // percent of the cell size, so streets curve without folding.
@@ -272,14 +255,14 @@ func (b *builder) node(i, j int) *gridNode {
 func (b *builder) addNode(p xy, tags []Tag) int64 {
 	b.nextID++
 	b.t.local = append(b.t.local, p)
-	b.nodes = append(b.nodes, Node{ID: b.nextID, Point: b.t.proj.point(p), Tags: tags})
+	b.nodes = append(b.nodes, Node{ID: b.nextID, Point: b.t.lonLat(p), Tags: tags})
 	return b.nextID
 }
 
 func (b *builder) build() {
 	lay := b.lay
 	t := b.t
-	t.proj = newProjection(lay.lat0, lay.lon0)
+	t.proj = geodesy.NewProjection(lay.origin)
 	// Local frame: origin at the bounds' south-west corner; the grid starts
 	// at (margin, margin).
 	off := lay.margin
@@ -313,7 +296,7 @@ func (b *builder) build() {
 	b.districts()
 	t.Nodes = b.nodes
 	t.Ways = b.ways
-	t.Bound = orb.Bound{Min: t.proj.point(xy{0, 0}), Max: t.proj.point(xy{lay.width() + 2*off, lay.height() + 2*off})}
+	t.Bound = orb.Bound{Min: t.lonLat(xy{0, 0}), Max: t.lonLat(xy{lay.width() + 2*off, lay.height() + 2*off})}
 }
 
 // gridPos maps a grid position to local metres (warped, offset by the margin).
@@ -668,7 +651,7 @@ func (b *builder) link() {
 	}
 	b.t.Link = &Way{ID: int64(len(b.ways)) + 1, Nodes: []int64{south.id, p1, p2, north.id}, Tags: tags}
 	mid := lerp(b.t.local[p1-1], b.t.local[p2-1], 0.5)
-	b.t.LinkMidpoint = b.t.proj.point(mid)
+	b.t.LinkMidpoint = b.t.lonLat(mid)
 }
 
 // districts records the planted districts: the halves of the river-row cell
@@ -684,10 +667,10 @@ func (b *builder) districts() {
 		inset := 0.1 * lay.block
 		ring := orb.Ring{}
 		for _, q := range [][2]float64{{x0 + inset, ya}, {x1 - inset, ya}, {x1 - inset, yb}, {x0 + inset, yb}, {x0 + inset, ya}} {
-			ring = append(ring, b.t.proj.point(b.gridPos(q[0], q[1])))
+			ring = append(ring, b.t.lonLat(b.gridPos(q[0], q[1])))
 		}
 		cx, cy := (x0+x1)/2, (ya+yb)/2
-		return District{Name: name, Centre: b.t.proj.point(b.gridPos(cx, cy)), Area: ring}
+		return District{Name: name, Centre: b.t.lonLat(b.gridPos(cx, cy)), Area: ring}
 	}
 	b.t.Housing = mk("Northbank housing", ry+gap, y1-0.1*lay.block)
 	b.t.Jobs = mk("Southbank works", y0+0.1*lay.block, ry-gap)
