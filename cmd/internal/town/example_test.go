@@ -14,7 +14,7 @@ import (
 // Generate the demo town, write the OSM files before and after the new
 // bridge, and simulate the first two days of the link scenario.
 func Example() {
-	tw, err := town.Generate(town.DefaultOptions())
+	tw, err := town.Generate(town.Options{Size: town.SizeTown, Seed: 1})
 	if err != nil {
 		log.Fatal(err)
 	}

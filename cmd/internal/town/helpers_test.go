@@ -37,8 +37,8 @@ func readTrips(t testing.TB, r io.Reader) []csvTrip {
 	if err != nil {
 		t.Fatalf("reading header: %v", err)
 	}
-	if got := joinComma(head); got != TripHeader {
-		t.Fatalf("header %q, want %q", got, TripHeader)
+	if got := joinComma(head); got != tripHeader {
+		t.Fatalf("header %q, want %q", got, tripHeader)
 	}
 	var out []csvTrip
 	for line := 2; ; line++ {

@@ -16,11 +16,11 @@ import (
 	"narrows/partition/geodesy"
 )
 
-// Network is a directed street network for routing: nodes with positions in
+// network is a directed street network for routing: nodes with positions in
 // local metres and links with length, free-flow time and capacity.
-type Network struct {
+type network struct {
 	pos      []xy
-	osm      []int64 // OSM node id per node (nil for GridNetwork)
+	osm      []int64 // OSM node id per node (nil for gridNetwork)
 	links    []link
 	inStart  []int32 // CSR of incoming links by head node
 	inLinks  []int32
@@ -52,15 +52,15 @@ const (
 	crossingDelay = 5.0  // mean delay at a level crossing, s
 )
 
-// NetworkOf builds the routing network of the town, with or without the link.
+// networkOf builds the routing network of the town, with or without the link.
 // Link indices of the network without the link are a prefix of those with it.
-func (t *Town) NetworkOf(withLink bool) (*Network, error) {
-	ways := t.Ways
+func (t *Town) networkOf(withLink bool) (*network, error) {
+	ways := t.ways
 	if withLink && t.Link != nil {
-		ways = append(append([]Way(nil), t.Ways...), *t.Link)
+		ways = append(append([]Way(nil), t.ways...), *t.Link)
 	}
-	nodeTags := make(map[int64][]Tag)
-	for _, n := range t.Nodes {
+	nodeTags := make(map[int64][]tag)
+	for _, n := range t.nodes {
 		if len(n.Tags) > 0 {
 			nodeTags[n.ID] = n.Tags
 		}
@@ -69,7 +69,7 @@ func (t *Town) NetworkOf(withLink bool) (*Network, error) {
 	for i := range index {
 		index[i] = -1
 	}
-	nw := &Network{}
+	nw := &network{}
 	type pair struct{ a, b int32 }
 	seen := make(map[pair]bool)
 	deg := make(map[int32]map[int32]bool)
@@ -91,7 +91,7 @@ func (t *Town) NetworkOf(withLink bool) (*Network, error) {
 		}
 		speed, err := strconv.ParseFloat(w.Tag("maxspeed"), 64)
 		if err != nil || speed <= 0 {
-			return nil, fmt.Errorf("town: way %d: maxspeed %q is not a positive number", w.ID, w.Tag("maxspeed"))
+			return nil, fmt.Errorf("town: way %d: maxspeed %q is not a positive number", w.id, w.Tag("maxspeed"))
 		}
 		oneway := w.Tag("oneway") == "yes"
 		// Lanes per direction; a single lane shared by both directions
@@ -101,10 +101,10 @@ func (t *Town) NetworkOf(withLink bool) (*Network, error) {
 			perDir = float64(lanes)
 		}
 		v := geodesy.MPS(speed) * freeFlowShare
-		for k := 1; k < len(w.Nodes); k++ {
-			a, b := w.Nodes[k-1], w.Nodes[k]
+		for k := 1; k < len(w.nodes); k++ {
+			a, b := w.nodes[k-1], w.nodes[k]
 			if a <= 0 || b <= 0 || int(a) >= len(index) || int(b) >= len(index) {
-				return nil, fmt.Errorf("town: way %d: node %d or %d unknown", w.ID, a, b)
+				return nil, fmt.Errorf("town: way %d: node %d or %d unknown", w.id, a, b)
 			}
 			for _, id := range []int64{a, b} {
 				if index[id] < 0 {
@@ -160,7 +160,7 @@ func (t *Town) NetworkOf(withLink bool) (*Network, error) {
 	return nw, nil
 }
 
-func tagValue(tags []Tag, keys ...string) string {
+func tagValue(tags []tag, keys ...string) string {
 	for _, k := range keys {
 		for _, t := range tags {
 			if t.Key == k {
@@ -173,14 +173,14 @@ func tagValue(tags []Tag, keys ...string) string {
 
 func dist(a, b xy) float64 { return math.Hypot(a.X-b.X, a.Y-b.Y) }
 
-// GridNetwork returns an uncongested square grid of n x n nodes, spacing
+// gridNetwork returns an uncongested square grid of n x n nodes, spacing
 // metres apart, with two-way links of equal speed: the geometry check of
 // the routing (shortest paths on it are Manhattan paths).
-func GridNetwork(n int, spacing float64) (*Network, error) {
+func gridNetwork(n int, spacing float64) (*network, error) {
 	if n < 2 || n > 2000 || spacing <= 0 || math.IsNaN(spacing) || math.IsInf(spacing, 0) {
 		return nil, fmt.Errorf("town: grid of %d x %d nodes at %v m: need 2 <= n <= 2000 and a positive finite spacing", n, n, spacing)
 	}
-	nw := &Network{}
+	nw := &network{}
 	for j := 0; j < n; j++ {
 		for i := 0; i < n; i++ {
 			nw.pos = append(nw.pos, xy{float64(i) * spacing, float64(j) * spacing})
@@ -206,7 +206,7 @@ func GridNetwork(n int, spacing float64) (*Network, error) {
 }
 
 // finish builds the incoming-link index and the gonum graph.
-func (nw *Network) finish() {
+func (nw *network) finish() {
 	n := len(nw.pos)
 	nw.inStart = make([]int32, n+1)
 	for _, l := range nw.links {
@@ -244,7 +244,7 @@ func (nw *Network) finish() {
 // path.Weighted) under one set of link weights. It is read-only, so
 // several Dijkstra runs may share it.
 type weighted struct {
-	nw *Network
+	nw *network
 	w  []float64
 }
 
@@ -284,7 +284,7 @@ func (g weighted) Weight(xid, yid int64) (float64, bool) {
 
 // outNodes iterates over the heads of a node's outgoing links.
 type outNodes struct {
-	nw  *Network
+	nw  *network
 	out []int32
 	pos int
 }
@@ -306,8 +306,8 @@ func (it *outNodes) Node() graph.Node {
 	return it.nw.nodes[it.nw.links[it.out[it.pos]].to]
 }
 
-// Len returns the number of nodes and links.
-func (nw *Network) Len() (nodes, links int) { return len(nw.pos), len(nw.links) }
+// count returns the number of nodes and links.
+func (nw *network) count() (nodes, links int) { return len(nw.pos), len(nw.links) }
 
 // tree is one shortest-path tree: per node its distance (the weight), its
 // parent link (-1 for the root and unreachable nodes), and the reachable
@@ -335,7 +335,7 @@ const gonumNodeLimit = 2000
 // The parent of each node is its incoming link with the least
 // dist(from)+weight, ties to the lower link index, which makes the tree
 // independent of the order in which the search met the nodes.
-func (nw *Network) shortestTree(root int, weights []float64, tr *tree) {
+func (nw *network) shortestTree(root int, weights []float64, tr *tree) {
 	n := len(nw.pos)
 	if n > gonumNodeLimit {
 		nw.heapTree(root, weights, tr)
@@ -384,7 +384,7 @@ func (a heapItem) less(b heapItem) bool {
 // node) and lazy deletion. Nodes settle in ascending (distance, node)
 // order: with positive weights every node of distance d is in the heap
 // with its final key before the first of them is popped.
-func (nw *Network) heapTree(root int, weights []float64, tr *tree) {
+func (nw *network) heapTree(root int, weights []float64, tr *tree) {
 	for v := range tr.dist {
 		tr.dist[v] = math.Inf(1)
 	}
@@ -435,10 +435,10 @@ func (nw *Network) heapTree(root int, weights []float64, tr *tree) {
 	tr.heap = h
 }
 
-// ShortestLengths returns, for each node in from, the length in metres of
+// shortestLengths returns, for each node in from, the length in metres of
 // the shortest-length path to every node (+Inf where unreachable). Node
-// indices of a GridNetwork are j*n+i.
-func (nw *Network) ShortestLengths(from ...int) ([][]float64, error) {
+// indices of a gridNetwork are j*n+i.
+func (nw *network) shortestLengths(from ...int) ([][]float64, error) {
 	lengths := make([]float64, len(nw.links))
 	for i, l := range nw.links {
 		lengths[i] = l.length
@@ -459,8 +459,8 @@ func (nw *Network) ShortestLengths(from ...int) ([][]float64, error) {
 	return out, nil
 }
 
-// NodePoint returns node v's position in local metres.
-func (nw *Network) NodePoint(v int) (x, y float64) { return nw.pos[v].X, nw.pos[v].Y }
+// nodePoint returns node v's position in local metres.
+func (nw *network) nodePoint(v int) (x, y float64) { return nw.pos[v].X, nw.pos[v].Y }
 
 // parallel runs job(chunk) for chunk = 0..chunks-1 on up to GOMAXPROCS
 // workers. Callers keep per-chunk results and combine them in chunk order,

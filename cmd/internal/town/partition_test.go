@@ -36,7 +36,7 @@ func studyOptions() partition.Options {
 // planted districts are different regions, and the link (a tertiary road)
 // leaves the regions as they were.
 func TestPartitionTown(t *testing.T) {
-	tw, err := Generate(DefaultOptions())
+	tw, err := Generate(defaultOptions())
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -87,7 +87,7 @@ func TestPartitionCity(t *testing.T) {
 	if testing.Short() {
 		t.Skip("city in -short")
 	}
-	tw, err := Generate(Options{Size: SizeCity, Seed: 1})
+	tw, err := Generate(Options{Size: sizeCity, Seed: 1})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -116,7 +116,7 @@ func TestPartitionCity(t *testing.T) {
 // 0.2 km² and far from thin, so default mode must keep every face of the
 // exact partition.
 func TestWideElongatedFacesAreNotSlivers(t *testing.T) {
-	tw, err := Generate(DefaultOptions())
+	tw, err := Generate(defaultOptions())
 	if err != nil {
 		t.Fatal(err)
 	}

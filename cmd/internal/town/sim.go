@@ -19,7 +19,7 @@ import (
 
 // SimOptions controls Simulate. Zero Days, TripsPerDay, MSARounds,
 // Location and Start take their defaults; the shares and rates are used as
-// given (0 means none), so start from DefaultSimOptions.
+// given (0 means none), so start from Plan.SimOptions.
 type SimOptions struct {
 	// Seed drives every random draw of the simulation. Default 1.
 	Seed int64
@@ -59,19 +59,19 @@ type SimOptions struct {
 	OnTrace func(Trace) error
 }
 
-// DefaultSimOptions returns the documented defaults.
-func DefaultSimOptions() SimOptions {
-	loc := StudyLocation()
+// defaultSimOptions returns the documented defaults.
+func defaultSimOptions() SimOptions {
+	loc := studyLocation()
 	return SimOptions{
 		Seed: 1, Start: time.Date(2026, 3, 2, 0, 0, 0, 0, loc), Days: 7, TripsPerDay: 10000,
 		Location: loc, MSARounds: 4, IncidentRate: 0.1, DayVariation: 0.08,
 	}
 }
 
-// StudyLocation returns the demo's time zone, Etc/GMT-1 (UTC+1 all year),
+// studyLocation returns the demo's time zone, Etc/GMT-1 (UTC+1 all year),
 // or a fixed zone of the same name and offset if the time zone database is
 // missing.
-func StudyLocation() *time.Location {
+func studyLocation() *time.Location {
 	if loc, err := time.LoadLocation("Etc/GMT-1"); err == nil {
 		return loc
 	}
@@ -81,13 +81,13 @@ func StudyLocation() *time.Location {
 // Stats summarises a simulation.
 type Stats struct {
 	Days, Trips, IncidentDays int
-	// Assignments has one entry per network state used (without the link,
+	// assignments has one entry per network state used (without the link,
 	// then with it).
-	Assignments []AssignmentStats
+	assignments []assignmentStats
 }
 
-// AssignmentStats describes the congested assignment of one network state.
-type AssignmentStats struct {
+// assignmentStats describes the congested assignment of one network state.
+type assignmentStats struct {
 	WithLink            bool
 	Zones, TripEnds     int
 	Nodes, Links        int
@@ -114,12 +114,12 @@ const (
 	setback          = 12.0   // m, largest distance of a trip point from its street
 )
 
-// TripHeader is the first line of the trip CSV.
-const TripHeader = "trip_id,start_time,end_time,start_lon,start_lat,end_lon,end_lat,distance_m"
+// tripHeader is the first line of the trip CSV.
+const tripHeader = "trip_id,start_time,end_time,start_lon,start_lat,end_lon,end_lat,distance_m"
 
-// Simulate writes the fleet trips of opts.Days days as CSV rows (TripHeader
-// first) to trips, day by day in start-time order. The same town and options
-// give the same bytes.
+// Simulate writes the fleet trips of opts.Days days to trips in the ingest
+// trip CSV format (header line first), day by day in start-time order. The
+// same town and options give the same bytes.
 func (t *Town) Simulate(ctx context.Context, opts SimOptions, trips io.Writer) (Stats, error) {
 	var st Stats
 	if t == nil || t.grid == nil {
@@ -134,7 +134,7 @@ func (t *Town) Simulate(ctx context.Context, opts SimOptions, trips io.Writer) (
 		return st, err
 	}
 	bw := bufio.NewWriterSize(trips, 1<<16)
-	if _, err := bw.WriteString(TripHeader + "\n"); err != nil {
+	if _, err := bw.WriteString(tripHeader + "\n"); err != nil {
 		return st, fmt.Errorf("town: writing trips: %w", err)
 	}
 	var nextID int64 = 1
@@ -167,7 +167,7 @@ func (t *Town) Simulate(ctx context.Context, opts SimOptions, trips io.Writer) (
 		}
 	}
 	st.Days = o.Days
-	st.Assignments = s.built
+	st.assignments = s.built
 	if err := bw.Flush(); err != nil {
 		return st, fmt.Errorf("town: writing trips: %w", err)
 	}
@@ -175,7 +175,7 @@ func (t *Town) Simulate(ctx context.Context, opts SimOptions, trips io.Writer) (
 }
 
 func (t *Town) normalise(o SimOptions) (SimOptions, error) {
-	def := DefaultSimOptions()
+	def := defaultSimOptions()
 	if o.Location == nil {
 		o.Location = def.Location
 	}
@@ -223,7 +223,7 @@ type sim struct {
 	prof   *profiles
 	days   []dayPlan
 	states [2]*netState // without, with the link
-	built  []AssignmentStats
+	built  []assignmentStats
 }
 
 type dayPlan struct {
@@ -239,7 +239,7 @@ type dayPlan struct {
 
 // netState is everything that depends on the network state.
 type netState struct {
-	nw             *Network
+	nw             *network
 	zones          []zone
 	commute, other []float64 // zone OD: daily commuting tours, daily other trips
 	cumC, cumO     []float64 // cumulative, for sampling
@@ -251,7 +251,7 @@ type netState struct {
 	table          *routeTable
 	incidents      map[int]int // day index -> incident number in table
 	extra          []float64   // per incident: peak-hour extra delay on the link, s
-	stats          AssignmentStats
+	stats          assignmentStats
 }
 
 func (t *Town) newSim(o SimOptions) (*sim, error) {
@@ -311,7 +311,7 @@ func (s *sim) traffic(rs *netState, sec float64, weekend bool) float64 {
 
 func (s *sim) build(ctx context.Context, withLink bool) (*netState, error) {
 	t := s.t
-	nw, err := t.NetworkOf(withLink)
+	nw, err := t.networkOf(withLink)
 	if err != nil {
 		return nil, err
 	}
@@ -432,13 +432,13 @@ func (s *sim) build(ctx context.Context, withLink bool) (*netState, error) {
 		l := nw.links[li]
 		rs.incidents[d.index] = len(incLinks)
 		incLinks = append(incLinks, li)
-		rs.extra = append(rs.extra, BPR(l.t0, a.Volume[li], l.capacity*incidentCapacity)-a.Time[li])
+		rs.extra = append(rs.extra, bpr(l.t0, a.Volume[li], l.capacity*incidentCapacity)-a.Time[li])
 	}
 	rs.table, err = routes(ctx, nw, od, a, incLinks, s.o.TraceEvery > 0)
 	if err != nil {
 		return nil, err
 	}
-	st := AssignmentStats{WithLink: withLink, Zones: nz, TripEnds: m, Nodes: len(nw.pos), Links: len(nw.links),
+	st := assignmentStats{WithLink: withLink, Zones: nz, TripEnds: m, Nodes: len(nw.pos), Links: len(nw.links),
 		PeakMinute:   peakMinute,
 		RelativeGaps: append([]float64(nil), a.RelativeGaps...)}
 	for _, x := range od.v {
@@ -584,7 +584,7 @@ type endChoice struct {
 // otherwise the point is uniform in the zone and joins the nearest trip-end
 // node, the access distance being the Manhattan distance, as if driven
 // along the block's streets.
-func (t *Town) tripEnd(rng *rand.Rand, z *zone, nw *Network) (orb.Point, [2]endChoice) {
+func (t *Town) tripEnd(rng *rand.Rand, z *zone, nw *network) (orb.Point, [2]endChoice) {
 	out := [2]endChoice{{end: -1}, {end: -1}}
 	if len(z.segs) > 0 {
 		sg := z.segs[rng.IntN(len(z.segs))]

@@ -19,42 +19,42 @@ const (
 	// 6 km across, which partitions into about 50 regions (with the river
 	// and the railway as barriers).
 	SizeTown Size = "town"
-	// SizeCity is the benchmark city: a 40 x 40 grid of arterial cells,
+	// sizeCity is the benchmark city: a 40 x 40 grid of arterial cells,
 	// about 20 km across, which partitions into about 1,450 regions.
-	SizeCity Size = "city"
+	sizeCity Size = "city"
 )
 
 // Options controls Generate.
 type Options struct {
-	// Size is SizeTown or SizeCity. Default SizeTown.
+	// Size is SizeTown or "city" (the benchmark city). Default SizeTown.
 	Size Size
-	// Seed drives the perturbation of the grid. Default 1.
+	// Seed drives the perturbation of the grid; the demo uses 1.
 	Seed int64
 }
 
-// DefaultOptions returns the demo town with seed 1.
-func DefaultOptions() Options { return Options{Size: SizeTown, Seed: 1} }
+// defaultOptions returns the demo town with seed 1.
+func defaultOptions() Options { return Options{Size: SizeTown, Seed: 1} }
 
-// Tag is one OSM key=value pair.
-type Tag struct{ Key, Value string }
+// tag is one OSM key=value pair.
+type tag struct{ Key, Value string }
 
-// Node is an OSM node.
-type Node struct {
+// osmNode is an OSM node.
+type osmNode struct {
 	ID    int64
 	Point orb.Point // WGS84 longitude, latitude
-	Tags  []Tag
+	Tags  []tag
 }
 
 // Way is an OSM way: a polyline through nodes, with tags.
 type Way struct {
-	ID    int64
-	Nodes []int64
-	Tags  []Tag // sorted by key
+	id    int64
+	nodes []int64
+	tags  []tag // sorted by key
 }
 
 // Tag returns the value of key, or "" when the way has no such tag.
 func (w *Way) Tag(key string) string {
-	for _, t := range w.Tags {
+	for _, t := range w.tags {
 		if t.Key == key {
 			return t.Value
 		}
@@ -68,31 +68,31 @@ type District struct {
 	// Centre is a point well inside the district (longitude, latitude);
 	// it identifies the district's region after partitioning.
 	Centre orb.Point
-	// Area is the district's outline (an approximate rectangle between the
+	// area is the district's outline (an approximate rectangle between the
 	// arterials and the river bank), closed, counter-clockwise.
-	Area orb.Ring
+	area orb.Ring
 }
 
 // Town is a generated town.
 type Town struct {
-	// Name is the town's (invented) name; Size and Seed are the options it
+	// Name is the town's (invented) name; size and seed are the options it
 	// was generated with.
 	Name string
-	Size Size
-	Seed int64
-	// Nodes and Ways are the network without the link, ascending by ID.
-	Nodes []Node
-	Ways  []Way
-	// Link is the planned new river crossing; LinkNodes are the nodes only
-	// it uses (its end nodes are ordinary street nodes in Nodes).
+	size Size
+	seed int64
+	// nodes and ways are the network without the link, ascending by ID.
+	nodes []osmNode
+	ways  []Way
+	// Link is the planned new river crossing; linkNodes are the nodes only
+	// it uses (its end nodes are ordinary street nodes in nodes).
 	Link      *Way
-	LinkNodes []Node
+	linkNodes []osmNode
 	// LinkMidpoint is the middle of the new bridge (for a map focus).
 	LinkMidpoint orb.Point
 	// Housing (north bank) and Jobs (south bank) are the planted districts.
 	Housing, Jobs District
-	// Bound is the study area written as the OSM <bounds>.
-	Bound orb.Bound
+	// bound is the study area written as the OSM <bounds>.
+	bound orb.Bound
 
 	lay   layout
 	warp  warp
@@ -138,12 +138,12 @@ func layoutFor(s Size) (layout, error) {
 		return layout{name: "Quillhaven", nx: 6, ny: 6, k: 3, block: 300, margin: 400,
 			riverRow: 3, riverGap: 300, oldBridges: true, railCol: 1, bridgeCols: []int{6, 15}, plantCol: 3, linkCol: 10,
 			origin: orb.Point{0.83, 0.61}, population: 65000, beta: 1.0 / 1600, plantedHousing: 0.10, plantedJobs: 0.12}, nil
-	case SizeCity:
+	case sizeCity:
 		return layout{name: "Ostravel", nx: 40, ny: 40, k: 2, block: 250, margin: 500,
 			riverRow: 20, railCol: 12, bridgeCols: []int{8, 16, 24, 32, 40, 48, 56, 64, 72}, plantCol: 14, linkCol: 29,
 			origin: orb.Point{0.71, 0.52}, population: 800000, beta: 1.0 / 2200, plantedHousing: 0.0012, plantedJobs: 0.0015}, nil
 	}
-	return layout{}, fmt.Errorf("town: unknown size %q (want %q or %q)", s, SizeTown, SizeCity)
+	return layout{}, fmt.Errorf("town: unknown size %q (want %q or %q)", s, SizeTown, sizeCity)
 }
 
 // NX and NY are the grid line counts minus one.
@@ -206,7 +206,7 @@ func Generate(opts Options) (*Town, error) {
 		riverPhase: rng.Float64() * 2 * math.Pi,
 		railPhase:  rng.Float64() * 2 * math.Pi,
 	}
-	t := &Town{Name: lay.name, Size: size, Seed: opts.Seed, lay: lay, warp: w}
+	t := &Town{Name: lay.name, size: size, seed: opts.Seed, lay: lay, warp: w}
 	b := &builder{t: t, lay: lay, w: w, rng: rng}
 	b.build()
 	return t, nil
@@ -218,7 +218,7 @@ type builder struct {
 	w   warp
 	rng *rand.Rand
 
-	nodes  []Node
+	nodes  []osmNode
 	ways   []Way
 	nextID int64
 	rail   []railPoint // crossings with the railway, by grid y
@@ -252,10 +252,10 @@ func (b *builder) node(i, j int) *gridNode {
 	return g
 }
 
-func (b *builder) addNode(p xy, tags []Tag) int64 {
+func (b *builder) addNode(p xy, tags []tag) int64 {
 	b.nextID++
 	b.t.local = append(b.t.local, p)
-	b.nodes = append(b.nodes, Node{ID: b.nextID, Point: b.t.lonLat(p), Tags: tags})
+	b.nodes = append(b.nodes, osmNode{ID: b.nextID, Point: b.t.lonLat(p), Tags: tags})
 	return b.nextID
 }
 
@@ -280,9 +280,9 @@ func (b *builder) build() {
 			}
 			p := b.w.apply(gx, gy)
 			p = xy{p.X + dx + off, p.Y + dy + off}
-			var tags []Tag
+			var tags []tag
 			if i%lay.k == 0 && j%lay.k == 0 && i > 0 && i < NX && j > 0 && j < NY {
-				tags = []Tag{{"highway", "traffic_signals"}}
+				tags = []tag{{"highway", "traffic_signals"}}
 			}
 			id := b.addNode(p, tags)
 			t.grid[b.gridIndex(i, j)] = gridNode{id: id, gx: gx, gy: gy, pos: p}
@@ -294,9 +294,9 @@ func (b *builder) build() {
 	b.river()
 	b.link()
 	b.districts()
-	t.Nodes = b.nodes
-	t.Ways = b.ways
-	t.Bound = orb.Bound{Min: t.lonLat(xy{0, 0}), Max: t.lonLat(xy{lay.width() + 2*off, lay.height() + 2*off})}
+	t.nodes = b.nodes
+	t.ways = b.ways
+	t.bound = orb.Bound{Min: t.lonLat(xy{0, 0}), Max: t.lonLat(xy{lay.width() + 2*off, lay.height() + 2*off})}
 }
 
 // gridPos maps a grid position to local metres (warped, offset by the margin).
@@ -358,28 +358,28 @@ type lineSpec struct {
 	railOver  bool // crosses the railway on a bridge
 }
 
-func (b *builder) tagsFor(s lineSpec, bridge bool) []Tag {
+func (b *builder) tagsFor(s lineSpec, bridge bool) []tag {
 	rt := roadTags[s.class]
-	tags := []Tag{{"highway", rt.highway}, {"lanes", rt.lanes}, {"maxspeed", rt.maxspeed}, {"name", s.name}}
+	tags := []tag{{"highway", rt.highway}, {"lanes", rt.lanes}, {"maxspeed", rt.maxspeed}, {"name", s.name}}
 	if s.ref != "" {
-		tags = append(tags, Tag{"ref", s.ref})
+		tags = append(tags, tag{"ref", s.ref})
 	}
 	if s.oneway {
-		tags = append(tags, Tag{"oneway", "yes"})
+		tags = append(tags, tag{"oneway", "yes"})
 	}
 	if bridge {
-		tags = append(tags, Tag{"bridge", "yes"}, Tag{"layer", "1"})
+		tags = append(tags, tag{"bridge", "yes"}, tag{"layer", "1"})
 	}
 	sort.Slice(tags, func(i, j int) bool { return tags[i].Key < tags[j].Key })
 	return tags
 }
 
-func (b *builder) addWay(nodes []int64, tags []Tag) {
+func (b *builder) addWay(nodes []int64, tags []tag) {
 	if len(nodes) < 2 {
 		return
 	}
 	id := int64(len(b.ways) + 1)
-	b.ways = append(b.ways, Way{ID: id, Nodes: append([]int64(nil), nodes...), Tags: tags})
+	b.ways = append(b.ways, Way{id: id, nodes: append([]int64(nil), nodes...), tags: tags})
 }
 
 // emitLine turns a path of grid nodes into ways, cutting it where it meets
@@ -423,7 +423,7 @@ func (b *builder) emitLine(path []*gridNode, s lineSpec) {
 					}
 				}
 				// Signals at both ends let the two directions take turns.
-				signals := []Tag{{"highway", "traffic_signals"}}
+				signals := []tag{{"highway", "traffic_signals"}}
 				b.nodes[p1-1].Tags, b.nodes[p2-1].Tags = signals, signals
 			}
 			b.addWay([]int64{p1, p2}, tags)
@@ -440,7 +440,7 @@ func (b *builder) emitLine(path []*gridNode, s lineSpec) {
 				cur = []int64{p2, g.id}
 			case s.crossRail:
 				f := (xr - a.gx) / (g.gx - a.gx)
-				id := b.addNode(lerp(a.pos, g.pos, f), []Tag{{"railway", "level_crossing"}})
+				id := b.addNode(lerp(a.pos, g.pos, f), []tag{{"railway", "level_crossing"}})
 				b.rail = append(b.rail, railPoint{gy: a.gy, id: id})
 				cur = append(cur, id, g.id)
 			default:
@@ -594,9 +594,9 @@ func (b *builder) railway() {
 			north = append(north, id)
 		}
 	}
-	tags := []Tag{{"name", "Orvel Valley Line"}, {"railway", "rail"}}
+	tags := []tag{{"name", "Orvel Valley Line"}, {"railway", "rail"}}
 	b.addWay(append(south, bridge[0]), tags)
-	b.addWay([]int64{bridge[0], bridge[1]}, []Tag{{"bridge", "yes"}, {"layer", "1"}, {"name", "Orvel Valley Line"}, {"railway", "rail"}})
+	b.addWay([]int64{bridge[0], bridge[1]}, []tag{{"bridge", "yes"}, {"layer", "1"}, {"name", "Orvel Valley Line"}, {"railway", "rail"}})
 	b.addWay(append([]int64{bridge[1]}, north...), tags)
 }
 
@@ -614,7 +614,7 @@ func (b *builder) river() {
 			break
 		}
 	}
-	b.addWay(ids, []Tag{{"name", "Orvel"}, {"waterway", "river"}})
+	b.addWay(ids, []tag{{"name", "Orvel"}, {"waterway", "river"}})
 }
 
 // link is the planned bridge: it joins the two dead ends of a local street
@@ -640,7 +640,7 @@ func (b *builder) link() {
 	f2 := (yr + h - south.gy) / (north.gy - south.gy)
 	before := len(b.nodes)
 	p1, p2 := b.crossingPair(south, north, f1, f2)
-	b.t.LinkNodes = append([]Node(nil), b.nodes[before:]...)
+	b.t.linkNodes = append([]osmNode(nil), b.nodes[before:]...)
 	b.nodes = b.nodes[:before]
 	// A new bridge is built for the traffic it will draw: two lanes each way.
 	tags := b.tagsFor(lineSpec{class: classTertiary, name: "Lantern Bridge"}, true)
@@ -649,7 +649,7 @@ func (b *builder) link() {
 			tags[k].Value = "4"
 		}
 	}
-	b.t.Link = &Way{ID: int64(len(b.ways)) + 1, Nodes: []int64{south.id, p1, p2, north.id}, Tags: tags}
+	b.t.Link = &Way{id: int64(len(b.ways)) + 1, nodes: []int64{south.id, p1, p2, north.id}, tags: tags}
 	mid := lerp(b.t.local[p1-1], b.t.local[p2-1], 0.5)
 	b.t.LinkMidpoint = b.t.lonLat(mid)
 }
@@ -670,7 +670,7 @@ func (b *builder) districts() {
 			ring = append(ring, b.t.lonLat(b.gridPos(q[0], q[1])))
 		}
 		cx, cy := (x0+x1)/2, (ya+yb)/2
-		return District{Name: name, Centre: b.t.lonLat(b.gridPos(cx, cy)), Area: ring}
+		return District{Name: name, Centre: b.t.lonLat(b.gridPos(cx, cy)), area: ring}
 	}
 	b.t.Housing = mk("Northbank housing", ry+gap, y1-0.1*lay.block)
 	b.t.Jobs = mk("Southbank works", y0+0.1*lay.block, ry-gap)
