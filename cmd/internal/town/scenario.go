@@ -7,25 +7,26 @@ import (
 
 // Period is a half-open range of local days [From, To).
 type Period struct {
-	name     string
 	From, To time.Time
+	name     string // "before" or "after"
 }
 
 // Plan describes a demo scenario: the days simulated, the two periods to
 // compare and when the link opens.
 type Plan struct {
-	// kind is "link" (the link opens at the start of After) or "control"
-	// (nothing changes).
-	kind string
 	// Location is the study time zone (Etc/GMT-1).
 	Location *time.Location
-	// start is the first day (local midnight); Days the number of days.
-	start time.Time
-	days  int
 	// Before and After are the periods compared: four weeks each.
 	Before, After Period
 	// LinkOpens is the first day with the link, nil for the control.
 	LinkOpens *time.Time
+
+	// kind is "link" (the link opens at the start of After) or "control"
+	// (nothing changes).
+	kind string
+	// start is the first day (local midnight); days the number of days.
+	start time.Time
+	days  int
 	// tripsPerDay is the weekday fleet sample.
 	tripsPerDay int
 }
