@@ -19,12 +19,8 @@ const (
 	otherTrips       = 0.7
 	weekendCommute   = 0.15
 	weekendOther     = 0.9
-	otherBetaFactor  = 1.5    // other trips are shorter than commutes
-	incidentCapacity = 0.35   // share of capacity left on an incident link
-	incidentMaxDelay = 1200.0 // s, cap on one trip's incident delay
-	accessSpeed      = 5.0    // m/s, driving from the trip point to the first junction
-	durationNoise    = 0.1    // lognormal sigma of the driving time
-	setback          = 12.0   // m, largest distance of a trip point from its street
+	otherBetaFactor  = 1.5  // other trips are shorter than commutes
+	incidentCapacity = 0.35 // share of capacity left on an incident link
 )
 
 // netState is everything that depends on the network state.
@@ -56,12 +52,42 @@ func (s *sim) traffic(rs *netState, sec float64, weekend bool) float64 {
 	return (c + rs.totalO*wo*other.density(sec)) / (2*rs.totalC + rs.totalO)
 }
 
+// build builds the network state with or without the link: its zones and
+// trip ends, their daily demand, the peak-hour demand between trip ends
+// and its congested assignment, the incidents of the state's days, and the
+// route table.
 func (s *sim) build(ctx context.Context, withLink bool) (*netState, error) {
-	t := s.t
-	nw, err := t.networkOf(withLink)
+	nw, err := s.t.networkOf(withLink)
 	if err != nil {
 		return nil, err
 	}
+	zones := s.zones(nw)
+	ends := indexTripEnds(zones)
+	rs := &netState{nw: nw, zones: zones, incidents: map[int]int{}}
+	if err := s.demand(rs); err != nil {
+		return nil, err
+	}
+	peakMinute := s.peakMinute(rs)
+	od := s.peakOD(rs, ends, peakMinute)
+	a, err := msa(ctx, nw, od, s.o.MSARounds)
+	if err != nil {
+		return nil, err
+	}
+	rs.od, rs.assign = od, a
+	incLinks := s.planIncidents(rs, withLink)
+	rs.table, err = routes(ctx, nw, od, a, incLinks, s.o.TraceEvery > 0)
+	if err != nil {
+		return nil, err
+	}
+	rs.stats = rs.summary(withLink, peakMinute)
+	return rs, nil
+}
+
+// zones returns the demand zones over nw with ZoneNodes trip ends each; by
+// default all of a zone's nodes, or one when the town has more than 1,000
+// such nodes.
+func (s *sim) zones(nw *network) []zone {
+	t := s.t
 	per := s.o.ZoneNodes
 	zones := t.zonesOf(nw, 0)
 	if per == 0 {
@@ -76,8 +102,12 @@ func (s *sim) build(ctx context.Context, withLink bool) (*netState, error) {
 	if per > 0 {
 		zones = t.zonesOf(nw, per)
 	}
-	rs := &netState{nw: nw, zones: zones, incidents: map[int]int{}}
-	// Trip ends: the union of the zones' nodes, ascending.
+	return zones
+}
+
+// indexTripEnds returns the trip ends, the union of the zones' nodes in
+// ascending order, and sets each zone's ends to its nodes' indices in it.
+func indexTripEnds(zones []zone) []int32 {
 	endOf := make(map[int32]int32)
 	var ends []int32
 	for _, z := range zones {
@@ -99,7 +129,13 @@ func (s *sim) build(ctx context.Context, withLink bool) (*netState, error) {
 			z.ends[k] = endOf[v]
 		}
 	}
-	nz := len(zones)
+	return ends
+}
+
+// demand sets the daily zone-to-zone demand of both purposes, from the
+// gravity model, and the cumulative sums trips are drawn from.
+func (s *sim) demand(rs *netState) error {
+	t, zones := s.t, rs.zones
 	h, jb := t.plantedZones(zones)
 	commuteK := func(i, j int) float64 {
 		if i == h && j == jb {
@@ -114,23 +150,35 @@ func (s *sim) build(ctx context.Context, withLink bool) (*netState, error) {
 	rs.cumC, rs.totalC = cumulative(rs.commute)
 	rs.cumO, rs.totalO = cumulative(rs.other)
 	if rs.totalC <= 0 || rs.totalO <= 0 {
-		return nil, errors.New("town: no demand between zones")
+		return errors.New("town: no demand between zones")
 	}
 	rs.shareC = 2 * rs.totalC / (2*rs.totalC + rs.totalO)
+	return nil
+}
+
+// peakMinute sets rs.peak, the weekday traffic density at its peak, and
+// returns the minute of the day of the peak.
+func (s *sim) peakMinute(rs *netState) int {
 	peakMinute := 0
 	for m := 0; m < 1440; m++ {
 		if d := s.traffic(rs, float64(m*60), false); d > rs.peak {
 			rs.peak, peakMinute = d, m
 		}
 	}
+	return peakMinute
+}
+
+// peakOD returns the peak-hour demand between trip ends: the morning peak,
+// with commuters heading to work. Evening commuters meet the mirror image
+// of it (see dayTrips).
+func (s *sim) peakOD(rs *netState, ends []int32, peakMinute int) *odMatrix {
+	zones := rs.zones
+	nz := len(zones)
 	tp := float64(peakMinute * 60)
 	p := s.prof
 	dOut := 3600 * p.commuteAM.density(tp)
 	dBack := 3600 * p.commutePM.density(tp)
 	dOther := 3600 * p.otherWeekday.density(tp)
-	// Peak-hour OD between trip ends: the morning peak, with commuters
-	// heading to work. Evening commuters meet the mirror image of it (see
-	// dayTrips).
 	m := len(ends)
 	od := &odMatrix{ends: ends, m: m, v: make([]float64, m*m)}
 	for i := 0; i < nz; i++ {
@@ -151,12 +199,15 @@ func (s *sim) build(ctx context.Context, withLink bool) (*netState, error) {
 			}
 		}
 	}
-	a, err := msa(ctx, nw, od, s.o.MSARounds)
-	if err != nil {
-		return nil, err
-	}
-	rs.od, rs.assign = od, a
-	// Incidents of the days in this state.
+	return od
+}
+
+// planIncidents picks the incident link of each incident day in this
+// network state, among the loaded arterial links (all arterial links if
+// none is loaded), records each incident's extra peak-hour delay, and
+// returns the incident links in incident order.
+func (s *sim) planIncidents(rs *netState, withLink bool) []int32 {
+	nw, a := rs.nw, rs.assign
 	var cands []int32
 	for li, l := range nw.links {
 		if l.major && a.Volume[li] >= 0.6*l.capacity {
@@ -181,11 +232,13 @@ func (s *sim) build(ctx context.Context, withLink bool) (*netState, error) {
 		incLinks = append(incLinks, li)
 		rs.extra = append(rs.extra, bpr(l.t0, a.Volume[li], l.capacity*incidentCapacity)-a.Time[li])
 	}
-	rs.table, err = routes(ctx, nw, od, a, incLinks, s.o.TraceEvery > 0)
-	if err != nil {
-		return nil, err
-	}
-	st := assignmentStats{WithLink: withLink, Zones: nz, TripEnds: m, Nodes: len(nw.pos), Links: len(nw.links),
+	return incLinks
+}
+
+// summary describes the state's assignment.
+func (rs *netState) summary(withLink bool, peakMinute int) assignmentStats {
+	nw, od, a := rs.nw, rs.od, rs.assign
+	st := assignmentStats{WithLink: withLink, Zones: len(rs.zones), TripEnds: od.m, Nodes: len(nw.pos), Links: len(nw.links),
 		PeakMinute:   peakMinute,
 		RelativeGaps: append([]float64(nil), a.RelativeGaps...)}
 	for _, x := range od.v {
@@ -194,8 +247,7 @@ func (s *sim) build(ctx context.Context, withLink bool) (*netState, error) {
 	for li, l := range nw.links {
 		st.MaxVolumeToCapacity = math.Max(st.MaxVolumeToCapacity, a.Volume[li]/l.capacity)
 	}
-	rs.stats = st
-	return rs, nil
+	return st
 }
 
 func cumulative(xs []float64) ([]float64, float64) {

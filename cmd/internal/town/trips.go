@@ -15,6 +15,14 @@ import (
 	"github.com/paulmach/orb"
 )
 
+// Constants of a single trip.
+const (
+	incidentMaxDelay = 1200.0 // s, cap on one trip's incident delay
+	accessSpeed      = 5.0    // m/s, driving from the trip point to the first junction
+	durationNoise    = 0.1    // lognormal sigma of the driving time
+	setback          = 12.0   // m, largest distance of a trip point from its street
+)
+
 // trip is one simulated trip before formatting.
 type trip struct {
 	start, duration float64   // seconds after midnight, seconds
@@ -24,93 +32,28 @@ type trip struct {
 	from, to        int32 // trip ends the route runs between
 }
 
+// dayTrips draws the trips of one day, routes each through the network
+// state and returns them in start-time order.
 func (s *sim) dayTrips(day dayPlan, rs *netState) []trip {
-	o := s.o
-	p := s.prof
 	rng := rand.New(rand.NewPCG(day.seed, uint64(day.index)))
-	wc, wo, other := 1.0, 1.0, &p.otherWeekday
-	if day.weekend {
-		wc, wo, other = weekendCommute, weekendOther, &p.otherWeekend
+	nc, no := s.tripCounts(day, rs)
+	incident := -1 // the day's incident in the route table, -1: none
+	if inc, ok := rs.incidents[day.index]; ok {
+		incident = inc
 	}
-	base := float64(o.TripsPerDay) * day.factor
-	nc := int(math.Round(base * rs.shareC * wc))
-	no := int(math.Round(base * (1 - rs.shareC) * wo))
-	nz := len(rs.zones)
-	inc, hasInc := rs.incidents[day.index]
 	rows := make([]trip, 0, nc+no)
 	for k := 0; k < nc+no; k++ {
-		var sec float64
-		var pair int
-		swap := false
-		purpose := commuteOut
-		if k < nc {
-			pair = pick(rs.cumC, rs.totalC, rng)
-			if rng.Float64() < 0.5 {
-				sec = p.commuteAM.draw(rng)
-			} else {
-				sec, swap, purpose = p.commutePM.draw(rng), true, commuteBack
-			}
-		} else {
-			purpose = otherTrip
-			pair = pick(rs.cumO, rs.totalO, rng)
-			sec, swap = other.draw(rng), rng.Float64() < 0.5
-		}
-		zi, zj := pair/nz, pair%nz
-		if swap {
-			zi, zj = zj, zi
-		}
+		sec, zi, zj, kind := s.drawDemand(rng, rs, day.weekend, k < nc)
 		r := day.factor * s.traffic(rs, sec, day.weekend) / rs.peak
 		r4 := r * r * r * r
 		op, oEnds := s.t.tripEnd(rng, &rs.zones[zi], rs.nw)
 		dp, dEnds := s.t.tripEnd(rng, &rs.zones[zj], rs.nw)
-		tb := rs.table
-		best, bestTime := -1, math.Inf(1)
-		var bestLen, bestDrive, bestAccess float64
-		var from, to int32
-		for _, a := range oEnds {
-			if a.end < 0 {
-				continue
-			}
-			for _, b := range dEnds {
-				if b.end < 0 {
-					continue
-				}
-				key := int(a.end)*tb.m + int(b.end)
-				length := float64(tb.length[key])
-				if math.IsInf(length, 1) {
-					continue
-				}
-				// The peak delay comes from the morning peak: commuters
-				// going out meet it as assigned, commuters coming back
-				// meet its mirror image (the delay of the reverse route),
-				// other trips the mean of both directions.
-				var peak float64
-				rev := int(b.end)*tb.m + int(a.end)
-				switch purpose {
-				case commuteOut:
-					peak = float64(tb.peak[key])
-				case commuteBack:
-					peak = float64(tb.peak[rev])
-				default:
-					peak = (float64(tb.peak[key]) + float64(tb.peak[rev])) / 2
-				}
-				drive := float64(tb.t0[key]) + peak*r4
-				if hasInc && tb.uses(inc, int(a.end), int(b.end)) {
-					drive += math.Min(incidentMaxDelay, rs.extra[inc]*r4)
-				}
-				access := a.access + b.access
-				if tt := drive + access/accessSpeed; tt < bestTime {
-					best, bestTime = key, tt
-					bestLen, bestDrive, bestAccess = length, drive, access
-					from, to = a.end, b.end
-				}
-			}
-		}
-		if best < 0 {
+		rt, ok := rs.quickest(oEnds, dEnds, kind, r4, incident)
+		if !ok {
 			continue // unreachable (does not happen on a connected town)
 		}
-		dur := bestDrive*math.Exp(durationNoise*rng.NormFloat64()) + bestAccess/accessSpeed + 5 + 20*rng.Float64() // parking and starting
-		rows = append(rows, trip{start: sec, duration: dur, o: op, d: dp, distance: bestLen + bestAccess, seq: k, from: from, to: to})
+		dur := rt.drive*math.Exp(durationNoise*rng.NormFloat64()) + rt.access/accessSpeed + 5 + 20*rng.Float64() // parking and starting
+		rows = append(rows, trip{start: sec, duration: dur, o: op, d: dp, distance: rt.length + rt.access, seq: k, from: rt.from, to: rt.to})
 	}
 	// Rows by start second, then by draw (seq is unique).
 	slices.SortFunc(rows, func(a, b trip) int {
@@ -120,6 +63,107 @@ func (s *sim) dayTrips(day dayPlan, rs *netState) []trip {
 		return cmp.Compare(a.seq, b.seq)
 	})
 	return rows
+}
+
+// tripCounts returns the number of commuting and other trips of the day.
+func (s *sim) tripCounts(day dayPlan, rs *netState) (commutes, others int) {
+	wc, wo := 1.0, 1.0
+	if day.weekend {
+		wc, wo = weekendCommute, weekendOther
+	}
+	base := float64(s.o.TripsPerDay) * day.factor
+	commutes = int(math.Round(base * rs.shareC * wc))
+	others = int(math.Round(base * (1 - rs.shareC) * wo))
+	return commutes, others
+}
+
+// drawDemand draws one trip's start second, origin and destination zones
+// and purpose: a commute (out in the morning or back in the evening) or
+// another trip (either way at any time of day).
+func (s *sim) drawDemand(rng *rand.Rand, rs *netState, weekend, commute bool) (sec float64, zi, zj int, kind purpose) {
+	p := s.prof
+	other := &p.otherWeekday
+	if weekend {
+		other = &p.otherWeekend
+	}
+	var pair int
+	swap := false
+	kind = commuteOut
+	if commute {
+		pair = pick(rs.cumC, rs.totalC, rng)
+		if rng.Float64() < 0.5 {
+			sec = p.commuteAM.draw(rng)
+		} else {
+			sec, swap, kind = p.commutePM.draw(rng), true, commuteBack
+		}
+	} else {
+		kind = otherTrip
+		pair = pick(rs.cumO, rs.totalO, rng)
+		sec, swap = other.draw(rng), rng.Float64() < 0.5
+	}
+	nz := len(rs.zones)
+	zi, zj = pair/nz, pair%nz
+	if swap {
+		zi, zj = zj, zi
+	}
+	return sec, zi, zj, kind
+}
+
+// route is the quickest way between two trip points: the trip ends it runs
+// between, the route's length and driving time, and the access distance at
+// both ends.
+type route struct {
+	from, to              int32
+	length, drive, access float64
+}
+
+// quickest returns the quickest route from one of the origin's ways into
+// the network to one of the destination's, its peak delay scaled by r4
+// (the fourth power of the traffic relative to the peak), with the delay
+// of the day's incident (-1: none); false when no route exists.
+func (rs *netState) quickest(oEnds, dEnds [2]endChoice, kind purpose, r4 float64, incident int) (route, bool) {
+	tb := rs.table
+	best, bestTime := -1, math.Inf(1)
+	var rt route
+	for _, a := range oEnds {
+		if a.end < 0 {
+			continue
+		}
+		for _, b := range dEnds {
+			if b.end < 0 {
+				continue
+			}
+			key := int(a.end)*tb.m + int(b.end)
+			length := float64(tb.length[key])
+			if math.IsInf(length, 1) {
+				continue
+			}
+			// The peak delay comes from the morning peak: commuters
+			// going out meet it as assigned, commuters coming back
+			// meet its mirror image (the delay of the reverse route),
+			// other trips the mean of both directions.
+			var peak float64
+			rev := int(b.end)*tb.m + int(a.end)
+			switch kind {
+			case commuteOut:
+				peak = float64(tb.peak[key])
+			case commuteBack:
+				peak = float64(tb.peak[rev])
+			default:
+				peak = (float64(tb.peak[key]) + float64(tb.peak[rev])) / 2
+			}
+			drive := float64(tb.t0[key]) + peak*r4
+			if incident >= 0 && tb.uses(incident, int(a.end), int(b.end)) {
+				drive += math.Min(incidentMaxDelay, rs.extra[incident]*r4)
+			}
+			access := a.access + b.access
+			if tt := drive + access/accessSpeed; tt < bestTime {
+				best, bestTime = key, tt
+				rt = route{from: a.end, to: b.end, length: length, drive: drive, access: access}
+			}
+		}
+	}
+	return rt, best >= 0
 }
 
 type purpose int
