@@ -59,90 +59,120 @@ func (t *Town) networkOf(withLink bool) (*network, error) {
 	if withLink && t.Link != nil {
 		ways = append(append([]Way(nil), t.ways...), *t.Link)
 	}
+	nb := newNetworkBuilder(t.local)
+	for wi := range ways {
+		if err := nb.addWay(&ways[wi]); err != nil {
+			return nil, err
+		}
+	}
+	return nb.finish(t.nodeTags()), nil
+}
+
+// nodeTags returns the tags of the town's tagged nodes by node id.
+func (t *Town) nodeTags() map[int64][]tag {
 	nodeTags := make(map[int64][]tag)
 	for _, n := range t.nodes {
 		if len(n.Tags) > 0 {
 			nodeTags[n.ID] = n.Tags
 		}
 	}
-	index := make([]int32, len(t.local)+1)
+	return nodeTags
+}
+
+// networkBuilder turns ways into network nodes and links, in way order.
+type networkBuilder struct {
+	local []xy    // local metres of every OSM node, index = id-1
+	index []int32 // network node of each OSM node id, -1: none yet
+	nw    *network
+	seen  map[nodePair]bool        // directed node pairs that have a link
+	deg   map[int32]map[int32]bool // neighbours of each node, either direction
+	links []link                   // without the delay at the head junction
+}
+
+type nodePair struct{ a, b int32 }
+
+func newNetworkBuilder(local []xy) *networkBuilder {
+	index := make([]int32, len(local)+1)
 	for i := range index {
 		index[i] = -1
 	}
-	nw := &network{}
-	type pair struct{ a, b int32 }
-	seen := make(map[pair]bool)
-	deg := make(map[int32]map[int32]bool)
-	type pending struct {
-		l     link
-		class string
+	return &networkBuilder{local: local, index: index, nw: &network{},
+		seen: make(map[nodePair]bool), deg: make(map[int32]map[int32]bool)}
+}
+
+// addWay adds a link for each direction of travel along each segment of a
+// street, with its length, free-flow time and capacity; other ways add
+// nothing.
+func (nb *networkBuilder) addWay(w *Way) error {
+	nw, index := nb.nw, nb.index
+	hw := w.Tag("highway")
+	lc, ok := laneCapacity[hw]
+	if !ok {
+		return nil
 	}
-	var pend []pending
-	for wi := range ways {
-		w := &ways[wi]
-		hw := w.Tag("highway")
-		lc, ok := laneCapacity[hw]
-		if !ok {
-			continue
+	lanes, err := strconv.Atoi(w.Tag("lanes"))
+	if err != nil || lanes < 1 {
+		lanes = 2
+	}
+	speed, err := strconv.ParseFloat(w.Tag("maxspeed"), 64)
+	if err != nil || speed <= 0 {
+		return fmt.Errorf("town: way %d: maxspeed %q is not a positive number", w.id, w.Tag("maxspeed"))
+	}
+	oneway := w.Tag("oneway") == "yes"
+	// Lanes per direction; a single lane shared by both directions
+	// (alternate working) gives each half of it.
+	perDir := float64(lanes) / 2
+	if oneway {
+		perDir = float64(lanes)
+	}
+	v := geodesy.MPS(speed) * freeFlowShare
+	for k := 1; k < len(w.nodes); k++ {
+		a, b := w.nodes[k-1], w.nodes[k]
+		if a <= 0 || b <= 0 || int(a) >= len(index) || int(b) >= len(index) {
+			return fmt.Errorf("town: way %d: node %d or %d unknown", w.id, a, b)
 		}
-		lanes, err := strconv.Atoi(w.Tag("lanes"))
-		if err != nil || lanes < 1 {
-			lanes = 2
+		for _, id := range []int64{a, b} {
+			if index[id] < 0 {
+				index[id] = int32(len(nw.pos))
+				nw.pos = append(nw.pos, nb.local[id-1])
+			}
 		}
-		speed, err := strconv.ParseFloat(w.Tag("maxspeed"), 64)
-		if err != nil || speed <= 0 {
-			return nil, fmt.Errorf("town: way %d: maxspeed %q is not a positive number", w.id, w.Tag("maxspeed"))
+		ia, ib := index[a], index[b]
+		length := dist(nw.pos[ia], nw.pos[ib])
+		for _, d := range [][2]int32{{ia, ib}, {ib, ia}} {
+			if d == [2]int32{ib, ia} && oneway {
+				continue
+			}
+			if nb.seen[nodePair{d[0], d[1]}] {
+				continue
+			}
+			nb.seen[nodePair{d[0], d[1]}] = true
+			nb.links = append(nb.links, link{from: d[0], to: d[1], length: length, t0: length / v,
+				capacity: lc * perDir, major: hw == "trunk" || hw == "primary" || hw == "secondary"})
 		}
-		oneway := w.Tag("oneway") == "yes"
-		// Lanes per direction; a single lane shared by both directions
-		// (alternate working) gives each half of it.
-		perDir := float64(lanes) / 2
-		if oneway {
-			perDir = float64(lanes)
-		}
-		v := geodesy.MPS(speed) * freeFlowShare
-		for k := 1; k < len(w.nodes); k++ {
-			a, b := w.nodes[k-1], w.nodes[k]
-			if a <= 0 || b <= 0 || int(a) >= len(index) || int(b) >= len(index) {
-				return nil, fmt.Errorf("town: way %d: node %d or %d unknown", w.id, a, b)
+		for _, d := range [][2]int32{{ia, ib}, {ib, ia}} {
+			if nb.deg[d[0]] == nil {
+				nb.deg[d[0]] = make(map[int32]bool)
 			}
-			for _, id := range []int64{a, b} {
-				if index[id] < 0 {
-					index[id] = int32(len(nw.pos))
-					nw.pos = append(nw.pos, t.local[id-1])
-				}
-			}
-			ia, ib := index[a], index[b]
-			length := dist(nw.pos[ia], nw.pos[ib])
-			for _, d := range [][2]int32{{ia, ib}, {ib, ia}} {
-				if d == [2]int32{ib, ia} && oneway {
-					continue
-				}
-				if seen[pair{d[0], d[1]}] {
-					continue
-				}
-				seen[pair{d[0], d[1]}] = true
-				pend = append(pend, pending{l: link{from: d[0], to: d[1], length: length, t0: length / v,
-					capacity: lc * perDir, major: hw == "trunk" || hw == "primary" || hw == "secondary"}, class: hw})
-			}
-			for _, d := range [][2]int32{{ia, ib}, {ib, ia}} {
-				if deg[d[0]] == nil {
-					deg[d[0]] = make(map[int32]bool)
-				}
-				deg[d[0]][d[1]] = true
-			}
+			nb.deg[d[0]][d[1]] = true
 		}
 	}
-	// Junction delays at the head node.
+	return nil
+}
+
+// finish adds the delay at each link's head junction (signals, a level
+// crossing, or a junction of three or more streets) and indexes the
+// network.
+func (nb *networkBuilder) finish(nodeTags map[int64][]tag) *network {
+	nw := nb.nw
 	osmOf := make([]int64, len(nw.pos))
-	for id, ix := range index {
+	for id, ix := range nb.index {
 		if ix >= 0 {
 			osmOf[ix] = int64(id)
 		}
 	}
 	nw.osm = osmOf
-	for _, p := range pend {
-		l := p.l
+	for _, l := range nb.links {
 		head := osmOf[l.to]
 		switch tagValue(nodeTags[head], "highway", "railway") {
 		case "traffic_signals":
@@ -150,14 +180,14 @@ func (t *Town) networkOf(withLink bool) (*network, error) {
 		case "level_crossing":
 			l.t0 += crossingDelay
 		default:
-			if len(deg[l.to]) >= 3 {
+			if len(nb.deg[l.to]) >= 3 {
 				l.t0 += junctionDelay
 			}
 		}
 		nw.links = append(nw.links, l)
 	}
 	nw.finish()
-	return nw, nil
+	return nw
 }
 
 func tagValue(tags []tag, keys ...string) string {
