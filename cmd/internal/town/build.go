@@ -311,9 +311,9 @@ func (b *builder) railway() {
 			north = append(north, id)
 		}
 	}
-	tags := []tag{{"name", "Orvel Valley Line"}, {"railway", "rail"}}
+	tags := []tag{{"name", railwayName}, {"railway", "rail"}}
 	b.addWay(append(south, bridge[0]), tags)
-	b.addWay([]int64{bridge[0], bridge[1]}, []tag{{"bridge", "yes"}, {"layer", "1"}, {"name", "Orvel Valley Line"}, {"railway", "rail"}})
+	b.addWay([]int64{bridge[0], bridge[1]}, []tag{{"bridge", "yes"}, {"layer", "1"}, {"name", railwayName}, {"railway", "rail"}})
 	b.addWay(append([]int64{bridge[1]}, north...), tags)
 }
 
@@ -331,7 +331,7 @@ func (b *builder) river() {
 			break
 		}
 	}
-	b.addWay(ids, []tag{{"name", "Orvel"}, {"waterway", "river"}})
+	b.addWay(ids, []tag{{"name", riverName}, {"waterway", "river"}})
 }
 
 // link is the planned bridge: it joins the two dead ends of a local street
@@ -360,7 +360,7 @@ func (b *builder) link() {
 	b.t.linkNodes = append([]osmNode(nil), b.nodes[before:]...)
 	b.nodes = b.nodes[:before]
 	// A new bridge is built for the traffic it will draw: two lanes each way.
-	tags := b.tagsFor(lineSpec{class: classTertiary, name: "Lantern Bridge"}, true)
+	tags := b.tagsFor(lineSpec{class: classTertiary, name: linkName}, true)
 	for k := range tags {
 		if tags[k].Key == "lanes" {
 			tags[k].Value = "4"
@@ -389,6 +389,6 @@ func (b *builder) districts() {
 		cx, cy := (x0+x1)/2, (ya+yb)/2
 		return District{Name: name, Centre: b.t.lonLat(b.gridPos(cx, cy)), area: ring}
 	}
-	b.t.Housing = mk("Northbank housing", ry+gap, y1-0.1*lay.block)
-	b.t.Jobs = mk("Southbank works", y0+0.1*lay.block, ry-gap)
+	b.t.Housing = mk(housingName, ry+gap, y1-0.1*lay.block)
+	b.t.Jobs = mk(jobsName, y0+0.1*lay.block, ry-gap)
 }

@@ -4,7 +4,7 @@ package town
 
 import "sort"
 
-// street classes and their tags.
+// roadClass is a street class; roadTags holds the tags of each.
 type roadClass int
 
 const (
@@ -24,6 +24,15 @@ var roadTags = [...]struct {
 	classPrimary:     {"primary", "50", "4"},
 	classTrunk:       {"trunk", "70", "4"},
 }
+
+// Names of the town's features: invented, no real places.
+const (
+	riverName   = "Orvel"
+	railwayName = "Orvel Valley Line"
+	linkName    = "Lantern Bridge"
+	housingName = "Northbank housing"
+	jobsName    = "Southbank works"
+)
 
 // Street name stems: invented or generic words, no real places.
 var stems = []string{
