@@ -14,6 +14,8 @@ import (
 	"narrows/partition/geodesy"
 )
 
+// builder is the state of one Generate call: the town being built, its
+// nodes and ways so far, and the railway's level crossings.
 type builder struct {
 	t   *Town
 	lay layout
@@ -26,6 +28,8 @@ type builder struct {
 	rail   []railPoint // crossings with the railway, by grid y
 }
 
+// railPoint is a point of the railway at grid y gy; id is its node, 0 for
+// a shape point not yet added.
 type railPoint struct {
 	gy float64
 	id int64

@@ -1,3 +1,6 @@
+// The simulation: Simulate plans the days, builds each network state on
+// first use and writes each day's trips.
+
 package town
 
 import (
