@@ -79,7 +79,7 @@ func (b *book) comparison() {
 		sp, dt := a.Speed, a.Detour
 		g := func(x float64, style int) cell { return b.gated(t.Trips, x, style) }
 		// The reason wraps in its column; the row is made tall enough.
-		s.tall(wrappedLines(a.Reason, reasonWidth*9/10))
+		s.tall(wrappedLines(Reason(a), reasonWidth*9/10))
 		s.add(append(b.rankCells(it), b.str(a.Finding.ID), textCell(string(a.Verdict), b.st.verdict[a.Verdict]), yesNo(a.Focus, b.st.centre),
 			b.count(a.DaysBefore), b.count(a.TotalBefore), share(a.DaysBefore, a.TotalBefore),
 			b.count(a.DaysAfter), b.count(a.TotalAfter), share(a.DaysAfter, a.TotalAfter),
@@ -88,7 +88,7 @@ func (b *book) comparison() {
 			g(kmh(sp.Shift), b.st.signed1), g(kmh(sp.Low), b.st.signed1), g(kmh(sp.High), b.st.signed1), b.pval(sp.P), b.pval(sp.PAdjusted),
 			g(median(dt.Before), b.st.dec2), g(median(dt.After), b.st.dec2),
 			g(dt.Shift, b.st.signed2), g(dt.Low, b.st.signed2), g(dt.High, b.st.signed2), b.pval(dt.P), b.pval(dt.PAdjusted),
-			textCell(a.Reason, b.st.wrap),
+			textCell(Reason(a), b.st.wrap),
 		)...)
 	}
 	s.filter(head, len(cols))

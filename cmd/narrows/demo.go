@@ -10,7 +10,7 @@ import (
 	"time"
 
 	"narrows/cmd/internal/atomicfile"
-	"narrows/cmd/town"
+	"narrows/cmd/internal/town"
 )
 
 // townFiles are the files a simulation writes into its folder.

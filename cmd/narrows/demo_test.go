@@ -15,7 +15,7 @@ import (
 	"github.com/paulmach/orb/geojson"
 	"github.com/paulmach/orb/planar"
 
-	"narrows/cmd/town"
+	"narrows/cmd/internal/town"
 	"narrows/partition"
 	"narrows/patterns"
 	"narrows/regiongraph"

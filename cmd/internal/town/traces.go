@@ -16,20 +16,20 @@ import (
 // Trace is the GPS trace of one simulated trip: positions along its route
 // at a fixed interval, from the trip's start to its end.
 type Trace struct {
-	TripID int64
-	Points []TracePoint
+	tripID int64
+	points []tracePoint
 }
 
-// TracePoint is one GPS fix.
-type TracePoint struct {
+// tracePoint is one GPS fix.
+type tracePoint struct {
 	Time  time.Time
 	Point orb.Point // longitude, latitude
 }
 
-// PointsHeader is the first line of the GPS points CSV.
-const PointsHeader = "vehicle_id,time,lon,lat,occupied"
+// pointsHeader is the first line of the GPS points CSV.
+const pointsHeader = "vehicle_id,time,lon,lat,occupied"
 
-// PointsWriter writes traces as GPS points CSV (PointsHeader). Each trace
+// PointsWriter writes traces as GPS points CSV (pointsHeader). Each trace
 // is one vehicle ("veh-<trip id>") occupied from its first to its last
 // point, so a reader that cuts trips at changes of the occupied flag, or at
 // a new vehicle, finds exactly the trip.
@@ -46,13 +46,13 @@ func NewPointsWriter(w io.Writer) *PointsWriter { return &PointsWriter{w: bufio.
 func (pw *PointsWriter) Write(tr Trace) error {
 	if !pw.header {
 		pw.header = true
-		if _, err := pw.w.WriteString(PointsHeader + "\n"); err != nil {
+		if _, err := pw.w.WriteString(pointsHeader + "\n"); err != nil {
 			return err
 		}
 	}
-	for _, p := range tr.Points {
+	for _, p := range tr.points {
 		b := append(pw.buf[:0], "veh-"...)
-		b = strconv.AppendInt(b, tr.TripID, 10)
+		b = strconv.AppendInt(b, tr.tripID, 10)
 		b = append(b, ',')
 		b = p.Time.AppendFormat(b, time.RFC3339)
 		b = append(b, ',')
@@ -73,7 +73,7 @@ func (pw *PointsWriter) Write(tr Trace) error {
 func (pw *PointsWriter) Flush() error {
 	if !pw.header {
 		pw.header = true
-		if _, err := pw.w.WriteString(PointsHeader + "\n"); err != nil {
+		if _, err := pw.w.WriteString(pointsHeader + "\n"); err != nil {
 			return err
 		}
 	}
@@ -90,8 +90,8 @@ func WriteGPX(w io.Writer, creator string, traces []Trace) error {
 	}
 	fmt.Fprintf(bw, "\" xmlns=\"http://www.topografix.com/GPX/1/1\">\n")
 	for _, tr := range traces {
-		fmt.Fprintf(bw, "  <trk>\n    <name>trip %d</name>\n    <trkseg>\n", tr.TripID)
-		for _, p := range tr.Points {
+		fmt.Fprintf(bw, "  <trk>\n    <name>trip %d</name>\n    <trkseg>\n", tr.tripID)
+		for _, p := range tr.points {
 			fmt.Fprintf(bw, "      <trkpt lat=\"%.6f\" lon=\"%.6f\"><time>%s</time></trkpt>\n",
 				p.Point[1], p.Point[0], p.Time.UTC().Format(time.RFC3339))
 		}
@@ -104,7 +104,7 @@ func WriteGPX(w io.Writer, creator string, traces []Trace) error {
 // traceOf samples the polyline line every interval seconds between start
 // and start+duration, moving at constant speed along it.
 func traceOf(id int64, line []orb.Point, start time.Time, duration, interval float64) Trace {
-	tr := Trace{TripID: id}
+	tr := Trace{tripID: id}
 	cum := make([]float64, len(line))
 	for i := 1; i < len(line); i++ {
 		cum[i] = cum[i-1] + geo.Distance(line[i-1], line[i])
@@ -131,7 +131,7 @@ func traceOf(id int64, line []orb.Point, start time.Time, duration, interval flo
 			a, b := line[k], line[k+1]
 			p = orb.Point{a[0] + (b[0]-a[0])*f, a[1] + (b[1]-a[1])*f}
 		}
-		tr.Points = append(tr.Points, TracePoint{Time: start.Add(time.Duration(math.Round(sec)) * time.Second), Point: p})
+		tr.points = append(tr.points, tracePoint{Time: start.Add(time.Duration(math.Round(sec)) * time.Second), Point: p})
 	}
 	return tr
 }

@@ -12,13 +12,15 @@ import (
 	"gonum.org/v1/gonum/graph"
 	"gonum.org/v1/gonum/graph/path"
 	"gonum.org/v1/gonum/graph/simple"
+
+	"narrows/partition/geodesy"
 )
 
-// Network is a directed street network for routing: nodes with positions in
+// network is a directed street network for routing: nodes with positions in
 // local metres and links with length, free-flow time and capacity.
-type Network struct {
+type network struct {
 	pos      []xy
-	osm      []int64 // OSM node id per node (nil for GridNetwork)
+	osm      []int64 // OSM node id per node (nil for gridNetwork)
 	links    []link
 	inStart  []int32 // CSR of incoming links by head node
 	inLinks  []int32
@@ -50,97 +52,127 @@ const (
 	crossingDelay = 5.0  // mean delay at a level crossing, s
 )
 
-// NetworkOf builds the routing network of the town, with or without the link.
+// networkOf builds the routing network of the town, with or without the link.
 // Link indices of the network without the link are a prefix of those with it.
-func (t *Town) NetworkOf(withLink bool) (*Network, error) {
-	ways := t.Ways
+func (t *Town) networkOf(withLink bool) (*network, error) {
+	ways := t.ways
 	if withLink && t.Link != nil {
-		ways = append(append([]Way(nil), t.Ways...), *t.Link)
+		ways = append(append([]Way(nil), t.ways...), *t.Link)
 	}
-	nodeTags := make(map[int64][]Tag)
-	for _, n := range t.Nodes {
+	nb := newNetworkBuilder(t.local)
+	for wi := range ways {
+		if err := nb.addWay(&ways[wi]); err != nil {
+			return nil, err
+		}
+	}
+	return nb.finish(t.nodeTags()), nil
+}
+
+// nodeTags returns the tags of the town's tagged nodes by node id.
+func (t *Town) nodeTags() map[int64][]tag {
+	nodeTags := make(map[int64][]tag)
+	for _, n := range t.nodes {
 		if len(n.Tags) > 0 {
 			nodeTags[n.ID] = n.Tags
 		}
 	}
-	index := make([]int32, len(t.local)+1)
+	return nodeTags
+}
+
+// networkBuilder turns ways into network nodes and links, in way order.
+type networkBuilder struct {
+	local []xy    // local metres of every OSM node, index = id-1
+	index []int32 // network node of each OSM node id, -1: none yet
+	nw    *network
+	seen  map[nodePair]bool        // directed node pairs that have a link
+	deg   map[int32]map[int32]bool // neighbours of each node, either direction
+	links []link                   // without the delay at the head junction
+}
+
+type nodePair struct{ a, b int32 }
+
+func newNetworkBuilder(local []xy) *networkBuilder {
+	index := make([]int32, len(local)+1)
 	for i := range index {
 		index[i] = -1
 	}
-	nw := &Network{}
-	type pair struct{ a, b int32 }
-	seen := make(map[pair]bool)
-	deg := make(map[int32]map[int32]bool)
-	type pending struct {
-		l     link
-		class string
+	return &networkBuilder{local: local, index: index, nw: &network{},
+		seen: make(map[nodePair]bool), deg: make(map[int32]map[int32]bool)}
+}
+
+// addWay adds a link for each direction of travel along each segment of a
+// street, with its length, free-flow time and capacity; other ways add
+// nothing.
+func (nb *networkBuilder) addWay(w *Way) error {
+	nw, index := nb.nw, nb.index
+	hw := w.Tag("highway")
+	lc, ok := laneCapacity[hw]
+	if !ok {
+		return nil
 	}
-	var pend []pending
-	for wi := range ways {
-		w := &ways[wi]
-		hw := w.Tag("highway")
-		lc, ok := laneCapacity[hw]
-		if !ok {
-			continue
+	lanes, err := strconv.Atoi(w.Tag("lanes"))
+	if err != nil || lanes < 1 {
+		lanes = 2
+	}
+	speed, err := strconv.ParseFloat(w.Tag("maxspeed"), 64)
+	if err != nil || speed <= 0 {
+		return fmt.Errorf("town: way %d: maxspeed %q is not a positive number", w.id, w.Tag("maxspeed"))
+	}
+	oneway := w.Tag("oneway") == "yes"
+	// Lanes per direction; a single lane shared by both directions
+	// (alternate working) gives each half of it.
+	perDir := float64(lanes) / 2
+	if oneway {
+		perDir = float64(lanes)
+	}
+	v := geodesy.MPS(speed) * freeFlowShare
+	for k := 1; k < len(w.nodes); k++ {
+		a, b := w.nodes[k-1], w.nodes[k]
+		if a <= 0 || b <= 0 || int(a) >= len(index) || int(b) >= len(index) {
+			return fmt.Errorf("town: way %d: node %d or %d unknown", w.id, a, b)
 		}
-		lanes, err := strconv.Atoi(w.Tag("lanes"))
-		if err != nil || lanes < 1 {
-			lanes = 2
+		for _, id := range []int64{a, b} {
+			if index[id] < 0 {
+				index[id] = int32(len(nw.pos))
+				nw.pos = append(nw.pos, nb.local[id-1])
+			}
 		}
-		speed, err := strconv.ParseFloat(w.Tag("maxspeed"), 64)
-		if err != nil || speed <= 0 {
-			return nil, fmt.Errorf("town: way %d: maxspeed %q is not a positive number", w.ID, w.Tag("maxspeed"))
+		ia, ib := index[a], index[b]
+		length := dist(nw.pos[ia], nw.pos[ib])
+		for _, d := range [][2]int32{{ia, ib}, {ib, ia}} {
+			if d == [2]int32{ib, ia} && oneway {
+				continue
+			}
+			if nb.seen[nodePair{d[0], d[1]}] {
+				continue
+			}
+			nb.seen[nodePair{d[0], d[1]}] = true
+			nb.links = append(nb.links, link{from: d[0], to: d[1], length: length, t0: length / v,
+				capacity: lc * perDir, major: hw == "trunk" || hw == "primary" || hw == "secondary"})
 		}
-		oneway := w.Tag("oneway") == "yes"
-		// Lanes per direction; a single lane shared by both directions
-		// (alternate working) gives each half of it.
-		perDir := float64(lanes) / 2
-		if oneway {
-			perDir = float64(lanes)
-		}
-		v := speed / 3.6 * freeFlowShare
-		for k := 1; k < len(w.Nodes); k++ {
-			a, b := w.Nodes[k-1], w.Nodes[k]
-			if a <= 0 || b <= 0 || int(a) >= len(index) || int(b) >= len(index) {
-				return nil, fmt.Errorf("town: way %d: node %d or %d unknown", w.ID, a, b)
+		for _, d := range [][2]int32{{ia, ib}, {ib, ia}} {
+			if nb.deg[d[0]] == nil {
+				nb.deg[d[0]] = make(map[int32]bool)
 			}
-			for _, id := range []int64{a, b} {
-				if index[id] < 0 {
-					index[id] = int32(len(nw.pos))
-					nw.pos = append(nw.pos, t.local[id-1])
-				}
-			}
-			ia, ib := index[a], index[b]
-			length := dist(nw.pos[ia], nw.pos[ib])
-			for _, d := range [][2]int32{{ia, ib}, {ib, ia}} {
-				if d == [2]int32{ib, ia} && oneway {
-					continue
-				}
-				if seen[pair{d[0], d[1]}] {
-					continue
-				}
-				seen[pair{d[0], d[1]}] = true
-				pend = append(pend, pending{l: link{from: d[0], to: d[1], length: length, t0: length / v,
-					capacity: lc * perDir, major: hw == "trunk" || hw == "primary" || hw == "secondary"}, class: hw})
-			}
-			for _, d := range [][2]int32{{ia, ib}, {ib, ia}} {
-				if deg[d[0]] == nil {
-					deg[d[0]] = make(map[int32]bool)
-				}
-				deg[d[0]][d[1]] = true
-			}
+			nb.deg[d[0]][d[1]] = true
 		}
 	}
-	// Junction delays at the head node.
+	return nil
+}
+
+// finish adds the delay at each link's head junction (signals, a level
+// crossing, or a junction of three or more streets) and indexes the
+// network.
+func (nb *networkBuilder) finish(nodeTags map[int64][]tag) *network {
+	nw := nb.nw
 	osmOf := make([]int64, len(nw.pos))
-	for id, ix := range index {
+	for id, ix := range nb.index {
 		if ix >= 0 {
 			osmOf[ix] = int64(id)
 		}
 	}
 	nw.osm = osmOf
-	for _, p := range pend {
-		l := p.l
+	for _, l := range nb.links {
 		head := osmOf[l.to]
 		switch tagValue(nodeTags[head], "highway", "railway") {
 		case "traffic_signals":
@@ -148,17 +180,17 @@ func (t *Town) NetworkOf(withLink bool) (*Network, error) {
 		case "level_crossing":
 			l.t0 += crossingDelay
 		default:
-			if len(deg[l.to]) >= 3 {
+			if len(nb.deg[l.to]) >= 3 {
 				l.t0 += junctionDelay
 			}
 		}
 		nw.links = append(nw.links, l)
 	}
 	nw.finish()
-	return nw, nil
+	return nw
 }
 
-func tagValue(tags []Tag, keys ...string) string {
+func tagValue(tags []tag, keys ...string) string {
 	for _, k := range keys {
 		for _, t := range tags {
 			if t.Key == k {
@@ -171,14 +203,14 @@ func tagValue(tags []Tag, keys ...string) string {
 
 func dist(a, b xy) float64 { return math.Hypot(a.X-b.X, a.Y-b.Y) }
 
-// GridNetwork returns an uncongested square grid of n x n nodes, spacing
+// gridNetwork returns an uncongested square grid of n x n nodes, spacing
 // metres apart, with two-way links of equal speed: the geometry check of
 // the routing (shortest paths on it are Manhattan paths).
-func GridNetwork(n int, spacing float64) (*Network, error) {
+func gridNetwork(n int, spacing float64) (*network, error) {
 	if n < 2 || n > 2000 || spacing <= 0 || math.IsNaN(spacing) || math.IsInf(spacing, 0) {
 		return nil, fmt.Errorf("town: grid of %d x %d nodes at %v m: need 2 <= n <= 2000 and a positive finite spacing", n, n, spacing)
 	}
-	nw := &Network{}
+	nw := &network{}
 	for j := 0; j < n; j++ {
 		for i := 0; i < n; i++ {
 			nw.pos = append(nw.pos, xy{float64(i) * spacing, float64(j) * spacing})
@@ -204,7 +236,7 @@ func GridNetwork(n int, spacing float64) (*Network, error) {
 }
 
 // finish builds the incoming-link index and the gonum graph.
-func (nw *Network) finish() {
+func (nw *network) finish() {
 	n := len(nw.pos)
 	nw.inStart = make([]int32, n+1)
 	for _, l := range nw.links {
@@ -242,7 +274,7 @@ func (nw *Network) finish() {
 // path.Weighted) under one set of link weights. It is read-only, so
 // several Dijkstra runs may share it.
 type weighted struct {
-	nw *Network
+	nw *network
 	w  []float64
 }
 
@@ -282,7 +314,7 @@ func (g weighted) Weight(xid, yid int64) (float64, bool) {
 
 // outNodes iterates over the heads of a node's outgoing links.
 type outNodes struct {
-	nw  *Network
+	nw  *network
 	out []int32
 	pos int
 }
@@ -304,8 +336,8 @@ func (it *outNodes) Node() graph.Node {
 	return it.nw.nodes[it.nw.links[it.out[it.pos]].to]
 }
 
-// Len returns the number of nodes and links.
-func (nw *Network) Len() (nodes, links int) { return len(nw.pos), len(nw.links) }
+// count returns the number of nodes and links.
+func (nw *network) count() (nodes, links int) { return len(nw.pos), len(nw.links) }
 
 // tree is one shortest-path tree: per node its distance (the weight), its
 // parent link (-1 for the root and unreachable nodes), and the reachable
@@ -333,7 +365,7 @@ const gonumNodeLimit = 2000
 // The parent of each node is its incoming link with the least
 // dist(from)+weight, ties to the lower link index, which makes the tree
 // independent of the order in which the search met the nodes.
-func (nw *Network) shortestTree(root int, weights []float64, tr *tree) {
+func (nw *network) shortestTree(root int, weights []float64, tr *tree) {
 	n := len(nw.pos)
 	if n > gonumNodeLimit {
 		nw.heapTree(root, weights, tr)
@@ -382,7 +414,7 @@ func (a heapItem) less(b heapItem) bool {
 // node) and lazy deletion. Nodes settle in ascending (distance, node)
 // order: with positive weights every node of distance d is in the heap
 // with its final key before the first of them is popped.
-func (nw *Network) heapTree(root int, weights []float64, tr *tree) {
+func (nw *network) heapTree(root int, weights []float64, tr *tree) {
 	for v := range tr.dist {
 		tr.dist[v] = math.Inf(1)
 	}
@@ -433,10 +465,10 @@ func (nw *Network) heapTree(root int, weights []float64, tr *tree) {
 	tr.heap = h
 }
 
-// ShortestLengths returns, for each node in from, the length in metres of
+// shortestLengths returns, for each node in from, the length in metres of
 // the shortest-length path to every node (+Inf where unreachable). Node
-// indices of a GridNetwork are j*n+i.
-func (nw *Network) ShortestLengths(from ...int) ([][]float64, error) {
+// indices of a gridNetwork are j*n+i.
+func (nw *network) shortestLengths(from ...int) ([][]float64, error) {
 	lengths := make([]float64, len(nw.links))
 	for i, l := range nw.links {
 		lengths[i] = l.length
@@ -457,8 +489,8 @@ func (nw *Network) ShortestLengths(from ...int) ([][]float64, error) {
 	return out, nil
 }
 
-// NodePoint returns node v's position in local metres.
-func (nw *Network) NodePoint(v int) (x, y float64) { return nw.pos[v].X, nw.pos[v].Y }
+// nodePoint returns node v's position in local metres.
+func (nw *network) nodePoint(v int) (x, y float64) { return nw.pos[v].X, nw.pos[v].Y }
 
 // parallel runs job(chunk) for chunk = 0..chunks-1 on up to GOMAXPROCS
 // workers. Callers keep per-chunk results and combine them in chunk order,

@@ -8,7 +8,7 @@ import (
 
 func BenchmarkGenerateCity(b *testing.B) {
 	for b.Loop() {
-		if _, err := Generate(Options{Size: SizeCity, Seed: 1}); err != nil {
+		if _, err := Generate(Options{Size: sizeCity, Seed: 1}); err != nil {
 			b.Fatal(err)
 		}
 	}
@@ -21,7 +21,7 @@ func benchSimulate(b *testing.B, size Size, trips int) {
 	if err != nil {
 		b.Fatal(err)
 	}
-	o := DefaultSimOptions()
+	o := defaultSimOptions()
 	o.Days, o.TripsPerDay = 1, trips
 	var n int
 	for b.Loop() {
@@ -35,11 +35,11 @@ func benchSimulate(b *testing.B, size Size, trips int) {
 }
 
 func BenchmarkSimulateTownDay(b *testing.B) { benchSimulate(b, SizeTown, 10000) }
-func BenchmarkSimulateCityDay(b *testing.B) { benchSimulate(b, SizeCity, 300000) }
+func BenchmarkSimulateCityDay(b *testing.B) { benchSimulate(b, sizeCity, 300000) }
 
 // BenchmarkSimulateTownDemo is the demo: eight weeks of the link scenario.
 func BenchmarkSimulateTownDemo(b *testing.B) {
-	tw, err := Generate(DefaultOptions())
+	tw, err := Generate(defaultOptions())
 	if err != nil {
 		b.Fatal(err)
 	}

@@ -28,7 +28,7 @@ import (
 // snapping hardly matters.
 func TestGridDetourRatio(t *testing.T) {
 	const n, spacing = 101, 50.0
-	nw, err := GridNetwork(n, spacing)
+	nw, err := gridNetwork(n, spacing)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -49,17 +49,17 @@ func TestGridDetourRatio(t *testing.T) {
 	for k := range origins {
 		origins[k] = snap()
 	}
-	lengths, err := nw.ShortestLengths(origins...)
+	lengths, err := nw.shortestLengths(origins...)
 	if err != nil {
 		t.Fatal(err)
 	}
 	var sum float64
 	var pairs int
 	for k, o := range origins {
-		ox, oy := nw.NodePoint(o)
+		ox, oy := nw.nodePoint(o)
 		for d := 0; d < 60; d++ {
 			v := snap()
-			vx, vy := nw.NodePoint(v)
+			vx, vy := nw.nodePoint(v)
 			// Oracle: on the grid the shortest path is the Manhattan distance.
 			if manhattan := math.Abs(vx-ox) + math.Abs(vy-oy); math.Abs(lengths[k][v]-manhattan) > 1e-6 {
 				t.Fatalf("path %d->%d: %v m, Manhattan %v m", o, v, lengths[k][v], manhattan)
@@ -88,13 +88,13 @@ func TestGridNetworkErrors(t *testing.T) {
 		n       int
 		spacing float64
 	}{{1, 10}, {0, 10}, {2001, 10}, {5, 0}, {5, -1}, {5, math.NaN()}, {5, math.Inf(1)}} {
-		if _, err := GridNetwork(c.n, c.spacing); err == nil {
-			t.Errorf("GridNetwork(%d, %v): no error", c.n, c.spacing)
+		if _, err := gridNetwork(c.n, c.spacing); err == nil {
+			t.Errorf("gridNetwork(%d, %v): no error", c.n, c.spacing)
 		}
 	}
-	nw, _ := GridNetwork(3, 10)
-	if _, err := nw.ShortestLengths(9); err == nil {
-		t.Error("ShortestLengths(9) on 9 nodes: no error")
+	nw, _ := gridNetwork(3, 10)
+	if _, err := nw.shortestLengths(9); err == nil {
+		t.Error("shortestLengths(9) on 9 nodes: no error")
 	}
 }
 
@@ -114,8 +114,8 @@ func TestBPR(t *testing.T) {
 		{0, 5000, 1000, 0},           // zero free-flow time stays zero
 		{45, 3000, 1000, 45 * 13.15}, // 1 + 0.15*81
 	} {
-		if got := BPR(c.t0, c.v, c.c); math.Abs(got-c.want) > 1e-9 && !(math.IsInf(got, 1) && math.IsInf(c.want, 1)) {
-			t.Errorf("BPR(%v, %v, %v) = %v, want %v", c.t0, c.v, c.c, got, c.want)
+		if got := bpr(c.t0, c.v, c.c); math.Abs(got-c.want) > 1e-9 && !(math.IsInf(got, 1) && math.IsInf(c.want, 1)) {
+			t.Errorf("bpr(%v, %v, %v) = %v, want %v", c.t0, c.v, c.c, got, c.want)
 		}
 	}
 }
@@ -123,7 +123,7 @@ func TestBPR(t *testing.T) {
 // TestMSATwoRoutes assigns a demand over two parallel links and compares
 // with the user equilibrium found by bisection on t1(v) = t2(D - v).
 func TestMSATwoRoutes(t *testing.T) {
-	nw := &Network{pos: []xy{{0, 0}, {1000, 0}, {500, 300}}}
+	nw := &network{pos: []xy{{0, 0}, {1000, 0}, {500, 300}}}
 	// Route 1: the direct link 0->1. Route 2: 0->2->1, longer but wider.
 	nw.links = []link{
 		{from: 0, to: 1, length: 1000, t0: 60, capacity: 800},
@@ -137,8 +137,8 @@ func TestMSATwoRoutes(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	t1 := func(v float64) float64 { return BPR(60, v, 800) }
-	t2 := func(v float64) float64 { return 2 * BPR(45, v, 2000) }
+	t1 := func(v float64) float64 { return bpr(60, v, 800) }
+	t2 := func(v float64) float64 { return 2 * bpr(45, v, 2000) }
 	lo, hi := 0.0, demand
 	for k := 0; k < 100; k++ {
 		mid := (lo + hi) / 2
@@ -163,14 +163,14 @@ func TestMSATwoRoutes(t *testing.T) {
 // TestMSAConvergesOnTown: the relative gap on the demo town falls round by
 // round (allowing for the noise of MSA) and ends small.
 func TestMSAConvergesOnTown(t *testing.T) {
-	tw, err := Generate(DefaultOptions())
+	tw, err := Generate(defaultOptions())
 	if err != nil {
 		t.Fatal(err)
 	}
-	o := DefaultSimOptions()
+	o := defaultSimOptions()
 	o.Days, o.TripsPerDay, o.MSARounds = 1, 10, 8
 	_, st := simulate(t, tw, o)
-	g := st.Assignments[0].RelativeGaps
+	g := st.assignments[0].RelativeGaps
 	t.Logf("relative gaps %.4f", g)
 	if len(g) != 7 {
 		t.Fatalf("%d gaps, want 7", len(g))
@@ -205,7 +205,7 @@ func TestDeterministic(t *testing.T) {
 	}
 	so := p.SimOptions(3)
 	so.Days, so.TripsPerDay = 3, 1500
-	opens := p.Start.AddDate(0, 0, 1)
+	opens := p.start.AddDate(0, 0, 1)
 	so.LinkOpens = &opens
 	so.IncidentRate = 1 // every day, so the incident code is covered too
 	a := hashOf(t, Options{Size: SizeTown, Seed: 5}, so)
@@ -262,9 +262,9 @@ func readOSM(t *testing.T, data []byte) (nodes map[osm.NodeID]*osm.Node, ways []
 }
 
 func TestWriteOSM(t *testing.T) {
-	for _, size := range []Size{SizeTown, SizeCity} {
+	for _, size := range []Size{SizeTown, sizeCity} {
 		t.Run(string(size), func(t *testing.T) {
-			if size == SizeCity && testing.Short() {
+			if size == sizeCity && testing.Short() {
 				t.Skip("city in -short")
 			}
 			start := time.Now()
@@ -272,7 +272,7 @@ func TestWriteOSM(t *testing.T) {
 			if err != nil {
 				t.Fatal(err)
 			}
-			t.Logf("generated %s in %v: %d nodes, %d ways", tw.Name, time.Since(start), len(tw.Nodes), len(tw.Ways))
+			t.Logf("generated %s in %v: %d nodes, %d ways", tw.Name, time.Since(start), len(tw.nodes), len(tw.ways))
 			var before, after bytes.Buffer
 			if err := tw.WriteOSM(&before, false); err != nil {
 				t.Fatal(err)
@@ -285,7 +285,7 @@ func TestWriteOSM(t *testing.T) {
 			}
 			nb, wb, bb := readOSM(t, before.Bytes())
 			na, wa, _ := readOSM(t, after.Bytes())
-			if len(na) != len(nb)+len(tw.LinkNodes) || len(wa) != len(wb)+1 {
+			if len(na) != len(nb)+len(tw.linkNodes) || len(wa) != len(wb)+1 {
 				t.Errorf("after has %d nodes, %d ways; before %d, %d", len(na), len(wa), len(nb), len(wb))
 			}
 			count := func(ways []*osm.Way, f func(osm.Tags) bool) int {
@@ -335,7 +335,7 @@ func TestWriteOSM(t *testing.T) {
 			}
 			lk := tw.Link
 			if lk.Tag("highway") != "tertiary" || lk.Tag("bridge") != "yes" {
-				t.Errorf("link tags %v", lk.Tags)
+				t.Errorf("link tags %v", lk.tags)
 			}
 			// The planted points and the link lie inside the bounds.
 			b := orb.Bound{Min: orb.Point{bb.MinLon, bb.MinLat}, Max: orb.Point{bb.MaxLon, bb.MaxLat}}
@@ -356,13 +356,13 @@ func TestGenerateUnknownSize(t *testing.T) {
 		t.Errorf("err = %v, want one naming the size", err)
 	}
 	tw, err := Generate(Options{})
-	if err != nil || tw.Size != SizeTown {
-		t.Errorf("zero Options: %v, size %q; want the town", err, tw.Size)
+	if err != nil || tw.size != SizeTown {
+		t.Errorf("zero Options: %v, size %q; want the town", err, tw.size)
 	}
 }
 
 func TestSimulateOptionErrors(t *testing.T) {
-	tw, err := Generate(DefaultOptions())
+	tw, err := Generate(defaultOptions())
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -378,18 +378,18 @@ func TestSimulateOptionErrors(t *testing.T) {
 		{"variation", func(o *SimOptions) { o.DayVariation = -0.1 }},
 		{"zone nodes", func(o *SimOptions) { o.ZoneNodes = -1 }},
 	} {
-		o := DefaultSimOptions()
+		o := defaultSimOptions()
 		c.edit(&o)
 		if _, err := tw.Simulate(context.Background(), o, &bytes.Buffer{}); err == nil {
 			t.Errorf("%s: no error", c.name)
 		}
 	}
-	if _, err := (&Town{}).Simulate(context.Background(), DefaultSimOptions(), &bytes.Buffer{}); err == nil {
+	if _, err := (&Town{}).Simulate(context.Background(), defaultSimOptions(), &bytes.Buffer{}); err == nil {
 		t.Error("zero Town: no error")
 	}
 	ctx, cancel := context.WithCancel(context.Background())
 	cancel()
-	if _, err := tw.Simulate(ctx, DefaultSimOptions(), &bytes.Buffer{}); !errors.Is(err, context.Canceled) {
+	if _, err := tw.Simulate(ctx, defaultSimOptions(), &bytes.Buffer{}); !errors.Is(err, context.Canceled) {
 		t.Errorf("cancelled context: err = %v", err)
 	}
 }
@@ -403,13 +403,13 @@ func TestScenario(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		if !p.Before.To.Equal(p.After.From) || !p.Before.From.Equal(p.Start) || p.After.To.Sub(p.Start) != time.Duration(p.Days)*24*time.Hour {
-			t.Errorf("%s: periods %v / %v do not tile %d days from %v", kind, p.Before, p.After, p.Days, p.Start)
+		if !p.Before.To.Equal(p.After.From) || !p.Before.From.Equal(p.start) || p.After.To.Sub(p.start) != time.Duration(p.days)*24*time.Hour {
+			t.Errorf("%s: periods %v / %v do not tile %d days from %v", kind, p.Before, p.After, p.days, p.start)
 		}
 		if (kind == "link") != (p.LinkOpens != nil) {
 			t.Errorf("%s: LinkOpens %v", kind, p.LinkOpens)
 		}
-		if _, off := p.Start.Zone(); off != 3600 {
+		if _, off := p.start.Zone(); off != 3600 {
 			t.Errorf("%s: start offset %d s, want +01:00", kind, off)
 		}
 	}
@@ -420,12 +420,12 @@ func TestScenario(t *testing.T) {
 // perturbed weights: the same distances, and on the town (routed by gonum)
 // the same settle order.
 func TestHeapTreeMatchesGonum(t *testing.T) {
-	for _, size := range []Size{SizeTown, SizeCity} {
+	for _, size := range []Size{SizeTown, sizeCity} {
 		tw, err := Generate(Options{Size: size, Seed: 3})
 		if err != nil {
 			t.Fatal(err)
 		}
-		nw, err := tw.NetworkOf(true)
+		nw, err := tw.networkOf(true)
 		if err != nil {
 			t.Fatal(err)
 		}

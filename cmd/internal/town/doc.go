@@ -5,9 +5,9 @@
 // In: Options (size, seed) for Generate; SimOptions (seed, days, fleet
 // size, the day the link opens, time zone) for Town.Simulate. Out: the town
 // as OSM XML 0.6 (Town.WriteOSM, before or after the link), trip rows in
-// the ingest CSV format (TripHeader), optionally GPS traces (Trace, written
-// with PointsWriter or WriteGPX), and the planted truth (Town.Housing,
-// Town.Jobs, Town.LinkMidpoint, Scenario) that tests check findings against.
+// the ingest CSV format, optionally GPS traces (Trace, written with
+// PointsWriter or WriteGPX), and the planted truth (Town.Housing, Town.Jobs,
+// Town.LinkMidpoint, Scenario) that tests check findings against.
 //
 // # The town
 //

@@ -13,6 +13,8 @@ import (
 	"github.com/paulmach/orb"
 	"github.com/paulmach/orb/geo"
 	"github.com/paulmach/orb/planar"
+
+	"narrows/partition/geodesy"
 )
 
 // csvTrip is a trip read back from the CSV output, independently of the
@@ -25,7 +27,7 @@ type csvTrip struct {
 
 func (c csvTrip) detour() float64 { return c.distance / geo.Distance(c.o, c.d) }
 func (c csvTrip) speedKMH() float64 {
-	return c.distance / c.end.Sub(c.start).Seconds() * 3.6
+	return geodesy.KMH(c.distance / c.end.Sub(c.start).Seconds())
 }
 
 func readTrips(t testing.TB, r io.Reader) []csvTrip {
@@ -35,8 +37,8 @@ func readTrips(t testing.TB, r io.Reader) []csvTrip {
 	if err != nil {
 		t.Fatalf("reading header: %v", err)
 	}
-	if got := joinComma(head); got != TripHeader {
-		t.Fatalf("header %q, want %q", got, TripHeader)
+	if got := joinComma(head); got != tripHeader {
+		t.Fatalf("header %q, want %q", got, tripHeader)
 	}
 	var out []csvTrip
 	for line := 2; ; line++ {

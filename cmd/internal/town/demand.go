@@ -47,7 +47,7 @@ func cellIntervals(cells int, edge func(c int) float64, split float64) []interva
 }
 
 // zonesOf builds the zones of t over network nw; perZone limits the trip ends per zone (0: all nodes of the zone).
-func (t *Town) zonesOf(nw *Network, perZone int) []zone {
+func (t *Town) zonesOf(nw *network, perZone int) []zone {
 	lay := t.lay
 	// Network index of each grid node.
 	netOf := make(map[int64]int32, len(nw.osm))
@@ -227,7 +227,7 @@ type gridRef struct {
 // zoneSegments lists the street segments between the zone's trip-end nodes
 // that are not on the zone's border (border streets are region borders, and
 // a trip point on one would sit on the line between two regions).
-func zoneSegments(nw *Network, z *zone, refs []gridRef, lay layout) []segment {
+func zoneSegments(nw *network, z *zone, refs []gridRef, lay layout) []segment {
 	at := make(map[int32]int, len(refs))
 	for k, r := range refs {
 		at[r.v] = k

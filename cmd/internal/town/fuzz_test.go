@@ -20,10 +20,10 @@ func FuzzSimOptions(f *testing.F) {
 		if err != nil {
 			return
 		}
-		if tw.Size == SizeCity {
+		if tw.size == sizeCity {
 			return // a city assignment takes seconds; Generate was the point
 		}
-		o := DefaultSimOptions()
+		o := defaultSimOptions()
 		o.Seed = simSeed
 		o.Days = min(days, 2)
 		o.TripsPerDay = min(trips, 200)

@@ -18,12 +18,12 @@ func shortPlan(t *testing.T, kind string, trips int) (Plan, SimOptions) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	mid := p.Start.AddDate(0, 0, 7)
-	p.Days, p.Before.To, p.After.From, p.After.To = 14, mid, mid, mid.AddDate(0, 0, 7)
+	mid := p.start.AddDate(0, 0, 7)
+	p.days, p.Before.To, p.After.From, p.After.To = 14, mid, mid, mid.AddDate(0, 0, 7)
 	if p.LinkOpens != nil {
 		p.LinkOpens = &mid
 	}
-	p.TripsPerDay = trips
+	p.tripsPerDay = trips
 	return p, p.SimOptions(2)
 }
 
@@ -32,7 +32,7 @@ func shortPlan(t *testing.T, kind string, trips int) (Plan, SimOptions) {
 // the jobs district detour far (mean ratio > 1.6) and are slower than the
 // typical trip; after it the detour falls. The control scenario keeps it.
 func TestPlantedWeakness(t *testing.T) {
-	tw, err := Generate(DefaultOptions())
+	tw, err := Generate(defaultOptions())
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -44,8 +44,8 @@ func TestPlantedWeakness(t *testing.T) {
 			if len(trips) != st.Trips {
 				t.Fatalf("read %d trips, Stats says %d", len(trips), st.Trips)
 			}
-			before := between(trips, tw.Housing.Area, tw.Jobs.Area, p.Before.From, p.Before.To)
-			after := between(trips, tw.Housing.Area, tw.Jobs.Area, p.After.From, p.After.To)
+			before := between(trips, tw.Housing.area, tw.Jobs.area, p.Before.From, p.Before.To)
+			after := between(trips, tw.Housing.area, tw.Jobs.area, p.After.From, p.After.To)
 			t.Logf("before: %d trips, detour %.2f, speed %.1f km/h (all trips: detour %.2f, speed %.1f)", before.n, before.meanDetour, before.meanSpeed, before.allMedianDetour, before.allMedianSpeed)
 			t.Logf("after:  %d trips, detour %.2f, speed %.1f km/h (all trips: detour %.2f, speed %.1f)", after.n, after.meanDetour, after.meanSpeed, after.allMedianDetour, after.allMedianSpeed)
 			if before.n < 100 || after.n < 100 {
@@ -62,15 +62,15 @@ func TestPlantedWeakness(t *testing.T) {
 				if after.meanDetour > before.meanDetour-1 || after.meanDetour > 1.8 {
 					t.Errorf("after the link: mean detour %.2f (before %.2f), want a fall by more than 1 to at most 1.8", after.meanDetour, before.meanDetour)
 				}
-				if len(st.Assignments) != 2 || st.Assignments[0].WithLink || !st.Assignments[1].WithLink {
-					t.Errorf("assignments %+v, want without then with the link", st.Assignments)
+				if len(st.assignments) != 2 || st.assignments[0].WithLink || !st.assignments[1].WithLink {
+					t.Errorf("assignments %+v, want without then with the link", st.assignments)
 				}
 			case "control":
 				if r := after.meanDetour / before.meanDetour; r < 0.9 || r > 1.1 {
 					t.Errorf("control: detour %.2f after vs %.2f before", after.meanDetour, before.meanDetour)
 				}
-				if len(st.Assignments) != 1 || st.Assignments[0].WithLink {
-					t.Errorf("assignments %+v, want one without the link", st.Assignments)
+				if len(st.assignments) != 1 || st.assignments[0].WithLink {
+					t.Errorf("assignments %+v, want one without the link", st.assignments)
 				}
 			}
 		})
@@ -81,7 +81,7 @@ func TestPlantedWeakness(t *testing.T) {
 // trips by region pair: the planted pair is among the three busiest pairs
 // and has the longest median detour of all pairs with at least 50 trips.
 func TestPlantedPairTopsRegions(t *testing.T) {
-	tw, err := Generate(DefaultOptions())
+	tw, err := Generate(defaultOptions())
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -5,11 +5,11 @@ import (
 	"math"
 )
 
-// BPR returns the travel time on a link with free-flow time t0 carrying
+// bpr returns the travel time on a link with free-flow time t0 carrying
 // volume vehicles an hour against capacity vehicles an hour, by the Bureau of
 // Public Roads volume-delay function t = t0 (1 + 0.15 (v/c)^4) (Bureau of
 // Public Roads, 1964). A non-positive capacity gives +Inf.
-func BPR(t0, volume, capacity float64) float64 {
+func bpr(t0, volume, capacity float64) float64 {
 	if capacity <= 0 {
 		return math.Inf(1)
 	}
@@ -41,7 +41,7 @@ type assignment struct {
 // loads on the current shortest paths, averaged with step 1/k, times from
 // BPR, for rounds rounds. Trees are computed per origin trip end, in fixed
 // chunks summed in chunk order (deterministic).
-func msa(ctx context.Context, nw *Network, od *odMatrix, rounds int) (*assignment, error) {
+func msa(ctx context.Context, nw *network, od *odMatrix, rounds int) (*assignment, error) {
 	L := len(nw.links)
 	a := &assignment{Volume: make([]float64, L), Time: make([]float64, L)}
 	for i, l := range nw.links {
@@ -63,7 +63,7 @@ func msa(ctx context.Context, nw *Network, od *odMatrix, rounds int) (*assignmen
 			a.Volume[i] += step * (aux[i] - a.Volume[i])
 		}
 		for i, l := range nw.links {
-			a.Time[i] = BPR(l.t0, a.Volume[i], l.capacity)
+			a.Time[i] = bpr(l.t0, a.Volume[i], l.capacity)
 		}
 	}
 	return a, nil
@@ -93,7 +93,7 @@ func chunkRange(m, chunks, c int) (int, int) { return c * m / chunks, (c + 1) * 
 
 // allOrNothing loads od on the shortest paths under times and returns the
 // link loads and the total time on shortest paths.
-func allOrNothing(ctx context.Context, nw *Network, od *odMatrix, times []float64) ([]float64, float64, error) {
+func allOrNothing(ctx context.Context, nw *network, od *odMatrix, times []float64) ([]float64, float64, error) {
 	chunks := chunksFor(od.m)
 	loads := make([][]float64, chunks)
 	sptts := make([]float64, chunks)
@@ -167,7 +167,7 @@ type routeTable struct {
 
 // routes builds the route table on the loaded network: one tree per origin
 // trip end under the congested times.
-func routes(ctx context.Context, nw *Network, od *odMatrix, a *assignment, incidents []int32, keepParents bool) (*routeTable, error) {
+func routes(ctx context.Context, nw *network, od *odMatrix, a *assignment, incidents []int32, keepParents bool) (*routeTable, error) {
 	m := od.m
 	rt := &routeTable{m: m, length: make([]float32, m*m), t0: make([]float32, m*m), peak: make([]float32, m*m)}
 	n := len(nw.pos)

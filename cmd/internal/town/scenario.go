@@ -7,27 +7,28 @@ import (
 
 // Period is a half-open range of local days [From, To).
 type Period struct {
-	Name     string
 	From, To time.Time
+	name     string // "before" or "after"
 }
 
 // Plan describes a demo scenario: the days simulated, the two periods to
 // compare and when the link opens.
 type Plan struct {
-	// Kind is "link" (the link opens at the start of After) or "control"
-	// (nothing changes).
-	Kind string
 	// Location is the study time zone (Etc/GMT-1).
 	Location *time.Location
-	// Start is the first day (local midnight); Days the number of days.
-	Start time.Time
-	Days  int
 	// Before and After are the periods compared: four weeks each.
 	Before, After Period
 	// LinkOpens is the first day with the link, nil for the control.
 	LinkOpens *time.Time
-	// TripsPerDay is the weekday fleet sample.
-	TripsPerDay int
+
+	// kind is "link" (the link opens at the start of After) or "control"
+	// (nothing changes).
+	kind string
+	// start is the first day (local midnight); days the number of days.
+	start time.Time
+	days  int
+	// tripsPerDay is the weekday fleet sample.
+	tripsPerDay int
 }
 
 // Scenario returns the demo plan of the given kind: eight weeks from Monday
@@ -37,14 +38,14 @@ func Scenario(kind string) (Plan, error) {
 	if kind != "link" && kind != "control" {
 		return Plan{}, fmt.Errorf("town: unknown scenario %q (want \"link\" or \"control\")", kind)
 	}
-	loc := StudyLocation()
+	loc := studyLocation()
 	start := time.Date(2026, 3, 2, 0, 0, 0, 0, loc)
 	mid := start.AddDate(0, 0, 28)
 	end := start.AddDate(0, 0, 56)
-	p := Plan{Kind: kind, Location: loc, Start: start, Days: 56,
-		Before:      Period{Name: "before", From: start, To: mid},
-		After:       Period{Name: "after", From: mid, To: end},
-		TripsPerDay: 8000}
+	p := Plan{kind: kind, Location: loc, start: start, days: 56,
+		Before:      Period{name: "before", From: start, To: mid},
+		After:       Period{name: "after", From: mid, To: end},
+		tripsPerDay: 8000}
 	if kind == "link" {
 		p.LinkOpens = &mid
 	}
@@ -54,12 +55,12 @@ func Scenario(kind string) (Plan, error) {
 // SimOptions returns the simulation options of the plan with the given seed
 // and the other settings at their defaults.
 func (p Plan) SimOptions(seed int64) SimOptions {
-	o := DefaultSimOptions()
+	o := defaultSimOptions()
 	o.Seed = seed
 	o.Location = p.Location
-	o.Start = p.Start
-	o.Days = p.Days
-	o.TripsPerDay = p.TripsPerDay
+	o.Start = p.start
+	o.Days = p.days
+	o.TripsPerDay = p.tripsPerDay
 	o.LinkOpens = p.LinkOpens
 	return o
 }

@@ -17,15 +17,15 @@ func (t *Town) WriteOSM(w io.Writer, withLink bool) error {
 	buf = append(buf, `<?xml version="1.0" encoding="UTF-8"?>`+"\n"...)
 	buf = append(buf, `<osm version="0.6" generator="narrows town">`+"\n"...)
 	buf = append(buf, `  <bounds minlat="`...)
-	buf = appendCoord(buf, t.Bound.Min[1])
+	buf = appendCoord(buf, t.bound.Min[1])
 	buf = append(buf, `" minlon="`...)
-	buf = appendCoord(buf, t.Bound.Min[0])
+	buf = appendCoord(buf, t.bound.Min[0])
 	buf = append(buf, `" maxlat="`...)
-	buf = appendCoord(buf, t.Bound.Max[1])
+	buf = appendCoord(buf, t.bound.Max[1])
 	buf = append(buf, `" maxlon="`...)
-	buf = appendCoord(buf, t.Bound.Max[0])
+	buf = appendCoord(buf, t.bound.Max[0])
 	buf = append(buf, "\"/>\n"...)
-	writeNode := func(n *Node) {
+	writeNode := func(n *osmNode) {
 		buf = append(buf, `  <node id="`...)
 		buf = strconv.AppendInt(buf, n.ID, 10)
 		buf = append(buf, `" version="1" lat="`...)
@@ -42,14 +42,14 @@ func (t *Town) WriteOSM(w io.Writer, withLink bool) error {
 	}
 	writeWay := func(wy *Way) {
 		buf = append(buf, `  <way id="`...)
-		buf = strconv.AppendInt(buf, wy.ID, 10)
+		buf = strconv.AppendInt(buf, wy.id, 10)
 		buf = append(buf, "\" version=\"1\">\n"...)
-		for _, id := range wy.Nodes {
+		for _, id := range wy.nodes {
 			buf = append(buf, `    <nd ref="`...)
 			buf = strconv.AppendInt(buf, id, 10)
 			buf = append(buf, "\"/>\n"...)
 		}
-		buf = appendTags(buf, wy.Tags)
+		buf = appendTags(buf, wy.tags)
 		buf = append(buf, "  </way>\n"...)
 	}
 	flush := func() error {
@@ -60,19 +60,19 @@ func (t *Town) WriteOSM(w io.Writer, withLink bool) error {
 		buf = buf[:0]
 		return err
 	}
-	for i := range t.Nodes {
-		writeNode(&t.Nodes[i])
+	for i := range t.nodes {
+		writeNode(&t.nodes[i])
 		if err := flush(); err != nil {
 			return err
 		}
 	}
 	if withLink {
-		for i := range t.LinkNodes {
-			writeNode(&t.LinkNodes[i])
+		for i := range t.linkNodes {
+			writeNode(&t.linkNodes[i])
 		}
 	}
-	for i := range t.Ways {
-		writeWay(&t.Ways[i])
+	for i := range t.ways {
+		writeWay(&t.ways[i])
 		if err := flush(); err != nil {
 			return err
 		}
@@ -89,7 +89,7 @@ func (t *Town) WriteOSM(w io.Writer, withLink bool) error {
 
 func appendCoord(b []byte, v float64) []byte { return strconv.AppendFloat(b, v, 'f', 7, 64) }
 
-func appendTags(b []byte, tags []Tag) []byte {
+func appendTags(b []byte, tags []tag) []byte {
 	for _, tg := range tags {
 		b = append(b, `    <tag k="`...)
 		b = appendEscaped(b, tg.Key)
