@@ -7,6 +7,7 @@ import (
 	"sort"
 
 	"narrows/partition"
+	"narrows/partition/geodesy"
 	"narrows/regiongraph"
 )
 
@@ -36,7 +37,7 @@ type CompareOptions struct {
 func DefaultCompareOptions() CompareOptions {
 	return CompareOptions{
 		Alpha:          0.05,
-		MinShiftSpeed:  1 / 3.6,
+		MinShiftSpeed:  geodesy.MPS(1),
 		MinShiftDetour: 0.05,
 		MinDayTrips:    1,
 	}

@@ -55,14 +55,14 @@ func TestScanStoreMinTripsAsReadFilter(t *testing.T) {
 	if n := len(got.Days); n != 30 || len(got.Findings) == 0 {
 		t.Errorf("%d analysed days and %d findings, want 30 days (not the thin last one) and findings", n, len(got.Findings))
 	}
-	// Without the minimum, the thin day counts.
-	opts.Skyline.MinTrips = 0
+	// With the smallest minimum, the thin day counts.
+	opts.Skyline.MinTrips = 1
 	all, err := ScanStore(context.Background(), store, opts)
 	if err != nil {
 		t.Fatal(err)
 	}
 	if len(all.Days) != 31 {
-		t.Errorf("MinTrips 0: %d analysed days, want 31", len(all.Days))
+		t.Errorf("MinTrips 1: %d analysed days, want 31", len(all.Days))
 	}
 }
 

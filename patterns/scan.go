@@ -9,6 +9,7 @@ import (
 	"strings"
 	"time"
 
+	"narrows/partition/geodesy"
 	"narrows/patterns/groups"
 	"narrows/regiongraph"
 	"narrows/skyline"
@@ -34,7 +35,7 @@ func DefaultScanOptions() ScanOptions {
 		Skyline:        skyline.DefaultOptions(),
 		Support:        0.2,
 		MaxGroupEdges:  6,
-		ReferenceSpeed: 30 / 3.6,
+		ReferenceSpeed: geodesy.MPS(30),
 	}
 }
 
@@ -194,8 +195,16 @@ func checkScanOptions(opts *ScanOptions) error {
 	if !(opts.Support > 0 && opts.Support <= 1) {
 		return fmt.Errorf("patterns: scan: support %v, want a share above 0 and at most 1", opts.Support)
 	}
-	if opts.MaxGroupEdges < 0 {
-		return fmt.Errorf("patterns: scan: max group edges %d, want 0 (no bound) or more", opts.MaxGroupEdges)
+	if opts.Skyline.MinTrips < 1 {
+		return fmt.Errorf("patterns: scan: min trips %d, want 1 or more", opts.Skyline.MinTrips)
+	}
+	if opts.Skyline.K < 1 {
+		return fmt.Errorf("patterns: scan: k %d, want 1 or more", opts.Skyline.K)
+	}
+	// A scan is always bounded: the enumeration of groups grows
+	// exponentially with their size.
+	if opts.MaxGroupEdges < 1 {
+		return fmt.Errorf("patterns: scan: max group edges %d, want 1 or more", opts.MaxGroupEdges)
 	}
 	if !(opts.ReferenceSpeed > 0) || math.IsInf(opts.ReferenceSpeed, 0) {
 		return fmt.Errorf("patterns: scan: reference speed %v m/s, want a positive speed", opts.ReferenceSpeed)

@@ -9,8 +9,9 @@ import (
 
 // Validate reports the first option that ScanStore would refuse before
 // looking at the store: an unknown day selector, a support outside (0, 1],
-// a negative group size, a reference speed that is not positive, or a day
-// (From, To, Exclude) that is not a date YYYY-MM-DD, or From after To.
+// a minimum trips, k or largest group below 1, a reference speed that is
+// not positive, or a day (From, To, Exclude) that is not a date YYYY-MM-DD,
+// or From after To.
 func (o ScanOptions) Validate() error {
 	return checkScanOptions(&o)
 }

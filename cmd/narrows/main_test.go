@@ -74,6 +74,8 @@ func TestUsageErrors(t *testing.T) {
 		{"unknown flag", []string{"regions", "--nope"}, "flag provided but not defined"},
 		{"malformed bbox", []string{"regions", "--osm", "a.osm", "--out", "b.geojson", "--bbox", "1,2,3"}, "--bbox"},
 		{"bad support", []string{"scan", "--graphs", "g.parquet", "--out", "f.json", "--support", "1.5"}, "--support"},
+		{"k below 1", []string{"scan", "--graphs", "g.parquet", "--out", "f.json", "--k", "0"}, "--k"},
+		{"unbounded groups", []string{"scan", "--graphs", "g.parquet", "--out", "f.json", "--max-edges", "0"}, "--max-edges"},
 		{"bad days", []string{"scan", "--graphs", "g.parquet", "--out", "f.json", "--days", "mondays"}, "--days"},
 		{"bad period", []string{"compare", "--graphs", "g", "--before", "2026-01-01", "--after", "2026-02-01..2026-02-10", "--out", "r.xlsx"}, "--before"},
 		{"reversed period", []string{"compare", "--graphs", "g", "--before", "2026-01-10..2026-01-01", "--after", "2026-02-01..2026-02-10", "--out", "r.xlsx"}, "ends before it starts"},
