@@ -69,12 +69,13 @@ type tally struct {
 	last       []*dayRecords // by window index: trips mostly come in time order
 	read       int64
 	used       int64
-	reasons    [numReasons]int64
+	rejected   map[Reason]int64
 }
 
 func newTally(st *settings, loc *locator) *tally {
 	return &tally{st: st, loc: loc, zone: newZoneCache(st.loc), windowRank: windowRanks(st.windows),
-		buckets: make(map[bucketKey]*dayRecords), last: make([]*dayRecords, len(st.windows))}
+		buckets: make(map[bucketKey]*dayRecords), last: make([]*dayRecords, len(st.windows)),
+		rejected: make(map[Reason]int64)}
 }
 
 // windowRanks orders windows by name, the order of edges in the store.
@@ -92,12 +93,12 @@ func windowRanks(windows []Window) []uint8 {
 }
 
 // count books n rows under r.
-func (t *tally) count(r reason, n int64) {
+func (t *tally) count(r Reason, n int64) {
 	t.read += n
 	if r == reasonUsed {
 		t.used += n
 	} else {
-		t.reasons[r] += n
+		t.rejected[r] += n
 	}
 }
 
@@ -111,42 +112,42 @@ type trip struct {
 
 // add runs the trip checks in the order of RejectReasons, and aggregates the
 // trip when it passes. It returns the row's outcome; the caller counts rows.
-func (t *tally) add(tr *trip) reason {
+func (t *tally) add(tr *trip) Reason {
 	st := t.st
 	from := t.loc.locate(tr.origin)
 	if from == 0 {
-		return rOutside
+		return ReasonOutside
 	}
 	to := t.loc.locate(tr.dest)
 	if to == 0 {
-		return rOutside
+		return ReasonOutside
 	}
 	if from == to {
-		return rIntraRegion
+		return ReasonIntraRegion
 	}
 	straight := geodesy.GreatCircleMetres(tr.origin, tr.dest)
 	if straight < st.minStraight {
-		return rShortTrip
+		return ReasonShortTrip
 	}
 	duration := float64(tr.endMS-tr.startMS) / 1000
 	if !(duration > 0) || duration > st.maxDurationS {
-		return rBadDuration
+		return ReasonBadDuration
 	}
 	if tr.jump {
-		return rGPSJump
+		return ReasonGPSJump
 	}
 	speed := tr.distance / duration
 	if !(speed >= st.minSpeed && speed <= st.maxSpeed) {
-		return rBadSpeed
+		return ReasonBadSpeed
 	}
 	if !(tr.distance/straight >= st.minDetour) {
-		return rDetourFloor
+		return ReasonDetourFloor
 	}
 	local := t.zone.local(floorDiv(tr.startMS, 1000))
 	day := floorDiv(local, 86400)
 	minute := int((local - day*86400) / 60)
 	if day < math.MinInt32 || day > math.MaxInt32 {
-		return rUnparseable
+		return ReasonUnparseable
 	}
 	in := false
 	rec := record{pair: uint32(from)<<16 | uint32(to),
@@ -169,7 +170,7 @@ func (t *tally) add(tr *trip) reason {
 		d.add(rec)
 	}
 	if !in {
-		return rOutsideTimes
+		return ReasonOutsideTimes
 	}
 	return reasonUsed
 }
@@ -225,14 +226,14 @@ func medianDecimal(sorted []float32) float64 {
 func finish(st *settings, loc *locator, tallies []*tally) ([]Edge, Quality) {
 	q := Quality{Rejected: make(map[string]int64)}
 	for _, r := range RejectReasons() {
-		q.Rejected[r] = 0
+		q.Rejected[string(r)] = 0
 	}
 	parts := make(map[bucketKey][]*dayRecords)
 	for _, t := range tallies {
 		q.Read += t.read
 		q.Used += t.used
-		for r, n := range t.reasons {
-			q.Rejected[reason(r).String()] += n
+		for r, n := range t.rejected {
+			q.Rejected[string(r)] += n
 		}
 		for key, d := range t.buckets {
 			parts[key] = append(parts[key], d)

@@ -46,13 +46,10 @@ func ExampleIngest() {
 		log.Fatal(err)
 	}
 	q := store.Meta.Quality
-	fmt.Printf("read %d, used %d, intra-region %d\n", q.Read, q.Used, q.Rejected[regiongraph.ReasonIntraRegion])
+	fmt.Printf("read %d, used %d, intra-region %d\n", q.Read, q.Used, q.Rejected[string(regiongraph.ReasonIntraRegion)])
 	for _, e := range store.Edges {
 		fmt.Printf("%s %s %d->%d: %d trips, median %.1f km/h, detour %.2f\n",
 			e.Day, e.Window, e.From, e.To, e.Trips, e.SpeedMedian*3.6, e.DetourMedian)
-	}
-	if err := regiongraph.WriteFile(filepath.Join(dir, "graphs.parquet"), store); err != nil {
-		log.Fatal(err)
 	}
 	// Trip 3 stays in region 1: counted, not an edge. Medians of two trips
 	// are their means: (25 + 18) / 2 km/h; detours 1.22 and 1.76.

@@ -10,7 +10,6 @@ import (
 	"io"
 	"os"
 	"slices"
-	"strconv"
 	"strings"
 )
 
@@ -128,8 +127,8 @@ func ingestGPX(ctx context.Context, st *settings, path string, t *tally, progres
 	if err != nil {
 		return "", 0, fmt.Errorf("regiongraph: %s: %v", path, err)
 	}
-	var fail pointFailure
-	seg := pointSegmenter{st: st, t: t, fail: &fail}
+	var fail firstFault
+	seg := pointSegmenter{st: st, t: t, file: path, fail: &fail}
 	var rows int64
 	for _, s := range segs {
 		if err := ctx.Err(); err != nil {
@@ -138,13 +137,13 @@ func ingestGPX(ctx context.Context, st *settings, path string, t *tally, progres
 		pts := make([]gpsPoint, 0, len(s.points))
 		for _, p := range s.points {
 			rows++
-			r, msg := rUnparseable, ""
+			f := fault{reason: ReasonUnparseable}
 			var g gpsPoint
 			switch {
 			case p.lat == "" || p.lon == "":
-				r, msg = rMissingField, "missing field: trkpt without lat or lon"
+				f = fault{reason: ReasonMissingField, detail: "trkpt without lat or lon"}
 			case p.time == "":
-				r, msg = rMissingField, "missing field: trkpt without <time>"
+				f = fault{reason: ReasonMissingField, detail: "trkpt without <time>"}
 			default:
 				g.line = p.line
 				var e1, e2, e3 error
@@ -153,19 +152,19 @@ func ingestGPX(ctx context.Context, st *settings, path string, t *tally, progres
 				g.ms, e3 = parseTime([]byte(p.time), t.zone)
 				switch {
 				case e1 != nil || g.lat < -90 || g.lat > 90:
-					msg = "unparseable lat " + strconv.Quote(p.lat)
+					f.column, f.value = "lat", p.lat
 				case e2 != nil || g.lon < -180 || g.lon > 180:
-					msg = "unparseable lon " + strconv.Quote(p.lon)
+					f.column, f.value = "lon", p.lon
 				case e3 != nil:
-					msg = "unparseable time " + strconv.Quote(p.time)
+					f.column, f.value = "time", p.time
 				default:
-					r = reasonUsed
+					f.reason = reasonUsed
 				}
 			}
-			if r != reasonUsed {
-				t.count(r, 1)
+			if f.reason != reasonUsed {
+				t.count(f.reason, 1)
 				if st.opts.Strict {
-					fail.keep(p.line, msg)
+					fail.keep(0, f.at(path, p.line, 0))
 				}
 				continue
 			}
@@ -181,8 +180,8 @@ func ingestGPX(ctx context.Context, st *settings, path string, t *tally, progres
 	if progress != nil {
 		progress(int64(len(data)))
 	}
-	if fail.line != 0 {
-		return "", 0, fmt.Errorf("regiongraph: %s:%d: %s", path, fail.line, fail.msg)
+	if fail.err != nil {
+		return "", 0, fail.err
 	}
 	return hexSum(h), rows, nil
 }

@@ -233,7 +233,7 @@ func detectFormat(path string, st *settings) (Format, error) {
 		}
 		return false
 	}
-	if hasCol(st.column(ColVehicleID)) && hasCol(st.column(ColTime)) && !hasCol(st.column(ColStartTime)) {
+	if hasCol(st.column(colVehicleID)) && hasCol(st.column(colTime)) && !hasCol(st.column(colStartTime)) {
 		return FormatPoints, nil
 	}
 	return FormatTrips, nil

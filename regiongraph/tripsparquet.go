@@ -96,11 +96,11 @@ func ingestTripParquet(ctx context.Context, st *settings, path string, t *tally,
 				t.count(r, 1)
 				if r != reasonUsed && st.opts.Strict && r.isDataError() {
 					rows.Close()
-					msg := explain(st, &tr, r)
-					if col != "" {
-						msg = fmt.Sprintf("%s %s", r, col)
+					f := fault{reason: r, column: col}
+					if col == "" {
+						f.detail = explain(st, &tr, r)
 					}
-					return "", fmt.Errorf("regiongraph: %s:row %d: %s", path, rowNo, msg)
+					return "", f.at(path, 0, rowNo)
 				}
 			}
 			if progress != nil && n > 0 {
@@ -166,7 +166,7 @@ func timeKindOf(typ parquet.Type) (parquetTimeKind, error) {
 	return parquetTimeKind{}, fmt.Errorf("type %v; want a timestamp, Unix seconds or text", typ)
 }
 
-func parquetTrip(st *settings, z *zoneCache, row parquet.Row, idx *[7]int, tk *[2]parquetTimeKind, tr *trip) (reason, string) {
+func parquetTrip(st *settings, z *zoneCache, row parquet.Row, idx *[7]int, tk *[2]parquetTimeKind, tr *trip) (Reason, string) {
 	var vals [7]parquet.Value
 	var have [7]bool
 	for _, v := range row {
@@ -179,13 +179,13 @@ func parquetTrip(st *settings, z *zoneCache, row parquet.Row, idx *[7]int, tk *[
 	}
 	for i, name := range tripRequired {
 		if !have[i] {
-			return rMissingField, name
+			return ReasonMissingField, name
 		}
 	}
 	for i := 0; i < 2; i++ {
 		ms, err := parquetTime(z, vals[i], tk[i])
 		if err != nil {
-			return rUnparseable, tripRequired[i]
+			return ReasonUnparseable, tripRequired[i]
 		}
 		if i == 0 {
 			tr.startMS = ms
@@ -207,7 +207,7 @@ func parquetTrip(st *settings, z *zoneCache, row parquet.Row, idx *[7]int, tk *[
 			v[k] = x.Double()
 		}
 		if math.IsNaN(v[k]) || math.IsInf(v[k], 0) {
-			return rUnparseable, tripRequired[2+k]
+			return ReasonUnparseable, tripRequired[2+k]
 		}
 	}
 	return tr.setPlaces(st, v)
