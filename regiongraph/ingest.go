@@ -31,7 +31,7 @@ type inputFile struct {
 // regionsSHA256 is recorded in the store to tie it to the regions file.
 //
 // Row-level problems are counted in the store's Quality by reason; with
-// Options.Strict the first one is an error "file:line: reason". File-level
+// Options.Strict the first one is a *RowError "file:line: reason". File-level
 // problems (missing file or column, binary or malformed content, unknown
 // time zone) are always errors.
 func Ingest(ctx context.Context, regions *partition.Partition, regionsSHA256 string, inputs []Input, opts Options) (*Store, error) {

@@ -87,7 +87,7 @@ func compareEdges(a, b Edge) int {
 }
 
 // Regions returns the regions the store was built on, kept in the store by
-// Ingest (and in the file by WriteFile) so that later steps need not be
+// Ingest (and in the file by WriteParquet) so that later steps need not be
 // given the regions file again.
 func (s *Store) Regions() (*partition.Partition, error) {
 	if len(s.regionsGeoJSON) == 0 {
