@@ -224,6 +224,34 @@ func medianDecimal(sorted []float32) float64 {
 // reads each edge's count, sums and quantiles; the tallies' records are
 // released as they are used.
 func finish(st *settings, loc *locator, tallies []*tally) ([]Edge, Quality) {
+	q, parts := gather(tallies)
+	keys := make([]bucketKey, 0, len(parts))
+	for key := range parts {
+		keys = append(keys, key)
+	}
+	slices.Sort(keys)
+	byRank := make([]string, len(st.windows))
+	for wi, r := range windowRanks(st.windows) {
+		byRank[r] = st.windows[wi].Name
+	}
+	// Day strings, shared by a day's edges.
+	dayNames := make([]string, len(keys))
+	for i, k := range keys {
+		if i > 0 && keys[i-1].day() == k.day() {
+			dayNames[i] = dayNames[i-1]
+		} else {
+			dayNames[i] = dayString(int64(k.day()))
+		}
+	}
+	edges := bucketsToEdges(loc, parts, keys, func(k bucketKey, i int) (string, string) {
+		return dayNames[i], byRank[k.windowRank()]
+	})
+	return edges, q
+}
+
+// gather sums the tallies' row counts and collects their records by
+// bucket; the tallies give their records up.
+func gather(tallies []*tally) (Quality, map[bucketKey][]*dayRecords) {
 	q := Quality{Rejected: make(map[string]int64)}
 	for _, r := range RejectReasons() {
 		q.Rejected[string(r)] = 0
@@ -240,43 +268,16 @@ func finish(st *settings, loc *locator, tallies []*tally) ([]Edge, Quality) {
 		}
 		t.buckets, t.last = nil, nil
 	}
-	keys := make([]bucketKey, 0, len(parts))
-	for key := range parts {
-		keys = append(keys, key)
-	}
-	slices.Sort(keys)
-	byRank := make([]string, len(st.windows))
-	for wi, r := range windowRanks(st.windows) {
-		byRank[r] = st.windows[wi].Name
-	}
+	return q, parts
+}
 
-	// Day strings, shared by a day's edges.
-	dayNames := make([]string, len(keys))
-	for i, k := range keys {
-		if i > 0 && keys[i-1].day() == k.day() {
-			dayNames[i] = dayNames[i-1]
-		} else {
-			dayNames[i] = dayString(int64(k.day()))
-		}
-	}
-	// The result holds at most one edge per record and per region pair in
-	// each bucket; sizing it up front avoids a second copy of the edges.
-	pairs := len(loc.regions) * (len(loc.regions) - 1)
-	var capacity, largest int
-	for _, k := range keys {
-		n := 0
-		for _, part := range parts[k] {
-			for _, c := range part.chunks {
-				n += len(c)
-			}
-		}
-		capacity += min(n, pairs)
-		largest = max(largest, n)
-	}
+// bucketsToEdges returns the edges of the buckets keys (sorted), named by
+// names(key, index). Buckets are independent: a few goroutines take them
+// in turn, and their edges are appended in bucket order as they come.
+func bucketsToEdges(loc *locator, parts map[bucketKey][]*dayRecords, keys []bucketKey, names func(k bucketKey, i int) (day, window string)) []Edge {
+	capacity, largest := edgeCapacity(parts, keys, len(loc.regions))
 	edges := make([]Edge, 0, capacity)
 
-	// Buckets are independent: a few goroutines take them in turn, and
-	// their edges are appended in bucket order as they come.
 	type bucketResult struct {
 		i     int
 		edges []Edge
@@ -309,7 +310,8 @@ func finish(st *settings, loc *locator, tallies []*tally) ([]Edge, Quality) {
 				case es = <-spare:
 				default:
 				}
-				es, scratch = bucketEdges(es[:0], dayNames[i], byRank[keys[i].windowRank()], buf, loc, scratch)
+				day, window := names(keys[i], i)
+				es, scratch = bucketEdges(es[:0], day, window, buf, loc, scratch)
 				results <- bucketResult{i, es}
 			}
 		}()
@@ -334,7 +336,26 @@ func finish(st *settings, loc *locator, tallies []*tally) ([]Edge, Quality) {
 			}
 		}
 	}
-	return edges, q
+	return edges
+}
+
+// edgeCapacity returns the most edges the buckets can give and the records
+// of the largest bucket. A bucket gives at most one edge per record and per
+// region pair; sizing the result up front avoids a second copy of the
+// edges.
+func edgeCapacity(parts map[bucketKey][]*dayRecords, keys []bucketKey, regions int) (capacity, largest int) {
+	pairs := regions * (regions - 1)
+	for _, k := range keys {
+		n := 0
+		for _, part := range parts[k] {
+			for _, c := range part.chunks {
+				n += len(c)
+			}
+		}
+		capacity += min(n, pairs)
+		largest = max(largest, n)
+	}
+	return capacity, largest
 }
 
 // radixMin is the least bucket size sorted by radix.

@@ -24,9 +24,30 @@ var pointRequired = []string{colVehicleID, colTime, colLon, colLat}
 // ingestPointsCSV reads a GPS point table, cuts each vehicle's points into
 // trips and tallies them.
 func ingestPointsCSV(ctx context.Context, st *settings, c *csvFile, t *tally, progress func(int64)) (string, error) {
-	m, err := c.requireColumns(st, pointRequired, []string{colOccupied})
+	var fail firstFault
+	points, sum, err := readPoints(ctx, st, c, t, &fail, progress)
 	if err != nil {
 		return "", err
+	}
+	// In strict mode a trip-level failure may sit on an earlier line than
+	// the first parse failure: cut the trips before reporting either.
+	seg := pointSegmenter{st: st, t: t, file: c.path, fail: &fail}
+	if err := seg.vehicles(ctx, points); err != nil {
+		return "", err
+	}
+	if fail.err != nil {
+		return "", fail.err
+	}
+	return sum, nil
+}
+
+// readPoints parses the rows of a GPS point table and returns the points
+// and the file's SHA-256. Rejected rows are counted in t, and in strict
+// mode kept in fail.
+func readPoints(ctx context.Context, st *settings, c *csvFile, t *tally, fail *firstFault, progress func(int64)) ([]gpsPoint, string, error) {
+	m, err := c.requireColumns(st, pointRequired, []string{colOccupied})
+	if err != nil {
+		return nil, "", err
 	}
 	iv, it, ilon, ilat, iocc := m[colVehicleID], m[colTime], m[colLon], m[colLat], m[colOccupied]
 	need := max(iv, it, ilon, ilat, iocc) + 1
@@ -43,7 +64,6 @@ func ingestPointsCSV(ctx context.Context, st *settings, c *csvFile, t *tally, pr
 
 	vehicles := make(map[string]uint32)
 	var points []gpsPoint
-	var fail firstFault
 	fields := make([][]byte, 0, len(c.header))
 	for ch := range k.out {
 		sp := lineSplitter{data: ch.data, line: ch.firstLine, quoted: ch.quoted}
@@ -69,13 +89,7 @@ func ingestPointsCSV(ctx context.Context, st *settings, c *csvFile, t *tally, pr
 			if r != reasonUsed {
 				t.count(r, 1)
 				if st.opts.Strict {
-					f := fault{reason: r, column: col}
-					if err != nil {
-						f = fault{reason: r, err: err}
-					} else if i := m[col]; r == ReasonUnparseable && i >= 0 && i < len(fields) {
-						f.value = string(fields[i])
-					}
-					fail.keep(0, f.at(c.path, line, 0))
+					fail.keep(0, pointFault(r, col, err, fields, m).at(c.path, line, 0))
 				}
 				continue
 			}
@@ -91,37 +105,24 @@ func ingestPointsCSV(ctx context.Context, st *settings, c *csvFile, t *tally, pr
 	}
 	if err := <-errc; err != nil {
 		if ctx.Err() != nil && err == ctx.Err() {
-			return "", err
+			return nil, "", err
 		}
-		return "", fmt.Errorf("regiongraph: %s: %w", c.path, err)
+		return nil, "", fmt.Errorf("regiongraph: %s: %w", c.path, err)
 	}
-	// In strict mode a trip-level failure may sit on an earlier line than
-	// the first parse failure: cut the trips before reporting either.
-	slices.SortFunc(points, func(a, b gpsPoint) int {
-		if c := cmp.Compare(a.vehicle, b.vehicle); c != 0 {
-			return c
-		}
-		if c := cmp.Compare(a.ms, b.ms); c != 0 {
-			return c
-		}
-		return cmp.Compare(a.line, b.line)
-	})
-	seg := pointSegmenter{st: st, t: t, file: c.path, fail: &fail}
-	for start := 0; start < len(points); {
-		if err := ctx.Err(); err != nil {
-			return "", err
-		}
-		end := start + 1
-		for end < len(points) && points[end].vehicle == points[start].vehicle {
-			end++
-		}
-		seg.vehicle(points[start:end])
-		start = end
+	return points, hexSum(k.hash), nil
+}
+
+// pointFault is the fault of a point row rejected for r at column col, or
+// for the CSV parser's error err; m maps logical columns to fields.
+func pointFault(r Reason, col string, err error, fields [][]byte, m map[string]int) fault {
+	if err != nil {
+		return fault{reason: r, err: err}
 	}
-	if fail.err != nil {
-		return "", fail.err
+	f := fault{reason: r, column: col}
+	if i := m[col]; r == ReasonUnparseable && i >= 0 && i < len(fields) {
+		f.value = string(fields[i])
 	}
-	return hexSum(k.hash), nil
+	return f
 }
 
 func parsePointFields(z *zoneCache, fields [][]byte, need, iv, it, ilon, ilat, iocc int, p *gpsPoint) (Reason, string) {
@@ -185,6 +186,32 @@ func (s *pointSegmenter) reject(p []gpsPoint, r Reason, detail string) {
 	if s.st.opts.Strict && len(p) > 0 && r != reasonUsed && r.isDataError() {
 		s.fail.keep(0, fault{reason: r, detail: detail}.at(s.file, p[0].line, 0))
 	}
+}
+
+// vehicles sorts the points by vehicle and time and cuts each vehicle's
+// points into trips.
+func (s *pointSegmenter) vehicles(ctx context.Context, points []gpsPoint) error {
+	slices.SortFunc(points, func(a, b gpsPoint) int {
+		if c := cmp.Compare(a.vehicle, b.vehicle); c != 0 {
+			return c
+		}
+		if c := cmp.Compare(a.ms, b.ms); c != 0 {
+			return c
+		}
+		return cmp.Compare(a.line, b.line)
+	})
+	for start := 0; start < len(points); {
+		if err := ctx.Err(); err != nil {
+			return err
+		}
+		end := start + 1
+		for end < len(points) && points[end].vehicle == points[start].vehicle {
+			end++
+		}
+		s.vehicle(points[start:end])
+		start = end
+	}
+	return nil
 }
 
 // vehicle handles all points of one vehicle: with an occupied flag, each
