@@ -50,7 +50,7 @@ type Source struct {
 type Quality struct {
 	Read     int64
 	Used     int64
-	Rejected map[string]int64 // reason -> rows, every reason of RejectReasons
+	Rejected map[string]int64 // reason text (a Reason as a string) -> rows, every reason of RejectReasons
 }
 
 // Meta is the store's provenance.
