@@ -69,12 +69,13 @@ type tally struct {
 	last       []*dayRecords // by window index: trips mostly come in time order
 	read       int64
 	used       int64
-	reasons    [numReasons]int64
+	rejected   map[Reason]int64
 }
 
 func newTally(st *settings, loc *locator) *tally {
 	return &tally{st: st, loc: loc, zone: newZoneCache(st.loc), windowRank: windowRanks(st.windows),
-		buckets: make(map[bucketKey]*dayRecords), last: make([]*dayRecords, len(st.windows))}
+		buckets: make(map[bucketKey]*dayRecords), last: make([]*dayRecords, len(st.windows)),
+		rejected: make(map[Reason]int64)}
 }
 
 // windowRanks orders windows by name, the order of edges in the store.
@@ -92,12 +93,12 @@ func windowRanks(windows []Window) []uint8 {
 }
 
 // count books n rows under r.
-func (t *tally) count(r reason, n int64) {
+func (t *tally) count(r Reason, n int64) {
 	t.read += n
 	if r == reasonUsed {
 		t.used += n
 	} else {
-		t.reasons[r] += n
+		t.rejected[r] += n
 	}
 }
 
@@ -111,42 +112,42 @@ type trip struct {
 
 // add runs the trip checks in the order of RejectReasons, and aggregates the
 // trip when it passes. It returns the row's outcome; the caller counts rows.
-func (t *tally) add(tr *trip) reason {
+func (t *tally) add(tr *trip) Reason {
 	st := t.st
 	from := t.loc.locate(tr.origin)
 	if from == 0 {
-		return rOutside
+		return ReasonOutside
 	}
 	to := t.loc.locate(tr.dest)
 	if to == 0 {
-		return rOutside
+		return ReasonOutside
 	}
 	if from == to {
-		return rIntraRegion
+		return ReasonIntraRegion
 	}
 	straight := geodesy.GreatCircleMetres(tr.origin, tr.dest)
 	if straight < st.minStraight {
-		return rShortTrip
+		return ReasonShortTrip
 	}
 	duration := float64(tr.endMS-tr.startMS) / 1000
 	if !(duration > 0) || duration > st.maxDurationS {
-		return rBadDuration
+		return ReasonBadDuration
 	}
 	if tr.jump {
-		return rGPSJump
+		return ReasonGPSJump
 	}
 	speed := tr.distance / duration
 	if !(speed >= st.minSpeed && speed <= st.maxSpeed) {
-		return rBadSpeed
+		return ReasonBadSpeed
 	}
 	if !(tr.distance/straight >= st.minDetour) {
-		return rDetourFloor
+		return ReasonDetourFloor
 	}
 	local := t.zone.local(floorDiv(tr.startMS, 1000))
 	day := floorDiv(local, 86400)
 	minute := int((local - day*86400) / 60)
 	if day < math.MinInt32 || day > math.MaxInt32 {
-		return rUnparseable
+		return ReasonUnparseable
 	}
 	in := false
 	rec := record{pair: uint32(from)<<16 | uint32(to),
@@ -169,7 +170,7 @@ func (t *tally) add(tr *trip) reason {
 		d.add(rec)
 	}
 	if !in {
-		return rOutsideTimes
+		return ReasonOutsideTimes
 	}
 	return reasonUsed
 }
@@ -223,22 +224,7 @@ func medianDecimal(sorted []float32) float64 {
 // reads each edge's count, sums and quantiles; the tallies' records are
 // released as they are used.
 func finish(st *settings, loc *locator, tallies []*tally) ([]Edge, Quality) {
-	q := Quality{Rejected: make(map[string]int64)}
-	for _, r := range RejectReasons() {
-		q.Rejected[r] = 0
-	}
-	parts := make(map[bucketKey][]*dayRecords)
-	for _, t := range tallies {
-		q.Read += t.read
-		q.Used += t.used
-		for r, n := range t.reasons {
-			q.Rejected[reason(r).String()] += n
-		}
-		for key, d := range t.buckets {
-			parts[key] = append(parts[key], d)
-		}
-		t.buckets, t.last = nil, nil
-	}
+	q, parts := gather(tallies)
 	keys := make([]bucketKey, 0, len(parts))
 	for key := range parts {
 		keys = append(keys, key)
@@ -248,7 +234,6 @@ func finish(st *settings, loc *locator, tallies []*tally) ([]Edge, Quality) {
 	for wi, r := range windowRanks(st.windows) {
 		byRank[r] = st.windows[wi].Name
 	}
-
 	// Day strings, shared by a day's edges.
 	dayNames := make([]string, len(keys))
 	for i, k := range keys {
@@ -258,24 +243,41 @@ func finish(st *settings, loc *locator, tallies []*tally) ([]Edge, Quality) {
 			dayNames[i] = dayString(int64(k.day()))
 		}
 	}
-	// The result holds at most one edge per record and per region pair in
-	// each bucket; sizing it up front avoids a second copy of the edges.
-	pairs := len(loc.regions) * (len(loc.regions) - 1)
-	var capacity, largest int
-	for _, k := range keys {
-		n := 0
-		for _, part := range parts[k] {
-			for _, c := range part.chunks {
-				n += len(c)
-			}
-		}
-		capacity += min(n, pairs)
-		largest = max(largest, n)
+	edges := bucketsToEdges(loc, parts, keys, func(k bucketKey, i int) (string, string) {
+		return dayNames[i], byRank[k.windowRank()]
+	})
+	return edges, q
+}
+
+// gather sums the tallies' row counts and collects their records by
+// bucket; the tallies give their records up.
+func gather(tallies []*tally) (Quality, map[bucketKey][]*dayRecords) {
+	q := Quality{Rejected: make(map[string]int64)}
+	for _, r := range RejectReasons() {
+		q.Rejected[string(r)] = 0
 	}
+	parts := make(map[bucketKey][]*dayRecords)
+	for _, t := range tallies {
+		q.Read += t.read
+		q.Used += t.used
+		for r, n := range t.rejected {
+			q.Rejected[string(r)] += n
+		}
+		for key, d := range t.buckets {
+			parts[key] = append(parts[key], d)
+		}
+		t.buckets, t.last = nil, nil
+	}
+	return q, parts
+}
+
+// bucketsToEdges returns the edges of the buckets keys (sorted), named by
+// names(key, index). Buckets are independent: a few goroutines take them
+// in turn, and their edges are appended in bucket order as they come.
+func bucketsToEdges(loc *locator, parts map[bucketKey][]*dayRecords, keys []bucketKey, names func(k bucketKey, i int) (day, window string)) []Edge {
+	capacity, largest := edgeCapacity(parts, keys, len(loc.regions))
 	edges := make([]Edge, 0, capacity)
 
-	// Buckets are independent: a few goroutines take them in turn, and
-	// their edges are appended in bucket order as they come.
 	type bucketResult struct {
 		i     int
 		edges []Edge
@@ -308,7 +310,8 @@ func finish(st *settings, loc *locator, tallies []*tally) ([]Edge, Quality) {
 				case es = <-spare:
 				default:
 				}
-				es, scratch = bucketEdges(es[:0], dayNames[i], byRank[keys[i].windowRank()], buf, loc, scratch)
+				day, window := names(keys[i], i)
+				es, scratch = bucketEdges(es[:0], day, window, buf, loc, scratch)
 				results <- bucketResult{i, es}
 			}
 		}()
@@ -333,7 +336,26 @@ func finish(st *settings, loc *locator, tallies []*tally) ([]Edge, Quality) {
 			}
 		}
 	}
-	return edges, q
+	return edges
+}
+
+// edgeCapacity returns the most edges the buckets can give and the records
+// of the largest bucket. A bucket gives at most one edge per record and per
+// region pair; sizing the result up front avoids a second copy of the
+// edges.
+func edgeCapacity(parts map[bucketKey][]*dayRecords, keys []bucketKey, regions int) (capacity, largest int) {
+	pairs := regions * (regions - 1)
+	for _, k := range keys {
+		n := 0
+		for _, part := range parts[k] {
+			for _, c := range part.chunks {
+				n += len(c)
+			}
+		}
+		capacity += min(n, pairs)
+		largest = max(largest, n)
+	}
+	return capacity, largest
 }
 
 // radixMin is the least bucket size sorted by radix.

@@ -297,7 +297,7 @@ func syntheticStore(days, regions, perDay int, windows ...string) *Store {
 	rng := rand.New(rand.NewPCG(7, 8))
 	s := &Store{Meta: Meta{RegionsSHA256: "ab12", TimeZone: "Europe/Berlin", Quality: Quality{Rejected: map[string]int64{}}}}
 	for _, r := range RejectReasons() {
-		s.Meta.Quality.Rejected[r] = 0
+		s.Meta.Quality.Rejected[string(r)] = 0
 	}
 	for i, w := range windows {
 		s.Meta.Windows = append(s.Meta.Windows, Window{w, 60 * i, 60 * (i + 1)})
@@ -341,7 +341,7 @@ func BenchmarkReadStore(b *testing.B) {
 	s := yearStore()
 	path := filepath.Join(b.TempDir(), "graphs.parquet")
 	t0 := time.Now()
-	if err := WriteFile(path, s); err != nil {
+	if err := createFile(path, s.WriteParquet); err != nil {
 		b.Fatal(err)
 	}
 	write := time.Since(t0)

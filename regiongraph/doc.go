@@ -6,8 +6,9 @@
 // Out: a Store, the day-graph store: for each local day, time window and
 // directed region pair, the trip count and the quartiles of speed and detour
 // ratio, with the quality accounting of every input row. A Store is written
-// to and read from one Parquet file (WriteFile, ReadFile; the layout is in
-// SCHEMA.md), and stores of separate ingests merge (Merge).
+// to one Parquet file (Store.WriteParquet, to any io.Writer) and read back
+// (ReadFile, ReadFileOptions); the layout is in SCHEMA.md. Stores of
+// separate ingests merge (Merge).
 //
 // # Inputs
 //
@@ -28,7 +29,7 @@
 // Every row ends used or counted under exactly one reason of RejectReasons,
 // the first that applies in that order, so that Quality.Read equals
 // Quality.Used plus the rejected rows. With Options.Strict the first row with
-// bad data stops the ingest with an error "file:line: reason".
+// bad data stops the ingest with a *RowError "file:line: reason".
 //
 // # Aggregation
 //

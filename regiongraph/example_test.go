@@ -13,46 +13,54 @@ import (
 	"narrows/regiongraph"
 )
 
-func ExampleIngest() {
-	// Two regions side by side (in practice they come from partition.ReadFile).
+// twoRegions returns two regions side by side (in practice they come from
+// partition.ReadGeoJSON).
+func twoRegions() *partition.Partition {
 	west := orb.Ring{{13.00, 52.00}, {13.02, 52.00}, {13.02, 52.02}, {13.00, 52.02}, {13.00, 52.00}}
 	east := orb.Ring{{13.02, 52.00}, {13.04, 52.00}, {13.04, 52.02}, {13.02, 52.02}, {13.02, 52.00}}
-	regions := &partition.Partition{Regions: []partition.Region{
+	return &partition.Partition{Regions: []partition.Region{
 		{ID: 1, Polygon: orb.Polygon{west}},
 		{ID: 2, Polygon: orb.Polygon{east}},
 	}}
+}
 
-	dir, err := os.MkdirTemp("", "example")
-	if err != nil {
-		log.Fatal(err)
-	}
-	defer os.RemoveAll(dir)
+// ingestTrips ingests three trips of a morning from a CSV file in dir:
+// two from region 1 to region 2, one inside region 1.
+func ingestTrips(dir string) (*regiongraph.Store, error) {
 	trips := filepath.Join(dir, "trips.csv")
 	csv := "trip_id,start_time,end_time,start_lon,start_lat,end_lon,end_lat,distance_m\n" +
 		"1,2024-05-02 08:00:00,2024-05-02 08:06:00,13.005,52.010,13.035,52.010,2500\n" +
 		"2,2024-05-02 08:10:00,2024-05-02 08:20:00,13.006,52.012,13.030,52.008,3000\n" +
 		"3,2024-05-02 08:30:00,2024-05-02 08:34:00,13.010,52.010,13.012,52.011,400\n"
 	if err := os.WriteFile(trips, []byte(csv), 0o644); err != nil {
-		log.Fatal(err)
+		return nil, err
 	}
-
 	opts := regiongraph.DefaultOptions()
 	opts.TimeZone = "Europe/Berlin"
-	am, _ := regiongraph.ParseWindow("am=07:00-10:00")
+	am, err := regiongraph.ParseWindow("am=07:00-10:00")
+	if err != nil {
+		return nil, err
+	}
 	opts.Windows = []regiongraph.Window{am}
-	store, err := regiongraph.Ingest(context.Background(), regions, "sha256-of-regions-file",
+	return regiongraph.Ingest(context.Background(), twoRegions(), "sha256-of-regions-file",
 		[]regiongraph.Input{{Path: trips, Format: regiongraph.FormatTrips}}, opts)
+}
+
+func ExampleIngest() {
+	dir, err := os.MkdirTemp("", "example")
+	if err != nil {
+		log.Fatal(err)
+	}
+	defer os.RemoveAll(dir)
+	store, err := ingestTrips(dir)
 	if err != nil {
 		log.Fatal(err)
 	}
 	q := store.Meta.Quality
-	fmt.Printf("read %d, used %d, intra-region %d\n", q.Read, q.Used, q.Rejected[regiongraph.ReasonIntraRegion])
+	fmt.Printf("read %d, used %d, intra-region %d\n", q.Read, q.Used, q.Rejected[string(regiongraph.ReasonIntraRegion)])
 	for _, e := range store.Edges {
 		fmt.Printf("%s %s %d->%d: %d trips, median %.1f km/h, detour %.2f\n",
 			e.Day, e.Window, e.From, e.To, e.Trips, e.SpeedMedian*3.6, e.DetourMedian)
-	}
-	if err := regiongraph.WriteFile(filepath.Join(dir, "graphs.parquet"), store); err != nil {
-		log.Fatal(err)
 	}
 	// Trip 3 stays in region 1: counted, not an edge. Medians of two trips
 	// are their means: (25 + 18) / 2 km/h; detours 1.22 and 1.76.
@@ -60,4 +68,48 @@ func ExampleIngest() {
 	// Output:
 	// read 3, used 2, intra-region 1
 	// 2024-05-02 am 1->2: 2 trips, median 21.5 km/h, detour 1.49
+}
+
+func ExampleStore_WriteParquet() {
+	dir, err := os.MkdirTemp("", "example")
+	if err != nil {
+		log.Fatal(err)
+	}
+	defer os.RemoveAll(dir)
+	store, err := ingestTrips(dir)
+	if err != nil {
+		log.Fatal(err)
+	}
+
+	path := filepath.Join(dir, "graphs.parquet")
+	f, err := os.Create(path)
+	if err != nil {
+		log.Fatal(err)
+	}
+	if err := store.WriteParquet(f); err != nil {
+		log.Fatal(err)
+	}
+	if err := f.Close(); err != nil {
+		log.Fatal(err)
+	}
+
+	// Read back the morning edges with at least two trips.
+	back, err := regiongraph.ReadFileOptions(path, regiongraph.ReadOptions{MinTrips: 2, Window: "am"})
+	if err != nil {
+		log.Fatal(err)
+	}
+	fmt.Println(back.Meta.TimeZone, back.WindowNames(), back.Days("am"))
+	for _, e := range back.Edges {
+		fmt.Printf("%d->%d: %d trips, %.0f m in %.0f s\n", e.From, e.To, e.Trips, e.DistanceSum, e.DurationSum)
+	}
+	regions, err := back.Regions()
+	if err != nil {
+		log.Fatal(err)
+	}
+	fmt.Printf("%d regions, rows read %d\n", len(regions.Regions), back.Meta.Quality.Read)
+
+	// Output:
+	// Europe/Berlin [am] [2024-05-02]
+	// 1->2: 2 trips, 5500 m in 960 s
+	// 2 regions, rows read 3
 }

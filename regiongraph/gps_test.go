@@ -47,7 +47,7 @@ func TestGPSPointsCutIntoTrips(t *testing.T) {
 		}
 		checkQuality(t, s.Meta.Quality)
 		q := s.Meta.Quality
-		if q.Read != 11 || q.Used != 6 || q.Rejected[ReasonNotOccupied] != 5 {
+		if q.Read != 11 || q.Used != 6 || q.Rejected[string(ReasonNotOccupied)] != 5 {
 			t.Fatalf("quality %+v", q)
 		}
 		e := s.Edges[0]
@@ -104,8 +104,8 @@ func TestGPSPointsCutIntoTrips(t *testing.T) {
 		q := s.Meta.Quality
 		// van: A 6 points, dwell interior 4 stationary, B 5 points, C 4 points.
 		// car: 1 point short trip, 3 points gps jump.
-		if q.Read != 6+5+4+4+1+3 || q.Used != 6+5+4 || q.Rejected[ReasonStationary] != 4 ||
-			q.Rejected[ReasonShortTrip] != 1 || q.Rejected[ReasonGPSJump] != 3 {
+		if q.Read != 6+5+4+4+1+3 || q.Used != 6+5+4 || q.Rejected[string(ReasonStationary)] != 4 ||
+			q.Rejected[string(ReasonShortTrip)] != 1 || q.Rejected[string(ReasonGPSJump)] != 3 {
 			t.Fatalf("quality %+v", q)
 		}
 		var pairs []string
@@ -149,7 +149,7 @@ func TestGPXSegmentsAreTrips(t *testing.T) {
 	}
 	checkQuality(t, s.Meta.Quality)
 	q := s.Meta.Quality
-	if q.Read != 8 || q.Used != 6 || q.Rejected[ReasonMissingField] != 1 || q.Rejected[ReasonUnparseable] != 1 {
+	if q.Read != 8 || q.Used != 6 || q.Rejected[string(ReasonMissingField)] != 1 || q.Rejected[string(ReasonUnparseable)] != 1 {
 		t.Fatalf("quality %+v", q)
 	}
 	if len(s.Edges) != 2 || s.Edges[0].From != 1 || s.Edges[0].To != 2 || s.Edges[1].From != 3 || s.Edges[1].To != 4 {
@@ -340,7 +340,7 @@ func TestAndorraDriveGPX(t *testing.T) {
 	// One trip: all its points end the same way, as an edge from -> to, or
 	// (the drive starts and ends in one region) as one intra-region trip.
 	if from == to {
-		if s.Meta.Quality.Rejected[ReasonIntraRegion] != int64(len(pts)) || len(s.Edges) != 0 {
+		if s.Meta.Quality.Rejected[string(ReasonIntraRegion)] != int64(len(pts)) || len(s.Edges) != 0 {
 			t.Errorf("want one intra-region trip of %d points: %+v", len(pts), s.Meta.Quality)
 		}
 	} else if len(s.Edges) != 1 || s.Edges[0].Trips != 1 || s.Edges[0].From != from || s.Edges[0].To != to {

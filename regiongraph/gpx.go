@@ -10,7 +10,6 @@ import (
 	"io"
 	"os"
 	"slices"
-	"strconv"
 	"strings"
 )
 
@@ -32,13 +31,7 @@ type gpxSegment struct {
 func readGPX(r io.Reader) ([]gpxSegment, error) {
 	d := xml.NewDecoder(r)
 	d.Strict = true
-	var segs []gpxSegment
-	var cur *gpxSegment
-	var pt *gpxPoint
-	var text bytes.Buffer
-	inTime := false
-	depth, ptDepth := 0, 0
-	rootSeen := false
+	var p gpxParser
 	for {
 		line, _ := d.InputPos()
 		tok, err := d.Token()
@@ -54,62 +47,87 @@ func readGPX(r io.Reader) ([]gpxSegment, error) {
 		}
 		switch t := tok.(type) {
 		case xml.StartElement:
-			depth++
-			if !rootSeen {
-				if t.Name.Local != "gpx" {
-					return nil, fmt.Errorf("line %d: root element <%s>, want <gpx> (not a GPX file)", line, t.Name.Local)
-				}
-				rootSeen = true
-				continue
-			}
-			switch t.Name.Local {
-			case "trkseg":
-				segs = append(segs, gpxSegment{line: int64(line)})
-				cur = &segs[len(segs)-1]
-			case "trkpt":
-				if cur == nil {
-					return nil, fmt.Errorf("line %d: <trkpt> outside <trkseg>", line)
-				}
-				cur.points = append(cur.points, gpxPoint{line: int64(line)})
-				pt = &cur.points[len(cur.points)-1]
-				ptDepth = depth
-				for _, a := range t.Attr {
-					switch a.Name.Local {
-					case "lat":
-						pt.lat = a.Value
-					case "lon":
-						pt.lon = a.Value
-					}
-				}
-			case "time":
-				if pt != nil && depth == ptDepth+1 {
-					inTime = true
-					text.Reset()
-				}
+			if err := p.start(t, line); err != nil {
+				return nil, err
 			}
 		case xml.EndElement:
-			switch t.Name.Local {
-			case "trkseg":
-				cur, pt = nil, nil
-			case "trkpt":
-				pt = nil
-			case "time":
-				if inTime && pt != nil {
-					pt.time = strings.TrimSpace(text.String())
-				}
-				inTime = false
-			}
-			depth--
+			p.end(t)
 		case xml.CharData:
-			if inTime {
-				text.Write(t)
+			if p.inTime {
+				p.text.Write(t)
 			}
 		}
 	}
-	if !rootSeen {
+	if !p.rootSeen {
 		return nil, fmt.Errorf("line 1: no <gpx> element (not a GPX file)")
 	}
-	return segs, nil
+	return p.segs, nil
+}
+
+// gpxParser is the state of readGPX between tokens.
+type gpxParser struct {
+	segs     []gpxSegment
+	cur      *gpxSegment // the open <trkseg>
+	pt       *gpxPoint   // the open <trkpt>
+	text     bytes.Buffer
+	inTime   bool // in the <time> of pt
+	depth    int
+	ptDepth  int
+	rootSeen bool
+}
+
+// start handles an element's start tag on the given line.
+func (p *gpxParser) start(t xml.StartElement, line int) error {
+	p.depth++
+	if !p.rootSeen {
+		if t.Name.Local != "gpx" {
+			return fmt.Errorf("line %d: root element <%s>, want <gpx> (not a GPX file)", line, t.Name.Local)
+		}
+		p.rootSeen = true
+		return nil
+	}
+	switch t.Name.Local {
+	case "trkseg":
+		p.segs = append(p.segs, gpxSegment{line: int64(line)})
+		p.cur = &p.segs[len(p.segs)-1]
+	case "trkpt":
+		if p.cur == nil {
+			return fmt.Errorf("line %d: <trkpt> outside <trkseg>", line)
+		}
+		p.cur.points = append(p.cur.points, gpxPoint{line: int64(line)})
+		p.pt = &p.cur.points[len(p.cur.points)-1]
+		p.ptDepth = p.depth
+		for _, a := range t.Attr {
+			switch a.Name.Local {
+			case "lat":
+				p.pt.lat = a.Value
+			case "lon":
+				p.pt.lon = a.Value
+			}
+		}
+	case "time":
+		if p.pt != nil && p.depth == p.ptDepth+1 {
+			p.inTime = true
+			p.text.Reset()
+		}
+	}
+	return nil
+}
+
+// end handles an element's end tag.
+func (p *gpxParser) end(t xml.EndElement) {
+	switch t.Name.Local {
+	case "trkseg":
+		p.cur, p.pt = nil, nil
+	case "trkpt":
+		p.pt = nil
+	case "time":
+		if p.inTime && p.pt != nil {
+			p.pt.time = strings.TrimSpace(p.text.String())
+		}
+		p.inTime = false
+	}
+	p.depth--
 }
 
 // ingestGPX reads one GPX file; each track segment with timed points is one
@@ -128,8 +146,8 @@ func ingestGPX(ctx context.Context, st *settings, path string, t *tally, progres
 	if err != nil {
 		return "", 0, fmt.Errorf("regiongraph: %s: %v", path, err)
 	}
-	var fail pointFailure
-	seg := pointSegmenter{st: st, t: t, fail: &fail}
+	var fail firstFault
+	seg := pointSegmenter{st: st, t: t, file: path, fail: &fail}
 	var rows int64
 	for _, s := range segs {
 		if err := ctx.Err(); err != nil {
@@ -138,13 +156,13 @@ func ingestGPX(ctx context.Context, st *settings, path string, t *tally, progres
 		pts := make([]gpsPoint, 0, len(s.points))
 		for _, p := range s.points {
 			rows++
-			r, msg := rUnparseable, ""
+			f := fault{reason: ReasonUnparseable}
 			var g gpsPoint
 			switch {
 			case p.lat == "" || p.lon == "":
-				r, msg = rMissingField, "missing field: trkpt without lat or lon"
+				f = fault{reason: ReasonMissingField, detail: "trkpt without lat or lon"}
 			case p.time == "":
-				r, msg = rMissingField, "missing field: trkpt without <time>"
+				f = fault{reason: ReasonMissingField, detail: "trkpt without <time>"}
 			default:
 				g.line = p.line
 				var e1, e2, e3 error
@@ -153,19 +171,19 @@ func ingestGPX(ctx context.Context, st *settings, path string, t *tally, progres
 				g.ms, e3 = parseTime([]byte(p.time), t.zone)
 				switch {
 				case e1 != nil || g.lat < -90 || g.lat > 90:
-					msg = "unparseable lat " + strconv.Quote(p.lat)
+					f.column, f.value = "lat", p.lat
 				case e2 != nil || g.lon < -180 || g.lon > 180:
-					msg = "unparseable lon " + strconv.Quote(p.lon)
+					f.column, f.value = "lon", p.lon
 				case e3 != nil:
-					msg = "unparseable time " + strconv.Quote(p.time)
+					f.column, f.value = "time", p.time
 				default:
-					r = reasonUsed
+					f.reason = reasonUsed
 				}
 			}
-			if r != reasonUsed {
-				t.count(r, 1)
+			if f.reason != reasonUsed {
+				t.count(f.reason, 1)
 				if st.opts.Strict {
-					fail.keep(p.line, msg)
+					fail.keep(0, f.at(path, p.line, 0))
 				}
 				continue
 			}
@@ -181,8 +199,8 @@ func ingestGPX(ctx context.Context, st *settings, path string, t *tally, progres
 	if progress != nil {
 		progress(int64(len(data)))
 	}
-	if fail.line != 0 {
-		return "", 0, fmt.Errorf("regiongraph: %s:%d: %s", path, fail.line, fail.msg)
+	if fail.err != nil {
+		return "", 0, fail.err
 	}
 	return hexSum(h), rows, nil
 }

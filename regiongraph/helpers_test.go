@@ -3,6 +3,7 @@ package regiongraph
 import (
 	"context"
 	"fmt"
+	"io"
 	"math"
 	"os"
 	"path/filepath"
@@ -51,6 +52,19 @@ func gridCell(nx, ny int, lon0, lat0, step float64, p [2]float64) int {
 	return j*nx + i + 1
 }
 
+// createFile writes a new file at path with write.
+func createFile(path string, write func(w io.Writer) error) error {
+	f, err := os.Create(path)
+	if err != nil {
+		return err
+	}
+	if err := write(f); err != nil {
+		f.Close()
+		return err
+	}
+	return f.Close()
+}
+
 func writeTemp(t testing.TB, name, content string) string {
 	t.Helper()
 	path := filepath.Join(t.TempDir(), name)
@@ -78,7 +92,7 @@ func checkQuality(t testing.TB, q Quality) {
 	t.Helper()
 	sum := q.Used
 	for _, r := range RejectReasons() {
-		n, ok := q.Rejected[r]
+		n, ok := q.Rejected[string(r)]
 		if !ok {
 			t.Errorf("reason %q missing from quality", r)
 		}
@@ -95,8 +109,8 @@ func checkQuality(t testing.TB, q Quality) {
 func nonZeroReasons(q Quality) string {
 	var parts []string
 	for _, r := range RejectReasons() {
-		if q.Rejected[r] != 0 {
-			parts = append(parts, fmt.Sprintf("%s=%d", r, q.Rejected[r]))
+		if q.Rejected[string(r)] != 0 {
+			parts = append(parts, fmt.Sprintf("%s=%d", r, q.Rejected[string(r)]))
 		}
 	}
 	return strings.Join(parts, " ")

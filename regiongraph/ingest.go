@@ -31,7 +31,7 @@ type inputFile struct {
 // regionsSHA256 is recorded in the store to tie it to the regions file.
 //
 // Row-level problems are counted in the store's Quality by reason; with
-// Options.Strict the first one is an error "file:line: reason". File-level
+// Options.Strict the first one is a *RowError "file:line: reason". File-level
 // problems (missing file or column, binary or malformed content, unknown
 // time zone) are always errors.
 func Ingest(ctx context.Context, regions *partition.Partition, regionsSHA256 string, inputs []Input, opts Options) (*Store, error) {
@@ -49,20 +49,7 @@ func Ingest(ctx context.Context, regions *partition.Partition, regionsSHA256 str
 	if err != nil {
 		return nil, err
 	}
-	var total, done int64
-	for _, f := range files {
-		total += f.size
-	}
-	progress := func(n int64) {
-		done += n
-		if opts.Progress != nil {
-			opts.Progress(min(done, total), total)
-		}
-	}
-	if opts.Progress != nil {
-		opts.Progress(0, total)
-	}
-
+	progress := progressOf(files, opts.Progress)
 	loc, err := newLocator(regions)
 	if err != nil {
 		return nil, err
@@ -72,48 +59,9 @@ func Ingest(ctx context.Context, regions *partition.Partition, regionsSHA256 str
 	for i := range tallies {
 		tallies[i] = newTally(st, loc)
 	}
-	rowsRead := func() int64 {
-		var n int64
-		for _, t := range tallies {
-			n += t.read
-		}
-		return n
-	}
-
-	var sources []Source
-	for _, f := range files {
-		if err := ctx.Err(); err != nil {
-			return nil, err
-		}
-		before := rowsRead()
-		var sum string
-		switch f.format {
-		case FormatGPX:
-			sum, _, err = ingestGPX(ctx, st, f.path, tallies[0], progress)
-		case FormatTrips, FormatPoints:
-			if isParquet(f.path) {
-				if f.format == FormatPoints {
-					return nil, fmt.Errorf("regiongraph: %s: GPS points are read from CSV; Parquet holds trip tables", f.path)
-				}
-				sum, err = ingestTripParquet(ctx, st, f.path, tallies[0], progress)
-				break
-			}
-			var c *csvFile
-			c, err = openCSV(f.path)
-			if err != nil {
-				return nil, err
-			}
-			if f.format == FormatTrips {
-				sum, err = ingestTripCSV(ctx, st, c, tallies, progress)
-			} else {
-				sum, err = ingestPointsCSV(ctx, st, c, tallies[0], progress)
-			}
-			c.Close()
-		}
-		if err != nil {
-			return nil, err
-		}
-		sources = append(sources, Source{Path: f.path, SHA256: sum, Rows: rowsRead() - before})
+	sources, err := ingestFiles(ctx, st, files, tallies, progress)
+	if err != nil {
+		return nil, err
 	}
 
 	var regionsJSON bytes.Buffer
@@ -135,6 +83,73 @@ func Ingest(ctx context.Context, regions *partition.Partition, regionsSHA256 str
 		},
 		Edges: edges,
 	}, nil
+}
+
+// progressOf returns the function the readers call with the bytes they
+// have read, which reports the total so far to report (if not nil).
+func progressOf(files []inputFile, report func(done, total int64)) func(n int64) {
+	var total, done int64
+	for _, f := range files {
+		total += f.size
+	}
+	if report != nil {
+		report(0, total)
+	}
+	return func(n int64) {
+		done += n
+		if report != nil {
+			report(min(done, total), total)
+		}
+	}
+}
+
+// ingestFiles reads the files in order into the tallies and returns them
+// as the store's sources.
+func ingestFiles(ctx context.Context, st *settings, files []inputFile, tallies []*tally, progress func(int64)) ([]Source, error) {
+	rowsRead := func() int64 {
+		var n int64
+		for _, t := range tallies {
+			n += t.read
+		}
+		return n
+	}
+	var sources []Source
+	for _, f := range files {
+		if err := ctx.Err(); err != nil {
+			return nil, err
+		}
+		before := rowsRead()
+		sum, err := ingestFile(ctx, st, f, tallies, progress)
+		if err != nil {
+			return nil, err
+		}
+		sources = append(sources, Source{Path: f.path, SHA256: sum, Rows: rowsRead() - before})
+	}
+	return sources, nil
+}
+
+// ingestFile reads one file into the tallies by its format and returns its
+// SHA-256.
+func ingestFile(ctx context.Context, st *settings, f inputFile, tallies []*tally, progress func(int64)) (string, error) {
+	if f.format == FormatGPX {
+		sum, _, err := ingestGPX(ctx, st, f.path, tallies[0], progress)
+		return sum, err
+	}
+	if isParquet(f.path) {
+		if f.format == FormatPoints {
+			return "", fmt.Errorf("regiongraph: %s: GPS points are read from CSV; Parquet holds trip tables", f.path)
+		}
+		return ingestTripParquet(ctx, st, f.path, tallies[0], progress)
+	}
+	c, err := openCSV(f.path)
+	if err != nil {
+		return "", err
+	}
+	defer c.Close()
+	if f.format == FormatTrips {
+		return ingestTripCSV(ctx, st, c, tallies, progress)
+	}
+	return ingestPointsCSV(ctx, st, c, tallies[0], progress)
 }
 
 // expandInputs resolves formats and expands GPX folders into their .gpx
@@ -233,7 +248,7 @@ func detectFormat(path string, st *settings) (Format, error) {
 		}
 		return false
 	}
-	if hasCol(st.column(ColVehicleID)) && hasCol(st.column(ColTime)) && !hasCol(st.column(ColStartTime)) {
+	if hasCol(st.column(colVehicleID)) && hasCol(st.column(colTime)) && !hasCol(st.column(colStartTime)) {
 		return FormatPoints, nil
 	}
 	return FormatTrips, nil

@@ -90,9 +90,9 @@ type oracleEdge struct {
 
 // oracle classifies and aggregates the generated trips directly from their
 // true values (coordinates rounded as written), independent of the parsers.
-func oracle(trips []genTrip, loc *time.Location, windows []Window, o Options) (map[oracleKey]*oracleEdge, map[string]int64, int64) {
+func oracle(trips []genTrip, loc *time.Location, windows []Window, o Options) (map[oracleKey]*oracleEdge, map[Reason]int64, int64) {
 	edges := make(map[oracleKey]*oracleEdge)
-	reasons := make(map[string]int64)
+	reasons := make(map[Reason]int64)
 	var used int64
 	round := func(v float64) float64 { f, _ := strconv.ParseFloat(strconv.FormatFloat(v, 'f', 6, 64), 64); return f }
 	for _, tr := range trips {
@@ -114,7 +114,7 @@ func oracle(trips []genTrip, loc *time.Location, windows []Window, o Options) (m
 		straight := geodesy.EarthRadiusMetres * math.Acos(math.Min(1, c))
 		dur := tr.end.Sub(tr.start).Seconds()
 		speedKMH := tr.distance / dur * 3.6
-		var r string
+		var r Reason
 		switch {
 		case from == 0 || to == 0:
 			r = ReasonOutside
@@ -192,8 +192,8 @@ func TestAggregatesMatchBruteForce(t *testing.T) {
 		t.Errorf("read %d used %d, want %d and %d", s.Meta.Quality.Read, s.Meta.Quality.Used, n, used)
 	}
 	for _, r := range RejectReasons() {
-		if s.Meta.Quality.Rejected[r] != reasons[r] {
-			t.Errorf("reason %q: %d rows, brute force %d", r, s.Meta.Quality.Rejected[r], reasons[r])
+		if s.Meta.Quality.Rejected[string(r)] != reasons[r] {
+			t.Errorf("reason %q: %d rows, brute force %d", r, s.Meta.Quality.Rejected[string(r)], reasons[r])
 		}
 	}
 	if used < int64(n)/5 || len(reasons) < 6 {
@@ -270,7 +270,8 @@ func TestIngestIsDeterministic(t *testing.T) {
 func TestEveryReasonCountedOnce(t *testing.T) {
 	// Region 1 is [13.00,13.02)x[52.00,52.02), region 2 east of it.
 	rows := []struct {
-		row, reason string
+		row    string
+		reason Reason
 	}{
 		{"ok,2024-05-01T08:00:00Z,2024-05-01T08:10:00Z,13.010,52.010,13.030,52.010,2000", ""},
 		{"u,2024-05-01T08:00:00Z,2024-05-01T08:10:00Z,east,52.010,13.030,52.010,2000", ReasonUnparseable},
@@ -300,15 +301,15 @@ func TestEveryReasonCountedOnce(t *testing.T) {
 		t.Fatal(err)
 	}
 	checkQuality(t, s.Meta.Quality)
-	want := map[string]int64{}
+	want := map[Reason]int64{}
 	for _, r := range rows {
 		if r.reason != "" {
 			want[r.reason]++
 		}
 	}
 	for _, r := range RejectReasons() {
-		if s.Meta.Quality.Rejected[r] != want[r] {
-			t.Errorf("%q: %d, want %d (%s)", r, s.Meta.Quality.Rejected[r], want[r], nonZeroReasons(s.Meta.Quality))
+		if s.Meta.Quality.Rejected[string(r)] != want[r] {
+			t.Errorf("%q: %d, want %d (%s)", r, s.Meta.Quality.Rejected[string(r)], want[r], nonZeroReasons(s.Meta.Quality))
 		}
 	}
 	if s.Meta.Quality.Read != int64(len(rows)) || s.Meta.Quality.Used != 1 || len(s.Edges) != 1 {
@@ -397,8 +398,8 @@ func TestColumnsUnitsAndQuotes(t *testing.T) {
 		"2024-05-01T08:00:00Z,2024-05-01T08:10:00Z,\"x,1\",13.010,52.010,13.030,52.010,2.0,\"multi\nline\"\r\n" +
 		"2024-05-01T08:00:00Z,2024-05-01T08:12:00Z,x2,13.010,52.010,13.030,52.010,2.4,plain\r\n"
 	opts := DefaultOptions()
-	opts.Columns = map[string]string{ColStartTime: "pickup", ColEndTime: "Dropoff", ColTripID: "id",
-		ColStartLon: "a_lon", ColStartLat: "a_lat", ColEndLon: "b_lon", ColEndLat: "b_lat", ColDistance: "km"}
+	opts.Columns = map[string]string{colStartTime: "pickup", colEndTime: "Dropoff", colTripID: "id",
+		colStartLon: "a_lon", colStartLat: "a_lat", colEndLon: "b_lon", colEndLat: "b_lat", colDistance: "km"}
 	opts.DistanceUnit = "km"
 	opts.Strict = true
 	s, err := ingestString(t, gridPartition(2, 1, 13.0, 52.0, 0.02), FormatTrips, csv, opts)
@@ -424,7 +425,7 @@ func TestBadInputs(t *testing.T) {
 	}{
 		{"missing column", FormatTrips, "trip_id,start_time,end_time,start_lon,start_lat,end_lon,end_lat\n" + row, nil,
 			`trips.csv:1: missing column "distance_m"`},
-		{"missing renamed column", FormatTrips, tripHeader + row, func(o *Options) { o.Columns = map[string]string{ColStartTime: "pickup"} },
+		{"missing renamed column", FormatTrips, tripHeader + row, func(o *Options) { o.Columns = map[string]string{colStartTime: "pickup"} },
 			`missing column "pickup" (the start_time column)`},
 		{"unknown time zone", FormatTrips, tripHeader + row, func(o *Options) { o.TimeZone = "Europe/Atlantis" },
 			`unknown time zone "Europe/Atlantis"`},

@@ -41,93 +41,27 @@ type Input struct {
 // the point columns. Options.Columns maps a logical name to the header used
 // in the file.
 const (
-	ColTripID    = "trip_id" // optional, not used in the aggregates
-	ColStartTime = "start_time"
-	ColEndTime   = "end_time"
-	ColStartLon  = "start_lon"
-	ColStartLat  = "start_lat"
-	ColEndLon    = "end_lon"
-	ColEndLat    = "end_lat"
-	ColDistance  = "distance_m" // in Options.DistanceUnit
+	colTripID    = "trip_id" // optional, not used in the aggregates
+	colStartTime = "start_time"
+	colEndTime   = "end_time"
+	colStartLon  = "start_lon"
+	colStartLat  = "start_lat"
+	colEndLon    = "end_lon"
+	colEndLat    = "end_lat"
+	colDistance  = "distance_m" // in Options.DistanceUnit
 
-	ColVehicleID = "vehicle_id"
-	ColTime      = "time"
-	ColLon       = "lon"
-	ColLat       = "lat"
-	ColOccupied  = "occupied" // optional: 1/0, true/false, yes/no
+	colVehicleID = "vehicle_id"
+	colTime      = "time"
+	colLon       = "lon"
+	colLat       = "lat"
+	colOccupied  = "occupied" // optional: 1/0, true/false, yes/no
 )
 
 // LogicalColumns returns the logical column names that Options.Columns may
 // rename, trip table columns first.
 func LogicalColumns() []string {
-	return []string{ColTripID, ColStartTime, ColEndTime, ColStartLon, ColStartLat,
-		ColEndLon, ColEndLat, ColDistance, ColVehicleID, ColTime, ColLon, ColLat, ColOccupied}
-}
-
-// Rejection reasons. Every input row (a trip table row, a GPS point, a GPX
-// track point) ends either used or counted under exactly one reason: the
-// first that applies in the order of RejectReasons. Points count with the
-// trip they belong to.
-const (
-	ReasonUnparseable  = "unparseable"         // a value that is not a number, time or flag, or out of range
-	ReasonMissingField = "missing field"       // an empty required field, or too few fields
-	ReasonOutside      = "outside study area"  // origin or destination in no region
-	ReasonIntraRegion  = "intra-region"        // origin and destination in the same region
-	ReasonShortTrip    = "short trip"          // great-circle origin-destination under MinStraightMetres, or fewer than two points
-	ReasonBadDuration  = "bad duration"        // duration not positive or over MaxDuration
-	ReasonGPSJump      = "gps jump"            // implied speed between consecutive points over MaxJumpKMH
-	ReasonBadSpeed     = "bad speed"           // travel speed outside MinSpeedKMH..MaxSpeedKMH
-	ReasonDetourFloor  = "detour below floor"  // travel distance / great-circle distance under MinDetour
-	ReasonNotOccupied  = "not occupied"        // GPS point while the occupied flag is off
-	ReasonStationary   = "stationary"          // GPS point inside a dwell (parked vehicle)
-	ReasonOutsideTimes = "outside time window" // start time in none of the windows
-)
-
-// RejectReasons returns the rejection reasons in the order they are checked
-// and reported.
-func RejectReasons() []string {
-	return []string{ReasonUnparseable, ReasonMissingField, ReasonOutside, ReasonIntraRegion,
-		ReasonShortTrip, ReasonBadDuration, ReasonGPSJump, ReasonBadSpeed, ReasonDetourFloor,
-		ReasonNotOccupied, ReasonStationary, ReasonOutsideTimes}
-}
-
-// reason is the index of a reason in RejectReasons; reasonUsed marks a used row.
-type reason uint8
-
-const (
-	rUnparseable reason = iota
-	rMissingField
-	rOutside
-	rIntraRegion
-	rShortTrip
-	rBadDuration
-	rGPSJump
-	rBadSpeed
-	rDetourFloor
-	rNotOccupied
-	rStationary
-	rOutsideTimes
-	numReasons
-	reasonUsed reason = 255
-)
-
-// isDataError reports whether r marks bad data, on which Strict stops. The
-// other reasons are filters that well-formed data meets too (trips leaving
-// the study area or staying in one region, parked or vacant vehicles, times
-// outside the windows).
-func (r reason) isDataError() bool {
-	switch r {
-	case rUnparseable, rMissingField, rBadDuration, rGPSJump, rBadSpeed, rDetourFloor:
-		return true
-	}
-	return false
-}
-
-func (r reason) String() string {
-	if r < numReasons {
-		return RejectReasons()[r]
-	}
-	return "used"
+	return []string{colTripID, colStartTime, colEndTime, colStartLon, colStartLat,
+		colEndLon, colEndLat, colDistance, colVehicleID, colTime, colLon, colLat, colOccupied}
 }
 
 // Options control an ingest. The zero value is not useful; start from

@@ -5,7 +5,6 @@ import (
 	"context"
 	"fmt"
 	"slices"
-	"strconv"
 
 	"narrows/partition/geodesy"
 )
@@ -20,28 +19,37 @@ type gpsPoint struct {
 	occupied int8 // -1 no column, 0 vacant, 1 occupied
 }
 
-// pointFailure is the earliest rejected row in strict mode.
-type pointFailure struct {
-	line int64
-	msg  string
-}
-
-func (f *pointFailure) keep(line int64, msg string) {
-	if f.line == 0 || line < f.line {
-		f.line, f.msg = line, msg
-	}
-}
-
-var pointRequired = []string{ColVehicleID, ColTime, ColLon, ColLat}
+var pointRequired = []string{colVehicleID, colTime, colLon, colLat}
 
 // ingestPointsCSV reads a GPS point table, cuts each vehicle's points into
 // trips and tallies them.
 func ingestPointsCSV(ctx context.Context, st *settings, c *csvFile, t *tally, progress func(int64)) (string, error) {
-	m, err := c.requireColumns(st, pointRequired, []string{ColOccupied})
+	var fail firstFault
+	points, sum, err := readPoints(ctx, st, c, t, &fail, progress)
 	if err != nil {
 		return "", err
 	}
-	iv, it, ilon, ilat, iocc := m[ColVehicleID], m[ColTime], m[ColLon], m[ColLat], m[ColOccupied]
+	// In strict mode a trip-level failure may sit on an earlier line than
+	// the first parse failure: cut the trips before reporting either.
+	seg := pointSegmenter{st: st, t: t, file: c.path, fail: &fail}
+	if err := seg.vehicles(ctx, points); err != nil {
+		return "", err
+	}
+	if fail.err != nil {
+		return "", fail.err
+	}
+	return sum, nil
+}
+
+// readPoints parses the rows of a GPS point table and returns the points
+// and the file's SHA-256. Rejected rows are counted in t, and in strict
+// mode kept in fail.
+func readPoints(ctx context.Context, st *settings, c *csvFile, t *tally, fail *firstFault, progress func(int64)) ([]gpsPoint, string, error) {
+	m, err := c.requireColumns(st, pointRequired, []string{colOccupied})
+	if err != nil {
+		return nil, "", err
+	}
+	iv, it, ilon, ilat, iocc := m[colVehicleID], m[colTime], m[colLon], m[colLat], m[colOccupied]
 	need := max(iv, it, ilon, ilat, iocc) + 1
 
 	free := make(chan []byte, 3)
@@ -56,7 +64,6 @@ func ingestPointsCSV(ctx context.Context, st *settings, c *csvFile, t *tally, pr
 
 	vehicles := make(map[string]uint32)
 	var points []gpsPoint
-	var fail pointFailure
 	fields := make([][]byte, 0, len(c.header))
 	for ch := range k.out {
 		sp := lineSplitter{data: ch.data, line: ch.firstLine, quoted: ch.quoted}
@@ -74,7 +81,7 @@ func ingestPointsCSV(ctx context.Context, st *settings, c *csvFile, t *tally, pr
 			} else {
 				fields = splitFields(rec, fields)
 			}
-			r, col := rUnparseable, "record"
+			r, col := ReasonUnparseable, "record"
 			var p gpsPoint
 			if err == nil {
 				r, col = parsePointFields(t.zone, fields, need, iv, it, ilon, ilat, iocc, &p)
@@ -82,15 +89,7 @@ func ingestPointsCSV(ctx context.Context, st *settings, c *csvFile, t *tally, pr
 			if r != reasonUsed {
 				t.count(r, 1)
 				if st.opts.Strict {
-					msg := fmt.Sprintf("%s %s", r, col)
-					if err != nil {
-						msg = fmt.Sprintf("%s: %v", r, err)
-					} else if r == rUnparseable {
-						if i := m[col]; i >= 0 && i < len(fields) {
-							msg = fmt.Sprintf("%s %s %s", r, col, strconv.Quote(string(fields[i])))
-						}
-					}
-					fail.keep(line, msg)
+					fail.keep(0, pointFault(r, col, err, fields, m).at(c.path, line, 0))
 				}
 				continue
 			}
@@ -106,76 +105,63 @@ func ingestPointsCSV(ctx context.Context, st *settings, c *csvFile, t *tally, pr
 	}
 	if err := <-errc; err != nil {
 		if ctx.Err() != nil && err == ctx.Err() {
-			return "", err
+			return nil, "", err
 		}
-		return "", fmt.Errorf("regiongraph: %s: %w", c.path, err)
+		return nil, "", fmt.Errorf("regiongraph: %s: %w", c.path, err)
 	}
-	// In strict mode a trip-level failure may sit on an earlier line than
-	// the first parse failure: cut the trips before reporting either.
-	slices.SortFunc(points, func(a, b gpsPoint) int {
-		if c := cmp.Compare(a.vehicle, b.vehicle); c != 0 {
-			return c
-		}
-		if c := cmp.Compare(a.ms, b.ms); c != 0 {
-			return c
-		}
-		return cmp.Compare(a.line, b.line)
-	})
-	seg := pointSegmenter{st: st, t: t, fail: &fail}
-	for start := 0; start < len(points); {
-		if err := ctx.Err(); err != nil {
-			return "", err
-		}
-		end := start + 1
-		for end < len(points) && points[end].vehicle == points[start].vehicle {
-			end++
-		}
-		seg.vehicle(points[start:end])
-		start = end
-	}
-	if fail.line != 0 {
-		return "", fmt.Errorf("regiongraph: %s:%d: %s", c.path, fail.line, fail.msg)
-	}
-	return hexSum(k.hash), nil
+	return points, hexSum(k.hash), nil
 }
 
-func parsePointFields(z *zoneCache, fields [][]byte, need, iv, it, ilon, ilat, iocc int, p *gpsPoint) (reason, string) {
+// pointFault is the fault of a point row rejected for r at column col, or
+// for the CSV parser's error err; m maps logical columns to fields.
+func pointFault(r Reason, col string, err error, fields [][]byte, m map[string]int) fault {
+	if err != nil {
+		return fault{reason: r, err: err}
+	}
+	f := fault{reason: r, column: col}
+	if i := m[col]; r == ReasonUnparseable && i >= 0 && i < len(fields) {
+		f.value = string(fields[i])
+	}
+	return f
+}
+
+func parsePointFields(z *zoneCache, fields [][]byte, need, iv, it, ilon, ilat, iocc int, p *gpsPoint) (Reason, string) {
 	if len(fields) < need {
 		for _, c := range []struct {
 			i    int
 			name string
-		}{{iv, ColVehicleID}, {it, ColTime}, {ilon, ColLon}, {ilat, ColLat}, {iocc, ColOccupied}} {
+		}{{iv, colVehicleID}, {it, colTime}, {ilon, colLon}, {ilat, colLat}, {iocc, colOccupied}} {
 			if c.i >= len(fields) {
-				return rMissingField, c.name
+				return ReasonMissingField, c.name
 			}
 		}
 	}
 	for _, c := range []struct {
 		i    int
 		name string
-	}{{iv, ColVehicleID}, {it, ColTime}, {ilon, ColLon}, {ilat, ColLat}} {
+	}{{iv, colVehicleID}, {it, colTime}, {ilon, colLon}, {ilat, colLat}} {
 		if len(fields[c.i]) == 0 {
-			return rMissingField, c.name
+			return ReasonMissingField, c.name
 		}
 	}
 	var err error
 	if p.ms, err = parseTime(fields[it], z); err != nil {
-		return rUnparseable, ColTime
+		return ReasonUnparseable, colTime
 	}
 	if p.lon, err = parseFloat(fields[ilon]); err != nil || p.lon < -180 || p.lon > 180 {
-		return rUnparseable, ColLon
+		return ReasonUnparseable, colLon
 	}
 	if p.lat, err = parseFloat(fields[ilat]); err != nil || p.lat < -90 || p.lat > 90 {
-		return rUnparseable, ColLat
+		return ReasonUnparseable, colLat
 	}
 	p.occupied = -1
 	if iocc >= 0 {
 		if len(fields[iocc]) == 0 {
-			return rMissingField, ColOccupied
+			return ReasonMissingField, colOccupied
 		}
 		occ, err := parseBool(fields[iocc])
 		if err != nil {
-			return rUnparseable, ColOccupied
+			return ReasonUnparseable, colOccupied
 		}
 		p.occupied = 0
 		if occ {
@@ -189,17 +175,43 @@ func parsePointFields(z *zoneCache, fields [][]byte, need, iv, it, ilon, ilat, i
 type pointSegmenter struct {
 	st   *settings
 	t    *tally
-	fail *pointFailure
+	file string
+	fail *firstFault // in strict mode
 }
 
-func (s *pointSegmenter) reject(p []gpsPoint, r reason, msg string) {
+// reject counts the points p under r; in strict mode bad data is a fault
+// at the first point, with the detail of the failed check.
+func (s *pointSegmenter) reject(p []gpsPoint, r Reason, detail string) {
 	s.t.count(r, int64(len(p)))
 	if s.st.opts.Strict && len(p) > 0 && r != reasonUsed && r.isDataError() {
-		if msg == "" {
-			msg = r.String()
-		}
-		s.fail.keep(p[0].line, msg)
+		s.fail.keep(0, fault{reason: r, detail: detail}.at(s.file, p[0].line, 0))
 	}
+}
+
+// vehicles sorts the points by vehicle and time and cuts each vehicle's
+// points into trips.
+func (s *pointSegmenter) vehicles(ctx context.Context, points []gpsPoint) error {
+	slices.SortFunc(points, func(a, b gpsPoint) int {
+		if c := cmp.Compare(a.vehicle, b.vehicle); c != 0 {
+			return c
+		}
+		if c := cmp.Compare(a.ms, b.ms); c != 0 {
+			return c
+		}
+		return cmp.Compare(a.line, b.line)
+	})
+	for start := 0; start < len(points); {
+		if err := ctx.Err(); err != nil {
+			return err
+		}
+		end := start + 1
+		for end < len(points) && points[end].vehicle == points[start].vehicle {
+			end++
+		}
+		s.vehicle(points[start:end])
+		start = end
+	}
+	return nil
 }
 
 // vehicle handles all points of one vehicle: with an occupied flag, each
@@ -218,7 +230,7 @@ func (s *pointSegmenter) vehicle(p []gpsPoint) {
 			if p[start].occupied == 1 {
 				s.trip(p[start:end])
 			} else {
-				s.reject(p[start:end], rNotOccupied, "")
+				s.reject(p[start:end], ReasonNotOccupied, "")
 			}
 			start = end
 		}
@@ -250,14 +262,14 @@ func (s *pointSegmenter) dwells(p []gpsPoint) {
 			if anchor > start {
 				s.trip(p[start : anchor+1])
 			} else {
-				s.reject(p[anchor:anchor+1], rStationary, "")
+				s.reject(p[anchor:anchor+1], ReasonStationary, "")
 			}
 			if last-anchor > 1 {
-				s.reject(p[anchor+1:last], rStationary, "")
+				s.reject(p[anchor+1:last], ReasonStationary, "")
 			}
 			start = last
 			if i == n {
-				s.reject(p[last:last+1], rStationary, "")
+				s.reject(p[last:last+1], ReasonStationary, "")
 				start = n
 			}
 		}
@@ -271,18 +283,18 @@ func (s *pointSegmenter) dwells(p []gpsPoint) {
 // trip builds a trip from time-sorted points and tallies all its points.
 func (s *pointSegmenter) trip(p []gpsPoint) {
 	if len(p) < 2 {
-		s.reject(p, rShortTrip, "short trip: a single point")
+		s.reject(p, ReasonShortTrip, "a single point")
 		return
 	}
 	tr := trip{startMS: p[0].ms, endMS: p[len(p)-1].ms,
 		origin: [2]float64{p[0].lon, p[0].lat}, dest: [2]float64{p[len(p)-1].lon, p[len(p)-1].lat}}
 	tr.distance, tr.jump = pathLength(p, s.st.maxJump)
 	r := s.t.add(&tr)
-	msg := ""
+	detail := ""
 	if r != reasonUsed {
-		msg = fmt.Sprintf("%s (trip of %d points to line %d)", explain(s.st, &tr, r), len(p), p[len(p)-1].line)
+		detail = fmt.Sprintf("%s (trip of %d points to line %d)", explain(s.st, &tr, r), len(p), p[len(p)-1].line)
 	}
-	s.reject(p, r, msg)
+	s.reject(p, r, detail)
 }
 
 // pathLength sums the great-circle lengths of consecutive steps and reports

@@ -1,5 +1,15 @@
 package regiongraph
 
+import (
+	"bytes"
+	"cmp"
+	"errors"
+	"fmt"
+	"slices"
+
+	"narrows/partition"
+)
+
 // Edge is one directed region pair on one local day and time window.
 // Units are metres, seconds and metres per second.
 type Edge struct {
@@ -40,7 +50,7 @@ type Source struct {
 type Quality struct {
 	Read     int64
 	Used     int64
-	Rejected map[string]int64 // reason -> rows, every reason of RejectReasons
+	Rejected map[string]int64 // reason text (a Reason as a string) -> rows, every reason of RejectReasons
 }
 
 // Meta is the store's provenance.
@@ -60,4 +70,116 @@ type Store struct {
 	// regionsGeoJSON is the partition the store was built on, as written by
 	// partition.WriteGeoJSON; see Regions.
 	regionsGeoJSON []byte
+}
+
+// compareEdges orders edges by day, window name, from, to.
+func compareEdges(a, b Edge) int {
+	if c := cmp.Compare(a.Day, b.Day); c != 0 {
+		return c
+	}
+	if c := cmp.Compare(a.Window, b.Window); c != 0 {
+		return c
+	}
+	if c := cmp.Compare(a.From, b.From); c != 0 {
+		return c
+	}
+	return cmp.Compare(a.To, b.To)
+}
+
+// Regions returns the regions the store was built on, kept in the store by
+// Ingest (and in the file by WriteParquet) so that later steps need not be
+// given the regions file again.
+func (s *Store) Regions() (*partition.Partition, error) {
+	if len(s.regionsGeoJSON) == 0 {
+		return nil, errors.New("regiongraph: the store carries no regions; give the regions file it was built on")
+	}
+	p, err := partition.ReadGeoJSON(bytes.NewReader(s.regionsGeoJSON), "regions in the day-graph store")
+	if err != nil {
+		return nil, fmt.Errorf("regiongraph: %w", err)
+	}
+	return p, nil
+}
+
+// Days returns the local days that have at least one edge in the named
+// window, in ascending order.
+func (s *Store) Days(window string) []string {
+	var days []string
+	for _, e := range s.Edges {
+		if e.Window == window && (len(days) == 0 || days[len(days)-1] != e.Day) {
+			days = append(days, e.Day)
+		}
+	}
+	slices.Sort(days)
+	return slices.Compact(days)
+}
+
+// WindowNames returns the names of the store's windows in the order given
+// at ingest.
+func (s *Store) WindowNames() []string {
+	names := make([]string, len(s.Meta.Windows))
+	for i, w := range s.Meta.Windows {
+		names[i] = w.Name
+	}
+	return names
+}
+
+// Merge combines stores of separate ingests over the same regions (for
+// example January, then February) into a new store. The stores must share
+// the regions hash, time zone and windows. A local day may be in only one
+// store per window: the quantiles of a day split across two ingests cannot be
+// combined exactly, so a (day, window) found in two stores is an error
+// naming it. Quality counts add up and sources are concatenated in order.
+// The inputs are not modified.
+func Merge(stores ...*Store) (*Store, error) {
+	if len(stores) == 0 {
+		return nil, errors.New("regiongraph: merge: no stores")
+	}
+	first := stores[0]
+	out := &Store{Meta: Meta{
+		RegionsSHA256: first.Meta.RegionsSHA256,
+		TimeZone:      first.Meta.TimeZone,
+		Windows:       slices.Clone(first.Meta.Windows),
+		Quality:       Quality{Rejected: make(map[string]int64)},
+	}}
+	type dayWindow struct{ day, window string }
+	owner := make(map[dayWindow]int)
+	for i, s := range stores {
+		if s == nil {
+			return nil, fmt.Errorf("regiongraph: merge: store %d is nil", i+1)
+		}
+		if s.Meta.RegionsSHA256 != first.Meta.RegionsSHA256 {
+			return nil, fmt.Errorf("regiongraph: merge: store %d was built on other regions (sha256 %s, store 1 has %s)",
+				i+1, s.Meta.RegionsSHA256, first.Meta.RegionsSHA256)
+		}
+		if s.Meta.TimeZone != first.Meta.TimeZone {
+			return nil, fmt.Errorf("regiongraph: merge: store %d has time zone %q, store 1 has %q", i+1, s.Meta.TimeZone, first.Meta.TimeZone)
+		}
+		if !slices.Equal(s.Meta.Windows, first.Meta.Windows) {
+			return nil, fmt.Errorf("regiongraph: merge: store %d has windows %v, store 1 has %v", i+1, s.Meta.Windows, first.Meta.Windows)
+		}
+		seen := make(map[dayWindow]bool)
+		for _, e := range s.Edges {
+			k := dayWindow{e.Day, e.Window}
+			if seen[k] {
+				continue
+			}
+			seen[k] = true
+			if j, dup := owner[k]; dup {
+				return nil, fmt.Errorf("regiongraph: merge: day %s (window %s) is in both store %d and store %d; ingest a day's trips together", e.Day, e.Window, j+1, i+1)
+			}
+			owner[k] = i
+		}
+		out.Edges = append(out.Edges, s.Edges...)
+		out.Meta.Quality.Read += s.Meta.Quality.Read
+		out.Meta.Quality.Used += s.Meta.Quality.Used
+		for r, n := range s.Meta.Quality.Rejected {
+			out.Meta.Quality.Rejected[r] += n
+		}
+		out.Meta.Sources = append(out.Meta.Sources, s.Meta.Sources...)
+		if len(out.regionsGeoJSON) == 0 {
+			out.regionsGeoJSON = s.regionsGeoJSON
+		}
+	}
+	slices.SortStableFunc(out.Edges, compareEdges)
+	return out, nil
 }

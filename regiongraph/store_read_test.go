@@ -1,6 +1,7 @@
 package regiongraph
 
 import (
+	"io"
 	"os"
 	"path/filepath"
 	"reflect"
@@ -12,36 +13,22 @@ import (
 	"github.com/parquet-go/parquet-go/format"
 )
 
-// legacyEdgeRow is edgeRow without dictionary encoding, the layout of the
-// first stores (one row group, plain-encoded strings).
-type legacyEdgeRow struct {
-	Day            string  `parquet:"day"`
-	Window         string  `parquet:"window"`
-	FromRegion     int32   `parquet:"from_region"`
-	ToRegion       int32   `parquet:"to_region"`
-	Trips          int64   `parquet:"trips"`
-	SpeedP25       float64 `parquet:"speed_p25_mps"`
-	SpeedMedian    float64 `parquet:"speed_median_mps"`
-	SpeedP75       float64 `parquet:"speed_p75_mps"`
-	DetourP25      float64 `parquet:"detour_p25"`
-	DetourMedian   float64 `parquet:"detour_median"`
-	DetourP75      float64 `parquet:"detour_p75"`
-	DistanceMedian float64 `parquet:"distance_median_m"`
-	DurationMedian float64 `parquet:"duration_median_s"`
-	DistanceSum    float64 `parquet:"distance_sum_m"`
-	StraightSum    float64 `parquet:"straight_sum_m"`
-	DurationSum    float64 `parquet:"duration_sum_s"`
-}
-
-// writeLegacy writes s in the first stores' layout, with pages of about
-// pageBytes bytes, and the metadata WriteFile gives it.
+// writeLegacy writes s in the layout of the first stores (one row group,
+// plain-encoded strings), with pages of about pageBytes bytes, and the
+// metadata WriteParquet gives it.
 func writeLegacy(t *testing.T, path string, s *Store, pageBytes int) {
 	t.Helper()
 	current := filepath.Join(t.TempDir(), "current.parquet")
-	if err := WriteFile(current, s); err != nil {
+	if err := createFile(current, s.WriteParquet); err != nil {
 		t.Fatal(err)
 	}
-	opts := []parquet.WriterOption{parquet.Compression(&parquet.Zstd), parquet.PageBufferSize(pageBytes)}
+	plain := storeSchema(func(c *storeColumn) parquet.Node {
+		if c.kind() == parquet.ByteArray {
+			return parquet.String()
+		}
+		return c.node
+	})
+	opts := []parquet.WriterOption{plain, parquet.Compression(&parquet.Zstd), parquet.PageBufferSize(pageBytes)}
 	for _, kv := range openParquetFile(t, current).Metadata().KeyValueMetadata {
 		opts = append(opts, parquet.KeyValueMetadata(kv.Key, kv.Value))
 	}
@@ -50,12 +37,12 @@ func writeLegacy(t *testing.T, path string, s *Store, pageBytes int) {
 		t.Fatal(err)
 	}
 	defer f.Close()
-	w := parquet.NewGenericWriter[legacyEdgeRow](f, opts...)
-	rows := make([]legacyEdgeRow, len(s.Edges))
-	for i, e := range s.Edges {
-		rows[i] = legacyEdgeRow(toRow(e))
+	w := parquet.NewWriter(f, opts...)
+	rows := make([]parquet.Row, len(s.Edges))
+	for i := range s.Edges {
+		rows[i] = appendRow(nil, &s.Edges[i])
 	}
-	if _, err := w.Write(rows); err != nil {
+	if _, err := w.WriteRows(rows); err != nil {
 		t.Fatal(err)
 	}
 	if err := w.Close(); err != nil {
@@ -112,8 +99,10 @@ func TestReadFileOptionsMatchesFilter(t *testing.T) {
 		name  string
 		write func(path string) error
 	}{
-		{"current", func(path string) error { return WriteFile(path, s) }},
-		{"small row groups and pages", func(path string) error { return writeFile(path, s, 100, parquet.PageBufferSize(512)) }},
+		{"current", func(path string) error { return createFile(path, s.WriteParquet) }},
+		{"small row groups and pages", func(path string) error {
+			return createFile(path, func(w io.Writer) error { return writeParquet(w, s, 100, parquet.PageBufferSize(512)) })
+		}},
 		{"first stores", func(path string) error { writeLegacy(t, path, s, 700); return nil }},
 	}
 	options := []ReadOptions{
@@ -156,14 +145,14 @@ func TestReadFileOptionsMatchesFilter(t *testing.T) {
 	}
 }
 
-// TestWriteFileRowGroups writes an ingested store in row groups of at
+// TestWriteParquetRowGroups writes an ingested store in row groups of at
 // least 150 rows ended at a change of day, and reads it back unchanged.
-func TestWriteFileRowGroups(t *testing.T) {
+func TestWriteParquetRowGroups(t *testing.T) {
 	loc, _ := time.LoadLocation("Europe/Berlin")
 	s := sampleStore(t, 41, time.Date(2024, 5, 2, 0, 0, 0, 0, loc), 6000)
 	const groupRows = 150
 	path := filepath.Join(t.TempDir(), "graphs.parquet")
-	if err := writeFile(path, s, groupRows); err != nil {
+	if err := createFile(path, func(w io.Writer) error { return writeParquet(w, s, groupRows) }); err != nil {
 		t.Fatal(err)
 	}
 	back, err := ReadFile(path)
@@ -235,7 +224,7 @@ func TestReadFileFirstStores(t *testing.T) {
 
 func TestReadOptionsErrors(t *testing.T) {
 	path := filepath.Join(t.TempDir(), "graphs.parquet")
-	if err := WriteFile(path, syntheticStore(2, 5, 4, "am")); err != nil {
+	if err := createFile(path, syntheticStore(2, 5, 4, "am").WriteParquet); err != nil {
 		t.Fatal(err)
 	}
 	for _, c := range []struct {
@@ -252,7 +241,7 @@ func TestReadOptionsErrors(t *testing.T) {
 	}
 	// An empty store reads back as one without edges.
 	empty := &Store{Meta: Meta{Quality: Quality{Rejected: map[string]int64{}}}}
-	if err := WriteFile(path, empty); err != nil {
+	if err := createFile(path, empty.WriteParquet); err != nil {
 		t.Fatal(err)
 	}
 	back, err := ReadFile(path)
@@ -265,7 +254,9 @@ func TestReadOptionsErrors(t *testing.T) {
 func FuzzReadFile(f *testing.F) {
 	dir := f.TempDir()
 	path := filepath.Join(dir, "seed.parquet")
-	if err := writeFile(path, syntheticStore(3, 6, 8, "am", "pm"), 20, parquet.PageBufferSize(256)); err != nil {
+	if err := createFile(path, func(w io.Writer) error {
+		return writeParquet(w, syntheticStore(3, 6, 8, "am", "pm"), 20, parquet.PageBufferSize(256))
+	}); err != nil {
 		f.Fatal(err)
 	}
 	seed, err := os.ReadFile(path)

@@ -3,7 +3,6 @@ package regiongraph
 import (
 	"context"
 	"fmt"
-	"strconv"
 	"sync"
 	"sync/atomic"
 
@@ -16,7 +15,7 @@ type tripColumns struct {
 	need int    // fields a row must have
 }
 
-var tripRequired = []string{ColStartTime, ColEndTime, ColStartLon, ColStartLat, ColEndLon, ColEndLat, ColDistance}
+var tripRequired = []string{colStartTime, colEndTime, colStartLon, colStartLat, colEndLon, colEndLat, colDistance}
 
 func newTripColumns(m map[string]int) tripColumns {
 	var c tripColumns
@@ -27,40 +26,33 @@ func newTripColumns(m map[string]int) tripColumns {
 	return c
 }
 
-// rowFailure describes a rejected row for strict mode.
-type rowFailure struct {
-	seq  int64 // chunk
-	line int64
-	msg  string
-}
-
 // parseTripFields fills tr from the fields of a trip table row. On failure it
 // returns the reason and the logical column at fault.
-func parseTripFields(st *settings, z *zoneCache, c *tripColumns, fields [][]byte, tr *trip) (reason, string) {
+func parseTripFields(st *settings, z *zoneCache, c *tripColumns, fields [][]byte, tr *trip) (Reason, string) {
 	if len(fields) < c.need {
 		for i, name := range tripRequired {
 			if c.idx[i] >= len(fields) {
-				return rMissingField, name
+				return ReasonMissingField, name
 			}
 		}
 	}
 	for i, name := range tripRequired {
 		if len(fields[c.idx[i]]) == 0 {
-			return rMissingField, name
+			return ReasonMissingField, name
 		}
 	}
 	var err error
 	if tr.startMS, err = parseTime(fields[c.idx[0]], z); err != nil {
-		return rUnparseable, ColStartTime
+		return ReasonUnparseable, colStartTime
 	}
 	if tr.endMS, err = parseTime(fields[c.idx[1]], z); err != nil {
-		return rUnparseable, ColEndTime
+		return ReasonUnparseable, colEndTime
 	}
 	var v [5]float64
 	for k := 0; k < 5; k++ {
 		f, err := parseFloat(fields[c.idx[2+k]])
 		if err != nil {
-			return rUnparseable, tripRequired[2+k]
+			return ReasonUnparseable, tripRequired[2+k]
 		}
 		v[k] = f
 	}
@@ -70,14 +62,14 @@ func parseTripFields(st *settings, z *zoneCache, c *tripColumns, fields [][]byte
 // setPlaces checks a trip row's origin longitude and latitude,
 // destination longitude and latitude and distance, in that order, and sets
 // them on tr; shared by the CSV and Parquet readers.
-func (tr *trip) setPlaces(st *settings, v [5]float64) (reason, string) {
+func (tr *trip) setPlaces(st *settings, v [5]float64) (Reason, string) {
 	for k, limit := range [4]float64{180, 90, 180, 90} {
 		if v[k] < -limit || v[k] > limit {
-			return rUnparseable, tripRequired[2+k]
+			return ReasonUnparseable, tripRequired[2+k]
 		}
 	}
 	if v[4] < 0 {
-		return rUnparseable, ColDistance
+		return ReasonUnparseable, colDistance
 	}
 	tr.origin = [2]float64{v[0], v[1]}
 	tr.dest = [2]float64{v[2], v[3]}
@@ -86,40 +78,44 @@ func (tr *trip) setPlaces(st *settings, v [5]float64) (reason, string) {
 	return reasonUsed, ""
 }
 
-// explain says why a parsed trip was rejected, for strict mode messages.
-func explain(st *settings, tr *trip, r reason) string {
+// explain says what a parsed trip's failed check measured, for strict mode
+// messages; "" for a reason without measure.
+func explain(st *settings, tr *trip, r Reason) string {
 	straight := geodesy.GreatCircleMetres(tr.origin, tr.dest)
 	duration := float64(tr.endMS-tr.startMS) / 1000
 	switch r {
-	case rShortTrip:
-		return fmt.Sprintf("%s: origin-destination %.0f m, under %g m", r, straight, st.minStraight)
-	case rBadDuration:
-		return fmt.Sprintf("%s: %g s (want more than 0 and at most %v)", r, duration, st.opts.MaxDuration)
-	case rBadSpeed:
-		return fmt.Sprintf("%s: %.2f km/h (allowed %g-%g km/h)", r, tr.distance/duration*3.6, st.opts.MinSpeedKMH, st.opts.MaxSpeedKMH)
-	case rDetourFloor:
-		return fmt.Sprintf("%s: distance %.0f m over straight line %.0f m is %.3f, under %g", r, tr.distance, straight, tr.distance/straight, st.minDetour)
-	case rGPSJump:
-		return fmt.Sprintf("%s: a step between points faster than %g km/h", r, st.opts.MaxJumpKMH)
+	case ReasonShortTrip:
+		return fmt.Sprintf("origin-destination %.0f m, under %g m", straight, st.minStraight)
+	case ReasonBadDuration:
+		return fmt.Sprintf("%g s (want more than 0 and at most %v)", duration, st.opts.MaxDuration)
+	case ReasonBadSpeed:
+		return fmt.Sprintf("%.2f km/h (allowed %g-%g km/h)", tr.distance/duration*3.6, st.opts.MinSpeedKMH, st.opts.MaxSpeedKMH)
+	case ReasonDetourFloor:
+		return fmt.Sprintf("distance %.0f m over straight line %.0f m is %.3f, under %g", tr.distance, straight, tr.distance/straight, st.minDetour)
+	case ReasonGPSJump:
+		return fmt.Sprintf("a step between points faster than %g km/h", st.opts.MaxJumpKMH)
 	}
-	return r.String()
+	return ""
 }
 
-func fieldFailure(r reason, col string, fields [][]byte, c *tripColumns) string {
-	if r == rMissingField {
-		return fmt.Sprintf("%s %s", r, col)
+// fieldFault is the fault of a trip table row whose column col failed to
+// parse (r is ReasonMissingField or ReasonUnparseable).
+func fieldFault(r Reason, col string, fields [][]byte, c *tripColumns) fault {
+	f := fault{reason: r, column: col}
+	if r == ReasonMissingField {
+		return f
 	}
 	for i, name := range tripRequired {
 		if name == col && c.idx[i] < len(fields) {
-			return fmt.Sprintf("%s %s %s", r, col, strconv.Quote(string(fields[c.idx[i]])))
+			f.value = string(fields[c.idx[i]])
 		}
 	}
-	return fmt.Sprintf("%s %s", r, col)
+	return f
 }
 
 // ingestTripCSV reads a trip table CSV with one parser goroutine per tally.
 func ingestTripCSV(ctx context.Context, st *settings, c *csvFile, tallies []*tally, progress func(int64)) (string, error) {
-	m, err := c.requireColumns(st, tripRequired, []string{ColTripID})
+	m, err := c.requireColumns(st, tripRequired, []string{colTripID})
 	if err != nil {
 		return "", err
 	}
@@ -138,16 +134,14 @@ func ingestTripCSV(ctx context.Context, st *settings, c *csvFile, tallies []*tal
 		progress: progress, stop: func(seq int64) bool { return seq > stopSeq.Load() }}
 
 	var mu sync.Mutex
-	var first *rowFailure
-	fail := func(f *rowFailure) {
+	var first firstFault
+	fail := func(seq int64, e *RowError) {
 		mu.Lock()
 		defer mu.Unlock()
-		if first == nil || f.seq < first.seq || f.seq == first.seq && f.line < first.line {
-			first = f
-		}
+		first.keep(seq, e)
 		for {
 			cur := stopSeq.Load()
-			if f.seq >= cur || stopSeq.CompareAndSwap(cur, f.seq) {
+			if seq >= cur || stopSeq.CompareAndSwap(cur, seq) {
 				break
 			}
 		}
@@ -162,9 +156,8 @@ func ingestTripCSV(ctx context.Context, st *settings, c *csvFile, tallies []*tal
 			var tr trip
 			for ch := range k.out {
 				if ch.seq <= stopSeq.Load() {
-					if f := tripChunk(st, t, &cols, ch, fields, &tr); f != nil {
-						f.msg = fmt.Sprintf("%s:%d: %s", c.path, f.line, f.msg)
-						fail(f)
+					if e := tripChunk(st, t, c.path, &cols, ch, fields, &tr); e != nil {
+						fail(ch.seq, e)
 					}
 				}
 				free <- ch.buf[:0]
@@ -177,8 +170,8 @@ func ingestTripCSV(ctx context.Context, st *settings, c *csvFile, tallies []*tal
 	}
 	// The chunker closed its output: the parsers drain it and stop.
 	wg.Wait()
-	if first != nil {
-		return "", fmt.Errorf("regiongraph: %s", first.msg)
+	if first.err != nil {
+		return "", first.err
 	}
 	if runErr != nil {
 		if ctx.Err() != nil && runErr == ctx.Err() {
@@ -189,9 +182,9 @@ func ingestTripCSV(ctx context.Context, st *settings, c *csvFile, tallies []*tal
 	return hexSum(k.hash), nil
 }
 
-// tripChunk parses and tallies the rows of one chunk. In strict mode it
-// returns the first rejected row.
-func tripChunk(st *settings, t *tally, cols *tripColumns, ch chunk, fields [][]byte, tr *trip) *rowFailure {
+// tripChunk parses and tallies the rows of one chunk of file. In strict
+// mode it returns the first row with bad data.
+func tripChunk(st *settings, t *tally, file string, cols *tripColumns, ch chunk, fields [][]byte, tr *trip) *RowError {
 	sp := lineSplitter{data: ch.data, line: ch.firstLine, quoted: ch.quoted}
 	for {
 		rec, line, slow, ok := sp.next()
@@ -207,10 +200,10 @@ func tripChunk(st *settings, t *tally, cols *tripColumns, ch chunk, fields [][]b
 		} else {
 			fields = splitFields(rec, fields)
 		}
-		var r reason
+		var r Reason
 		var col string
 		if err != nil {
-			r, col = rUnparseable, "record"
+			r, col = ReasonUnparseable, "record"
 		} else {
 			r, col = parseTripFields(st, t.zone, cols, fields, tr)
 			if r == reasonUsed {
@@ -220,13 +213,13 @@ func tripChunk(st *settings, t *tally, cols *tripColumns, ch chunk, fields [][]b
 		}
 		t.count(r, 1)
 		if r != reasonUsed && st.opts.Strict && r.isDataError() {
-			msg := explain(st, tr, r)
+			f := fault{reason: r, detail: explain(st, tr, r)}
 			if col == "record" {
-				msg = fmt.Sprintf("%s: %v", r, err)
+				f = fault{reason: r, err: err}
 			} else if col != "" {
-				msg = fieldFailure(r, col, fields, cols)
+				f = fieldFault(r, col, fields, cols)
 			}
-			return &rowFailure{seq: ch.seq, line: line, msg: msg}
+			return f.at(file, line, 0)
 		}
 	}
 }

@@ -42,9 +42,30 @@ func ingestTripParquet(ctx context.Context, st *settings, path string, t *tally,
 	if err != nil {
 		return "", fmt.Errorf("regiongraph: %s: not a readable Parquet file: %v", path, err)
 	}
-	schema := pf.Schema()
-	var idx [7]int
-	var timeKinds [2]parquetTimeKind
+	cols, err := parquetTripColumns(st, path, pf.Schema())
+	if err != nil {
+		return "", err
+	}
+	done, err := readParquetTrips(ctx, st, path, pf, cols, t, progress)
+	if err != nil {
+		return "", err
+	}
+	if progress != nil && fi.Size() > done {
+		progress(fi.Size() - done)
+	}
+	return hexSum(h), nil
+}
+
+// parquetColumns are the trip columns of a Parquet trip table.
+type parquetColumns struct {
+	idx       [7]int // column index of each of tripRequired
+	timeKinds [2]parquetTimeKind
+}
+
+// parquetTripColumns finds the trip columns in a Parquet schema and checks
+// their types.
+func parquetTripColumns(st *settings, path string, schema *parquet.Schema) (*parquetColumns, error) {
+	var cols parquetColumns
 	var names []string
 	for _, c := range schema.Fields() {
 		names = append(names, c.Name())
@@ -53,54 +74,60 @@ func ingestTripParquet(ctx context.Context, st *settings, path string, t *tally,
 		header := st.column(logical)
 		leaf, ok := schema.Lookup(header)
 		if !ok {
-			return "", fmt.Errorf("regiongraph: %s: missing column %q (the %s column); file has: %s",
+			return nil, fmt.Errorf("regiongraph: %s: missing column %q (the %s column); file has: %s",
 				path, header, logical, strings.Join(names, ", "))
 		}
-		idx[i] = leaf.ColumnIndex
+		cols.idx[i] = leaf.ColumnIndex
 		typ := leaf.Node.Type()
 		kind := typ.Kind()
 		if i < 2 {
 			tk, err := timeKindOf(typ)
 			if err != nil {
-				return "", fmt.Errorf("regiongraph: %s: column %q: %v", path, header, err)
+				return nil, fmt.Errorf("regiongraph: %s: column %q: %v", path, header, err)
 			}
-			timeKinds[i] = tk
+			cols.timeKinds[i] = tk
 			continue
 		}
 		switch kind {
 		case parquet.Int32, parquet.Int64, parquet.Float, parquet.Double:
 		default:
-			return "", fmt.Errorf("regiongraph: %s: column %q has type %v; want a number", path, header, typ)
+			return nil, fmt.Errorf("regiongraph: %s: column %q has type %v; want a number", path, header, typ)
 		}
 	}
+	return &cols, nil
+}
 
+// readParquetTrips reads and tallies the rows of a Parquet trip table,
+// reporting progress in proportion to the rows read. It returns the bytes
+// reported.
+func readParquetTrips(ctx context.Context, st *settings, path string, pf *parquet.File, cols *parquetColumns, t *tally, progress func(int64)) (int64, error) {
 	rowBuf := make([]parquet.Row, 512)
+	var done int64
 	var tr trip
 	var rowNo int64
-	var done int64
-	perRow := float64(fi.Size()) / math.Max(1, float64(pf.NumRows()))
+	perRow := float64(pf.Size()) / math.Max(1, float64(pf.NumRows()))
 	for _, rg := range pf.RowGroups() {
 		rows := rg.Rows()
 		for {
 			if err := ctx.Err(); err != nil {
 				rows.Close()
-				return "", err
+				return done, err
 			}
 			n, err := rows.ReadRows(rowBuf)
 			for _, row := range rowBuf[:n] {
 				rowNo++
-				r, col := parquetTrip(st, t.zone, row, &idx, &timeKinds, &tr)
+				r, col := parquetTrip(st, t.zone, row, &cols.idx, &cols.timeKinds, &tr)
 				if r == reasonUsed {
 					r = t.add(&tr)
 				}
 				t.count(r, 1)
 				if r != reasonUsed && st.opts.Strict && r.isDataError() {
 					rows.Close()
-					msg := explain(st, &tr, r)
-					if col != "" {
-						msg = fmt.Sprintf("%s %s", r, col)
+					f := fault{reason: r, column: col}
+					if col == "" {
+						f.detail = explain(st, &tr, r)
 					}
-					return "", fmt.Errorf("regiongraph: %s:row %d: %s", path, rowNo, msg)
+					return done, f.at(path, 0, rowNo)
 				}
 			}
 			if progress != nil && n > 0 {
@@ -113,7 +140,7 @@ func ingestTripParquet(ctx context.Context, st *settings, path string, t *tally,
 			}
 			if err != nil {
 				rows.Close()
-				return "", fmt.Errorf("regiongraph: %s: row %d: %v", path, rowNo+1, err)
+				return done, fmt.Errorf("regiongraph: %s: row %d: %v", path, rowNo+1, err)
 			}
 			if n == 0 {
 				break
@@ -121,10 +148,7 @@ func ingestTripParquet(ctx context.Context, st *settings, path string, t *tally,
 		}
 		rows.Close()
 	}
-	if progress != nil && fi.Size() > done {
-		progress(fi.Size() - done)
-	}
-	return hexSum(h), nil
+	return done, nil
 }
 
 func timeKindOf(typ parquet.Type) (parquetTimeKind, error) {
@@ -166,7 +190,7 @@ func timeKindOf(typ parquet.Type) (parquetTimeKind, error) {
 	return parquetTimeKind{}, fmt.Errorf("type %v; want a timestamp, Unix seconds or text", typ)
 }
 
-func parquetTrip(st *settings, z *zoneCache, row parquet.Row, idx *[7]int, tk *[2]parquetTimeKind, tr *trip) (reason, string) {
+func parquetTrip(st *settings, z *zoneCache, row parquet.Row, idx *[7]int, tk *[2]parquetTimeKind, tr *trip) (Reason, string) {
 	var vals [7]parquet.Value
 	var have [7]bool
 	for _, v := range row {
@@ -179,13 +203,13 @@ func parquetTrip(st *settings, z *zoneCache, row parquet.Row, idx *[7]int, tk *[
 	}
 	for i, name := range tripRequired {
 		if !have[i] {
-			return rMissingField, name
+			return ReasonMissingField, name
 		}
 	}
 	for i := 0; i < 2; i++ {
 		ms, err := parquetTime(z, vals[i], tk[i])
 		if err != nil {
-			return rUnparseable, tripRequired[i]
+			return ReasonUnparseable, tripRequired[i]
 		}
 		if i == 0 {
 			tr.startMS = ms
@@ -207,7 +231,7 @@ func parquetTrip(st *settings, z *zoneCache, row parquet.Row, idx *[7]int, tk *[
 			v[k] = x.Double()
 		}
 		if math.IsNaN(v[k]) || math.IsInf(v[k], 0) {
-			return rUnparseable, tripRequired[2+k]
+			return ReasonUnparseable, tripRequired[2+k]
 		}
 	}
 	return tr.setPlaces(st, v)

@@ -73,10 +73,7 @@ func ingest(ctx context.Context, env *environment, regions *partition.Partition,
 			return err
 		}
 	}
-	if _, err := outputDir(out); err != nil {
-		return err
-	}
-	if err := regiongraph.WriteFile(out, store); err != nil {
+	if err := writeFileAtomic(out, store.WriteParquet); err != nil {
 		return err
 	}
 	printQuality(env, store.Meta.Quality)
@@ -103,8 +100,8 @@ func printQuality(env *environment, q regiongraph.Quality) {
 	fmt.Fprintf(env.stdout, "  %-34s %12d\n", "rows read", q.Read)
 	fmt.Fprintf(env.stdout, "  %-34s %12d %6.1f %%\n", "used", q.Used, pct(q.Used))
 	for _, reason := range regiongraph.RejectReasons() {
-		if n := q.Rejected[reason]; n > 0 {
-			fmt.Fprintf(env.stdout, "  %-34s %12d %6.1f %%\n", "rejected: "+reason, n, pct(n))
+		if n := q.Rejected[string(reason)]; n > 0 {
+			fmt.Fprintf(env.stdout, "  %-34s %12d %6.1f %%\n", "rejected: "+string(reason), n, pct(n))
 		}
 	}
 }

@@ -1,0 +1,470 @@
+package regiongraph
+
+import (
+	"encoding/binary"
+	"encoding/json"
+	"fmt"
+	"math"
+	"os"
+	"runtime"
+	"slices"
+	"strconv"
+	"strings"
+	"sync"
+	"sync/atomic"
+	"time"
+
+	"github.com/parquet-go/parquet-go"
+	"github.com/parquet-go/parquet-go/format"
+)
+
+// ReadOptions selects what ReadFileOptions keeps of a store. The zero value
+// keeps every edge.
+type ReadOptions struct {
+	// MinTrips drops edges with fewer trips while reading (0 keeps all).
+	// A city's store holds mostly pairs with a trip or two a day; an
+	// analysis that ignores pairs under its own minimum need not hold them
+	// in memory.
+	MinTrips int
+	// Window keeps only the edges of the named window ("" keeps all); a
+	// name not among the store's windows is an error.
+	Window string
+	// From and To keep only the edges of the local days from From to To,
+	// both included, as YYYY-MM-DD ("" leaves that end open).
+	From, To string
+}
+
+// ReadFile reads a store written by WriteParquet, every edge.
+func ReadFile(path string) (*Store, error) { return ReadFileOptions(path, ReadOptions{}) }
+
+// ReadFileOptions reads a store written by WriteParquet, keeping the edges
+// that opts selects. The quality accounting and metadata are the file's
+// whatever is dropped.
+//
+// The file is read column by column rather than row by row: the columns
+// that opts filters on (trips, day, window) are decoded first, and the
+// other columns only on the pages that hold a kept edge, in parallel over
+// stretches of rows.
+func ReadFileOptions(path string, opts ReadOptions) (*Store, error) {
+	return readFile(path, opts, stretchRows)
+}
+
+// stretchRows is the number of rows of a row group read as one piece of
+// parallel work; see readFile.
+const stretchRows = 1 << 18
+
+// readFile is ReadFileOptions with stretches of the given number of rows.
+func readFile(path string, opts ReadOptions, stretchRows int64) (*Store, error) {
+	if err := checkDays(path, opts); err != nil {
+		return nil, err
+	}
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, fmt.Errorf("regiongraph: %w", err)
+	}
+	defer f.Close()
+	fi, err := f.Stat()
+	if err != nil {
+		return nil, fmt.Errorf("regiongraph: %w", err)
+	}
+	pf, err := openParquet(f, fi.Size())
+	if err != nil {
+		return nil, fmt.Errorf("regiongraph: %s: not a Parquet day-graph store: %v", path, err)
+	}
+	leaf, err := storeLeaves(path, pf)
+	if err != nil {
+		return nil, err
+	}
+	s := &Store{}
+	if err := readStoreMeta(path, pf, s); err != nil {
+		return nil, err
+	}
+	if opts.Window != "" && !slices.Contains(s.WindowNames(), opts.Window) {
+		return nil, fmt.Errorf("regiongraph: %s: no window %q in the store (it has %s)", path, opts.Window, strings.Join(s.WindowNames(), ", "))
+	}
+	stretches, err := cutStretches(path, pf, leaf, stretchRows)
+	if err != nil {
+		return nil, err
+	}
+	if s.Edges, err = readStretches(stretches, opts); err != nil {
+		return nil, err
+	}
+	if !slices.IsSortedFunc(s.Edges, compareEdges) {
+		slices.SortStableFunc(s.Edges, compareEdges)
+	}
+	return s, nil
+}
+
+// checkDays checks the days of opts.
+func checkDays(path string, opts ReadOptions) error {
+	for _, d := range []struct{ name, day string }{{"From", opts.From}, {"To", opts.To}} {
+		if d.day == "" {
+			continue
+		}
+		if _, err := time.Parse(time.DateOnly, d.day); err != nil {
+			return fmt.Errorf("regiongraph: read %s: %s day %q is not YYYY-MM-DD", path, d.name, d.day)
+		}
+	}
+	return nil
+}
+
+// storeLeaves checks that pf is a store this build reads and returns the
+// column chunk index of each store column.
+func storeLeaves(path string, pf *parquet.File) (leaf [numStoreColumns]int, err error) {
+	version, ok := pf.Lookup(metaSchemaVersion)
+	if !ok {
+		return leaf, fmt.Errorf("regiongraph: %s: no %s metadata: not a day-graph store", path, metaSchemaVersion)
+	}
+	if v, err := strconv.Atoi(version); err != nil || v != schemaVersion {
+		return leaf, fmt.Errorf("regiongraph: %s: store schema version %q, this build reads %d", path, version, schemaVersion)
+	}
+	for i := range storeColumns {
+		c := &storeColumns[i]
+		l, ok := pf.Schema().Lookup(c.name)
+		if !ok {
+			return leaf, fmt.Errorf("regiongraph: %s: store has no column %q", path, c.name)
+		}
+		if kind := l.Node.Type().Kind(); kind != c.kind() || l.MaxDefinitionLevel != 0 || l.MaxRepetitionLevel != 0 {
+			return leaf, fmt.Errorf("regiongraph: %s: column %q is %v (optional or repeated: %t), want required %v",
+				path, c.name, kind, l.MaxDefinitionLevel != 0 || l.MaxRepetitionLevel != 0, c.kind())
+		}
+		leaf[i] = l.ColumnIndex
+	}
+	return leaf, nil
+}
+
+// cutStretches cuts the rows of pf into stretches of up to stretchRows rows
+// of a row group, the unit of parallel work.
+func cutStretches(path string, pf *parquet.File, leaf [numStoreColumns]int, stretchRows int64) ([]*stretch, error) {
+	var stretches []*stretch
+	var total int64
+	for g, rg := range pf.RowGroups() {
+		n := rg.NumRows()
+		total += n
+		if n > math.MaxInt32 {
+			return nil, fmt.Errorf("regiongraph: %s: row group %d has %d rows, more than this build reads", path, g, n)
+		}
+		chunks := rg.ColumnChunks()
+		var cols [numStoreColumns]parquet.ColumnChunk
+		for i, l := range leaf {
+			if l < 0 || l >= len(chunks) {
+				return nil, fmt.Errorf("regiongraph: %s: row group %d has no column %q", path, g, storeColumns[i].name)
+			}
+			cols[i] = chunks[l]
+			if g < len(pf.Metadata().RowGroups) && l < len(pf.Metadata().RowGroups[g].Columns) {
+				// The library's LZ4 decoder does not end on damaged
+				// data; WriteParquet uses zstd and other tools the
+				// codecs below.
+				switch codec := pf.Metadata().RowGroups[g].Columns[l].MetaData.Codec; codec {
+				case format.Uncompressed, format.Snappy, format.Gzip, format.Zstd:
+				default:
+					return nil, fmt.Errorf("regiongraph: %s: row group %d, column %q: compression %v, want zstd, Snappy, gzip or none",
+						path, g, storeColumns[i].name, codec)
+				}
+			}
+		}
+		for a := int64(0); a < n; a += stretchRows {
+			stretches = append(stretches, &stretch{path: path, group: g, cols: cols, first: a, end: min(a+stretchRows, n)})
+		}
+	}
+	if total != pf.NumRows() {
+		return nil, fmt.Errorf("regiongraph: %s: row groups hold %d rows, the file says %d", path, total, pf.NumRows())
+	}
+	return stretches, nil
+}
+
+// readStretches returns the edges of the stretches that opts keeps, in
+// file order. Each stretch first finds the rows it keeps, then, once the
+// stretches' offsets in the edges are known, fills them.
+func readStretches(stretches []*stretch, opts ReadOptions) ([]Edge, error) {
+	if err := forEach(len(stretches), func(i int) error { return stretches[i].selectRows(opts) }); err != nil {
+		return nil, err
+	}
+	kept := 0
+	for _, st := range stretches {
+		st.offset = kept
+		kept += st.kept()
+	}
+	if kept == 0 {
+		return nil, nil
+	}
+	edges := make([]Edge, kept)
+	if err := forEach(len(stretches), func(i int) error {
+		st := stretches[i]
+		return st.fill(edges[st.offset : st.offset+st.kept()])
+	}); err != nil {
+		return nil, err
+	}
+	return edges, nil
+}
+
+// openParquet opens a Parquet file, turning a panic of the Parquet
+// library on a damaged footer into an error.
+func openParquet(f *os.File, size int64) (pf *parquet.File, err error) {
+	// The library allocates the footer length the file gives before
+	// reading it: check it against the file's size first.
+	var tail [8]byte
+	if size < 12 {
+		return nil, fmt.Errorf("%d bytes is too short", size)
+	}
+	if _, err := f.ReadAt(tail[:], size-8); err != nil {
+		return nil, err
+	}
+	if footer := int64(binary.LittleEndian.Uint32(tail[:4])); footer+12 > size {
+		return nil, fmt.Errorf("footer of %d bytes in a file of %d", footer, size)
+	}
+	defer func() {
+		if r := recover(); r != nil {
+			err = fmt.Errorf("damaged footer: %v", r)
+		}
+	}()
+	return parquet.OpenFile(f, size, parquet.SkipBloomFilters(true))
+}
+
+// readStoreMeta sets s.Meta and the regions from the file's key-value
+// metadata.
+func readStoreMeta(path string, pf *parquet.File, s *Store) error {
+	s.Meta.RegionsSHA256, _ = pf.Lookup(metaRegions)
+	s.Meta.TimeZone, _ = pf.Lookup(metaTimeZone)
+	if text, ok := pf.Lookup(metaRegionsJSON); ok {
+		s.regionsGeoJSON = []byte(text)
+	}
+	var windows []windowJSON
+	var quality qualityJSON
+	var sources []sourceJSON
+	for _, m := range []struct {
+		key string
+		v   any
+	}{{metaWindows, &windows}, {metaQuality, &quality}, {metaSources, &sources}} {
+		text, ok := pf.Lookup(m.key)
+		if !ok {
+			return fmt.Errorf("regiongraph: %s: no %s metadata", path, m.key)
+		}
+		if err := json.Unmarshal([]byte(text), m.v); err != nil {
+			return fmt.Errorf("regiongraph: %s: %s metadata: %v", path, m.key, err)
+		}
+	}
+	for _, w := range windows {
+		pw, err := ParseWindow(w.Name + "=" + w.Start + "-" + w.End)
+		if err != nil {
+			return fmt.Errorf("regiongraph: %s: windows metadata: %v", path, err)
+		}
+		s.Meta.Windows = append(s.Meta.Windows, pw)
+	}
+	s.Meta.Quality = Quality{Read: quality.Read, Used: quality.Used, Rejected: quality.Rejected}
+	if s.Meta.Quality.Rejected == nil {
+		s.Meta.Quality.Rejected = make(map[string]int64)
+	}
+	for _, src := range sources {
+		s.Meta.Sources = append(s.Meta.Sources, Source{Path: src.Path, SHA256: src.SHA256, Rows: src.Rows})
+	}
+	return nil
+}
+
+// forEach calls work(0), ..., work(n-1) on up to GOMAXPROCS goroutines and
+// returns the error of the lowest i that failed. A panic inside the Parquet
+// decoder on a damaged file becomes an error rather than ending the
+// program.
+func forEach(n int, work func(i int) error) error {
+	errs := make([]error, n)
+	var next atomic.Int64
+	var wg sync.WaitGroup
+	for range min(n, runtime.GOMAXPROCS(0)) {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for {
+				i := int(next.Add(1) - 1)
+				if i >= n {
+					return
+				}
+				func() {
+					defer func() {
+						if r := recover(); r != nil {
+							errs[i] = fmt.Errorf("regiongraph: damaged store: %v", r)
+						}
+					}()
+					errs[i] = work(i)
+				}()
+				if errs[i] != nil {
+					next.Store(int64(n)) // stop handing out work
+				}
+			}
+		}()
+	}
+	wg.Wait()
+	for _, err := range errs {
+		if err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+// A stretch is rows [first, end) of one row group of a store file.
+type stretch struct {
+	path       string
+	group      int
+	cols       [numStoreColumns]parquet.ColumnChunk
+	first, end int64
+	all        bool    // every row is kept
+	rows       []int32 // else the kept rows, ascending, as indexes in the row group
+	offset     int     // of the stretch's first kept edge in the store
+}
+
+func (st *stretch) kept() int {
+	if st.all {
+		return int(st.end - st.first)
+	}
+	return len(st.rows)
+}
+
+func (st *stretch) errorf(col int, format string, args ...any) error {
+	return fmt.Errorf("regiongraph: %s: row group %d, column %q: %s", st.path, st.group, storeColumns[col].name, fmt.Sprintf(format, args...))
+}
+
+// readBlock is the number of rows decoded at a time: the edges of a block
+// stay in the processor's cache while every column fills its field.
+const readBlock = 4096
+
+// selectRows finds the rows of the stretch that opts keeps.
+func (st *stretch) selectRows(opts ReadOptions) error {
+	var filters []int
+	if opts.MinTrips > 0 {
+		filters = append(filters, storeTrips)
+	}
+	if opts.Window != "" {
+		filters = append(filters, storeWindow)
+	}
+	if opts.From != "" || opts.To != "" {
+		filters = append(filters, storeDay)
+	}
+	if len(filters) == 0 {
+		st.all = true
+		return nil
+	}
+	keep := make([]bool, st.end-st.first)
+	for i := range keep {
+		keep[i] = true
+	}
+	var ints [readBlock]int64
+	var strs [readBlock]string
+	for _, col := range filters {
+		c := newColumnCursor(st, col)
+		for a := st.first; a < st.end; a += readBlock {
+			b := min(a+readBlock, st.end)
+			k := keep[a-st.first : b-st.first]
+			var err error
+			switch col {
+			case storeTrips:
+				if err = c.int64s(a, b, nil, ints[:b-a]); err == nil {
+					for i, v := range ints[:b-a] {
+						k[i] = k[i] && v >= int64(opts.MinTrips)
+					}
+				}
+			case storeWindow:
+				if err = c.strings(a, b, nil, strs[:b-a]); err == nil {
+					for i, v := range strs[:b-a] {
+						k[i] = k[i] && v == opts.Window
+					}
+				}
+			case storeDay:
+				if err = c.strings(a, b, nil, strs[:b-a]); err == nil {
+					for i, v := range strs[:b-a] {
+						k[i] = k[i] && (opts.From == "" || v >= opts.From) && (opts.To == "" || v <= opts.To)
+					}
+				}
+			}
+			if err != nil {
+				c.close()
+				return err
+			}
+		}
+		c.close()
+	}
+	for i, k := range keep {
+		if k {
+			st.rows = append(st.rows, int32(st.first+int64(i)))
+		}
+	}
+	st.all = len(st.rows) == len(keep)
+	if st.all {
+		st.rows = nil
+	}
+	return nil
+}
+
+// fill sets the stretch's kept edges, len(edges) == st.kept().
+func (st *stretch) fill(edges []Edge) error {
+	if len(edges) == 0 {
+		return nil
+	}
+	var cursors [numStoreColumns]*columnCursor
+	for col := range cursors {
+		cursors[col] = newColumnCursor(st, col)
+		defer cursors[col].close()
+	}
+	scratch := new(readScratch)
+	for k := 0; k < len(edges); k += readBlock {
+		dst := edges[k:min(k+readBlock, len(edges))]
+		n := len(dst)
+		// The block is rows [a, b) of the row group, or the listed rows.
+		a, b := st.first+int64(k), st.first+int64(k+n)
+		var rows []int32
+		if !st.all {
+			rows = st.rows[k : k+n]
+			a, b = int64(rows[0]), int64(rows[n-1])+1
+		}
+		for col, c := range cursors {
+			if err := setColumn(dst, &storeColumns[col], c, a, b, rows, scratch); err != nil {
+				return err
+			}
+		}
+	}
+	return nil
+}
+
+// readScratch holds a block of decoded values of each kind.
+type readScratch struct {
+	f64  [readBlock]float64
+	i64  [readBlock]int64
+	i32  [readBlock]int32
+	strs [readBlock]string
+}
+
+// setColumn decodes column col of the wanted rows (rows, or [a, b) if rows
+// is nil) and sets its field of the edges dst.
+func setColumn(dst []Edge, col *storeColumn, c *columnCursor, a, b int64, rows []int32, scratch *readScratch) error {
+	n := len(dst)
+	switch col.kind() {
+	case parquet.ByteArray:
+		if err := c.strings(a, b, rows, scratch.strs[:n]); err != nil {
+			return err
+		}
+		for i := range dst {
+			*col.str(&dst[i]) = scratch.strs[i]
+		}
+	case parquet.Int32:
+		if err := c.int32s(a, b, rows, scratch.i32[:n]); err != nil {
+			return err
+		}
+		for i := range dst {
+			*col.int(&dst[i]) = int(scratch.i32[i])
+		}
+	case parquet.Int64:
+		if err := c.int64s(a, b, rows, scratch.i64[:n]); err != nil {
+			return err
+		}
+		for i := range dst {
+			*col.int(&dst[i]) = int(scratch.i64[i])
+		}
+	default:
+		if err := c.float64s(a, b, rows, scratch.f64[:n]); err != nil {
+			return err
+		}
+		for i := range dst {
+			*col.double(&dst[i]) = scratch.f64[i]
+		}
+	}
+	return nil
+}

@@ -1,0 +1,130 @@
+package regiongraph
+
+import (
+	"encoding/json"
+	"errors"
+	"fmt"
+	"io"
+	"math"
+	"strconv"
+
+	"github.com/parquet-go/parquet-go"
+)
+
+// WriteParquet writes the store to w as one Parquet file, the layout of
+// SCHEMA.md. The bytes depend only on the store.
+func (s *Store) WriteParquet(w io.Writer) error { return writeParquet(w, s, rowGroupRows) }
+
+// rowGroupRows is the number of rows from which WriteParquet ends a row
+// group at the next change of day. Row groups of about a million rows are
+// common practice: other tools read them in parallel, and the writer holds
+// one row group's compressed pages in memory.
+const rowGroupRows = 1 << 20
+
+// writeParquet is WriteParquet with row groups of groupRows rows, each
+// ended at a change of day unless the day alone has 2 groupRows rows.
+// Further writer options (tests use small pages) come after the store's.
+func writeParquet(w io.Writer, s *Store, groupRows int, extra ...parquet.WriterOption) error {
+	if s == nil {
+		return errors.New("regiongraph: write: nil store")
+	}
+	opts, err := storeMetadata(s)
+	if err != nil {
+		return fmt.Errorf("regiongraph: write: %v", err)
+	}
+	if err := writeEdges(w, s.Edges, groupRows, append(opts, extra...)); err != nil {
+		return fmt.Errorf("regiongraph: write: %w", err)
+	}
+	return nil
+}
+
+// storeMetadata returns the writer options of the store: compression and
+// the file's key-value metadata.
+func storeMetadata(s *Store) ([]parquet.WriterOption, error) {
+	windows := make([]windowJSON, len(s.Meta.Windows))
+	for i, w := range s.Meta.Windows {
+		windows[i] = windowJSON{Name: w.Name, Start: clock(w.StartMinute), End: clock(w.EndMinute)}
+	}
+	rejected := make(map[string]int64)
+	for _, r := range RejectReasons() {
+		rejected[string(r)] = 0
+	}
+	for r, n := range s.Meta.Quality.Rejected {
+		rejected[r] = n
+	}
+	sources := make([]sourceJSON, len(s.Meta.Sources))
+	for i, src := range s.Meta.Sources {
+		sources[i] = sourceJSON{Path: src.Path, SHA256: src.SHA256, Rows: src.Rows}
+	}
+	meta := []struct {
+		key string
+		v   any
+	}{
+		{metaWindows, windows},
+		{metaQuality, qualityJSON{Read: s.Meta.Quality.Read, Used: s.Meta.Quality.Used, Rejected: rejected}},
+		{metaSources, sources},
+	}
+	opts := []parquet.WriterOption{
+		parquet.Compression(&parquet.Zstd),
+		parquet.KeyValueMetadata(metaSchemaVersion, strconv.Itoa(schemaVersion)),
+		parquet.KeyValueMetadata(metaRegions, s.Meta.RegionsSHA256),
+		parquet.KeyValueMetadata(metaTimeZone, s.Meta.TimeZone),
+	}
+	if len(s.regionsGeoJSON) > 0 {
+		opts = append(opts, parquet.KeyValueMetadata(metaRegionsJSON, string(s.regionsGeoJSON)))
+	}
+	for _, m := range meta {
+		b, err := json.Marshal(m.v)
+		if err != nil {
+			return nil, err
+		}
+		opts = append(opts, parquet.KeyValueMetadata(m.key, string(b)))
+	}
+	return opts, nil
+}
+
+func clock(m int) string { return fmt.Sprintf("%02d:%02d", m/60, m%60) }
+
+// writeEdges writes the edges as Parquet rows to w, converting them in
+// small batches so that only the writer's buffers are added to the store in
+// memory.
+func writeEdges(w io.Writer, edges []Edge, groupRows int, opts []parquet.WriterOption) error {
+	pw := parquet.NewWriter(w, append([]parquet.WriterOption{storeSchema(nil)}, opts...)...)
+	const batch = 1 << 12
+	rows := make([]parquet.Row, 0, batch)
+	values := make(parquet.Row, 0, batch*numStoreColumns) // of the rows
+	flush := func() error {
+		_, err := pw.WriteRows(rows)
+		rows, values = rows[:0], values[:0]
+		return err
+	}
+	inGroup := 0
+	for i := range edges {
+		e := &edges[i]
+		if e.From < math.MinInt32 || e.From > math.MaxInt32 || e.To < math.MinInt32 || e.To > math.MaxInt32 {
+			return fmt.Errorf("region id out of int32 range in edge %d", i)
+		}
+		if inGroup >= 2*groupRows || inGroup >= groupRows && e.Day != edges[i-1].Day {
+			if err := flush(); err != nil {
+				return err
+			}
+			if err := pw.Flush(); err != nil {
+				return err
+			}
+			inGroup = 0
+		}
+		n := len(values)
+		values = appendRow(values, e)
+		rows = append(rows, values[n:len(values):len(values)])
+		inGroup++
+		if len(rows) == batch {
+			if err := flush(); err != nil {
+				return err
+			}
+		}
+	}
+	if err := flush(); err != nil {
+		return err
+	}
+	return pw.Close()
+}
