@@ -3,6 +3,7 @@ package patterns
 import (
 	"context"
 	"math/rand/v2"
+	"os"
 	"path/filepath"
 	"reflect"
 	"testing"
@@ -15,7 +16,14 @@ import (
 func readBack(t *testing.T, store *regiongraph.Store, minTrips int) *regiongraph.Store {
 	t.Helper()
 	path := filepath.Join(t.TempDir(), "graphs.parquet")
-	if err := regiongraph.WriteFile(path, store); err != nil {
+	f, err := os.Create(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := store.WriteParquet(f); err != nil {
+		t.Fatal(err)
+	}
+	if err := f.Close(); err != nil {
 		t.Fatal(err)
 	}
 	read, err := regiongraph.ReadFileOptions(path, regiongraph.ReadOptions{MinTrips: minTrips})

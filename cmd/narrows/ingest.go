@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"time"
 
+	"narrows/cmd/internal/atomicfile"
 	"narrows/partition"
 	"narrows/regiongraph"
 )
@@ -73,7 +74,10 @@ func ingest(ctx context.Context, env *environment, regions *partition.Partition,
 			return err
 		}
 	}
-	if err := writeFileAtomic(out, store.WriteParquet); err != nil {
+	if _, err := outputDir(out); err != nil {
+		return err
+	}
+	if err := atomicfile.Write(out, store.WriteParquet); err != nil {
 		return err
 	}
 	printQuality(env, store.Meta.Quality)
