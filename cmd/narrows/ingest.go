@@ -35,7 +35,8 @@ func runIngest(ctx context.Context, env *environment, args []string) error {
 	if err != nil {
 		return err
 	}
-	return ingest(ctx, env, regions, sum, trips, nil, format, opts, merge, out)
+	_, err = ingest(ctx, env, regions, sum, trips, nil, format, opts, merge, out)
+	return err
 }
 
 // ingest builds and writes the day-graph store of the regions whose
@@ -43,7 +44,7 @@ func runIngest(ctx context.Context, env *environment, args []string) error {
 // trip file's path to the name recorded in the store (a study records its
 // files relative to the study file, so the store does not depend on where
 // the study folder sits).
-func ingest(ctx context.Context, env *environment, regions *partition.Partition, sum string, trips []string, names map[string]string, format regiongraph.Format, opts regiongraph.Options, merge []string, out string) error {
+func ingest(ctx context.Context, env *environment, regions *partition.Partition, sum string, trips []string, names map[string]string, format regiongraph.Format, opts regiongraph.Options, merge []string, out string) (*regiongraph.Store, error) {
 	start := time.Now()
 	var inputs []regiongraph.Input
 	for _, t := range trips {
@@ -54,7 +55,7 @@ func ingest(ctx context.Context, env *environment, regions *partition.Partition,
 	store, err := regiongraph.Ingest(ctx, regions, sum, inputs, opts)
 	finish()
 	if err != nil {
-		return err
+		return nil, err
 	}
 	for i, src := range store.Meta.Sources {
 		if name, ok := names[src.Path]; ok {
@@ -66,23 +67,23 @@ func ingest(ctx context.Context, env *environment, regions *partition.Partition,
 		for _, m := range merge {
 			s, err := regiongraph.ReadFile(m)
 			if err != nil {
-				return err
+				return nil, err
 			}
 			stores = append(stores, s)
 		}
 		if store, err = regiongraph.Merge(stores...); err != nil {
-			return err
+			return nil, err
 		}
 	}
 	if _, err := outputDir(out); err != nil {
-		return err
+		return nil, err
 	}
 	if err := atomicfile.Write(out, store.WriteParquet); err != nil {
-		return err
+		return nil, err
 	}
 	printQuality(env, store.Meta.Quality)
 	fmt.Fprintf(env.stdout, "%d edges on %d days in %.2f s -> %s\n", len(store.Edges), countDays(store), time.Since(start).Seconds(), out)
-	return nil
+	return store, nil
 }
 
 func countDays(s *regiongraph.Store) int {

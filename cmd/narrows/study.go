@@ -233,7 +233,7 @@ func (s *study) run(ctx context.Context, env *environment, dir, file string) err
 }
 
 // dayGraphs ingests the study's trips onto the regions, whose GeoJSON has
-// the SHA-256 sum, and returns the store as the analysis reads it.
+// the SHA-256 sum, writes the store and returns it.
 func (r *studyRun) dayGraphs(ctx context.Context, env *environment, regions *partition.Partition, sum string) (*regiongraph.Store, error) {
 	var trips []string
 	names := map[string]string{}
@@ -242,10 +242,9 @@ func (r *studyRun) dayGraphs(ctx context.Context, env *environment, regions *par
 		names[r.rel(t)] = t
 	}
 	graphs := filepath.Join(r.steps, "graphs.parquet")
-	if err := ingest(ctx, env, regions, sum, trips, names, r.Trips.Format, r.Trips.Options, nil, graphs); err != nil {
-		return nil, err
-	}
-	return readStore(graphs, r.Scan.ScanOptions)
+	// The store is written as the step's output; the analysis goes on with
+	// the same store in memory, since it applies its own minimum of trips.
+	return ingest(ctx, env, regions, sum, trips, names, r.Trips.Format, r.Trips.Options, nil, graphs)
 }
 
 // reportInput returns what the reports of both kinds of study share; the
