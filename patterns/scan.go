@@ -33,8 +33,8 @@ const dayLayout = "2006-01-02"
 // groups take about a second on one core.
 func DefaultScanOptions() ScanOptions {
 	return ScanOptions{
-		Days:           AllDays,
-		Skyline:        skyline.DefaultOptions(),
+		Days:            AllDays,
+		Skyline:         skyline.DefaultOptions(),
 		Support:         0.2,
 		MaxGroupEdges:   6,
 		JoinCorrelation: 0.5,
