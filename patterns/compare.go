@@ -89,9 +89,9 @@ func (o CompareOptions) validate(regions *partition.Partition) error {
 // For each finding (the union of both scans' findings by ID; the Finding
 // recorded is the before one when it exists):
 //
-//   - Recurrence: the days of each period on which all the finding's edges
-//     were candidates together (from Scan.DayCandidates, so it is counted
-//     even in a period where the group is not a finding), compared with a
+//   - Recurrence: the days of each period on which at least one of the
+//     finding's edges was a candidate (from Scan.DayCandidates, so it is
+//     counted even in a period where the place is not a finding), compared with a
 //     two-sided Fisher exact test of [[days before, other days before],
 //     [days after, other days after]].
 //   - Daily series: for every analysed day of a period on which the

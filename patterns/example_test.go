@@ -39,7 +39,7 @@ func ExampleScanStore() {
 			f.Rank, f.ID, len(f.Days), len(scan.Days), f.ExtraKMPerDay, f.ExtraHoursPerDay)
 	}
 	// Output:
-	// 1. 10>11+11>12 on 8 of 10 days: 312 extra veh-km, 47.1 extra veh-h a day
+	// 1. 10>11+11>12 on 8 of 10 days: 250 extra veh-km, 37.7 extra veh-h a day
 }
 
 func ExampleCompare() {

@@ -28,21 +28,28 @@ const dayLayout = "2006-01-02"
 // Six edges cover a region and its ring of neighbours, the largest
 // group a planner reads as one place. 30 km/h is a common urban speed
 // limit and a fair door-to-door speed for urban car trips (common
-// practice).
+// practice). A correlation of 0.5 joins two pairs when most of the days
+// either is weak, both are, clearly beyond chance. Two million visited
+// groups take about a second on one core.
 func DefaultScanOptions() ScanOptions {
 	return ScanOptions{
-		Days:           AllDays,
-		Skyline:        skyline.DefaultOptions(),
-		Support:        0.2,
-		MaxGroupEdges:  6,
-		ReferenceSpeed: geodesy.MPS(30),
+		Days:            AllDays,
+		Skyline:         skyline.DefaultOptions(),
+		Support:         0.2,
+		MaxGroupEdges:   6,
+		JoinCorrelation: 0.5,
+		MaxGroupVisits:  2_000_000,
+		ReferenceSpeed:  geodesy.MPS(30),
 	}
 }
 
 // ScanStore scans one period of a day-graph store: it selects the window
 // and the analysed days, finds each day's skyline candidates, mines the
-// connected groups of candidates that recur on at least opts.Support of the
-// analysed days, and turns the closed groups into ranked findings.
+// region pairs whose candidates recur on at least opts.Support of the
+// analysed days, joins the pairs that recur together into places (see
+// places), and turns each place into a ranked finding with its edges and
+// its closed recurring groups (mined over the place's own edges, within
+// opts.MaxGroupEdges and opts.MaxGroupVisits).
 //
 // Edges with fewer than opts.Skyline.MinTrips trips are left out first, as
 // regiongraph.ReadOptions.MinTrips leaves them out when reading a store: a
@@ -101,15 +108,11 @@ func ScanStore(ctx context.Context, store *regiongraph.Store, opts ScanOptions) 
 	if err := findCandidates(ctx, scan, graphs); err != nil {
 		return nil, err
 	}
-	found, err := groups.Mine(ctx, scan.DayCandidates, groups.Options{
-		MinSupport:  MinSupport(opts.Support, len(days)),
-		MaxEdges:    opts.MaxGroupEdges,
-		MaximalOnly: opts.MaximalOnly,
-	})
+	minSupport := MinSupport(opts.Support, len(days))
+	scan.Findings, err = findings(ctx, scan, places(scan.DayCandidates, minSupport, opts.JoinCorrelation), minSupport)
 	if err != nil {
 		return nil, err
 	}
-	scan.Findings = findings(scan, found)
 	return scan, nil
 }
 
@@ -132,6 +135,9 @@ func findCandidates(ctx context.Context, scan *Scan, graphs [][]regiongraph.Edge
 		}
 		scan.CandidatesPerDay[d] = len(keys)
 		scan.DayCandidates[d] = keys // graphs are sorted by From, To
+		if p := scan.Options.Progress; p != nil {
+			p("candidates", d+1, len(graphs))
+		}
 	}
 	for d, graph := range graphs {
 		for i := range graph {
@@ -205,6 +211,12 @@ func checkScanOptions(opts *ScanOptions) error {
 	// exponentially with their size.
 	if opts.MaxGroupEdges < 1 {
 		return fmt.Errorf("patterns: scan: max group edges %d, want 1 or more", opts.MaxGroupEdges)
+	}
+	if !(opts.JoinCorrelation >= -1 && opts.JoinCorrelation <= 1) {
+		return fmt.Errorf("patterns: scan: join correlation %v, want a value from -1 to 1", opts.JoinCorrelation)
+	}
+	if opts.MaxGroupVisits < 0 {
+		return fmt.Errorf("patterns: scan: max group visits %d, want 0 (no bound) or more", opts.MaxGroupVisits)
 	}
 	if !(opts.ReferenceSpeed > 0) || math.IsInf(opts.ReferenceSpeed, 0) {
 		return fmt.Errorf("patterns: scan: reference speed %v m/s, want a positive speed", opts.ReferenceSpeed)

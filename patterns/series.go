@@ -16,23 +16,17 @@ func findingKeys(f Finding) []EdgeKey {
 	return keys
 }
 
-// recurrenceDays counts the analysed days of s on which every key was a
-// candidate. An empty key set recurs on no day.
+// recurrenceDays counts the analysed days of s on which at least one key
+// was a candidate: the days the place was weak, as Finding.Days counts
+// them. An empty key set recurs on no day.
 func recurrenceDays(s *Scan, keys []EdgeKey) int {
-	if len(keys) == 0 {
-		return 0
-	}
 	n := 0
 	for _, cands := range s.DayCandidates {
-		all := true
 		for _, k := range keys {
-			if !containsKey(cands, k) {
-				all = false
+			if containsKey(cands, k) {
+				n++
 				break
 			}
-		}
-		if all {
-			n++
 		}
 	}
 	return n

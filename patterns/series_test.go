@@ -29,7 +29,7 @@ func TestDailySeriesAndRecurrence(t *testing.T) {
 	for _, tc := range []struct {
 		keys []EdgeKey
 		want int
-	}{{[]EdgeKey{a, b}, 1}, {[]EdgeKey{a}, 2}, {[]EdgeKey{b}, 2}, {[]EdgeKey{{From: 5, To: 5}}, 0}, {nil, 0}} {
+	}{{[]EdgeKey{a, b}, 3}, {[]EdgeKey{a}, 2}, {[]EdgeKey{b}, 2}, {[]EdgeKey{{From: 5, To: 5}}, 0}, {nil, 0}} {
 		if got := recurrenceDays(s, tc.keys); got != tc.want {
 			t.Errorf("recurrence of %v: %d, want %d", tc.keys, got, tc.want)
 		}

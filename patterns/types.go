@@ -44,6 +44,19 @@ type ScanOptions struct {
 	// MaximalOnly keeps only the groups not contained in another reported
 	// group (default false: every closed group, nested ones included).
 	MaximalOnly bool `toml:"maximal_only"`
+	// JoinCorrelation is the least correlation of two region pairs' daily
+	// recurrence (the phi coefficient of their candidate days) for them to
+	// be one place, when they share a region and recur together on at
+	// least the support share of the days (default 0.5). Pairs that recur
+	// together no more than chance would have them stay apart.
+	JoinCorrelation float64 `toml:"join_correlation"`
+	// MaxGroupVisits bounds the listing of recurring groups by the number
+	// of connected groups visited over the whole scan (default 2,000,000,
+	// about a second); 0 means no bound.
+	MaxGroupVisits int `toml:"max_group_visits"`
+	// Progress, when not nil, is called as the scan goes: stage names the
+	// step ("candidates", "groups"), done counts the items of total done.
+	Progress func(stage string, done, total int) `toml:"-"`
 	// ReferenceSpeed in m/s against which extra vehicle-hours are counted
 	// (default 30 km/h).
 	ReferenceSpeed float64 `toml:"-"` // a study file gives it in km/h
@@ -61,33 +74,56 @@ type DailyValue struct {
 	DurationSum float64 // seconds
 }
 
-// FindingEdge is one directed edge of a finding with its medians over the
-// finding's days.
+// FindingEdge is one directed edge of a finding with its own recurrence
+// and its medians over the days it was a candidate.
 type FindingEdge struct {
-	From, To     int
+	From, To int
+	// Days are the analysed days on which the edge was a candidate;
+	// Share is their share of the analysed days.
+	Days  []string
+	Share float64
+	// Medians over the edge's Days.
 	TripsMedian  float64
 	SpeedMedian  float64 // m/s
 	DetourMedian float64
-	// ExtraKMPerDay: median over the finding's days of
-	// (travel distance - straight-line distance) summed over trips, km.
-	ExtraKMPerDay float64
-	// ExtraHoursPerDay: median over the finding's days of vehicle-hours
+	// ExtraKMPerWeakDay: median over the edge's Days of (travel distance -
+	// straight-line distance) summed over trips, km.
+	ExtraKMPerWeakDay float64
+	// ExtraHoursPerWeakDay: median over the edge's Days of vehicle-hours
 	// beyond those at the reference speed over the straight-line distance.
+	ExtraHoursPerWeakDay float64
+	// ExtraKMPerDay and ExtraHoursPerDay spread the weak-day cost over
+	// every analysed day of the period: the weak-day median x Share.
+	ExtraKMPerDay    float64
 	ExtraHoursPerDay float64
 	// Daily holds every analysed day on which the edge had trips.
 	Daily []DailyValue
 }
 
-// Finding is a closed connected group of candidate edges recurring on at
-// least the support share of the analysed days.
+// RecurringGroup is a closed connected group of a finding's edges that
+// were candidates together on at least the support share of the days:
+// which of the place's edges recur together, and on which days.
+type RecurringGroup struct {
+	Edges []EdgeKey // sorted by From, To
+	Days  []string
+	Share float64
+}
+
+// Finding is one weak place: the directed region pairs that recur as
+// candidates and recur together (see ScanStore). Each directed pair
+// belongs to at most one finding of a scan.
 type Finding struct {
-	Rank    int    // 1 = highest cost over the period (ExtraHoursPerDay x Share)
-	ID      string // stable key built from the edges, e.g. "12>15+15>18"
+	Rank    int    // 1 = highest ExtraHoursPerDay
+	ID      string // stable key built from the edges, e.g. "12>15+15>12"
 	Regions []int  // ascending
 	Edges   []FindingEdge
-	Days    []string // days on which all edges were candidates together
-	Share   float64  // len(Days) / analysed days
-	// Costs: sums over edges of the per-edge medians.
+	// Groups are the recurring groups within the place, sorted by edge
+	// list: detail, not findings of their own.
+	Groups []RecurringGroup
+	Days   []string // days on which at least one edge was a candidate
+	Share  float64  // len(Days) / analysed days
+	// Costs per day of the period: sums over the edges, each edge counted
+	// once, so findings' costs add up without double counting.
 	ExtraKMPerDay    float64
 	ExtraHoursPerDay float64
 }
@@ -108,4 +144,11 @@ type Scan struct {
 	// Iterate in sorted key order for deterministic output.
 	EdgeDaily map[EdgeKey][]DailyValue
 	Findings  []Finding
+	// GroupVisits counts the connected groups visited while listing the
+	// findings' recurring groups; GroupsTruncated is set when the listing
+	// stopped at ScanOptions.MaxGroupVisits, so that some findings list
+	// only part of their groups. The findings, their edges and costs do
+	// not depend on the listing and are complete either way.
+	GroupVisits     int
+	GroupsTruncated bool
 }

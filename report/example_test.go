@@ -51,7 +51,7 @@ func weirRoad() report.Input {
 func ExampleHeadline() {
 	fmt.Println(report.Headline(weirRoad()))
 	// Output:
-	// 1 weak link recurred on at least 50 % of the 4 analysed days (2026-03-02 to 2026-03-05). The costliest, regions 1>2, adds 48 km of travel and 4.1 vehicle-hours a day.
+	// 1 weak link recurred on at least 50 % of the 4 analysed days (2026-03-02 to 2026-03-05). The costliest, across Weir Road between region 1 and region 2 (1>2), adds 48 km of travel and 4.1 vehicle-hours a day.
 }
 
 func ExampleWriteWorkbook() {
@@ -69,7 +69,7 @@ func ExampleWriteWorkbook() {
 	if err != nil {
 		log.Fatal(err)
 	}
-	for col := 6; col <= 8; col++ { // the trips, speed and detour of the weak link
+	for col := 7; col <= 9; col++ { // the trips, speed and detour of the weak link
 		fmt.Printf("%s: %s\n", rows[0][col], rows[1][col])
 	}
 	// Output:

@@ -74,6 +74,9 @@ func (v *view) findingsGeoJSON(w io.Writer) error {
 			f.ID = it.Key + "/" + edgeLabel(e.From, e.To)
 			hide := v.suppressed(e.TripsMedian)
 			f.Properties["finding"] = it.Finding.ID
+			f.Properties["place"] = it.Name
+			f.Properties["edge_days"] = len(e.Days)
+			f.Properties["edge_share"] = jsonNumber(e.Share, 4)
 			f.Properties["rank"] = it.Finding.Rank
 			f.Properties["from"] = e.From
 			f.Properties["to"] = e.To

@@ -25,7 +25,7 @@ type htmlVerdict struct {
 
 type htmlRow struct {
 	Rank                          int
-	ID, Edges, Verdict            string
+	ID, Name, Edges, Verdict      string
 	Colour, Text                  string
 	Share, Trips, Speed, Detour   string
 	ExtraKM, ExtraHours           string
@@ -95,8 +95,8 @@ table#findings { font-size: 0.95em; }
 {{.Map}}
 <h2>Weak links</h2>
 {{if .Rows}}<table id="findings">
-<tr>{{if .Comparing}}<th>Rank (period)</th>{{else}}<th>Rank</th>{{end}}<th>Weak link (edges)</th>{{if .Comparing}}<th>Verdict</th><th>Trips per day</th><th>Days recurring before</th><th>Days recurring after</th><th>Speed shift km/h (95 % CI)</th><th>Detour ratio shift (95 % CI)</th><th>Why</th>{{else}}<th>Share of days</th><th>Trips per day</th><th>Speed km/h</th><th>Detour ratio</th><th>Extra km per day</th><th>Extra vehicle-hours per day</th>{{end}}</tr>
-{{range .Rows}}<tr><td class="num">{{.Rank}}{{if $.Comparing}} ({{.Period}}){{end}}</td><td title="Edges {{.Edges}}">{{.ID}}{{if .Focus}} (focus){{end}}</td>{{if $.Comparing}}<td><span class="swatch" style="background: {{.Colour}}; color: {{.Text}}">{{.Verdict}}</span></td><td class="num">{{.Trips}}</td><td class="num">{{.ShareBefore}}</td><td class="num">{{.ShareAfter}}</td><td class="num">{{.SpeedShift}}{{if .SpeedCI}}<br/><span class="ci">{{.SpeedCI}}</span>{{end}}</td><td class="num">{{.DetourShift}}{{if .DetourCI}}<br/><span class="ci">{{.DetourCI}}</span>{{end}}</td><td class="why">{{.Note}}</td>{{else}}<td class="num">{{.Share}}</td><td class="num">{{.Trips}}</td><td class="num">{{.Speed}}</td><td class="num">{{.Detour}}</td><td class="num">{{.ExtraKM}}</td><td class="num">{{.ExtraHours}}</td>{{end}}</tr>
+<tr>{{if .Comparing}}<th>Rank (period)</th>{{else}}<th>Rank</th>{{end}}<th>Place (edges)</th>{{if .Comparing}}<th>Verdict</th><th>Trips per day</th><th>Days recurring before</th><th>Days recurring after</th><th>Speed shift km/h (95 % CI)</th><th>Detour ratio shift (95 % CI)</th><th>Why</th>{{else}}<th>Share of days</th><th>Trips per day</th><th>Speed km/h</th><th>Detour ratio</th><th>Extra km per day</th><th>Extra vehicle-hours per day</th>{{end}}</tr>
+{{range .Rows}}<tr><td class="num">{{.Rank}}{{if $.Comparing}} ({{.Period}}){{end}}</td><td title="Edges {{.Edges}}">{{.Name}} <span class="ci">({{.ID}})</span>{{if .Focus}} (focus){{end}}</td>{{if $.Comparing}}<td><span class="swatch" style="background: {{.Colour}}; color: {{.Text}}">{{.Verdict}}</span></td><td class="num">{{.Trips}}</td><td class="num">{{.ShareBefore}}</td><td class="num">{{.ShareAfter}}</td><td class="num">{{.SpeedShift}}{{if .SpeedCI}}<br/><span class="ci">{{.SpeedCI}}</span>{{end}}</td><td class="num">{{.DetourShift}}{{if .DetourCI}}<br/><span class="ci">{{.DetourCI}}</span>{{end}}</td><td class="why">{{.Note}}</td>{{else}}<td class="num">{{.Share}}</td><td class="num">{{.Trips}}</td><td class="num">{{.Speed}}</td><td class="num">{{.Detour}}</td><td class="num">{{.ExtraKM}}</td><td class="num">{{.ExtraHours}}</td>{{end}}</tr>
 {{end}}</table>{{else}}<p>No weak link recurred.</p>{{end}}
 <h2>Inputs</h2>
 <table>
@@ -138,7 +138,7 @@ func (v *view) html(w io.Writer) error {
 		f := it.Finding
 		t := totals(f)
 		lk := lookOf(it.Verdict())
-		row := htmlRow{Rank: f.Rank, ID: f.ID, Verdict: string(it.Verdict()), Colour: lk.Hex, Text: lk.Text, Share: formatPercent(f.Share)}
+		row := htmlRow{Rank: f.Rank, ID: f.ID, Name: it.Name, Verdict: string(it.Verdict()), Colour: lk.Hex, Text: lk.Text, Share: formatPercent(f.Share)}
 		for i, e := range f.Edges {
 			if i > 0 {
 				row.Edges += ", "
@@ -229,7 +229,7 @@ func (pg *htmlPage) clean() {
 	}
 	for i := range pg.Rows {
 		r := &pg.Rows[i]
-		r.ID, r.Edges, r.Verdict, r.Note = cleanText(r.ID), cleanText(r.Edges), cleanText(r.Verdict), cleanText(r.Note)
+		r.ID, r.Name, r.Edges, r.Verdict, r.Note = cleanText(r.ID), cleanText(r.Name), cleanText(r.Edges), cleanText(r.Verdict), cleanText(r.Note)
 	}
 	for i := range pg.Cautions {
 		pg.Cautions[i] = cleanText(pg.Cautions[i])

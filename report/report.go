@@ -66,10 +66,27 @@ type period struct {
 type item struct {
 	Finding    patterns.Finding
 	Assessment *patterns.Assessment // nil without comparison
+	// Name is the place's name (PlaceName).
+	Name string
 	// Key is unique within the report even when the same finding id occurs
 	// in both periods (it cannot in a well-formed comparison, but the
 	// report must not mix rows up if it does).
 	Key string
+}
+
+// periodOf returns the label of the period whose scan ranked it: the
+// single period of a scan, else before when the finding was found there.
+func (v *view) periodOf(it item) string {
+	if a := it.Assessment; a != nil {
+		if a.InBefore {
+			return "before"
+		}
+		return "after"
+	}
+	if len(v.periods) > 0 {
+		return v.periods[0].Label
+	}
+	return ""
 }
 
 // Verdict returns the item's verdict, or "" without comparison.
@@ -190,6 +207,7 @@ func (v *view) countItems() error {
 			it.Key = it.Finding.ID + "#" + strconv.Itoa(n+1)
 		}
 		seen[it.Finding.ID]++
+		it.Name = PlaceName(it.Finding, v.in.Regions)
 		for _, e := range it.Finding.Edges {
 			for _, id := range [2]int{e.From, e.To} {
 				if v.regions[id] == nil {

@@ -16,11 +16,20 @@ func (b *book) daily() {
 	v := b.v
 	cols := []string{"Rank", "Weak link", "Period", "Day", "From", "To", "Trips", "Speed km/h", "Detour ratio", "Extra km", "Candidate", "Weak link recurred"}
 	var rows [][]cell
-	for _, it := range v.items {
-		for _, p := range v.periods {
+	// An edge can belong to a finding of each period; its days are shown
+	// once per period, with the first finding (in the report's order)
+	// that holds it.
+	for _, p := range v.periods {
+		shown := map[patterns.EdgeKey]bool{}
+		for _, it := range v.items {
 			rec := recurredDays(p.Scan, it.Finding.ID)
 			for _, e := range it.Finding.Edges {
-				for _, d := range dailyOf(p, it, patterns.EdgeKey{From: e.From, To: e.To}) {
+				k := patterns.EdgeKey{From: e.From, To: e.To}
+				if shown[k] {
+					continue
+				}
+				shown[k] = true
+				for _, d := range dailyOf(p, it, k) {
 					tr := float64(d.Trips)
 					rows = append(rows, []cell{
 						intCell(it.Finding.Rank, b.st.intCentre), b.str(it.Finding.ID), b.str(p.Label), b.str(d.Day), b.count(e.From), b.count(e.To),
@@ -57,7 +66,7 @@ type timelineDay struct {
 
 func (b *book) timeline() {
 	s := b.newSheet(SheetTimeline)
-	cols := []string{"Day", "Period", "Candidates", "Weak links recurring"}
+	cols := []string{"Day", "Period", "Candidates", "Weak places"}
 	head := s.header(cols...)
 	days := b.v.timelineDays()
 	for _, d := range days {

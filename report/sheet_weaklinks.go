@@ -3,6 +3,7 @@ package report
 import (
 	"math"
 	"sort"
+	"strconv"
 	"strings"
 )
 
@@ -12,7 +13,7 @@ import (
 func (b *book) findings() {
 	v := b.v
 	s := b.newSheet(SheetFindings)
-	cols := append(v.rankColumns(), "Weak link", "Regions", "Edges", "Days recurring", "Share of days", "Trips per day", "Speed km/h", "Detour ratio", "Extra km per day", "Extra vehicle-hours per day")
+	cols := append(v.rankColumns(), "Place", "Weak link", "Regions", "Edges", "Days weak", "Share of days", "Trips per day", "Speed km/h", "Detour ratio", "Extra km per day", "Extra vehicle-hours per day")
 	if v.comparing() {
 		cols = append(cols, "Verdict", "Focus")
 	}
@@ -24,7 +25,7 @@ func (b *book) findings() {
 		for i, e := range f.Edges {
 			edges[i] = edgeLabel(e.From, e.To)
 		}
-		row := append(b.rankCells(it), b.str(f.ID), b.str(joinInts(f.Regions)), b.str(strings.Join(edges, ", ")),
+		row := append(b.rankCells(it), b.str(it.Name), b.str(f.ID), b.str(joinInts(f.Regions)), b.str(strings.Join(edges, ", ")),
 			b.count(len(f.Days)), numCell(f.Share, b.st.pct))
 		row = append(row, b.measures(t.Trips, t.Speed, t.Detour, f.ExtraKMPerDay, f.ExtraHoursPerDay)...)
 		if a := it.Assessment; a != nil {
@@ -32,21 +33,50 @@ func (b *book) findings() {
 		}
 		s.add(row...)
 	}
+	b.totalRows(s, len(v.rankColumns())+9)
 	s.filter(head, len(cols))
 	s.finish()
+}
+
+// totalRows adds, per period, a row with the sum of the findings' extra
+// km and vehicle-hours per day in the last two of width columns. Each
+// directed pair is in one finding of a period, so the sums count every
+// edge once; the two periods are never added together.
+func (b *book) totalRows(s *sheet, width int) {
+	for _, p := range b.v.periods {
+		var km, hours float64
+		n := 0
+		for _, it := range b.v.items {
+			if b.v.periodOf(it) != p.Label {
+				continue
+			}
+			km += it.Finding.ExtraKMPerDay
+			hours += it.Finding.ExtraHoursPerDay
+			n++
+		}
+		row := make([]cell, width)
+		label := "Total, " + strconv.Itoa(n) + " " + plural(n, "place", "places")
+		if b.v.comparing() {
+			label += " " + p.Label
+		}
+		row[0] = b.str(label)
+		row[width-2] = numCell(km, b.st.dec1)
+		row[width-1] = numCell(hours, b.st.dec2)
+		s.add(row...)
+	}
 }
 
 func (b *book) edges() {
 	v := b.v
 	s := b.newSheet(SheetEdges)
-	cols := append(v.rankColumns(), "Weak link", "From", "To", "Trips per day", "Speed km/h", "Detour ratio", "Extra km per day", "Extra vehicle-hours per day", "Days with trips")
+	cols := append(v.rankColumns(), "Place", "Weak link", "From", "To", "Days weak", "Share of days", "Trips per day", "Speed km/h", "Detour ratio", "Extra km per day", "Extra vehicle-hours per day", "Days with trips")
 	if v.comparing() {
 		cols = append(cols, "Verdict")
 	}
 	head := s.header(cols...)
 	for _, it := range v.items {
 		for _, e := range it.Finding.Edges {
-			row := append(b.rankCells(it), b.str(it.Finding.ID), b.count(e.From), b.count(e.To))
+			row := append(b.rankCells(it), b.str(it.Name), b.str(it.Finding.ID), b.count(e.From), b.count(e.To), b.count(len(e.Days)), numCell(e.Share, b.st.pct))
 			row = append(row, b.measures(e.TripsMedian, e.SpeedMedian, e.DetourMedian, e.ExtraKMPerDay, e.ExtraHoursPerDay)...)
 			row = append(row, b.count(len(e.Daily)))
 			if vd := it.Verdict(); v.comparing() {
@@ -62,7 +92,7 @@ func (b *book) edges() {
 func (b *book) comparison() {
 	v := b.v
 	s := b.newSheet(SheetComparison)
-	cols := append(v.rankColumns(), "Weak link", "Verdict", "Focus", "Days recurring before", "Days analysed before", "Share before",
+	cols := append(v.rankColumns(), "Place", "Weak link", "Verdict", "Focus", "Days recurring before", "Days analysed before", "Share before",
 		"Days recurring after", "Days analysed after", "Share after", "Fisher p", "Fisher p adjusted",
 		"Speed before km/h", "Speed after km/h", "Speed shift km/h", "Speed shift CI low km/h", "Speed shift CI high km/h", "Speed p", "Speed p adjusted",
 		"Detour ratio before", "Detour ratio after", "Detour ratio shift", "Detour ratio shift CI low", "Detour ratio shift CI high", "Detour p", "Detour p adjusted", "Reason")
@@ -80,7 +110,7 @@ func (b *book) comparison() {
 		g := func(x float64, style int) cell { return b.gated(t.Trips, x, style) }
 		// The reason wraps in its column; the row is made tall enough.
 		s.tall(wrappedLines(Reason(a), reasonWidth*9/10))
-		s.add(append(b.rankCells(it), b.str(a.Finding.ID), textCell(string(a.Verdict), b.st.verdict[a.Verdict]), yesNo(a.Focus, b.st.centre),
+		s.add(append(b.rankCells(it), b.str(it.Name), b.str(a.Finding.ID), textCell(string(a.Verdict), b.st.verdict[a.Verdict]), yesNo(a.Focus, b.st.centre),
 			b.count(a.DaysBefore), b.count(a.TotalBefore), share(a.DaysBefore, a.TotalBefore),
 			b.count(a.DaysAfter), b.count(a.TotalAfter), share(a.DaysAfter, a.TotalAfter),
 			b.pval(a.FisherP), b.pval(a.FisherPAdjusted),

@@ -6,6 +6,7 @@ import (
 	"strconv"
 	"strings"
 
+	"narrows/partition"
 	"narrows/patterns"
 )
 
@@ -137,7 +138,7 @@ func Headline(in Input) string {
 	case in.Comparison != nil && in.Comparison.Before != nil && in.Comparison.After != nil:
 		return comparisonHeadline(in.Comparison)
 	case in.Scan != nil:
-		return scanHeadline(in.Scan)
+		return scanHeadline(in.Scan, in.Regions)
 	}
 	return "No scan or comparison to report."
 }
@@ -192,7 +193,7 @@ func comparisonHeadline(c *patterns.Comparison) string {
 	return b.String()
 }
 
-func scanHeadline(s *patterns.Scan) string {
+func scanHeadline(s *patterns.Scan, regions *partition.Partition) string {
 	share := formatPercent(support(s))
 	n := len(s.Findings)
 	if n == 0 {
@@ -204,12 +205,8 @@ func scanHeadline(s *patterns.Scan) string {
 			top = f
 		}
 	}
-	var edges []string
-	for _, e := range top.Edges {
-		edges = append(edges, edgeLabel(e.From, e.To))
-	}
-	return fmt.Sprintf("%d %s recurred on at least %s of the %d analysed days (%s). The costliest, regions %s, adds %s km of travel and %s vehicle-hours a day.",
-		n, plural(n, "weak link", "weak links"), share, len(s.Days), dayRange(s), strings.Join(edges, ", "),
+	return fmt.Sprintf("%d %s recurred on at least %s of the %d analysed days (%s). The costliest, %s (%s), adds %s km of travel and %s vehicle-hours a day.",
+		n, plural(n, "weak link", "weak links"), share, len(s.Days), dayRange(s), PlaceName(top, regions), top.ID,
 		strconv.FormatFloat(roundTo(top.ExtraKMPerDay, 0), 'f', -1, 64), strconv.FormatFloat(roundTo(top.ExtraHoursPerDay, 1), 'f', -1, 64))
 }
 

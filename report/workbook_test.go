@@ -85,9 +85,14 @@ func TestWorkbookValues(t *testing.T) {
 
 	// Weak links: one row per assessment with the fixture's figures.
 	findings := rowsByKey(t, f, SheetFindings, "Weak link")
+	// The total rows (one per period) have no weak link of their own.
+	if total, ok := findings[""]; !ok || !strings.HasPrefix(total["Rank in period"], "Total, ") {
+		t.Errorf("%s: no total row: %v", SheetFindings, total)
+	}
+	delete(findings, "")
 	want := map[string]map[string]string{
 		// 40 trips at 5 m/s = 18 km/h, detour 1.8, extra 40*1.5 km, 40*0.05 h.
-		"1>2":     {"Rank in period": "1", "Ranked in": "before", "Verdict": "worse", "Trips per day": "40", "Speed km/h": "18.0", "Detour ratio": "1.80", "Extra km per day": "60.0", "Extra vehicle-hours per day": "2.00", "Days recurring": "10", "Share of days": "71.4%"},
+		"1>2":     {"Rank in period": "1", "Ranked in": "before", "Verdict": "worse", "Trips per day": "40", "Speed km/h": "18.0", "Detour ratio": "1.80", "Extra km per day": "60.0", "Extra vehicle-hours per day": "2.00", "Days weak": "10", "Share of days": "71.4%"},
 		"4>5+5>6": {"Verdict": "new", "Trips per day": "30", "Regions": "4, 5, 6", "Ranked in": "after"},
 		"7>8":     {"Verdict": "unchanged", "Trips per day": "25", "Speed km/h": "21.6"},
 		"2>5":     {"Verdict": "eased", "Trips per day": "<10", "Speed km/h": "n<10", "Detour ratio": "n<10", "Extra km per day": "n<10"},

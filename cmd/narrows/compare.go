@@ -77,7 +77,10 @@ type compareJob struct {
 
 func compareAndReport(ctx context.Context, env *environment, job compareJob) error {
 	start := time.Now()
+	update, finish := stageProgress(env)
+	job.before.Progress, job.after.Progress = update, update
 	cmp, err := patterns.Compare(ctx, job.store, job.regions, job.before, job.after, job.opts)
+	finish()
 	if err != nil {
 		return err
 	}
@@ -100,6 +103,8 @@ func compareAndReport(ctx context.Context, env *environment, job compareJob) err
 		fmt.Fprintf(env.stdout, "Top weak links before (%d analysed days, %s to %s):\n", len(days), days[0], days[len(days)-1])
 	}
 	printFindings(env.stdout, cmp.Before, job.regions, 5)
+	printGroupBound(env.stdout, cmp.Before)
+	printGroupBound(env.stdout, cmp.After)
 	base := strings.TrimSuffix(filepath.Base(job.out), filepath.Ext(job.out))
 	if err := writeReport(env, dir, base, in); err != nil {
 		return err

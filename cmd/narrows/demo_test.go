@@ -8,6 +8,7 @@ import (
 	"io/fs"
 	"os"
 	"path/filepath"
+	"slices"
 	"strings"
 	"testing"
 
@@ -170,8 +171,11 @@ func checkScanCommand(t *testing.T, dir string, before patterns.ScanOptions, hou
 		"--support", fmt.Sprint(before.Support), "--out", out)
 	var doc struct {
 		Findings []struct {
-			Rank  int `json:"rank"`
-			Edges []struct{ From, To int }
+			Rank   int `json:"rank"`
+			Edges  []struct{ From, To int }
+			Groups []struct {
+				Edges []string `json:"edges"`
+			} `json:"recurring_groups"`
 		} `json:"findings"`
 	}
 	data, err := os.ReadFile(out)
@@ -216,11 +220,60 @@ func checkScanCommand(t *testing.T, dir string, before patterns.ScanOptions, hou
 		}
 	}
 
-	// --maximal-only: a shorter list in which no group lies inside another.
+	// One place per region pair: no pair in two findings, and the planted
+	// crossing, both directions, in one.
+	pairAt := map[[2]int]int{}
+	for i, f := range doc.Findings {
+		for _, e := range f.Edges {
+			k := [2]int{min(e.From, e.To), max(e.From, e.To)}
+			if j, ok := pairAt[k]; ok && j != i {
+				t.Errorf("findings.json: pair %d-%d in findings %d and %d", k[0], k[1], j+1, i+1)
+			}
+			pairAt[k] = i
+		}
+	}
+	if i, ok := pairAt[[2]int{min(housing, jobs), max(housing, jobs)}]; !ok || len(doc.Findings[i].Edges) < 2 {
+		t.Errorf("findings.json: the planted pair is not one finding with both directions")
+	}
+
+	// The same over the map layer written beside it.
+	layerData, err := os.ReadFile(filepath.Join(filepath.Dir(out), findingsLayerName))
+	if err != nil {
+		t.Fatal(err)
+	}
+	var mapLayer struct {
+		Features []struct {
+			Properties struct {
+				Finding  string `json:"finding"`
+				Place    string `json:"place"`
+				From, To int
+			} `json:"properties"`
+		} `json:"features"`
+	}
+	if err := json.Unmarshal(layerData, &mapLayer); err != nil {
+		t.Fatal(err)
+	}
+	layerPair := map[[2]int]string{}
+	for _, ft := range mapLayer.Features {
+		p := ft.Properties
+		k := [2]int{min(p.From, p.To), max(p.From, p.To)}
+		if id, ok := layerPair[k]; ok && id != p.Finding || p.Place == "" {
+			t.Errorf("%s: pair %d-%d in findings %s and %s (place %q)", findingsLayerName, k[0], k[1], id, p.Finding, p.Place)
+		}
+		layerPair[k] = p.Finding
+	}
+	if len(layerPair) != len(pairAt) {
+		t.Errorf("%s has %d pairs, findings.json %d", findingsLayerName, len(layerPair), len(pairAt))
+	}
+
+	// --maximal-only lists fewer groups within the places, not fewer places.
 	stdout = mustRunCLI(t, "scan", "--graphs", filepath.Join(dir, "out", "steps", "graphs.parquet"),
 		"--from", before.From, "--to", before.To, "--days", string(before.Days),
 		"--support", fmt.Sprint(before.Support), "--maximal-only", "--out", out)
-	all := len(doc.Findings)
+	all, allGroups := len(doc.Findings), 0
+	for _, f := range doc.Findings {
+		allGroups += len(f.Groups)
+	}
 	doc.Findings = nil
 	if data, err = os.ReadFile(out); err != nil {
 		t.Fatal(err)
@@ -228,27 +281,23 @@ func checkScanCommand(t *testing.T, dir string, before patterns.ScanOptions, hou
 	if err := json.Unmarshal(data, &doc); err != nil {
 		t.Fatal(err)
 	}
-	if len(doc.Findings) == 0 || len(doc.Findings) >= all {
-		t.Errorf("--maximal-only gives %d findings of %d", len(doc.Findings), all)
-	}
-	type edge struct{ From, To int }
-	sets := make([]map[edge]bool, len(doc.Findings))
-	for i, f := range doc.Findings {
-		sets[i] = map[edge]bool{}
-		for _, e := range f.Edges {
-			sets[i][edge{e.From, e.To}] = true
-		}
-	}
-	for i := range sets {
-		for j := range sets {
-			inside := i != j && len(sets[i]) <= len(sets[j])
-			for e := range sets[i] {
-				inside = inside && sets[j][e]
-			}
-			if inside {
-				t.Errorf("--maximal-only: finding %d lies inside finding %d", i+1, j+1)
+	maximal := 0
+	for _, f := range doc.Findings {
+		maximal += len(f.Groups)
+		for i, g := range f.Groups {
+			for j, h := range f.Groups {
+				inside := i != j && len(g.Edges) <= len(h.Edges)
+				for _, e := range g.Edges {
+					inside = inside && slices.Contains(h.Edges, e)
+				}
+				if inside {
+					t.Errorf("--maximal-only: finding %d: group %v lies inside group %v", f.Rank, g.Edges, h.Edges)
+				}
 			}
 		}
+	}
+	if len(doc.Findings) != all || maximal == 0 || maximal > allGroups {
+		t.Errorf("--maximal-only gives %d findings of %d, %d groups of %d", len(doc.Findings), all, maximal, allGroups)
 	}
 }
 

@@ -65,3 +65,35 @@ func progress(env *environment, description string) (update func(done, total int
 	}
 	return update, finish
 }
+
+// stageProgress returns a callback for patterns.ScanOptions.Progress that
+// draws a count bar per stage on stderr when it is a terminal, and a
+// function that finishes the last bar. In pipes and CI both do nothing.
+func stageProgress(env *environment) (update func(stage string, done, total int), finish func()) {
+	if !env.interactive {
+		return nil, func() {}
+	}
+	var bar *progressbar.ProgressBar
+	current := ""
+	finish = func() {
+		if bar != nil {
+			_ = bar.Finish()
+			bar = nil
+		}
+	}
+	update = func(stage string, done, total int) {
+		if stage != current || bar == nil {
+			finish()
+			current = stage
+			bar = progressbar.NewOptions(total,
+				progressbar.OptionSetWriter(env.stderr),
+				progressbar.OptionSetDescription(stage),
+				progressbar.OptionShowCount(),
+				progressbar.OptionThrottle(100_000_000),
+				progressbar.OptionClearOnFinish(),
+			)
+		}
+		_ = bar.Set(done)
+	}
+	return update, finish
+}

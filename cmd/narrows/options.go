@@ -66,8 +66,10 @@ func bindScan(fs *flag.FlagSet, o *patterns.ScanOptions) {
 	fs.Float64Var(&o.Skyline.DetourFloor, "detour-floor", o.Skyline.DetourFloor, "candidates need a median detour ratio at least this")
 	fs.BoolVar(&o.Skyline.NoDetourGate, "no-detour-gate", o.Skyline.NoDetourGate, "switch the detour floor off")
 	fs.BoolVar(&o.Skyline.NoSpeedGate, "no-speed-gate", o.Skyline.NoSpeedGate, "switch off the gate 'slower than the day's median speed'")
-	fs.IntVar(&o.MaxGroupEdges, "max-edges", o.MaxGroupEdges, "largest group of edges to report")
-	fs.BoolVar(&o.MaximalOnly, "maximal-only", o.MaximalOnly, "report only groups not contained in another reported group (a shorter list)")
+	fs.IntVar(&o.MaxGroupEdges, "max-edges", o.MaxGroupEdges, "largest recurring group of edges to list within a place")
+	fs.BoolVar(&o.MaximalOnly, "maximal-only", o.MaximalOnly, "list only a place's groups not contained in another of its groups")
+	fs.Float64Var(&o.JoinCorrelation, "join-correlation", o.JoinCorrelation, "least correlation of two region pairs' weak days for them to be one place")
+	fs.IntVar(&o.MaxGroupVisits, "max-group-visits", o.MaxGroupVisits, "bound on the groups visited while listing recurring groups (0 = none)")
 	fs.Var(&kmhValue{&o.ReferenceSpeed}, "reference-speed", "`km/h` against which extra vehicle-hours are counted")
 }
 

@@ -7,12 +7,12 @@ import (
 	"fmt"
 	"io"
 	"path/filepath"
-	"strings"
 	"text/tabwriter"
 	"time"
 
 	"narrows/cmd/internal/atomicfile"
 	"narrows/partition"
+	"narrows/partition/geodesy"
 	"narrows/patterns"
 	"narrows/regiongraph"
 	"narrows/report"
@@ -67,7 +67,10 @@ func runScan(ctx context.Context, env *environment, args []string) error {
 		return err
 	}
 	start := time.Now()
+	update, finish := stageProgress(env)
+	opts.Progress = update
 	scan, err := patterns.ScanStore(ctx, store, opts)
+	finish()
 	if err != nil {
 		return fmt.Errorf("%s: %w", in.graphs, err)
 	}
@@ -84,6 +87,7 @@ func runScan(ctx context.Context, env *environment, args []string) error {
 		return err
 	}
 	printFindings(env.stdout, scan, regions, 20)
+	printGroupBound(env.stdout, scan)
 	fmt.Fprintf(env.stdout, "%d findings over %d days (window %s) in %.2f s -> %s, %s\n",
 		len(scan.Findings), len(scan.Days), scan.Window, elapsed.Seconds(), out, layer)
 	return nil
@@ -115,49 +119,78 @@ func regionsFor(store *regiongraph.Store, path, storePath string) (*partition.Pa
 	return store.Regions()
 }
 
-// writeFindingsJSON writes a scan's findings with their regions' names.
+// writeFindingsJSON writes a scan's findings, each a place with its name,
+// edges and recurring groups, and the total cost over the findings.
 func writeFindingsJSON(w io.Writer, scan *patterns.Scan, regions *partition.Partition) error {
 	type edgeOut struct {
-		From, To           int
-		FromRoads, ToRoads []string
-		TripsMedian        float64 `json:"trips_median"`
-		SpeedKMH           float64 `json:"speed_kmh_median"`
-		Detour             float64 `json:"detour_median"`
-		ExtraKMPerDay      float64 `json:"extra_vehicle_km_per_day"`
-		ExtraHoursPerDay   float64 `json:"extra_vehicle_hours_per_day"`
+		From, To             int
+		FromRoads, ToRoads   []string
+		Days                 []string `json:"days"`
+		Share                float64  `json:"share"`
+		TripsMedian          float64  `json:"trips_median"`
+		SpeedKMH             float64  `json:"speed_kmh_median"`
+		Detour               float64  `json:"detour_median"`
+		ExtraKMPerWeakDay    float64  `json:"extra_vehicle_km_per_weak_day"`
+		ExtraHoursPerWeakDay float64  `json:"extra_vehicle_hours_per_weak_day"`
+		ExtraKMPerDay        float64  `json:"extra_vehicle_km_per_day"`
+		ExtraHoursPerDay     float64  `json:"extra_vehicle_hours_per_day"`
+	}
+	type groupOut struct {
+		Edges []string `json:"edges"`
+		Days  []string `json:"days"`
+		Share float64  `json:"share"`
 	}
 	type findingOut struct {
-		Rank             int       `json:"rank"`
-		ID               string    `json:"id"`
-		Regions          []int     `json:"regions"`
-		Days             []string  `json:"days"`
-		Share            float64   `json:"share"`
-		ExtraKMPerDay    float64   `json:"extra_vehicle_km_per_day"`
-		ExtraHoursPerDay float64   `json:"extra_vehicle_hours_per_day"`
-		Edges            []edgeOut `json:"edges"`
+		Rank             int        `json:"rank"`
+		Name             string     `json:"name"`
+		ID               string     `json:"id"`
+		Regions          []int      `json:"regions"`
+		Days             []string   `json:"days"`
+		Share            float64    `json:"share"`
+		ExtraKMPerDay    float64    `json:"extra_vehicle_km_per_day"`
+		ExtraHoursPerDay float64    `json:"extra_vehicle_hours_per_day"`
+		Edges            []edgeOut  `json:"edges"`
+		Groups           []groupOut `json:"recurring_groups"`
 	}
 	doc := struct {
-		Tool     string       `json:"tool"`
-		Window   string       `json:"window"`
-		Days     []string     `json:"days"`
-		Support  float64      `json:"support"`
-		MinTrips int          `json:"min_trips"`
-		K        int          `json:"k"`
-		Findings []findingOut `json:"findings"`
-		Caution  string       `json:"caution"`
+		Tool             string       `json:"tool"`
+		Window           string       `json:"window"`
+		Days             []string     `json:"days"`
+		Support          float64      `json:"support"`
+		MinTrips         int          `json:"min_trips"`
+		K                int          `json:"k"`
+		ExtraKMPerDay    float64      `json:"total_extra_vehicle_km_per_day"`
+		ExtraHoursPerDay float64      `json:"total_extra_vehicle_hours_per_day"`
+		GroupsVisited    int          `json:"groups_visited"`
+		GroupsTruncated  bool         `json:"groups_truncated"`
+		Note             string       `json:"note,omitempty"`
+		Findings         []findingOut `json:"findings"`
+		Caution          string       `json:"caution"`
 	}{
 		Tool: "narrows " + version, Window: scan.Window, Days: scan.Days,
 		Support: scan.Options.Support, MinTrips: scan.Options.Skyline.MinTrips, K: scan.Options.Skyline.K,
+		GroupsVisited: scan.GroupVisits, GroupsTruncated: scan.GroupsTruncated, Note: report.GroupBoundNote(scan),
 		Caution: report.Caution,
 	}
 	for _, f := range scan.Findings {
-		fo := findingOut{Rank: f.Rank, ID: f.ID, Regions: f.Regions, Days: f.Days, Share: f.Share,
-			ExtraKMPerDay: f.ExtraKMPerDay, ExtraHoursPerDay: f.ExtraHoursPerDay}
+		fo := findingOut{Rank: f.Rank, Name: report.PlaceName(f, regions), ID: f.ID, Regions: f.Regions, Days: f.Days, Share: f.Share,
+			ExtraKMPerDay: f.ExtraKMPerDay, ExtraHoursPerDay: f.ExtraHoursPerDay, Groups: []groupOut{}}
+		doc.ExtraKMPerDay += f.ExtraKMPerDay
+		doc.ExtraHoursPerDay += f.ExtraHoursPerDay
 		for _, e := range f.Edges {
 			fo.Edges = append(fo.Edges, edgeOut{From: e.From, To: e.To,
 				FromRoads: roadNames(regions, e.From, 3), ToRoads: roadNames(regions, e.To, 3),
-				TripsMedian: e.TripsMedian, SpeedKMH: e.SpeedMedian * 3.6, Detour: e.DetourMedian,
+				Days: e.Days, Share: e.Share,
+				TripsMedian: e.TripsMedian, SpeedKMH: geodesy.KMH(e.SpeedMedian), Detour: e.DetourMedian,
+				ExtraKMPerWeakDay: e.ExtraKMPerWeakDay, ExtraHoursPerWeakDay: e.ExtraHoursPerWeakDay,
 				ExtraKMPerDay: e.ExtraKMPerDay, ExtraHoursPerDay: e.ExtraHoursPerDay})
+		}
+		for _, g := range f.Groups {
+			gout := groupOut{Days: g.Days, Share: g.Share}
+			for _, e := range g.Edges {
+				gout.Edges = append(gout.Edges, fmt.Sprintf("%d>%d", e.From, e.To))
+			}
+			fo.Groups = append(fo.Groups, gout)
 		}
 		doc.Findings = append(doc.Findings, fo)
 	}
@@ -184,28 +217,45 @@ func roadNames(p *partition.Partition, id, n int) []string {
 	return names
 }
 
-// printFindings prints the ranked table of the first n findings.
+// printFindings prints the ranked table of the first n findings: a line
+// per place with its cost, its edges below it, and the total over every
+// finding.
 func printFindings(w io.Writer, scan *patterns.Scan, regions *partition.Partition, n int) {
 	if len(scan.Findings) == 0 {
 		fmt.Fprintln(w, "No recurring weak links at these thresholds (try a lower --support or --min-trips).")
 		return
 	}
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
-	fmt.Fprintln(tw, "rank\tedge\tdays\ttrips/day\tkm/h\tdetour\textra veh-h/day\tfrom (bounded by)\tto (bounded by)")
+	fmt.Fprintln(tw, "rank\tplace / edge\tdays weak\ttrips/day\tkm/h\tdetour\textra veh-km/day\textra veh-h/day")
+	var km, hours float64
+	for _, f := range scan.Findings {
+		km += f.ExtraKMPerDay
+		hours += f.ExtraHoursPerDay
+	}
 	for i, f := range scan.Findings {
 		if i == n {
-			fmt.Fprintf(tw, "…\t%d more\t\t\t\t\t\t\t\n", len(scan.Findings)-n)
+			fmt.Fprintf(tw, "…\t%d more\t\t\t\t\t\t\n", len(scan.Findings)-n)
 			break
 		}
-		for j, e := range f.Edges {
-			rank := ""
-			if j == 0 {
-				rank = fmt.Sprint(f.Rank)
-			}
-			fmt.Fprintf(tw, "%s\t%d→%d\t%d (%.0f %%)\t%.0f\t%.1f\t%.2f\t%.1f\t%s\t%s\n", rank, e.From, e.To,
-				len(f.Days), 100*f.Share, e.TripsMedian, e.SpeedMedian*3.6, e.DetourMedian, e.ExtraHoursPerDay,
-				strings.Join(roadNames(regions, e.From, 2), " / "), strings.Join(roadNames(regions, e.To, 2), " / "))
+		fmt.Fprintf(tw, "%d\t%s (%s)\t%d (%.0f %%)\t\t\t\t%.0f\t%.1f\n", f.Rank, report.PlaceName(f, regions), f.ID,
+			len(f.Days), 100*f.Share, f.ExtraKMPerDay, f.ExtraHoursPerDay)
+		for _, e := range f.Edges {
+			fmt.Fprintf(tw, "\t  %d→%d\t%d (%.0f %%)\t%.0f\t%.1f\t%.2f\t%.0f\t%.1f\n", e.From, e.To,
+				len(e.Days), 100*e.Share, e.TripsMedian, geodesy.KMH(e.SpeedMedian), e.DetourMedian, e.ExtraKMPerDay, e.ExtraHoursPerDay)
 		}
 	}
+	places := "places"
+	if len(scan.Findings) == 1 {
+		places = "place"
+	}
+	fmt.Fprintf(tw, "total\t%d %s, each edge counted once\t\t\t\t\t%.0f\t%.1f\n", len(scan.Findings), places, km, hours)
 	tw.Flush()
+}
+
+// printGroupBound prints the note of a scan whose listing of recurring
+// groups stopped at its bound.
+func printGroupBound(w io.Writer, scan *patterns.Scan) {
+	if note := report.GroupBoundNote(scan); note != "" {
+		fmt.Fprintln(w, note)
+	}
 }

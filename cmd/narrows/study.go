@@ -275,7 +275,11 @@ func (r *studyRun) reportInput(store *regiongraph.Store, regions *partition.Part
 
 // scan scans the study's period and writes the findings and the report.
 func (r *studyRun) scan(ctx context.Context, env *environment, store *regiongraph.Store, in report.Input) error {
-	scan, err := patterns.ScanStore(ctx, store, r.Scan.ScanOptions)
+	opts := r.Scan.ScanOptions
+	update, finish := stageProgress(env)
+	opts.Progress = update
+	scan, err := patterns.ScanStore(ctx, store, opts)
+	finish()
 	if err != nil {
 		return fmt.Errorf("study file %s: %w", r.file, err)
 	}
@@ -283,6 +287,7 @@ func (r *studyRun) scan(ctx context.Context, env *environment, store *regiongrap
 		return err
 	}
 	printFindings(env.stdout, scan, in.Regions, 10)
+	printGroupBound(env.stdout, scan)
 	in.Inputs = append(in.Inputs, store.Meta.Sources...)
 	in.Scan = scan
 	return writeReport(env, r.out, r.Name, in)

@@ -111,6 +111,7 @@ min_publish = 5
 			MaxJumpKMH: 180, GapMinutes: 6, DwellMinutes: 4, DwellMetres: 40}},
 		{"scan", s.Scan.ScanOptions, patterns.ScanOptions{From: "2026-03-02", To: "2026-03-09", Window: "am",
 			Days: patterns.Weekends, Exclude: []string{"2026-03-03"}, Support: 0.5, MaxGroupEdges: 3, MaximalOnly: true,
+			JoinCorrelation: 0.5, MaxGroupVisits: 2_000_000,
 			ReferenceSpeed: geodesy.MPS(36),
 			Skyline:        skyline.Options{MinTrips: 5, DetourFloor: 1.5, NoDetourGate: true, NoSpeedGate: true, K: 2}}},
 		{"compare.before", s.Compare.Before.String(), "2026-03-02..2026-03-08"},

@@ -2,6 +2,7 @@ package groups
 
 import (
 	"context"
+	"errors"
 	"fmt"
 	"math/bits"
 	"slices"
@@ -30,7 +31,25 @@ type Options struct {
 	// its own days. The days of a dropped group are a superset of those of
 	// any group containing it.
 	MaximalOnly bool
+	// MaxVisits bounds the search by the number of connected groups it
+	// visits (0 = no bound). When the bound is reached the search stops
+	// and returns the groups found so far, with Result.Truncated set: a
+	// low support over many candidates would otherwise run for hours.
+	MaxVisits int
 }
+
+// Result is the outcome of MineBounded.
+type Result struct {
+	Groups []Group
+	// Visited counts the connected groups the search visited.
+	Visited int
+	// Truncated is set when the search stopped at Options.MaxVisits, so
+	// that Groups may lack some groups.
+	Truncated bool
+}
+
+// errVisitBound stops the search at Options.MaxVisits.
+var errVisitBound = errors.New("groups: visit bound reached")
 
 // Group is a connected set of edges and the days on which all of them
 // occur.
@@ -53,8 +72,24 @@ type Group struct {
 // Groups are returned sorted by their edge lists. Mine returns the
 // context's error if it is cancelled.
 func Mine(ctx context.Context, days [][]Edge, opts Options) ([]Group, error) {
+	res, err := MineBounded(ctx, days, opts)
+	if err != nil {
+		return nil, err
+	}
+	return res.Groups, nil
+}
+
+// MineBounded is Mine that also says how many groups it visited and
+// whether it stopped at opts.MaxVisits. A truncated search keeps the
+// groups found before the bound, in the same order: they are groups of
+// the full result, though the closures reported beyond MaxEdges may
+// lack their largest members' later roots.
+func MineBounded(ctx context.Context, days [][]Edge, opts Options) (Result, error) {
 	if opts.MaxEdges < 0 {
-		return nil, fmt.Errorf("groups: MaxEdges is %d, want 0 (no bound) or more", opts.MaxEdges)
+		return Result{}, fmt.Errorf("groups: MaxEdges is %d, want 0 (no bound) or more", opts.MaxEdges)
+	}
+	if opts.MaxVisits < 0 {
+		return Result{}, fmt.Errorf("groups: MaxVisits is %d, want 0 (no bound) or more", opts.MaxVisits)
 	}
 	m := newMiner(days, max(opts.MinSupport, 1))
 	m.ctx = ctx
@@ -63,14 +98,21 @@ func Mine(ctx context.Context, days [][]Edge, opts Options) ([]Group, error) {
 		m.maxEdges = len(m.items)
 	}
 	m.allFrequent = opts.AllFrequent
+	m.maxVisits = opts.MaxVisits
+	res := Result{}
 	if err := m.run(); err != nil {
-		return nil, err
+		if !errors.Is(err, errVisitBound) {
+			return Result{}, err
+		}
+		res.Truncated = true
 	}
+	res.Visited = m.visited
 	slices.SortFunc(m.groups, func(a, b Group) int { return compareEdgeLists(a.Edges, b.Edges) })
+	res.Groups = m.groups
 	if opts.MaximalOnly {
-		return maximalGroups(m.groups), nil
+		res.Groups = maximalGroups(m.groups)
 	}
-	return m.groups, nil
+	return res, nil
 }
 
 // compareEdgeLists orders sorted edge lists lexicographically.
@@ -86,6 +128,7 @@ type miner struct {
 	minSupport  int
 	maxEdges    int
 	allFrequent bool
+	maxVisits   int
 
 	items     []Edge
 	words     int      // uint64 words per day set
@@ -239,6 +282,9 @@ func (m *miner) remove(w int32) {
 
 // extend reports the current group and grows it from ext.
 func (m *miner) extend(v int32, ext []int32) error {
+	if m.maxVisits > 0 && m.visited >= m.maxVisits {
+		return errVisitBound
+	}
 	m.visited++
 	if m.visited%4096 == 0 {
 		if err := m.ctx.Err(); err != nil {
