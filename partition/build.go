@@ -141,6 +141,8 @@ func fromExtract(ctx context.Context, ex *extract, o Options) (*Partition, error
 	if len(segs) == 0 {
 		return nil, fmt.Errorf("no ways of the classes %s inside the study area %s; choose other classes with --roads or a larger --bbox", classList(&o), fmtBound(bound))
 	}
+	p.Stats.Barriers = barriersUsed(segs, ex.ways, o.Barriers)
+	warnUnusedBarriers(ex.unused, pr, rc, warn)
 	corners := []ipt{{rc.minX, rc.minY}, {rc.maxX, rc.minY}, {rc.maxX, rc.maxY}, {rc.minX, rc.maxY}}
 	for i := range corners {
 		segs = append(segs, seg{corners[i], corners[(i+1)%4], -1})
@@ -150,13 +152,9 @@ func fromExtract(ctx context.Context, ex *extract, o Options) (*Partition, error
 	if err != nil {
 		return nil, err
 	}
-	if !o.Exact && o.SnapMetres > 0 {
-		conn := closeGaps(arr, o.SnapMetres)
-		if len(conn) > 0 {
-			p.Stats.GapsClosed = len(conn)
-			if arr, err = node(ctx, append(segs, conn...)); err != nil {
-				return nil, err
-			}
+	if !o.Exact {
+		if arr, segs, err = closeAndExtend(ctx, arr, segs, ex.ways, &o, &p.Stats); err != nil {
+			return nil, err
 		}
 	}
 	fs, err := arr.faces(ctx)
@@ -165,18 +163,125 @@ func fromExtract(ctx context.Context, ex *extract, o Options) (*Partition, error
 	}
 	p.Stats.Vertices, p.Stats.Edges, p.Stats.Components, p.Stats.Faces = fs.vertices, fs.edges, fs.components, fs.bounded
 	p.Stats.DanglesDropped, p.Stats.CutEdgesDropped = fs.dangles, fs.cutEdges
+	var water []bool
 	if !o.Exact {
-		group, merged := mergeSlivers(arr, fs, o.MinAreaKM2*1e6, o.MinCompactness, o.MaxSliverWidthMetres)
-		p.Stats.SliversMerged = merged
-		if merged > 0 {
-			arr = dissolve(arr, fs, group)
-			if fs, err = arr.faces(ctx); err != nil {
-				return nil, err
+		c := cleaner{o: &o, st: &p.Stats, ex: ex, pr: pr, rc: rc, polys: waterPolygons(ex, pr)}
+		if arr, fs, water, err = c.cleanFaces(ctx, arr, fs, segs); err != nil {
+			return nil, err
+		}
+	}
+	p.Regions, p.WaterKM2 = regions(arr, fs, pr, ex.ways, water, o.MinBorderRoadMetres)
+	nameRegions(p.Regions, ex)
+	return p, nil
+}
+
+// closeAndExtend closes gaps, then extends major roads that end near a
+// barrier or another major road, and returns the arrangement noded with
+// the connectors and the segments it was noded from.
+func closeAndExtend(ctx context.Context, arr *arrangement, segs []seg, ways []wayInfo, o *Options, st *Stats) (*arrangement, []seg, error) {
+	var err error
+	if o.SnapMetres > 0 {
+		if conn := closeGaps(arr, o.SnapMetres); len(conn) > 0 {
+			st.GapsClosed = len(conn)
+			segs = slices.Concat(segs, conn)
+			if arr, err = node(ctx, segs); err != nil {
+				return nil, nil, err
 			}
 		}
 	}
-	p.Regions = regions(arr, fs, pr, ex.ways)
-	return p, nil
+	if o.ExtendMetres > 0 {
+		major := func(w int32) bool { return ways[w].major }
+		if ext := extendDangles(arr, major, o.ExtendMetres); len(ext) > 0 {
+			st.DanglesExtended = len(ext)
+			segs = slices.Concat(segs, ext)
+			if arr, err = node(ctx, segs); err != nil {
+				return nil, nil, err
+			}
+		}
+	}
+	return arr, segs, nil
+}
+
+// barriersUsed lists the barrier kinds with a line inside the study area,
+// in the order of chosen.
+func barriersUsed(segs []seg, ways []wayInfo, chosen []string) []string {
+	seen := map[string]bool{}
+	for _, s := range segs {
+		seen[ways[s.way].class] = true
+	}
+	var out []string
+	for _, b := range chosen {
+		if seen[b] && !slices.Contains(out, b) {
+			out = append(out, b)
+		}
+	}
+	return out
+}
+
+// warnUnusedBarriers warns, once per kind, that a railway, river, canal or
+// coastline crosses the study area but does not bound regions.
+func warnUnusedBarriers(lines []unusedLine, pr projection, rc rect, warn func(string)) {
+	crosses := map[string]bool{}
+	for _, l := range lines {
+		if crosses[l.kind] {
+			continue
+		}
+		if len(clipLines([]rawLine{{pts: l.pts}}, pr, rc)) > 0 {
+			crosses[l.kind] = true
+		}
+	}
+	for _, k := range barrierKinds {
+		if crosses[k] {
+			warn(fmt.Sprintf("a %s crosses the study area but does not bound regions (add %s to the barriers)", barrierNoun(k), k))
+		}
+	}
+}
+
+func barrierNoun(kind string) string {
+	switch kind {
+	case "rail":
+		return "railway"
+	case "water":
+		return "water area"
+	}
+	return kind
+}
+
+// cleaner holds what the face cleaning steps share.
+type cleaner struct {
+	o     *Options
+	st    *Stats
+	ex    *extract
+	pr    projection
+	rc    rect
+	polys []waterPolygon
+}
+
+// cleanFaces marks the water, merges slivers, and splits oversized
+// regions; it returns the final arrangement, its faces and which are water.
+func (c *cleaner) cleanFaces(ctx context.Context, arr *arrangement, fs *faceSet, segs []seg) (*arrangement, *faceSet, []bool, error) {
+	arr, fs, water, err := c.merge(ctx, arr, fs)
+	if err != nil || c.o.MaxRegionKM2 <= 0 || len(c.ex.splitLines) == 0 {
+		return arr, fs, water, err
+	}
+	return c.split(ctx, arr, fs, water, segs)
+}
+
+// merge marks the water faces and merges slivers among the land faces.
+func (c *cleaner) merge(ctx context.Context, arr *arrangement, fs *faceSet) (*arrangement, *faceSet, []bool, error) {
+	minWater := c.o.MinWaterAreaKM2 * 1e6
+	water := waterFaces(arr, fs, c.polys, minWater)
+	group, merged := mergeSlivers(arr, fs, c.o.MinAreaKM2*1e6, c.o.MinCompactness, c.o.MaxSliverWidthMetres, water)
+	c.st.SliversMerged += merged
+	if merged == 0 {
+		return arr, fs, water, nil
+	}
+	arr = dissolve(arr, fs, group)
+	fs, err := arr.faces(ctx)
+	if err != nil {
+		return nil, nil, nil, err
+	}
+	return arr, fs, waterFaces(arr, fs, c.polys, minWater), nil
 }
 
 // clipLines projects the lines, clips them to the study rectangle and
@@ -216,9 +321,71 @@ func dissolve(a *arrangement, fs *faceSet, group []int32) *arrangement {
 	return out
 }
 
-// regions turns the faces into Regions, numbered north to south, then
-// west to east, by representative point.
-func regions(a *arrangement, fs *faceSet, pr projection, ways []wayInfo) []Region {
+// regions turns the land faces (water[f] false; water may be nil) into
+// Regions, numbered north to south, then west to east, by representative
+// point, and returns them with the area of the water faces in km².
+// Border roads sharing less than minRoad metres are left out.
+func regions(a *arrangement, fs *faceSet, pr projection, ways []wayInfo, water []bool, minRoad float64) ([]Region, float64) {
+	isWater := func(f int32) bool { return water != nil && water[f] }
+	roads, nbrs := borders(a, fs, ways, isWater)
+	type rp struct {
+		face int
+		x, y float64 // grid units
+	}
+	var order []rp
+	var waterKM2 float64
+	for f := range fs.faces {
+		if isWater(int32(f)) {
+			waterKM2 += fs.faces[f].area / 1e6
+			continue
+		}
+		x, y := representativePoint(a.pts, fs.faces[f].rings)
+		order = append(order, rp{f, x, y})
+	}
+	slices.SortFunc(order, func(p, q rp) int {
+		return cmp.Or(cmp.Compare(q.y, p.y), cmp.Compare(p.x, q.x), cmp.Compare(p.face, q.face))
+	})
+	id := make([]int, len(fs.faces))
+	for i, o := range order {
+		id[o.face] = i + 1
+	}
+	out := make([]Region, len(order))
+	for i, o := range order {
+		f := &fs.faces[o.face]
+		reg := Region{
+			ID:          i + 1,
+			AreaKM2:     f.area / 1e6,
+			PerimeterKM: f.perimeter / 1e3,
+			Point:       pr.Inverse(o.x*gridMetres, o.y*gridMetres),
+		}
+		for _, ring := range f.rings {
+			rg := make(orb.Ring, 0, len(ring)+1)
+			for _, v := range ring {
+				rg = append(rg, pr.inverse(a.pts[v]))
+			}
+			rg = append(rg, rg[0])
+			reg.Polygon = append(reg.Polygon, rg)
+		}
+		for name, l := range roads[o.face] {
+			if l >= minRoad {
+				reg.BorderRoads = append(reg.BorderRoads, BorderRoad{Name: name, LengthKM: l / 1e3})
+			}
+		}
+		slices.SortFunc(reg.BorderRoads, func(a, b BorderRoad) int {
+			return cmp.Or(cmp.Compare(b.LengthKM, a.LengthKM), strings.Compare(a.Name, b.Name))
+		})
+		for g, l := range nbrs[o.face] {
+			reg.Neighbours = append(reg.Neighbours, Neighbour{ID: id[g], SharedKM: l / 1e3})
+		}
+		slices.SortFunc(reg.Neighbours, func(a, b Neighbour) int { return cmp.Compare(a.ID, b.ID) })
+		out[i] = reg
+	}
+	return out, waterKM2
+}
+
+// borders sums, per face, the length of each named road or barrier along
+// its border (metres) and the length shared with each land neighbour.
+func borders(a *arrangement, fs *faceSet, ways []wayInfo, isWater func(int32) bool) ([]map[string]float64, []map[int32]float64) {
 	n := len(fs.faces)
 	roads := make([]map[string]float64, n)
 	nbrs := make([]map[int32]float64, n)
@@ -237,7 +404,7 @@ func regions(a *arrangement, fs *faceSet, pr projection, ways []wayInfo) []Regio
 			}
 			roads[f][ways[ed.way].label] += length
 		}
-		if l >= 0 && r >= 0 && l != r {
+		if l >= 0 && r >= 0 && l != r && !isWater(l) && !isWater(r) {
 			for _, pair := range [2][2]int32{{l, r}, {r, l}} {
 				if nbrs[pair[0]] == nil {
 					nbrs[pair[0]] = map[int32]float64{}
@@ -246,52 +413,7 @@ func regions(a *arrangement, fs *faceSet, pr projection, ways []wayInfo) []Regio
 			}
 		}
 	}
-	type rp struct {
-		face int
-		x, y float64 // grid units
-	}
-	order := make([]rp, n)
-	for f := range fs.faces {
-		x, y := representativePoint(a.pts, fs.faces[f].rings)
-		order[f] = rp{f, x, y}
-	}
-	slices.SortFunc(order, func(p, q rp) int {
-		return cmp.Or(cmp.Compare(q.y, p.y), cmp.Compare(p.x, q.x), cmp.Compare(p.face, q.face))
-	})
-	id := make([]int, n)
-	for i, o := range order {
-		id[o.face] = i + 1
-	}
-	out := make([]Region, n)
-	for i, o := range order {
-		f := &fs.faces[o.face]
-		reg := Region{
-			ID:          i + 1,
-			AreaKM2:     f.area / 1e6,
-			PerimeterKM: f.perimeter / 1e3,
-			Point:       pr.Inverse(o.x*gridMetres, o.y*gridMetres),
-		}
-		for _, ring := range f.rings {
-			rg := make(orb.Ring, 0, len(ring)+1)
-			for _, v := range ring {
-				rg = append(rg, pr.inverse(a.pts[v]))
-			}
-			rg = append(rg, rg[0])
-			reg.Polygon = append(reg.Polygon, rg)
-		}
-		for name, l := range roads[o.face] {
-			reg.BorderRoads = append(reg.BorderRoads, BorderRoad{Name: name, LengthKM: l / 1e3})
-		}
-		slices.SortFunc(reg.BorderRoads, func(a, b BorderRoad) int {
-			return cmp.Or(cmp.Compare(b.LengthKM, a.LengthKM), strings.Compare(a.Name, b.Name))
-		})
-		for g, l := range nbrs[o.face] {
-			reg.Neighbours = append(reg.Neighbours, Neighbour{ID: id[g], SharedKM: l / 1e3})
-		}
-		slices.SortFunc(reg.Neighbours, func(a, b Neighbour) int { return cmp.Compare(a.ID, b.ID) })
-		out[i] = reg
-	}
-	return out
+	return roads, nbrs
 }
 
 // representativePoint returns a point strictly inside the face given by

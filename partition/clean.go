@@ -163,9 +163,12 @@ func (h *distHeap) Pop() any {
 // than minPP (Polsby-Popper 4πA/P²) while narrower than maxWidth metres
 // (mean width 2A/P; maxWidth <= 0: any width), into the neighbour across
 // their longest shared border, smallest first, until every group passes or
-// has no neighbour. It returns each face's group (the id of a face in it)
-// and the number of merges.
-func mergeSlivers(a *arrangement, fs *faceSet, minArea, minPP, maxWidth float64) ([]int32, int) {
+// has no neighbour. Water faces (water[f]; water may be nil) never merge,
+// and take a land face only when it has no land neighbour (a sliver
+// between two water lines): a sliver is never merged across a river. It returns
+// each face's group (the id of a face in it) and the number of merges.
+func mergeSlivers(a *arrangement, fs *faceSet, minArea, minPP, maxWidth float64, water []bool) ([]int32, int) {
+	isWater := func(f int32) bool { return water != nil && water[f] }
 	n := len(fs.faces)
 	area := make([]float64, n)
 	perim := make([]float64, n)
@@ -184,6 +187,9 @@ func mergeSlivers(a *arrangement, fs *faceSet, minArea, minPP, maxWidth float64)
 		adj[r][l] += d
 	}
 	fails := func(f int32) bool {
+		if isWater(f) {
+			return false
+		}
 		if area[f] < minArea {
 			return true
 		}
@@ -205,10 +211,11 @@ func mergeSlivers(a *arrangement, fs *faceSet, minArea, minPP, maxWidth float64)
 		if parent[g] != g || it.area != area[g] || !fails(g) {
 			continue
 		}
-		t, best := int32(-1), -1.0
+		t, best, tLand := int32(-1), -1.0, false
 		for nb, l := range adj[g] {
-			if l > best || (l == best && nb < t) {
-				t, best = nb, l
+			land := !isWater(nb)
+			if (land && !tLand) || (land == tLand && (l > best || (l == best && nb < t))) {
+				t, best, tLand = nb, l, land
 			}
 		}
 		if t < 0 {

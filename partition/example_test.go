@@ -22,17 +22,18 @@ func ExampleBuild() {
 	if err != nil {
 		log.Fatal(err)
 	}
-	fmt.Printf("%d regions, %d gaps closed, %d slivers merged\n", len(p.Regions), p.Stats.GapsClosed, p.Stats.SliversMerged)
+	fmt.Printf("%d regions bounded by roads and %v; %d gaps closed, %d road ends extended, %d slivers merged\n",
+		len(p.Regions), p.Stats.Barriers, p.Stats.GapsClosed, p.Stats.DanglesExtended, p.Stats.SliversMerged)
 	for _, r := range p.Regions[:4] {
-		fmt.Printf("region %d: %.2f km², %d neighbours, longest border %s (%.2f km)\n",
-			r.ID, r.AreaKM2, len(r.Neighbours), r.BorderRoads[0].Name, r.BorderRoads[0].LengthKM)
+		fmt.Printf("region %d %q: %.2f km², %d neighbours, longest border %s (%.2f km)\n",
+			r.ID, r.Name, r.AreaKM2, len(r.Neighbours), r.BorderRoads[0].Name, r.BorderRoads[0].LengthKM)
 	}
 	// Output:
-	// 9 regions, 1 gaps closed, 3 slivers merged
-	// region 1: 0.93 km², 2 neighbours, longest border S 7 (1.10 km)
-	// region 2: 0.93 km², 3 neighbours, longest border Mill Lane (1.10 km)
-	// region 3: 0.93 km², 3 neighbours, longest border Ferry Street (1.10 km)
-	// region 4: 0.93 km², 2 neighbours, longest border Ferry Street (1.10 km)
+	// 13 regions bounded by roads and [rail]; 1 gaps closed, 0 road ends extended, 3 slivers merged
+	// region 1 "Valley Railway / S 7": 0.28 km², 2 neighbours, longest border Valley Railway (0.85 km)
+	// region 2 "Valley Railway / Mill Lane": 0.28 km², 3 neighbours, longest border Valley Railway (0.85 km)
+	// region 3 "Valley Railway / Ferry Street (west)": 0.28 km², 3 neighbours, longest border Valley Railway (0.85 km)
+	// region 4 "Valley Railway / Ferry Street (east)": 0.28 km², 2 neighbours, longest border Valley Railway (0.85 km)
 }
 
 func ExampleParseBBox() {
@@ -66,6 +67,6 @@ func ExamplePartition_WriteGeoJSON() {
 	fmt.Println(len(q.Regions), "regions read back; region 1 borders", q.Regions[0].BorderRoads[0].Name)
 	// Output:
 	// {"type":"FeatureCollection","source":"ashgrove.osm","bbox":[-30.02,40,-29.98,40.02],"features":[
-	// 9 features
-	// 9 regions read back; region 1 borders S 7
+	// 13 features
+	// 13 regions read back; region 1 borders Valley Railway
 }

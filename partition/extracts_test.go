@@ -93,9 +93,10 @@ func TestExtracts(t *testing.T) {
 		t.Run(name, func(t *testing.T) {
 			ex := readExtract(t, name, DefaultOptions())
 			t.Run("exact", func(t *testing.T) {
+				// The GEOS recipe uses major roads only.
 				o := DefaultOptions()
-				o.Exact = true
-				p, err := fromExtract(context.Background(), ex, o)
+				o.Exact, o.Barriers = true, nil
+				p, err := fromExtract(context.Background(), readExtract(t, name, o), o)
 				if err != nil {
 					t.Fatal(err)
 				}
@@ -218,14 +219,24 @@ func checkRegions(t *testing.T, p *Partition, o Options, want geosRef) {
 			}
 		}
 	}
+	// Water areas are no region: regions and water tile the rectangle.
+	sum += p.WaterKM2
 	rectKM2 := rectangleKM2(p.Bound)
 	if rel := math.Abs(sum-rectKM2) / rectKM2; rel > 0.001 {
-		t.Errorf("regions cover %.4f km² of the %.4f km² rectangle (%.3f %% off, limit 0.1 %%)", sum, rectKM2, 100*rel)
+		t.Errorf("regions and water cover %.4f km² of the %.4f km² rectangle (%.3f %% off, limit 0.1 %%)", sum, rectKM2, 100*rel)
 	}
 	// Reference: GEOS 3.11 via Shapely 1.8.5, ../shared/reference/polygonize-geos.json
 	if rel := math.Abs(sum-want.TotalAreaKM2) / want.TotalAreaKM2; rel > 0.001 {
-		t.Errorf("regions cover %.4f km², GEOS faces %.4f", sum, want.TotalAreaKM2)
+		t.Errorf("regions and water cover %.4f km², GEOS faces %.4f", sum, want.TotalAreaKM2)
 	}
+	checkSamples(t, p)
+}
+
+// checkSamples checks on a grid of sample points that each lies in at
+// most one region, and that the share lying in none matches the share of
+// the rectangle that is water (within two points in a hundred).
+func checkSamples(t *testing.T, p *Partition) {
+	t.Helper()
 
 	bounds := make([]orb.Bound, len(p.Regions))
 	for i, r := range p.Regions {
@@ -233,7 +244,7 @@ func checkRegions(t *testing.T, p *Partition, o Options, want geosRef) {
 	}
 	const n = 50
 	dx, dy := (p.Bound.Max[0]-p.Bound.Min[0])/n, (p.Bound.Max[1]-p.Bound.Min[1])/n
-	bad := 0
+	bad, wet := 0, 0
 	for i := range n {
 		for j := range n {
 			// Offsets off the half so that no sample sits on a straight
@@ -245,13 +256,19 @@ func checkRegions(t *testing.T, p *Partition, o Options, want geosRef) {
 					in++
 				}
 			}
-			if in != 1 && bad < 5 {
+			if (in > 1 || (in == 0 && p.WaterKM2 == 0)) && bad < 5 {
 				t.Errorf("sample point %v lies in %d regions, want exactly 1", pt, in)
 			}
-			if in != 1 {
+			if in > 1 || (in == 0 && p.WaterKM2 == 0) {
 				bad++
 			}
+			if in == 0 {
+				wet++
+			}
 		}
+	}
+	if got, want := float64(wet)/(n*n), p.WaterKM2/rectangleKM2(p.Bound); math.Abs(got-want) > 0.02 {
+		t.Errorf("%.3f of the sample points lie in no region, but water is %.3f of the rectangle", got, want)
 	}
 	for _, r := range p.Regions {
 		for k, s := range p.Regions {

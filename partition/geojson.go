@@ -15,10 +15,11 @@ import (
 
 // WriteGeoJSON writes the partition as an RFC 7946 FeatureCollection: one
 // Polygon feature per region (WGS84, exterior rings counter-clockwise,
-// holes clockwise), in id order, with properties id, area_km2,
+// holes clockwise), in id order, with properties id, name, area_km2,
 // perimeter_km, point [lon, lat], border_roads [{name, length_km}] and
 // neighbours [{id, shared_km}]. The collection carries a "bbox" (the study
-// area), and the foreign members "source" and, if any, "warnings". The
+// area), and the foreign members "source", "water_km2" (when water areas
+// lie outside every region) and, if any, "warnings". The
 // same partition always gives the same bytes.
 func (p *Partition) WriteGeoJSON(w io.Writer) error {
 	bw := bufio.NewWriter(w)
@@ -32,6 +33,10 @@ func (p *Partition) WriteGeoJSON(w io.Writer) error {
 		bw.WriteString(coord(v))
 	}
 	bw.WriteByte(']')
+	if p.WaterKM2 > 0 {
+		bw.WriteString(`,"water_km2":`)
+		bw.WriteString(measure(p.WaterKM2))
+	}
 	if len(p.Warnings) > 0 {
 		bw.WriteString(`,"warnings":[`)
 		for i, s := range p.Warnings {
@@ -66,6 +71,8 @@ func (p *Partition) WriteGeoJSON(w io.Writer) error {
 		}
 		bw.WriteString(`]},"properties":{"id":`)
 		bw.WriteString(strconv.Itoa(r.ID))
+		bw.WriteString(`,"name":`)
+		writeString(bw, r.Name)
 		bw.WriteString(`,"area_km2":`)
 		bw.WriteString(measure(r.AreaKM2))
 		bw.WriteString(`,"perimeter_km":`)
@@ -137,6 +144,7 @@ type geoJSON struct {
 	Type     string            `json:"type"`
 	Source   string            `json:"source"`
 	BBox     []float64         `json:"bbox"`
+	WaterKM2 float64           `json:"water_km2"`
 	Warnings []string          `json:"warnings"`
 	Features []json.RawMessage `json:"features"`
 }
@@ -149,6 +157,7 @@ type geoFeature struct {
 	} `json:"geometry"`
 	Properties *struct {
 		ID          *int      `json:"id"`
+		Name        string    `json:"name"`
 		AreaKM2     *float64  `json:"area_km2"`
 		PerimeterKM *float64  `json:"perimeter_km"`
 		Point       []float64 `json:"point"`
@@ -185,7 +194,10 @@ func ReadGeoJSON(r io.Reader, name string) (*Partition, error) {
 	if doc.Type != "FeatureCollection" {
 		return nil, fail("type %q, want FeatureCollection", doc.Type)
 	}
-	p := &Partition{Source: doc.Source, Warnings: doc.Warnings}
+	if !(doc.WaterKM2 >= 0) {
+		return nil, fail("water_km2 %v is not a non-negative number", doc.WaterKM2)
+	}
+	p := &Partition{Source: doc.Source, Warnings: doc.Warnings, WaterKM2: doc.WaterKM2}
 	for i, raw := range doc.Features {
 		var f geoFeature
 		if err := json.Unmarshal(raw, &f); err != nil {
@@ -210,7 +222,7 @@ func ReadGeoJSON(r io.Reader, name string) (*Partition, error) {
 		if len(rings) == 0 {
 			return nil, fail("%s: polygon has no rings", where)
 		}
-		reg := Region{ID: id}
+		reg := Region{ID: id, Name: pr.Name}
 		for j, ring := range rings {
 			if len(ring) < 4 {
 				return nil, fail("%s: ring %d has %d positions, want at least 4", where, j, len(ring))

@@ -13,7 +13,7 @@ import (
 
 func townGeoJSON(t testing.TB) (*Partition, []byte) {
 	t.Helper()
-	p := readTown(t, "ashgrove.osm", DefaultOptions())
+	p := readTown(t, "ashgrove.osm", handCounted())
 	var buf bytes.Buffer
 	if err := p.WriteGeoJSON(&buf); err != nil {
 		t.Fatal(err)

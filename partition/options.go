@@ -7,6 +7,7 @@ import (
 	"strings"
 
 	"github.com/paulmach/orb"
+	"github.com/paulmach/osm"
 )
 
 // Options control which lines bound regions and how the partition is
@@ -19,10 +20,15 @@ type Options struct {
 	// districts; *_link ramps are left out because they only connect
 	// carriageways and would cut junctions into slivers.
 	Roads []string `toml:"roads"`
-	// Barriers are extra line features that bound regions: any of "rail"
-	// (railway=rail), "river" (waterway=river), "canal" (waterway=canal)
-	// and "coastline" (natural=coastline). Default: none, so that the
-	// regions depend on the road network alone unless asked otherwise.
+	// Barriers are extra features that bound regions: any of "rail"
+	// (railway=rail), "river" (waterway=river), "canal" (waterway=canal),
+	// "coastline" (natural=coastline) and "water" (water areas:
+	// natural=water, waterway=riverbank, as closed ways or multipolygon
+	// relations; their banks bound regions and the water itself is no
+	// region). Default: all five, because a district ends at a river or a
+	// railway as surely as at a main road, and trips across them are what
+	// a planner looks for. An empty list (the study key barriers = [] or
+	// the flag value "none") turns them off.
 	Barriers []string `toml:"barriers"`
 	// BBox is the study area in WGS84 degrees. Nil means the bounds in the
 	// file's header; if the file has none, the extent of the chosen lines
@@ -60,6 +66,32 @@ type Options struct {
 	// a neighbour leaves an elongated face again, so the merging cascades
 	// through whole districts. 0 means no limit.
 	MaxSliverWidthMetres float64 `toml:"max_sliver_width_metres"`
+	// ExtendMetres closes districts at a bank: a major road that ends
+	// (a dangle) is extended straight ahead, along its last 10 m, to the
+	// first barrier or major road within this distance. Default 150 m:
+	// well beyond SnapMetres, enough for arterials mapped to stop at a
+	// river bank or short of a railway embankment (a few tens of metres
+	// to about a hundred, common mapping practice), and under a typical
+	// urban block, so a road that merely dead-ends in a field stays a
+	// dangle. 0 turns it off.
+	ExtendMetres float64 `toml:"extend_metres"`
+	// MinWaterAreaKM2 is the smallest water area kept as water: smaller
+	// ponds and basins count as land and merge into the region around
+	// them. Default 0.05 km², the same floor as MinAreaKM2.
+	MinWaterAreaKM2 float64 `toml:"min_water_area_km2"`
+	// MaxRegionKM2 is the largest region left whole: a larger one is split
+	// by the SplitRoads inside it (then cleaned like the rest). Default
+	// 4 km², about 2 km by 2 km, larger than an urban district between
+	// arterials; above it a region usually holds a rail yard or park and
+	// the districts on both sides. 0 turns splitting off.
+	MaxRegionKM2 float64 `toml:"max_region_km2"`
+	// SplitRoads are the highway classes that split regions above
+	// MaxRegionKM2. Default: tertiary, the class below the default Roads.
+	SplitRoads []string `toml:"split_roads"`
+	// MinBorderRoadMetres leaves roads with a shorter shared border out of
+	// a region's BorderRoads and name: a road that only touches a corner
+	// is no border. Default 30 m, about the width of a junction.
+	MinBorderRoadMetres float64 `toml:"min_border_road_metres"`
 	// Exact turns all cleaning off: the regions are the plain faces of the
 	// noded linework plus the study-area rectangle (dangles and cut edges
 	// dropped), as a polygonizer would give.
@@ -78,22 +110,48 @@ func DefaultOptions() Options {
 		MinCompactness: 0.15,
 
 		MaxSliverWidthMetres: 100,
+
+		Barriers:            []string{"rail", "river", "canal", "coastline", "water"},
+		ExtendMetres:        150,
+		MinWaterAreaKM2:     0.05,
+		MaxRegionKM2:        4,
+		SplitRoads:          []string{"tertiary"},
+		MinBorderRoadMetres: 30,
 	}
 }
 
-// barrierTag returns the OSM key and value that select a Barriers entry.
-func barrierTag(name string) (key, value string, ok bool) {
+// barrierKinds lists the Barriers values in the order they are described.
+var barrierKinds = [...]string{"rail", "river", "canal", "coastline", "water"}
+
+// barrierMatch reports whether tags select the barrier kind name.
+func barrierMatch(name string, tags osm.Tags) bool {
 	switch name {
 	case "rail":
-		return "railway", "rail", true
+		return tags.Find("railway") == "rail"
 	case "river":
-		return "waterway", "river", true
+		return tags.Find("waterway") == "river"
 	case "canal":
-		return "waterway", "canal", true
+		return tags.Find("waterway") == "canal"
 	case "coastline":
-		return "natural", "coastline", true
+		return tags.Find("natural") == "coastline"
+	case "water":
+		return isWaterArea(tags)
 	}
-	return "", "", false
+	return false
+}
+
+// isWaterArea reports whether tags describe a water area.
+func isWaterArea(tags osm.Tags) bool {
+	return tags.Find("natural") == "water" || tags.Find("waterway") == "riverbank"
+}
+
+func knownBarrier(name string) bool {
+	for _, k := range barrierKinds {
+		if k == name {
+			return true
+		}
+	}
+	return false
 }
 
 // ParseBBox parses a study area written "W,S,E,N" in WGS84 degrees

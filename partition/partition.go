@@ -7,6 +7,14 @@ type Region struct {
 	// ID is stable for the same input and options: regions are numbered
 	// from 1 in a deterministic order.
 	ID int
+	// Name is what a local would call the region, unique within the
+	// partition: the OSM place (suburb, village, quarter, neighbourhood,
+	// as a node inside the region or an outline around its point) if there
+	// is one, else its two longest border roads or barriers joined by
+	// " / " (motorways and trunks by their ref). Where two regions would
+	// share a name, each gets a suffix: a compass word for two, a number
+	// for more.
+	Name string
 	// Polygon is in WGS84 longitude/latitude; the exterior ring is
 	// counter-clockwise, holes clockwise (RFC 7946).
 	Polygon orb.Polygon
@@ -42,6 +50,10 @@ type Partition struct {
 	Bound orb.Bound
 	// Regions are ordered by ID (1..n).
 	Regions []Region
+	// WaterKM2 is the area of the water inside the study area that is no
+	// region (rivers and lakes drawn as areas): the regions and the water
+	// together tile the study rectangle.
+	WaterKM2 float64
 	// Warnings are notes for the user (for example, study area taken from
 	// the data extent).
 	Warnings []string
@@ -67,7 +79,14 @@ type Stats struct {
 	Vertices, Edges, Components, Faces int
 	// DanglesDropped and CutEdgesDropped count edges that bound no face.
 	DanglesDropped, CutEdgesDropped int
-	// GapsClosed counts connectors added to close gaps; SliversMerged the
-	// faces merged into a neighbour (both zero in exact mode).
-	GapsClosed, SliversMerged int
+	// GapsClosed counts connectors added to close gaps; DanglesExtended
+	// the road ends extended to a barrier or road ahead; SliversMerged
+	// the faces merged into a neighbour (all zero in exact mode).
+	GapsClosed, DanglesExtended, SliversMerged int
+	// RegionsSplit counts regions above Options.MaxRegionKM2 that the
+	// split roads cut, SplitInto the regions they became.
+	RegionsSplit, SplitInto int
+	// Barriers lists the barrier kinds with lines inside the study area,
+	// the ones that bound regions.
+	Barriers []string
 }

@@ -32,6 +32,12 @@ type extract struct {
 	ways       []wayInfo  // chosen ways, in priority order (class rank, id)
 	lines      []rawLine  // their geometry; a way may give several lines
 	incomplete int        // chosen ways that refer to nodes the file lacks
+
+	waters     []waterArea  // water areas, by the lines that bound them
+	splitLines []rawLine    // SplitRoads lines (their ways are in ways too)
+	unused     []unusedLine // lines of barrier kinds not chosen
+	places     []placeRec   // named place nodes
+	placeAreas []placeArea  // named place outlines (closed ways)
 }
 
 // wayInfo describes a chosen way.
@@ -39,6 +45,8 @@ type wayInfo struct {
 	id    osm.WayID
 	rank  int    // position of its class in Options.Roads, then Barriers
 	label string // name, else ref, else "(unnamed class)"
+	class string // highway class or barrier kind
+	major bool   // a chosen road class (not a barrier, not a split road)
 }
 
 // rawLine is a run of two or more consecutive distinct nodes of a way.
@@ -71,7 +79,8 @@ type nodeStore struct {
 	recs   []nodeRec
 	sorted bool // ids arrived in increasing order
 	bound  orb.Bound
-	err    error // the first bad node
+	err    error      // the first bad node
+	places []placeRec // named place nodes
 }
 
 func newNodeStore() *nodeStore {
@@ -93,60 +102,22 @@ func (s *nodeStore) add(n *osm.Node) {
 	}
 	s.recs = append(s.recs, nodeRec{int64(n.ID), toOSMUnits(n.Lon), toOSMUnits(n.Lat)})
 	s.bound = s.bound.Extend(orb.Point{n.Lon, n.Lat})
+	if pl, ok := placeOf(n.Tags); ok {
+		pl.id, pl.pt = int64(n.ID), orb.Point{n.Lon, n.Lat}
+		s.places = append(s.places, pl)
+	}
 }
 
 // finish sorts the nodes by id (then position, so that a repeated id
 // resolves the same way whatever order parallel decoding gave).
 func (s *nodeStore) finish() []nodeRec {
+	slices.SortFunc(s.places, func(a, b placeRec) int { return cmp.Compare(a.id, b.id) })
 	if !s.sorted {
 		slices.SortFunc(s.recs, func(a, b nodeRec) int {
 			return cmp.Or(cmp.Compare(a.id, b.id), cmp.Compare(a.lon, b.lon), cmp.Compare(a.lat, b.lat))
 		})
 	}
 	return s.recs
-}
-
-// wayRec is a chosen way until its nodes are resolved.
-type wayRec struct {
-	info  wayInfo
-	nodes []int64
-}
-
-// selector decides which ways bound regions.
-type selector struct {
-	roads    map[string]int
-	barriers [][2]string // key, value per Barriers entry
-	names    []string    // Barriers entry names
-}
-
-func newSelector(o *Options) *selector {
-	s := &selector{roads: make(map[string]int, len(o.Roads))}
-	for i, r := range o.Roads {
-		if _, dup := s.roads[r]; !dup {
-			s.roads[r] = i
-		}
-	}
-	for _, b := range o.Barriers {
-		k, v, _ := barrierTag(b)
-		s.barriers = append(s.barriers, [2]string{k, v})
-		s.names = append(s.names, b)
-	}
-	return s
-}
-
-// classify returns the class and rank of a way, and whether it is chosen.
-func (s *selector) classify(tags osm.Tags) (class string, rank int, ok bool) {
-	if hw := tags.Find("highway"); hw != "" {
-		if r, found := s.roads[hw]; found {
-			return hw, r, true
-		}
-	}
-	for i, kv := range s.barriers {
-		if tags.Find(kv[0]) == kv[1] {
-			return s.names[i], len(s.roads) + i, true
-		}
-	}
-	return "", 0, false
 }
 
 // maxNesting limits compression layers (a gzip inside a bzip2 is fine; a
@@ -274,139 +245,55 @@ func readOSM(ctx context.Context, r io.Reader, o *Options) (*extract, error) {
 	}
 	defer sc.Close()
 	ex := &extract{}
-	sel := newSelector(o)
-	store := newNodeStore()
+	rd := newElementReader(o)
 	if pbf != nil {
-		// Take nodes and drop unchosen ways inside the decoder, which then
-		// reuses their memory instead of allocating an object for each.
-		pbf.FilterNode = func(n *osm.Node) bool {
-			store.add(n)
-			return false
-		}
-		pbf.FilterWay = func(w *osm.Way) bool {
-			_, _, ok := sel.classify(w.Tags)
-			return ok
-		}
-		h, err := pbf.Header()
-		if errors.Is(err, io.ErrUnexpectedEOF) {
-			return nil, errors.New("PBF is truncated: it ends inside its header block")
-		}
-		if err != nil {
-			return nil, fmt.Errorf("PBF header: %v", err)
-		}
-		if h != nil && h.Bounds != nil {
-			// The header stores nanodegrees; undo the float noise of their
-			// conversion so that -76.6081 reads as -76.6081.
-			b := osmBound(h.Bounds)
-			for _, v := range []*float64{&b.Min[0], &b.Min[1], &b.Max[0], &b.Max[1]} {
-				*v = math.Round(*v*1e9) / 1e9
-			}
-			ex.header = &b
-		}
-	}
-	var (
-		ways  []wayRec
-		count int
-	)
-	for sc.Scan() {
-		count++
-		if count%(1<<16) == 0 {
-			if err := ctx.Err(); err != nil {
-				return nil, err
-			}
-		}
-		switch obj := sc.Object().(type) {
-		case *osm.Bounds:
-			if ex.header == nil {
-				b := osmBound(obj)
-				ex.header = &b
-			}
-		case *osm.Node:
-			store.add(obj)
-			if store.err != nil {
-				return nil, store.err
-			}
-		case *osm.Way:
-			class, rank, ok := sel.classify(obj.Tags)
-			if !ok {
-				continue
-			}
-			ids := make([]int64, len(obj.Nodes))
-			for i, wn := range obj.Nodes {
-				ids[i] = int64(wn.ID)
-			}
-			ways = append(ways, wayRec{info: wayInfo{id: obj.ID, rank: rank, label: label(obj.Tags, class)}, nodes: ids})
-		}
-	}
-	if store.err != nil {
-		return nil, store.err
-	}
-	if err := sc.Err(); err != nil {
-		if errors.Is(err, context.Canceled) || errors.Is(err, context.DeadlineExceeded) {
+		if err := rd.preparePBF(pbf, ex); err != nil {
 			return nil, err
 		}
-		if errors.Is(err, io.ErrUnexpectedEOF) {
-			inside := "an element"
-			if pbf != nil {
-				inside = "a data block"
-			}
-			return nil, fmt.Errorf("%s is truncated: it ends inside %s, after %d elements", format, inside, count)
-		}
-		return nil, fmt.Errorf("reading %s after %d elements: %v", format, count, err)
+	}
+	count, err := rd.scan(ctx, sc, ex)
+	if err != nil {
+		return nil, err
+	}
+	if err := sc.Err(); err != nil {
+		return nil, scanError(err, format, pbf != nil, count)
 	}
 	if err := ctx.Err(); err != nil {
 		return nil, err
 	}
-	nodes := store.finish()
-	ex.nodes, ex.dataBound = len(nodes), store.bound
-	if len(nodes) == 0 && len(ways) == 0 && ex.header == nil {
+	nodes := rd.store.finish()
+	ex.nodes, ex.dataBound = len(nodes), rd.store.bound
+	if len(nodes) == 0 && len(rd.ways) == 0 && ex.header == nil {
 		return nil, fmt.Errorf("the %s file holds no OSM nodes or ways", format)
 	}
-	slices.SortStableFunc(ways, func(a, b wayRec) int {
-		if c := cmp.Compare(a.info.rank, b.info.rank); c != 0 {
-			return c
-		}
-		return cmp.Compare(a.info.id, b.info.id)
-	})
-	for _, w := range ways {
-		idx := int32(len(ex.ways))
-		var run []orb.Point
-		var prev int64
-		missing := false
-		flush := func() {
-			if len(run) >= 2 {
-				ex.lines = append(ex.lines, rawLine{way: idx, pts: run})
-			}
-			run = nil
-		}
-		for i, id := range w.nodes {
-			if i > 0 && id == prev {
-				continue
-			}
-			prev = id
-			j, found := slices.BinarySearchFunc(nodes, id, func(n nodeRec, id int64) int { return cmp.Compare(n.id, id) })
-			if !found {
-				missing = true
-				flush()
-				continue
-			}
-			p := orb.Point{fromOSMUnits(nodes[j].lon), fromOSMUnits(nodes[j].lat)}
-			if len(run) > 0 && run[len(run)-1] == p {
-				continue
-			}
-			run = append(run, p)
-		}
-		flush()
-		if missing {
-			ex.incomplete++
-		}
-		ex.ways = append(ex.ways, w.info)
-	}
+	rd.resolve(nodes, ex)
 	return ex, nil
 }
 
+// scanError explains an error the scanner stopped with.
+func scanError(err error, format string, isPBF bool, count int) error {
+	if errors.Is(err, context.Canceled) || errors.Is(err, context.DeadlineExceeded) {
+		return err
+	}
+	if errors.Is(err, io.ErrUnexpectedEOF) {
+		inside := "an element"
+		if isPBF {
+			inside = "a data block"
+		}
+		return fmt.Errorf("%s is truncated: it ends inside %s, after %d elements", format, inside, count)
+	}
+	return fmt.Errorf("reading %s after %d elements: %v", format, count, err)
+}
+
 // label is how a way is named in border road lists.
+// Motorways and trunks go by their ref ("I 83"), as signed and as
+// locals say, rather than a long official name.
 func label(tags osm.Tags, class string) string {
+	if class == "motorway" || class == "trunk" {
+		if r := strings.TrimSpace(tags.Find("ref")); r != "" {
+			return r
+		}
+	}
 	if n := strings.TrimSpace(tags.Find("name")); n != "" {
 		return n
 	}

@@ -28,15 +28,21 @@ func (o *Options) validate() error {
 			return fmt.Errorf("road class %q is not an OSM highway value", r)
 		}
 	}
+	for _, r := range o.SplitRoads {
+		if r == "" || strings.ContainsAny(r, " ,=") {
+			return fmt.Errorf("split road class %q is not an OSM highway value", r)
+		}
+	}
 	for _, b := range o.Barriers {
-		if _, _, ok := barrierTag(b); !ok {
-			return fmt.Errorf("unknown barrier %q (want rail, river, canal or coastline)", b)
+		if !knownBarrier(b) {
+			return fmt.Errorf("unknown barrier %q (want rail, river, canal, coastline or water)", b)
 		}
 	}
 	for _, v := range []struct {
 		name string
 		x    float64
-	}{{"snap distance", o.SnapMetres}, {"minimum area", o.MinAreaKM2}, {"minimum compactness", o.MinCompactness}, {"sliver width", o.MaxSliverWidthMetres}} {
+	}{{"snap distance", o.SnapMetres}, {"minimum area", o.MinAreaKM2}, {"minimum compactness", o.MinCompactness}, {"sliver width", o.MaxSliverWidthMetres},
+		{"extension distance", o.ExtendMetres}, {"minimum water area", o.MinWaterAreaKM2}, {"largest region area", o.MaxRegionKM2}, {"minimum border road length", o.MinBorderRoadMetres}} {
 		if math.IsNaN(v.x) || math.IsInf(v.x, 0) || v.x < 0 {
 			return fmt.Errorf("%s %v must be a non-negative number", v.name, v.x)
 		}

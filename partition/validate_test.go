@@ -17,7 +17,7 @@ func TestOptionsValidate(t *testing.T) {
 	}{
 		{"defaults", func(*Options) {}, ""},
 		{"barriers only", func(o *Options) { o.Roads, o.Barriers = nil, []string{"river"} }, ""},
-		{"nothing bounds", func(o *Options) { o.Roads = nil }, "no road classes or barriers"},
+		{"nothing bounds", func(o *Options) { o.Roads, o.Barriers = nil, nil }, "no road classes or barriers"},
 		{"bad road", func(o *Options) { o.Roads = []string{"a b"} }, "road class"},
 		{"unknown barrier", func(o *Options) { o.Barriers = []string{"wall"} }, "unknown barrier"},
 		{"negative snap", func(o *Options) { o.SnapMetres = -1 }, "snap distance"},

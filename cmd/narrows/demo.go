@@ -130,7 +130,6 @@ name = "report"
 
 [regions]
 osm = "town/%[3]s-before.osm"
-barriers = ["rail", "river"]
 snap_metres = 20
 
 [trips]

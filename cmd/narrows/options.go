@@ -28,12 +28,31 @@ import (
 func bindRegions(fs *flag.FlagSet, o *partition.Options) {
 	fs.Var(&bboxValue{&o.BBox}, "bbox", "study area `W,S,E,N` in degrees (default: the file's header bounds)")
 	fs.Var(&listValue{&o.Roads}, "roads", "highway classes that bound regions, comma-separated `list`")
-	fs.Var(&listValue{&o.Barriers}, "barriers", "barriers that also bound regions, a comma-separated `list` of rail, river, canal, coastline")
+	fs.Var(&barrierList{&o.Barriers}, "barriers", "barriers that also bound regions, a comma-separated `list` of rail, river, canal, coastline, water; none for roads only")
 	fs.Float64Var(&o.SnapMetres, "snap", o.SnapMetres, "close gaps where a road ends within this many `metres` of another")
 	fs.Float64Var(&o.MinAreaKM2, "min-area", o.MinAreaKM2, "merge regions smaller than this (`km2`) into a neighbour")
 	fs.Float64Var(&o.MinCompactness, "min-compactness", o.MinCompactness, "merge regions thinner than this Polsby-Popper compactness (0-1)")
 	fs.Float64Var(&o.MaxSliverWidthMetres, "max-sliver-width", o.MaxSliverWidthMetres, "the compactness rule merges only regions narrower than this many `metres` (mean width 2A/P; 0: any)")
+	fs.Float64Var(&o.ExtendMetres, "extend", o.ExtendMetres, "extend a major road that ends within this many `metres` of a barrier or major road ahead (0: off)")
+	fs.Float64Var(&o.MinWaterAreaKM2, "min-water-area", o.MinWaterAreaKM2, "water areas smaller than this (`km2`) count as land")
+	fs.Float64Var(&o.MaxRegionKM2, "max-region-area", o.MaxRegionKM2, "split regions larger than this (`km2`) by the --split-roads inside them (0: off)")
+	fs.Var(&listValue{&o.SplitRoads}, "split-roads", "highway classes that split oversized regions, comma-separated `list`")
+	fs.Float64Var(&o.MinBorderRoadMetres, "min-border-road", o.MinBorderRoadMetres, "leave roads sharing less than this many `metres` out of a region's border roads and name")
 	fs.BoolVar(&o.Exact, "exact", o.Exact, "no cleaning: the plain faces of the noded linework plus the study-area rectangle")
+}
+
+// barrierList is a list of barrier kinds; "none" is the empty list.
+type barrierList struct{ p *[]string }
+
+func (v *barrierList) String() string { return (&listValue{v.p}).String() }
+
+func (v *barrierList) Set(s string) error {
+	if strings.TrimSpace(s) == "none" {
+		*v.p = []string{}
+		return nil
+	}
+	*v.p = splitList(s)
+	return nil
 }
 
 // bindIngest binds the flags of the ingest step to o and format.

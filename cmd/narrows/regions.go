@@ -9,6 +9,7 @@ import (
 	"fmt"
 	"io"
 	"os"
+	"strings"
 	"time"
 
 	"narrows/cmd/internal/atomicfile"
@@ -16,7 +17,7 @@ import (
 )
 
 func runRegions(ctx context.Context, env *environment, args []string) error {
-	fs := newFlagSet(env, "regions", "--osm FILE [--bbox W,S,E,N] [--roads LIST] [--barriers LIST] [--snap METRES] [--min-area KM2] [--exact] --out FILE.geojson")
+	fs := newFlagSet(env, "regions", "--osm FILE [--bbox W,S,E,N] [--roads LIST] [--barriers LIST|none] [--snap METRES] [--extend METRES] [--min-area KM2] [--max-region-area KM2] [--exact] --out FILE.geojson")
 	var osmPath, out string
 	fs.StringVar(&osmPath, "osm", "", "OpenStreetMap extract: PBF or XML (plain, gzip or bzip2)")
 	fs.StringVar(&out, "out", "", "GeoJSON file to write")
@@ -61,7 +62,28 @@ func buildRegions(ctx context.Context, env *environment, osmPath string, opts pa
 		area += r.AreaKM2
 	}
 	fmt.Fprintf(env.stdout, "%d regions covering %.2f km² in %.2f s -> %s\n", len(p.Regions), area, time.Since(start).Seconds(), out)
+	printRegionSteps(env.stdout, p, opts)
 	return decodeRegions(geojson.Bytes(), out)
+}
+
+// printRegionSteps says what bounds the regions and what each cleaning
+// step did.
+func printRegionSteps(w io.Writer, p *partition.Partition, opts partition.Options) {
+	barriers := "no barriers"
+	if len(p.Stats.Barriers) > 0 {
+		barriers = "barriers " + strings.Join(p.Stats.Barriers, ", ")
+	}
+	fmt.Fprintf(w, "  bounded by roads %s and %s\n", strings.Join(opts.Roads, ", "), barriers)
+	if opts.Exact {
+		fmt.Fprintln(w, "  exact: no cleaning")
+	} else {
+		s := p.Stats
+		fmt.Fprintf(w, "  cleaning: %d gaps closed, %d road ends extended, %d slivers merged, %d oversized regions split into %d\n",
+			s.GapsClosed, s.DanglesExtended, s.SliversMerged, s.RegionsSplit, s.SplitInto)
+	}
+	if p.WaterKM2 > 0 {
+		fmt.Fprintf(w, "  water: %.2f km² lies in no region\n", p.WaterKM2)
+	}
 }
 
 // readRegions reads a regions file written by buildRegions and returns the

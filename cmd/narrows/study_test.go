@@ -34,6 +34,11 @@ snap_metres = 5
 min_area_km2 = 0.5
 min_compactness = 0.25
 max_sliver_width_metres = 50
+extend_metres = 60
+min_water_area_km2 = 0.2
+max_region_km2 = 9
+split_roads = ["unclassified"]
+min_border_road_metres = 12
 exact = true
 
 [trips]
@@ -102,7 +107,8 @@ min_publish = 5
 		{"output", s.Output, "o"},
 		{"name", s.Name, "n"},
 		{"regions", s.Regions.Options, partition.Options{BBox: &bbox, Roads: []string{"primary"}, Barriers: []string{"rail"},
-			SnapMetres: 5, MinAreaKM2: 0.5, MinCompactness: 0.25, MaxSliverWidthMetres: 50, Exact: true}},
+			SnapMetres: 5, MinAreaKM2: 0.5, MinCompactness: 0.25, MaxSliverWidthMetres: 50, Exact: true,
+			ExtendMetres: 60, MinWaterAreaKM2: 0.2, MaxRegionKM2: 9, SplitRoads: []string{"unclassified"}, MinBorderRoadMetres: 12}},
 		{"trips.files", s.Trips.Files, []string{"t.csv"}},
 		{"trips.format", s.Trips.Format, regiongraph.FormatPoints},
 		{"trips", s.Trips.Options, regiongraph.Options{TimeZone: "Etc/GMT-1", Windows: []regiongraph.Window{am},

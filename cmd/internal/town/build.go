@@ -77,6 +77,7 @@ func (b *builder) build() {
 	b.river()
 	b.link()
 	b.districts()
+	b.placeNodes()
 	t.nodes = b.nodes
 	t.ways = b.ways
 	t.bound = orb.Bound{Min: t.lonLat(xy{0, 0}), Max: t.lonLat(xy{lay.width() + 2*off, lay.height() + 2*off})}
@@ -395,4 +396,42 @@ func (b *builder) districts() {
 	}
 	b.t.Housing = mk(housingName, ry+gap, y1-0.1*lay.block)
 	b.t.Jobs = mk(jobsName, y0+0.1*lay.block, ry-gap)
+}
+
+// placeNodes names the town's districts as OSM place nodes, as a mapper
+// would: one neighbourhood in each cell between the arterials, on each
+// side of the river and the railway where they cross a cell, and the two
+// planted districts as quarters. The regions take their names from them.
+// The nodes belong to no way, so the road network is the same.
+func (b *builder) placeNodes() {
+	lay := b.lay
+	c := lay.cell()
+	n := 0
+	for cj := 0; cj < lay.ny; cj++ {
+		y0, y1 := lay.gyOf(cj*lay.k), lay.gyOf((cj+1)*lay.k)
+		ys := []float64{(y0 + y1) / 2}
+		if cj == lay.riverRow {
+			ys = []float64{(y0 + lay.riverY()) / 2, (lay.riverY() + y1) / 2}
+		}
+		for ci := 0; ci < lay.nx; ci++ {
+			x0, x1 := float64(ci)*c, float64(ci+1)*c
+			xs := []float64{(x0 + x1) / 2}
+			if ci == lay.railCol {
+				xs = []float64{(x0 + lay.railX()) / 2, (lay.railX() + x1) / 2}
+			}
+			for _, y := range ys {
+				for _, x := range xs {
+					if cj == lay.riverRow && ci == lay.plantCol {
+						continue // the planted districts, named below
+					}
+					b.addNode(b.gridPos(x, y), []tag{{"name", districtName(n)}, {"place", "neighbourhood"}})
+					n++
+				}
+			}
+		}
+	}
+	for _, d := range []District{b.t.Housing, b.t.Jobs} {
+		x, y := b.t.proj.Forward(d.Centre)
+		b.addNode(xy{x, y}, []tag{{"name", d.Name}, {"place", "quarter"}})
+	}
 }

@@ -32,7 +32,9 @@
 // into the same regions as the before network: the two periods are compared
 // on the same regions, as the comparison requires. The districts face each
 // other across the river, not across a road, so the partition must take the
-// river as a barrier (partition Options.Barriers "river" and "rail").
+// river as a barrier (partition Options.Barriers, on by default). Each
+// district carries its name as an OSM place node (place=neighbourhood, the
+// planted ones place=quarter), and the regions take their names from them.
 //
 // # The trips
 //

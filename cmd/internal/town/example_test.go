@@ -61,8 +61,8 @@ func ExampleTown_WriteOSM() {
 	}
 	fmt.Println(tw.Housing.Name, "faces", tw.Jobs.Name, "across the river")
 	// Output:
-	// link false: 463 nodes, 78 ways
-	// link true: 465 nodes, 79 ways
+	// link false: 512 nodes, 78 ways
+	// link true: 514 nodes, 79 ways
 	// Northbank housing faces Southbank works across the river
 }
 

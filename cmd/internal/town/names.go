@@ -43,6 +43,14 @@ var stems = []string{
 	"Inkwell", "Jasper", "Kettle", "Lantern", "Mallow", "Nimble", "Otterly", "Pewter",
 }
 
+// districtSuffixes end the invented district names.
+var districtSuffixes = []string{"Green", "Heath", "Fold", "Cross", "End", "Lea", "Rise", "Side"}
+
+// districtName is the n-th district name: unique for the first 320.
+func districtName(n int) string {
+	return stems[(n+7)%len(stems)] + " " + districtSuffixes[(n/len(stems))%len(districtSuffixes)]
+}
+
 var bridgeNames = []string{"Weir Bridge", "Cinder Bridge", "Tollgate Bridge", "Mill Bridge", "Chapel Bridge", "Ferry Bridge"}
 
 func streetName(n int, suffixes []string) string {

@@ -22,13 +22,11 @@ func regionOf(p *partition.Partition, pt orb.Point) int {
 	return 0
 }
 
-// studyOptions are the partition options the demo needs: the river and the
-// railway are barriers (the planted districts face each other across the
-// river, not across a road).
+// studyOptions are the partition options of the demo's plain study: the
+// defaults, whose barriers include the river and the railway (the planted
+// districts face each other across the river, not across a road).
 func studyOptions() partition.Options {
-	o := partition.DefaultOptions()
-	o.Barriers = []string{"river", "rail"}
-	return o
+	return partition.DefaultOptions()
 }
 
 // TestPartitionTown partitions the demo town by its major roads and
@@ -66,7 +64,18 @@ func TestPartitionTown(t *testing.T) {
 	}
 	h, j := regionOf(p, tw.Housing.Centre), regionOf(p, tw.Jobs.Centre)
 	if h == 0 || j == 0 || h == j {
-		t.Errorf("housing in region %d, jobs in region %d: want two different regions", h, j)
+		t.Fatalf("housing in region %d, jobs in region %d: want two different regions", h, j)
+	}
+	// The regions take the district names from the town's place nodes.
+	if got := [2]string{p.Regions[h-1].Name, p.Regions[j-1].Name}; got != [2]string{tw.Housing.Name, tw.Jobs.Name} {
+		t.Errorf("planted regions named %q, want %q and %q", got, tw.Housing.Name, tw.Jobs.Name)
+	}
+	names := map[string]int{}
+	for _, r := range p.Regions {
+		if prev, dup := names[r.Name]; dup {
+			t.Errorf("regions %d and %d are both named %q", prev, r.ID, r.Name)
+		}
+		names[r.Name] = r.ID
 	}
 	if len(parts[1].Regions) != len(p.Regions) {
 		t.Fatalf("after: %d regions, before %d", len(parts[1].Regions), len(p.Regions))

@@ -1,0 +1,130 @@
+package partition
+
+import (
+	"cmp"
+	"slices"
+
+	"github.com/paulmach/orb"
+	"github.com/paulmach/osm"
+)
+
+// waterArea is a water body: the lines (indices into extract.lines) that
+// bound it, as a closed way or a multipolygon's member ways.
+type waterArea struct {
+	lines []int32
+}
+
+// unusedLine is a line of a barrier kind not chosen, kept to warn that it
+// crosses the study area.
+type unusedLine struct {
+	kind string
+	pts  []orb.Point
+}
+
+// placeArea is a named place drawn as a closed way.
+type placeArea struct {
+	placeRec
+	ring []orb.Point
+}
+
+// resolve turns the kept ways into lines once all nodes are known: the
+// bounding ways in priority order (class rank, id), then the member ways
+// of water relations, the split roads, the unused barriers and the place
+// outlines.
+func (rd *elementReader) resolve(nodes []nodeRec, ex *extract) {
+	ex.places = rd.store.places
+	slices.SortStableFunc(rd.ways, func(a, b wayRec) int {
+		return cmp.Or(cmp.Compare(a.role, b.role), cmp.Compare(a.info.rank, b.info.rank), cmp.Compare(a.info.id, b.info.id))
+	})
+	byID := map[osm.WayID]int{}
+	lineRange := map[osm.WayID][2]int32{}
+	for i, w := range rd.ways {
+		switch w.role {
+		case roleBound:
+			from := int32(len(ex.lines))
+			if rd.addLines(ex, w, nodes) {
+				ex.incomplete++
+			}
+			lineRange[w.info.id] = [2]int32{from, int32(len(ex.lines))}
+			if w.area {
+				ex.waters = append(ex.waters, waterArea{lines: span(from, int32(len(ex.lines)))})
+			}
+		case roleMember:
+			byID[w.info.id] = i
+		case roleSplit, roleUnused, rolePlace:
+			rd.resolveOther(ex, w, nodes)
+		}
+	}
+	rd.resolveWaterRelations(ex, nodes, byID, lineRange)
+}
+
+// addLines appends a way's runs to ex.lines under a new way index and
+// reports whether the way lacks nodes.
+func (rd *elementReader) addLines(ex *extract, w wayRec, nodes []nodeRec) bool {
+	idx := int32(len(ex.ways))
+	runs, missing := resolveRuns(w.nodes, nodes)
+	for _, r := range runs {
+		ex.lines = append(ex.lines, rawLine{way: idx, pts: r})
+	}
+	ex.ways = append(ex.ways, w.info)
+	return missing
+}
+
+// resolveOther resolves a split road, an unused barrier or a place outline.
+func (rd *elementReader) resolveOther(ex *extract, w wayRec, nodes []nodeRec) {
+	runs, missing := resolveRuns(w.nodes, nodes)
+	switch w.role {
+	case roleSplit:
+		idx := int32(len(ex.ways))
+		ex.ways = append(ex.ways, w.info)
+		for _, r := range runs {
+			ex.splitLines = append(ex.splitLines, rawLine{way: idx, pts: r})
+		}
+	case roleUnused:
+		for _, r := range runs {
+			ex.unused = append(ex.unused, unusedLine{kind: w.info.class, pts: r})
+		}
+	case rolePlace:
+		if !missing && len(runs) == 1 && len(runs[0]) >= 4 && runs[0][0] == runs[0][len(runs[0])-1] {
+			ex.placeAreas = append(ex.placeAreas, placeArea{placeRec{id: int64(w.info.id), name: w.info.label, rank: w.info.rank}, runs[0]})
+		}
+	}
+}
+
+// resolveWaterRelations adds each water relation's member ways (once,
+// named after the relation when they have no tags of their own) and
+// records the relation as a water area.
+func (rd *elementReader) resolveWaterRelations(ex *extract, nodes []nodeRec, byID map[osm.WayID]int, lineRange map[osm.WayID][2]int32) {
+	slices.SortFunc(rd.waters, func(a, b waterRel) int { return cmp.Compare(a.id, b.id) })
+	waterRank := len(rd.sel.roads) + slices.Index(rd.sel.barriers, "water")
+	for _, rel := range rd.waters {
+		var area waterArea
+		for _, m := range rel.members {
+			rg, done := lineRange[m]
+			if !done {
+				i, ok := byID[m]
+				if !ok {
+					continue
+				}
+				w := rd.ways[i]
+				w.info.rank, w.info.label, w.info.class = waterRank, rel.label, "water"
+				from := int32(len(ex.lines))
+				rd.addLines(ex, w, nodes)
+				rg = [2]int32{from, int32(len(ex.lines))}
+				lineRange[m] = rg
+			}
+			area.lines = append(area.lines, span(rg[0], rg[1])...)
+		}
+		if len(area.lines) > 0 {
+			ex.waters = append(ex.waters, area)
+		}
+	}
+}
+
+func span(from, to int32) []int32 {
+	s := make([]int32, 0, to-from)
+	for i := from; i < to; i++ {
+		s = append(s, i)
+	}
+	return s
+}
