@@ -8,11 +8,13 @@ import (
 	"narrows/patterns"
 )
 
-// PlaceName names a finding for its place, from the borders of the two
-// regions of its costliest region pair: "across the Orvel between Bittern
-// Road and Amble Road" when the two regions share a bounding road or
-// barrier (the Orvel) and each has another; "between Bittern Road and
-// Amble Road" otherwise; region numbers when a region has no named border.
+// PlaceName names a finding for its place, from the two regions of its
+// costliest region pair: "across the Orvel between Northbank housing and
+// Southbank works" when the two regions share a bounding road or barrier
+// (the Orvel) and both have names; without region names, another border
+// road of each stands for it ("across the Orvel between Bittern Road and
+// Amble Road"); "between ... and ..." when they share no named border;
+// region numbers when a region has no name and no named border.
 // A finding of several pairs adds how many more pairs it holds. It is the
 // one place where findings get names: terminal, workbook, map layers, HTML
 // page and findings.json all use it, with the finding's ID as the
@@ -74,6 +76,11 @@ func pairName(ra, rb *partition.Region, a, b int) string {
 		return "region " + strconv.Itoa(id)
 	}
 	oa, ob := other(na, a), other(nb, b)
+	// A region's own name (a district's, or its bounding roads' from the
+	// partition) says more to a local than one of its border roads.
+	if ra != nil && rb != nil && ra.Name != "" && rb.Name != "" {
+		oa, ob = ra.Name, rb.Name
+	}
 	if shared == "" {
 		return "between " + oa + " and " + ob
 	}
