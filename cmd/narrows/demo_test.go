@@ -100,7 +100,7 @@ func TestDemoFindsThePlantedWeaknessAndTheFixWorks(t *testing.T) {
 	}
 	dir := t.TempDir()
 	stdout := mustRunCLI(t, "demo", "--dir", dir)
-	for _, name := range []string{"report.xlsx", "report.html", "regions.geojson", "findings.geojson"} {
+	for _, name := range []string{"report.xlsx", "report.html", "report-regions.geojson", "report-findings.geojson"} {
 		if !strings.Contains(stdout, filepath.Join(dir, "out", name)) {
 			t.Errorf("demo does not say where %s is:\n%s", name, stdout)
 		}
@@ -334,9 +334,9 @@ func TestStudyWithoutCompareScans(t *testing.T) {
 		t.Skip("simulated study")
 	}
 	dir := t.TempDir()
-	mustRunCLI(t, "simulate", "--out", dir, "--days", "14", "--trips-per-day", "4000")
+	mustRunCLI(t, "simulate", "--out", dir, "--days", "14", "--trips-per-day", "4000", "--no-study")
 	study := filepath.Join(dir, "study.toml")
-	text, err := os.ReadFile(study)
+	text, err := os.ReadFile(filepath.Join("..", "..", "testdata", "study.toml"))
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -351,7 +351,7 @@ func TestStudyWithoutCompareScans(t *testing.T) {
 	if !strings.Contains(stdout, "analysed days") {
 		t.Errorf("no scan headline:\n%s", stdout)
 	}
-	for _, name := range []string{"findings.json", "findings.geojson", "regions.geojson", "report.xlsx", "report.html"} {
+	for _, name := range []string{"report-findings.json", "report-findings.geojson", "report-regions.geojson", "report.xlsx", "report.html"} {
 		if _, err := os.Stat(filepath.Join(dir, "out", name)); err != nil {
 			t.Errorf("scan-only study: %v", err)
 		}

@@ -52,6 +52,9 @@ type environment struct {
 	stdout, stderr io.Writer
 	// interactive reports whether stderr is a terminal (progress bars).
 	interactive bool
+	// files is what the running command reads and writes (set by
+	// dispatch for each command).
+	files *runFiles
 }
 
 // usageError marks a command-line mistake (exit code 2).
@@ -108,7 +111,9 @@ func dispatch(ctx context.Context, env *environment, args []string) int {
 		if c.name != name {
 			continue
 		}
-		err := c.run(ctx, env, args[1:])
+		cenv := *env
+		cenv.files = newRunFiles(env.stderr)
+		err := c.run(ctx, &cenv, args[1:])
 		switch {
 		case err == nil:
 			return exitOK
