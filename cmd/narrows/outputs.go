@@ -19,15 +19,15 @@ import (
 type outputKind string
 
 const (
-	kindRegions       outputKind = "regions"          // regions GeoJSON of the regions step
-	kindStore         outputKind = "day-graph store"  // Parquet of the ingest step
-	kindFindings      outputKind = "findings"         // findings JSON of a scan
-	kindFindingsLayer outputKind = "findings layer"   // map layer of a scan or report
-	kindRegionsLayer  outputKind = "regions layer"    // map layer of a report
-	kindWorkbook      outputKind = "workbook"         // .xlsx report
-	kindPage          outputKind = "HTML page"        // .html report
-	kindTown          outputKind = "simulated input"  // OSM, trips, GPS files of simulate and demo
-	kindStudy         outputKind = "study file"       // study.toml of simulate and demo
+	kindRegions       outputKind = "regions"         // regions GeoJSON of the regions step
+	kindStore         outputKind = "day-graph store" // Parquet of the ingest step
+	kindFindings      outputKind = "findings"        // findings JSON of a scan
+	kindFindingsLayer outputKind = "findings layer"  // map layer of a scan or report
+	kindRegionsLayer  outputKind = "regions layer"   // map layer of a report
+	kindWorkbook      outputKind = "workbook"        // .xlsx report
+	kindPage          outputKind = "HTML page"       // .html report
+	kindTown          outputKind = "simulated input" // OSM, trips, GPS files of simulate and demo
+	kindStudy         outputKind = "study file"      // study.toml of simulate and demo
 )
 
 // manifestName is the file, in every folder narrows writes into, that
