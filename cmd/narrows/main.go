@@ -25,6 +25,7 @@ import (
 	"os"
 	"os/signal"
 	"strings"
+	"syscall"
 )
 
 // Exit codes.
@@ -81,7 +82,7 @@ func commands() []command {
 }
 
 func main() {
-	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
+	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
 	defer stop()
 	// The first interrupt cancels the work (outputs are never half-written);
 	// a second one, should a step not notice, ends the process at once.
@@ -113,7 +114,11 @@ func dispatch(ctx context.Context, env *environment, args []string) int {
 		}
 		cenv := *env
 		cenv.files = newRunFiles(env.stderr)
+		cenv.files.ctx = ctx
 		err := c.run(ctx, &cenv, args[1:])
+		if interrupted(ctx, env.stderr, name, err, cenv.files) {
+			return exitInterrupted
+		}
 		switch {
 		case err == nil:
 			return exitOK

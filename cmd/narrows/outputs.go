@@ -2,6 +2,7 @@ package main
 
 import (
 	"bufio"
+	"context"
 	"flag"
 	"fmt"
 	"io"
@@ -45,6 +46,11 @@ type runFiles struct {
 	claimed map[string]outputKind // absolute path: kind
 	// stderr receives the notes on stale temporary files removed.
 	stderr io.Writer
+	// ctx, when set, is checked before each output is written: an
+	// interrupt after the reading is over still stops the run.
+	ctx context.Context
+	// written lists the outputs written, in order.
+	written []string
 }
 
 type inputFile struct {
@@ -155,12 +161,16 @@ func (r *runFiles) write(path string, kind outputKind, write func(io.Writer) err
 	} else if was != kind {
 		return fmt.Errorf("%s would be written twice by this run, as a %s and a %s", path, was, kind)
 	}
+	if r.ctx != nil && r.ctx.Err() != nil {
+		return r.ctx.Err()
+	}
 	if _, err := outputDir(path); err != nil {
 		return err
 	}
 	if err := atomicfile.Write(path, write); err != nil {
 		return err
 	}
+	r.written = append(r.written, path)
 	return recordOutput(path, kind)
 }
 

@@ -2,6 +2,7 @@ package main
 
 import (
 	"bytes"
+	"context"
 	"os"
 	"path/filepath"
 	"strings"
@@ -213,5 +214,41 @@ func TestSimulateDaysOutsideTheStudy(t *testing.T) {
 	}
 	if entries, _ := os.ReadDir(dir); len(entries) != 0 {
 		t.Errorf("a refused simulation wrote %d files", len(entries))
+	}
+}
+
+// An interrupt, even one that comes after all reading is done, ends the
+// run with one line and exit 130, and writes nothing.
+func TestInterruptWritesNothing(t *testing.T) {
+	dir, regions := simulatedTown(t, "--days", "2", "--trips-per-day", "300", "--no-study")
+	osmPath := filepath.Join(dir, "town", "quillhaven-before.osm")
+	ctx, cancel := context.WithCancel(context.Background())
+	cancel()
+	var out, errOut bytes.Buffer
+	env := &environment{stdout: &out, stderr: &errOut}
+	out2 := filepath.Join(dir, "again.geojson")
+	code := dispatch(ctx, env, []string{"regions", "--osm", osmPath, "--out", out2})
+	if code != exitInterrupted || strings.TrimSpace(errOut.String()) != "narrows regions: interrupted; nothing written" {
+		t.Errorf("exit %d, %q; want 130 and one line", code, errOut.String())
+	}
+	if _, err := os.Stat(out2); !os.IsNotExist(err) {
+		t.Errorf("%s written after the interrupt", out2)
+	}
+	_ = regions
+}
+
+// Names from a file cannot drive the terminal.
+func TestTerminalText(t *testing.T) {
+	for in, want := range map[string]string{
+		"High Street":              "High Street",
+		"Evil\x1b]0;owned\x07Road": "Evil?]0;owned?Road",
+		"Clear\x1b[2J":             "Clear?[2J",
+		"C1\u009b31m":              "C1?31m",
+		"bidi\u202eteS":            "bidi?teS",
+		"Straße":                   "Straße",
+	} {
+		if got := terminalText(in); got != want {
+			t.Errorf("terminalText(%q) = %q, want %q", in, got, want)
+		}
 	}
 }

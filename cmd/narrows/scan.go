@@ -208,7 +208,7 @@ func printFindings(w io.Writer, scan *patterns.Scan, regions *partition.Partitio
 			}
 			fmt.Fprintf(tw, "%s\t%d→%d\t%d (%.0f %%)\t%.0f\t%.1f\t%.2f\t%.1f\t%s\t%s\n", rank, e.From, e.To,
 				len(f.Days), 100*f.Share, e.TripsMedian, e.SpeedMedian*3.6, e.DetourMedian, e.ExtraHoursPerDay,
-				strings.Join(roadNames(regions, e.From, 2), " / "), strings.Join(roadNames(regions, e.To, 2), " / "))
+				terminalText(strings.Join(roadNames(regions, e.From, 2), " / ")), terminalText(strings.Join(roadNames(regions, e.To, 2), " / ")))
 		}
 	}
 	tw.Flush()
