@@ -146,16 +146,18 @@ func openOSM(ctx context.Context, r io.Reader, depth int) (osm.Scanner, *osmpbf.
 		if depth >= maxNesting {
 			return nil, nil, "", errors.New("too many layers of compression")
 		}
-		zr, err := gzip.NewReader(br)
+		in := &countingReader{r: br}
+		zr, err := gzip.NewReader(in)
 		if err != nil {
 			return nil, nil, "", fmt.Errorf("gzip data is truncated or corrupt: %v", err)
 		}
-		return openOSM(ctx, zr, depth+1)
+		return openOSM(ctx, &expansionGuard{r: zr, in: in}, depth+1)
 	case bytes.HasPrefix(head, []byte("BZh")):
 		if depth >= maxNesting {
 			return nil, nil, "", errors.New("too many layers of compression")
 		}
-		return openOSM(ctx, bzip2.NewReader(br), depth+1)
+		in := &countingReader{r: br}
+		return openOSM(ctx, &expansionGuard{r: bzip2.NewReader(in), in: in}, depth+1)
 	case isPBF(head):
 		sc := osmpbf.New(ctx, newPBFGuard(br), min(runtime.GOMAXPROCS(0), 4))
 		sc.SkipRelations = true
@@ -166,7 +168,7 @@ func openOSM(ctx context.Context, r io.Reader, depth int) (osm.Scanner, *osmpbf.
 	if root, isXML, found := xmlRoot(head); isXML {
 		switch {
 		case found && root == "osm":
-			return osmxml.New(ctx, br), nil, "XML", nil
+			return osmxml.New(ctx, newXMLGuard(br)), nil, "XML", nil
 		case found:
 			return nil, nil, "", fmt.Errorf("XML, but not OpenStreetMap: the root element is <%s>, want <osm>", root)
 		default:

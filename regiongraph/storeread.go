@@ -1,7 +1,6 @@
 package regiongraph
 
 import (
-	"encoding/binary"
 	"encoding/json"
 	"fmt"
 	"math"
@@ -201,24 +200,9 @@ func readStretches(stretches []*stretch, opts ReadOptions) ([]Edge, error) {
 // openParquet opens a Parquet file, turning a panic of the Parquet
 // library on a damaged footer into an error.
 func openParquet(f *os.File, size int64) (pf *parquet.File, err error) {
-	// The library allocates the footer length the file gives before
-	// reading it: check it against the file's size first.
-	var tail [8]byte
-	if size < 12 {
-		return nil, fmt.Errorf("%d bytes is too short", size)
-	}
-	if _, err := f.ReadAt(tail[:], size-8); err != nil {
-		return nil, err
-	}
-	if footer := int64(binary.LittleEndian.Uint32(tail[:4])); footer+12 > size {
-		return nil, fmt.Errorf("footer of %d bytes in a file of %d", footer, size)
-	}
-	defer func() {
-		if r := recover(); r != nil {
-			err = fmt.Errorf("damaged footer: %v", r)
-		}
-	}()
-	return parquet.OpenFile(f, size, parquet.SkipBloomFilters(true))
+	// The library allocates the lengths the file gives before reading
+	// them: openParquetChecked checks them against the file's size first.
+	return openParquetChecked(f, size)
 }
 
 // readStoreMeta sets s.Meta and the regions from the file's key-value

@@ -24,7 +24,15 @@ type parquetTimeKind struct {
 // ingestTripParquet reads a Parquet trip table: the same logical columns as
 // the CSV trip table, with times as TIMESTAMP, integer or floating Unix
 // seconds, or text; coordinates and distance as any numeric type.
-func ingestTripParquet(ctx context.Context, st *settings, path string, t *tally, progress func(int64)) (string, error) {
+func ingestTripParquet(ctx context.Context, st *settings, path string, t *tally, progress func(int64)) (sum string, err error) {
+	// The footer is checked before the library reads it (see
+	// openParquetChecked); a page the library cannot decode may still
+	// make it panic, which becomes an error naming the file.
+	defer func() {
+		if r := recover(); r != nil {
+			sum, err = "", fmt.Errorf("regiongraph: %s: damaged Parquet data: %v", path, r)
+		}
+	}()
 	f, err := os.Open(path)
 	if err != nil {
 		return "", fmt.Errorf("regiongraph: %w", err)
@@ -38,7 +46,7 @@ func ingestTripParquet(ctx context.Context, st *settings, path string, t *tally,
 	if _, err := io.Copy(h, f); err != nil {
 		return "", fmt.Errorf("regiongraph: %s: %w", path, err)
 	}
-	pf, err := parquet.OpenFile(f, fi.Size())
+	pf, err := openParquetChecked(f, fi.Size())
 	if err != nil {
 		return "", fmt.Errorf("regiongraph: %s: not a readable Parquet file: %v", path, err)
 	}

@@ -30,7 +30,8 @@ func runCompare(ctx context.Context, env *environment, args []string) error {
 	minPublish := report.DefaultPublicationMinTrips
 	fs.IntVar(&minPublish, "min-publish", minPublish, "cells from fewer trips than this are shown suppressed")
 	fs.StringVar(&title, "title", "", "study title for the report")
-	fs.StringVar(&out, "out", "", "workbook (.xlsx) to write; map layers and the HTML page are written beside it")
+	fs.StringVar(&out, "out", "", "workbook `STEM.xlsx` to write; STEM-regions.geojson, STEM-findings.geojson and STEM.html are written beside it")
+	env.files.bindForce(fs)
 	scanFlags := bindOptions(fs, func(fs *flag.FlagSet) { bindScan(fs, &scanOpts) })
 	if err := parseFlags(env, fs, args); err != nil {
 		return err
@@ -46,6 +47,10 @@ func runCompare(ctx context.Context, env *environment, args []string) error {
 	}
 	if !strings.HasSuffix(strings.ToLower(out), ".xlsx") {
 		return usagef("--out: the workbook name must end in .xlsx, got %q", out)
+	}
+	env.files.read(in.graphs, in.regions)
+	if err := env.files.claimAll(reportOutputs(filepath.Dir(out), filepath.Base(stemOf(out)))); err != nil {
+		return err
 	}
 	store, regions, err := in.open(scanOpts)
 	if err != nil {
@@ -116,7 +121,7 @@ func compareAndReport(ctx context.Context, env *environment, job compareJob) err
 // writeReport writes the workbook, map layers and HTML page of a study
 // into dir under the base name, and prints the headline and what it wrote.
 func writeReport(env *environment, dir, base string, in report.Input) error {
-	paths, err := writeReportFiles(dir, base, in)
+	paths, err := writeReportFiles(env.files, dir, base, in)
 	if err != nil {
 		return err
 	}

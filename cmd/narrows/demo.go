@@ -4,12 +4,10 @@ import (
 	"context"
 	"fmt"
 	"io"
-	"os"
 	"path/filepath"
 	"strings"
 	"time"
 
-	"narrows/cmd/internal/atomicfile"
 	"narrows/cmd/internal/town"
 )
 
@@ -35,9 +33,6 @@ func simulateTown(ctx context.Context, env *environment, dir string, size town.S
 	if err != nil {
 		return files, nil, plan, usagef("--size: %v", err)
 	}
-	if err := os.MkdirAll(dir, 0o755); err != nil {
-		return files, nil, plan, err
-	}
 	slug := strings.ToLower(t.Name)
 	files.before = filepath.Join(dir, slug+"-before.osm")
 	files.after = filepath.Join(dir, slug+"-after.osm")
@@ -46,7 +41,7 @@ func simulateTown(ctx context.Context, env *environment, dir string, size town.S
 		path     string
 		withLink bool
 	}{{files.before, false}, {files.after, true}} {
-		if err := atomicfile.Write(f.path, func(w io.Writer) error { return t.WriteOSM(w, f.withLink) }); err != nil {
+		if err := env.files.write(f.path, kindTown, func(w io.Writer) error { return t.WriteOSM(w, f.withLink) }); err != nil {
 			return files, nil, plan, err
 		}
 	}
@@ -58,7 +53,7 @@ func simulateTown(ctx context.Context, env *environment, dir string, size town.S
 		opts.TripsPerDay = tripsPerDay
 	}
 	start := time.Now()
-	stats, err := simulateTrips(ctx, t, opts, files.trips, dir, gpsEvery)
+	stats, err := simulateTrips(ctx, env.files, t, opts, files.trips, dir, gpsEvery)
 	if err != nil {
 		return files, nil, plan, err
 	}
@@ -73,10 +68,10 @@ func simulateTown(ctx context.Context, env *environment, dir string, size town.S
 
 // simulateTrips simulates the trips of t into the file trips and, with
 // gpsEvery > 0, their GPS traces into points.csv and traces.gpx in dir.
-func simulateTrips(ctx context.Context, t *town.Town, opts town.SimOptions, trips, dir string, gpsEvery int) (town.Stats, error) {
+func simulateTrips(ctx context.Context, files *runFiles, t *town.Town, opts town.SimOptions, trips, dir string, gpsEvery int) (town.Stats, error) {
 	var stats town.Stats
 	simulate := func() error {
-		return atomicfile.Write(trips, func(w io.Writer) error {
+		return files.write(trips, kindTown, func(w io.Writer) error {
 			var err error
 			stats, err = t.Simulate(ctx, opts, w)
 			return err
@@ -87,7 +82,7 @@ func simulateTrips(ctx context.Context, t *town.Town, opts town.SimOptions, trip
 	}
 	var gpx []town.Trace
 	opts.TraceEvery = gpsEvery
-	err := atomicfile.Write(filepath.Join(dir, "points.csv"), func(w io.Writer) error {
+	err := files.write(filepath.Join(dir, "points.csv"), kindTown, func(w io.Writer) error {
 		points := town.NewPointsWriter(w)
 		opts.OnTrace = func(tr town.Trace) error {
 			if len(gpx) < gpxTraces {
@@ -103,7 +98,7 @@ func simulateTrips(ctx context.Context, t *town.Town, opts town.SimOptions, trip
 	if err != nil {
 		return stats, err
 	}
-	return stats, atomicfile.Write(filepath.Join(dir, "traces.gpx"), func(w io.Writer) error {
+	return stats, files.write(filepath.Join(dir, "traces.gpx"), kindTown, func(w io.Writer) error {
 		return town.WriteGPX(w, "narrows "+version, gpx)
 	})
 }
@@ -158,12 +153,15 @@ func runSimulate(ctx context.Context, env *environment, args []string) error {
 	var size, out, kind string
 	var seed int64
 	var days, perDay, gpsEvery int
+	var noStudy bool
 	fs.StringVar(&size, "size", string(town.SizeTown), "town (the demo, about 50 regions) or city (about 1,500 regions, for benchmarks)")
 	fs.StringVar(&out, "out", "", "folder to write the OSM files, trips.csv and study.toml into")
 	fs.Int64Var(&seed, "seed", 1, "seed of every random draw: the same seed gives the same bytes")
 	fs.IntVar(&days, "days", 0, "days to simulate (default: the scenario's eight weeks)")
 	fs.IntVar(&perDay, "trips-per-day", 0, "fleet trips on an average weekday (default: the scenario's)")
 	fs.StringVar(&kind, "scenario", "link", "link (a new river crossing opens half-way) or control (nothing changes)")
+	env.files.bindForce(fs)
+	fs.BoolVar(&noStudy, "no-study", false, "write the town and its trips only, without study.toml (for --days shorter than the study's periods)")
 	fs.IntVar(&gpsEvery, "gps-every", 0, "also write GPS traces of every `n`-th trip to points.csv and the first 50 to traces.gpx")
 	if err := parseFlags(env, fs, args); err != nil {
 		return err
@@ -174,11 +172,20 @@ func runSimulate(ctx context.Context, env *environment, args []string) error {
 	if days < 0 || perDay < 0 || gpsEvery < 0 {
 		return usagef("--days, --trips-per-day and --gps-every must be positive")
 	}
+	if !noStudy {
+		if err := checkSimulatedDays(kind, days); err != nil {
+			return err
+		}
+	}
 	files, t, plan, err := simulateTown(ctx, env, filepath.Join(out, "town"), town.Size(size), seed, kind, days, perDay, gpsEvery)
 	if err != nil {
 		return err
 	}
-	studyPath, err := writeStudy(out, t, plan)
+	if noStudy {
+		fmt.Fprintf(env.stdout, "wrote %s, %s and %s\n", files.before, files.after, files.trips)
+		return nil
+	}
+	studyPath, err := writeStudy(env.files, out, t, plan)
 	if err != nil {
 		return err
 	}
@@ -188,9 +195,9 @@ func runSimulate(ctx context.Context, env *environment, args []string) error {
 
 // writeStudy writes the study file of a simulated town into dir, whose
 // subfolder "town" holds the town's files, and returns its path.
-func writeStudy(dir string, t *town.Town, plan town.Plan) (string, error) {
+func writeStudy(files *runFiles, dir string, t *town.Town, plan town.Plan) (string, error) {
 	path := filepath.Join(dir, "study.toml")
-	return path, atomicfile.Write(path, func(w io.Writer) error {
+	return path, files.write(path, kindStudy, func(w io.Writer) error {
 		_, err := io.WriteString(w, studyTemplate(t.Name, plan, focusOf(t)))
 		return err
 	})
@@ -208,6 +215,7 @@ func runDemo(ctx context.Context, env *environment, args []string) error {
 	var seed int64
 	fs.StringVar(&dir, "dir", "narrows-demo", "folder for the town, its trips, the study file and the report")
 	fs.Int64Var(&seed, "seed", 1, "seed of the town and its trips")
+	env.files.bindForce(fs)
 	if err := parseFlags(env, fs, args); err != nil {
 		return err
 	}
@@ -217,7 +225,7 @@ func runDemo(ctx context.Context, env *environment, args []string) error {
 	if err != nil {
 		return err
 	}
-	studyPath, err := writeStudy(dir, t, plan)
+	studyPath, err := writeStudy(env.files, dir, t, plan)
 	if err != nil {
 		return err
 	}
@@ -232,5 +240,22 @@ func runDemo(ctx context.Context, env *environment, args []string) error {
 		time.Since(start).Seconds(), t.Housing.Name, t.Jobs.Name)
 	fmt.Fprintf(env.stdout, "Open %s, or re-run the study with: narrows run %s\n",
 		filepath.Join(dir, "out", "report.html"), studyPath)
+	return nil
+}
+
+// checkSimulatedDays refuses a --days that ends the simulation before the
+// study periods that simulate writes into study.toml: the study would
+// compare days without data.
+func checkSimulatedDays(kind string, days int) error {
+	plan, err := town.Scenario(kind)
+	if err != nil || days <= 0 {
+		return nil // simulateTown reports a bad scenario
+	}
+	last := plan.Before.From.AddDate(0, 0, days-1)
+	if need := plan.After.To.AddDate(0, 0, -1); last.Before(need) {
+		n := int(need.Sub(plan.Before.From).Hours()/24+0.5) + 1
+		return usagef("--days %d: the simulation would end on %s, but the study's periods run from %s to %s; give --days %d or more, or --no-study for the town and trips alone",
+			days, last.Format(time.DateOnly), plan.Before.From.Format(time.DateOnly), need.Format(time.DateOnly), n)
+	}
 	return nil
 }

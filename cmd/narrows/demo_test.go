@@ -101,7 +101,7 @@ func TestDemoFindsThePlantedWeaknessAndTheFixWorks(t *testing.T) {
 	}
 	dir := t.TempDir()
 	stdout := mustRunCLI(t, "demo", "--dir", dir)
-	for _, name := range []string{"report.xlsx", "report.html", "regions.geojson", "findings.geojson"} {
+	for _, name := range []string{"report.xlsx", "report.html", "report-regions.geojson", "report-findings.geojson"} {
 		if !strings.Contains(stdout, filepath.Join(dir, "out", name)) {
 			t.Errorf("demo does not say where %s is:\n%s", name, stdout)
 		}
@@ -237,7 +237,7 @@ func checkScanCommand(t *testing.T, dir string, before patterns.ScanOptions, hou
 	}
 
 	// The same over the map layer written beside it.
-	layerData, err := os.ReadFile(filepath.Join(filepath.Dir(out), findingsLayerName))
+	layerData, err := os.ReadFile(strings.TrimSuffix(out, ".json")+".geojson")
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -258,12 +258,12 @@ func checkScanCommand(t *testing.T, dir string, before patterns.ScanOptions, hou
 		p := ft.Properties
 		k := [2]int{min(p.From, p.To), max(p.From, p.To)}
 		if id, ok := layerPair[k]; ok && id != p.Finding || p.Place == "" {
-			t.Errorf("%s: pair %d-%d in findings %s and %s (place %q)", findingsLayerName, k[0], k[1], id, p.Finding, p.Place)
+			t.Errorf("%s: pair %d-%d in findings %s and %s (place %q)", "findings.geojson", k[0], k[1], id, p.Finding, p.Place)
 		}
 		layerPair[k] = p.Finding
 	}
 	if len(layerPair) != len(pairAt) {
-		t.Errorf("%s has %d pairs, findings.json %d", findingsLayerName, len(layerPair), len(pairAt))
+		t.Errorf("%s has %d pairs, findings.json %d", "findings.geojson", len(layerPair), len(pairAt))
 	}
 
 	// --maximal-only lists fewer groups within the places, not fewer places.
@@ -383,9 +383,9 @@ func TestStudyWithoutCompareScans(t *testing.T) {
 		t.Skip("simulated study")
 	}
 	dir := t.TempDir()
-	mustRunCLI(t, "simulate", "--out", dir, "--days", "14", "--trips-per-day", "4000")
+	mustRunCLI(t, "simulate", "--out", dir, "--days", "14", "--trips-per-day", "4000", "--no-study")
 	study := filepath.Join(dir, "study.toml")
-	text, err := os.ReadFile(study)
+	text, err := os.ReadFile(filepath.Join("..", "..", "testdata", "study.toml"))
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -400,7 +400,7 @@ func TestStudyWithoutCompareScans(t *testing.T) {
 	if !strings.Contains(stdout, "analysed days") {
 		t.Errorf("no scan headline:\n%s", stdout)
 	}
-	for _, name := range []string{"findings.json", "findings.geojson", "regions.geojson", "report.xlsx", "report.html"} {
+	for _, name := range []string{"report-findings.json", "report-findings.geojson", "report-regions.geojson", "report.xlsx", "report.html"} {
 		if _, err := os.Stat(filepath.Join(dir, "out", name)); err != nil {
 			t.Errorf("scan-only study: %v", err)
 		}

@@ -13,7 +13,7 @@ func TestSimulatedGPSAndGPXIngest(t *testing.T) {
 	if testing.Short() {
 		t.Skip("simulation and three ingests")
 	}
-	dir, regions := simulatedTown(t, "--days", "2", "--trips-per-day", "2000", "--gps-every", "20")
+	dir, regions := simulatedTown(t, "--days", "2", "--trips-per-day", "2000", "--gps-every", "20", "--no-study")
 	used := regexp.MustCompile(`(?m)^\s+used\s+(\d+)`)
 
 	// The quality thresholds are settable: a speed ceiling of 20 km/h

@@ -6,7 +6,6 @@ import (
 	"fmt"
 	"time"
 
-	"narrows/cmd/internal/atomicfile"
 	"narrows/partition"
 	"narrows/regiongraph"
 )
@@ -19,6 +18,7 @@ func runIngest(ctx context.Context, env *environment, args []string) error {
 	fs.Var(&trips, "trips", "trip or GPS file, or a folder of GPX files (repeatable; more files may follow the options)")
 	fs.Var(&merge, "merge", "existing day-graph store to merge into the output (repeatable)")
 	fs.StringVar(&out, "out", "", "day-graph store (Parquet) to write")
+	env.files.bindForce(fs)
 	opts, format := regiongraph.DefaultOptions(), regiongraph.FormatTrips
 	optFlags := bindOptions(fs, func(fs *flag.FlagSet) { bindIngest(fs, &opts, &format) })
 	// Trip files may also follow the options, as in "--trips a.csv b.csv".
@@ -29,6 +29,12 @@ func runIngest(ctx context.Context, env *environment, args []string) error {
 		return usagef("--regions, --trips and --out are required")
 	}
 	if err := optFlags.check(opts.Validate()); err != nil {
+		return err
+	}
+	env.files.read(regionsPath)
+	env.files.read(trips...)
+	env.files.read(merge...)
+	if err := env.files.claim(out, kindStore); err != nil {
 		return err
 	}
 	regions, sum, err := readRegions(regionsPath)
@@ -75,10 +81,7 @@ func ingest(ctx context.Context, env *environment, regions *partition.Partition,
 			return nil, err
 		}
 	}
-	if _, err := outputDir(out); err != nil {
-		return nil, err
-	}
-	if err := atomicfile.Write(out, store.WriteParquet); err != nil {
+	if err := env.files.write(out, kindStore, store.WriteParquet); err != nil {
 		return nil, err
 	}
 	printQuality(env, store.Meta.Quality)

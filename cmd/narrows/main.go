@@ -25,6 +25,7 @@ import (
 	"os"
 	"os/signal"
 	"strings"
+	"syscall"
 )
 
 // Exit codes.
@@ -52,6 +53,9 @@ type environment struct {
 	stdout, stderr io.Writer
 	// interactive reports whether stderr is a terminal (progress bars).
 	interactive bool
+	// files is what the running command reads and writes (set by
+	// dispatch for each command).
+	files *runFiles
 }
 
 // usageError marks a command-line mistake (exit code 2).
@@ -78,7 +82,7 @@ func commands() []command {
 }
 
 func main() {
-	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
+	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
 	defer stop()
 	// The first interrupt cancels the work (outputs are never half-written);
 	// a second one, should a step not notice, ends the process at once.
@@ -108,7 +112,13 @@ func dispatch(ctx context.Context, env *environment, args []string) int {
 		if c.name != name {
 			continue
 		}
-		err := c.run(ctx, env, args[1:])
+		cenv := *env
+		cenv.files = newRunFiles(env.stderr)
+		cenv.files.ctx = ctx
+		err := c.run(ctx, &cenv, args[1:])
+		if interrupted(ctx, env.stderr, name, err, cenv.files) {
+			return exitInterrupted
+		}
 		switch {
 		case err == nil:
 			return exitOK

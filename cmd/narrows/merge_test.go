@@ -17,7 +17,7 @@ func TestIngestMergeEqualsOneIngest(t *testing.T) {
 	if testing.Short() {
 		t.Skip("simulation and three ingests")
 	}
-	dir, regions := simulatedTown(t, "--days", "14", "--trips-per-day", "3000")
+	dir, regions := simulatedTown(t, "--days", "14", "--trips-per-day", "3000", "--no-study")
 	// Split the trips by start day: the first week, then the second.
 	all := filepath.Join(dir, "town", "trips.csv")
 	weeks := [2]string{filepath.Join(dir, "week1.csv"), filepath.Join(dir, "week2.csv")}

@@ -12,7 +12,6 @@ import (
 	"strings"
 	"time"
 
-	"narrows/cmd/internal/atomicfile"
 	"narrows/partition"
 )
 
@@ -21,6 +20,7 @@ func runRegions(ctx context.Context, env *environment, args []string) error {
 	var osmPath, out string
 	fs.StringVar(&osmPath, "osm", "", "OpenStreetMap extract: PBF or XML (plain, gzip or bzip2)")
 	fs.StringVar(&out, "out", "", "GeoJSON file to write")
+	env.files.bindForce(fs)
 	opts := partition.DefaultOptions()
 	optFlags := bindOptions(fs, func(fs *flag.FlagSet) { bindRegions(fs, &opts) })
 	if err := parseFlags(env, fs, args); err != nil {
@@ -30,6 +30,10 @@ func runRegions(ctx context.Context, env *environment, args []string) error {
 		return usagef("--osm and --out are required")
 	}
 	if err := optFlags.check(opts.Validate()); err != nil {
+		return err
+	}
+	env.files.read(osmPath)
+	if err := env.files.claim(out, kindRegions); err != nil {
 		return err
 	}
 	_, _, err := buildRegions(ctx, env, osmPath, opts, out)
@@ -51,10 +55,7 @@ func buildRegions(ctx context.Context, env *environment, osmPath string, opts pa
 	if err := p.WriteGeoJSON(&geojson); err != nil {
 		return nil, "", err
 	}
-	if _, err := outputDir(out); err != nil {
-		return nil, "", err
-	}
-	if err := atomicfile.Write(out, func(w io.Writer) error { _, err := w.Write(geojson.Bytes()); return err }); err != nil {
+	if err := env.files.write(out, kindRegions, func(w io.Writer) error { _, err := w.Write(geojson.Bytes()); return err }); err != nil {
 		return nil, "", err
 	}
 	var area float64

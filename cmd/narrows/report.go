@@ -6,33 +6,38 @@ import (
 	"io"
 	"path/filepath"
 
-	"narrows/cmd/internal/atomicfile"
 	"narrows/report"
 )
 
-// File names of the map layers written beside a report.
-const (
-	regionsLayerName  = "regions.geojson"
-	findingsLayerName = "findings.geojson"
-)
+// reportOutputs are the files of a report named from base in dir: the
+// workbook base.xlsx, the map layers base-regions.geojson and
+// base-findings.geojson, and the page base.html, in the order written.
+func reportOutputs(dir, base string) []output {
+	p := filepath.Join(dir, base)
+	return []output{
+		{p + ".xlsx", kindWorkbook},
+		{p + "-regions.geojson", kindRegionsLayer},
+		{p + "-findings.geojson", kindFindingsLayer},
+		{p + ".html", kindPage},
+	}
+}
 
-// writeReportFiles writes the workbook dir/base.xlsx, the map layers
-// dir/regions.geojson and dir/findings.geojson, and the page dir/base.html,
-// in that order, and returns their paths. All four are rendered in memory
-// first, so a failure leaves no report half-written: either none of them is
-// replaced or, barring a failing disk, all are.
-func writeReportFiles(dir, base string, in report.Input) ([]string, error) {
-	if base == "" || base != filepath.Base(base) {
+// writeReportFiles writes the files of reportOutputs(dir, base) and returns
+// their paths. All four are rendered in memory first, so a failure leaves
+// no report half-written: either none of them is replaced or, barring a
+// failing disk, all are.
+func writeReportFiles(files *runFiles, dir, base string, in report.Input) ([]string, error) {
+	if base == "" || base != filepath.Base(base) || base == "." || base == ".." {
 		return nil, fmt.Errorf("report: base name %q must be a plain file name", base)
 	}
-	outputs := []struct {
-		name  string
+	writers := []func(io.Writer, report.Input) error{report.WriteWorkbook, report.WriteRegionsGeoJSON, report.WriteFindingsGeoJSON, report.WriteHTML}
+	outs := reportOutputs(dir, base)
+	outputs := make([]struct {
+		output
 		write func(io.Writer, report.Input) error
-	}{
-		{base + ".xlsx", report.WriteWorkbook},
-		{regionsLayerName, report.WriteRegionsGeoJSON},
-		{findingsLayerName, report.WriteFindingsGeoJSON},
-		{base + ".html", report.WriteHTML},
+	}, len(outs))
+	for i := range outs {
+		outputs[i].output, outputs[i].write = outs[i], writers[i]
 	}
 	rendered := make([]bytes.Buffer, len(outputs))
 	for i, o := range outputs {
@@ -42,8 +47,8 @@ func writeReportFiles(dir, base string, in report.Input) ([]string, error) {
 	}
 	paths := make([]string, 0, len(outputs))
 	for i, o := range outputs {
-		p := filepath.Join(dir, o.name)
-		if err := atomicfile.Write(p, func(w io.Writer) error {
+		p := o.path
+		if err := files.write(p, o.kind, func(w io.Writer) error {
 			_, err := rendered[i].WriteTo(w)
 			return err
 		}); err != nil {

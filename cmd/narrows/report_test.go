@@ -5,6 +5,7 @@ import (
 	"os"
 	"path/filepath"
 	"reflect"
+	"slices"
 	"testing"
 
 	"github.com/paulmach/orb"
@@ -39,11 +40,11 @@ func smallReport() report.Input {
 
 func TestWriteReport(t *testing.T) {
 	dir := t.TempDir()
-	paths, err := writeReportFiles(dir, "lowmere", smallReport())
+	paths, err := writeReportFiles(newRunFiles(nil), dir, "lowmere", smallReport())
 	if err != nil {
 		t.Fatal(err)
 	}
-	want := []string{"lowmere.xlsx", "regions.geojson", "findings.geojson", "lowmere.html"}
+	want := []string{"lowmere.xlsx", "lowmere-regions.geojson", "lowmere-findings.geojson", "lowmere.html"}
 	for i := range want {
 		want[i] = filepath.Join(dir, want[i])
 	}
@@ -51,6 +52,7 @@ func TestWriteReport(t *testing.T) {
 		t.Errorf("paths = %q, want %q", paths, want)
 	}
 	entries, _ := os.ReadDir(dir)
+	entries = slices.DeleteFunc(entries, func(e os.DirEntry) bool { return e.Name() == manifestName })
 	if len(entries) != len(want) {
 		var names []string
 		for _, e := range entries {
@@ -73,15 +75,15 @@ func TestWriteReport(t *testing.T) {
 	}
 
 	// A folder that cannot be made fails without leaving anything.
-	if _, err := writeReportFiles(filepath.Join(paths[0], "sub"), "x", smallReport()); err == nil {
+	if _, err := writeReportFiles(newRunFiles(nil), filepath.Join(paths[0], "sub"), "x", smallReport()); err == nil {
 		t.Error("writeReportFiles below a file: no error")
 	}
 	for _, base := range []string{"", "../up", "a/b"} {
-		if _, err := writeReportFiles(dir, base, smallReport()); err == nil {
+		if _, err := writeReportFiles(newRunFiles(nil), dir, base, smallReport()); err == nil {
 			t.Errorf("writeReport with base %q: no error", base)
 		}
 	}
-	if after, _ := os.ReadDir(dir); len(after) != len(want) {
+	if after, _ := os.ReadDir(dir); len(after) != len(want)+1 {
 		t.Errorf("failed writes left files: %d entries, want %d", len(after), len(want))
 	}
 }
@@ -91,7 +93,7 @@ func TestWriteReportInvalidInput(t *testing.T) {
 	dir := t.TempDir()
 	in := smallReport()
 	in.Scan = nil
-	if _, err := writeReportFiles(dir, "study", in); err == nil {
+	if _, err := writeReportFiles(newRunFiles(nil), dir, "study", in); err == nil {
 		t.Fatal("writeReportFiles without a scan: no error")
 	}
 	if left, _ := os.ReadDir(dir); len(left) != 0 {

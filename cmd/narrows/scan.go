@@ -7,10 +7,10 @@ import (
 	"fmt"
 	"io"
 	"path/filepath"
+	"strings"
 	"text/tabwriter"
 	"time"
 
-	"narrows/cmd/internal/atomicfile"
 	"narrows/partition"
 	"narrows/partition/geodesy"
 	"narrows/patterns"
@@ -52,7 +52,8 @@ func runScan(ctx context.Context, env *environment, args []string) error {
 		fs.StringVar(&opts.To, "to", "", "last day `YYYY-MM-DD` (default: the store's last)")
 		bindScan(fs, &opts)
 	})
-	fs.StringVar(&out, "out", "", "findings JSON to write; findings.geojson is written beside it")
+	fs.StringVar(&out, "out", "", "findings JSON `STEM.json` to write; the map layer STEM.geojson is written beside it")
+	env.files.bindForce(fs)
 	if err := parseFlags(env, fs, args); err != nil {
 		return err
 	}
@@ -60,6 +61,14 @@ func runScan(ctx context.Context, env *environment, args []string) error {
 		return usagef("--graphs and --out are required")
 	}
 	if err := optFlags.check(opts.Validate()); err != nil {
+		return err
+	}
+	if !strings.EqualFold(filepath.Ext(out), ".json") {
+		return usagef("--out: the findings are JSON; name them STEM.json (the map layer becomes STEM.geojson), got %q", out)
+	}
+	layer := stemOf(out) + ".geojson"
+	env.files.read(in.graphs, in.regions)
+	if err := env.files.claimAll([]output{{out, kindFindings}, {layer, kindFindingsLayer}}); err != nil {
 		return err
 	}
 	store, regions, err := in.open(opts)
@@ -75,15 +84,11 @@ func runScan(ctx context.Context, env *environment, args []string) error {
 		return fmt.Errorf("%s: %w", in.graphs, err)
 	}
 	elapsed := time.Since(start)
-	if _, err := outputDir(out); err != nil {
+	if err := env.files.write(out, kindFindings, func(w io.Writer) error { return writeFindingsJSON(w, scan, regions) }); err != nil {
 		return err
 	}
-	if err := atomicfile.Write(out, func(w io.Writer) error { return writeFindingsJSON(w, scan, regions) }); err != nil {
-		return err
-	}
-	layer := filepath.Join(filepath.Dir(out), findingsLayerName)
 	rin := report.Input{Regions: regions, Store: &store.Meta, Scan: scan, Version: version}
-	if err := atomicfile.Write(layer, func(w io.Writer) error { return report.WriteFindingsGeoJSON(w, rin) }); err != nil {
+	if err := env.files.write(layer, kindFindingsLayer, func(w io.Writer) error { return report.WriteFindingsGeoJSON(w, rin) }); err != nil {
 		return err
 	}
 	printFindings(env.stdout, scan, regions, 20)
@@ -237,7 +242,7 @@ func printFindings(w io.Writer, scan *patterns.Scan, regions *partition.Partitio
 			fmt.Fprintf(tw, "…\t%d more\t\t\t\t\t\t\n", len(scan.Findings)-n)
 			break
 		}
-		fmt.Fprintf(tw, "%d\t%s (%s)\t%d (%.0f %%)\t\t\t\t%.0f\t%.1f\n", f.Rank, report.PlaceName(f, regions), f.ID,
+		fmt.Fprintf(tw, "%d\t%s (%s)\t%d (%.0f %%)\t\t\t\t%.0f\t%.1f\n", f.Rank, terminalText(report.PlaceName(f, regions)), f.ID,
 			len(f.Days), 100*f.Share, f.ExtraKMPerDay, f.ExtraHoursPerDay)
 		for _, e := range f.Edges {
 			fmt.Fprintf(tw, "\t  %d→%d\t%d (%.0f %%)\t%.0f\t%.1f\t%.2f\t%.0f\t%.1f\n", e.From, e.To,

@@ -11,7 +11,6 @@ import (
 
 	"github.com/BurntSushi/toml"
 
-	"narrows/cmd/internal/atomicfile"
 	"narrows/partition"
 	"narrows/patterns"
 	"narrows/regiongraph"
@@ -113,6 +112,9 @@ func loadStudy(path string) (*study, error) {
 	if s.Name == "" {
 		s.Name = "report"
 	}
+	if err := s.checkPlaces(); err != nil {
+		return nil, fmt.Errorf("study file %s: %v", path, err)
+	}
 	if s.TimeZone != "" {
 		s.Trips.TimeZone = s.TimeZone
 	}
@@ -163,8 +165,10 @@ func (s *study) windows() error {
 }
 
 func runStudy(ctx context.Context, env *environment, args []string) error {
-	fs := newFlagSet(env, "run", "study.toml")
-	var file string
+	fs := newFlagSet(env, "run", "[--output DIR] [--force] study.toml")
+	var file, output string
+	fs.StringVar(&output, "output", "", "folder for the outputs, anywhere (default: the study file's output, inside its folder)")
+	env.files.bindForce(fs)
 	if err := parseFlagsWithRest(env, fs, args, func(rest []string) {
 		if file == "" && len(rest) > 0 {
 			file, rest = rest[0], rest[1:]
@@ -181,6 +185,14 @@ func runStudy(ctx context.Context, env *environment, args []string) error {
 	s, err := loadStudy(file)
 	if err != nil {
 		return err
+	}
+	if output != "" {
+		// Given on the command line, the folder may be anywhere.
+		abs, err := filepath.Abs(output)
+		if err != nil {
+			return err
+		}
+		s.Output = abs
 	}
 	return s.run(ctx, env, filepath.Dir(file), file)
 }
@@ -207,6 +219,9 @@ func (s *study) run(ctx context.Context, env *environment, dir, file string) err
 	r := &studyRun{study: s, file: file, dir: dir}
 	r.out = r.rel(s.Output)
 	r.steps = filepath.Join(r.out, "steps")
+	if err := r.claimOutputs(env.files); err != nil {
+		return err
+	}
 	if err := os.MkdirAll(r.steps, 0o755); err != nil {
 		return err
 	}
@@ -283,7 +298,7 @@ func (r *studyRun) scan(ctx context.Context, env *environment, store *regiongrap
 	if err != nil {
 		return fmt.Errorf("study file %s: %w", r.file, err)
 	}
-	if err := atomicfile.Write(filepath.Join(r.out, "findings.json"), func(w io.Writer) error { return writeFindingsJSON(w, scan, in.Regions) }); err != nil {
+	if err := env.files.write(r.findingsPath(), kindFindings, func(w io.Writer) error { return writeFindingsJSON(w, scan, in.Regions) }); err != nil {
 		return err
 	}
 	printFindings(env.stdout, scan, in.Regions, 10)

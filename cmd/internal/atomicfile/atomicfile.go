@@ -10,7 +10,52 @@ import (
 	"io"
 	"os"
 	"path/filepath"
+	"strings"
 )
+
+// maxNameBytes is the longest file name most file systems take (ext4, XFS,
+// APFS, NTFS: 255 bytes). The temporary name is kept within it, so that
+// any output name the file system accepts can be written.
+const maxNameBytes = 255
+
+// tempSuffix stands between the target's name and CreateTemp's random
+// digits (up to 20 of them).
+const tempSuffix = ".tmp-"
+
+// tempPrefix is the start of the name of every temporary file for the
+// target named base: a dot, base (cut short enough that the whole name
+// fits in maxNameBytes) and tempSuffix.
+func tempPrefix(base string) string {
+	keep := maxNameBytes - 1 - len(tempSuffix) - 20
+	if len(base) > keep {
+		base = base[:keep]
+	}
+	return "." + base + tempSuffix
+}
+
+// Stale returns the temporary files beside path that a write of path left
+// behind when its process was killed before the rename: they are hidden,
+// named after path, and never read. A run about to write path may remove
+// them.
+func Stale(path string) ([]string, error) {
+	dir, prefix := filepath.Dir(path), tempPrefix(filepath.Base(path))
+	entries, err := os.ReadDir(dir)
+	if err != nil {
+		if os.IsNotExist(err) {
+			return nil, nil
+		}
+		return nil, err
+	}
+	var stale []string
+	for _, e := range entries {
+		rest, ok := strings.CutPrefix(e.Name(), prefix)
+		if !ok || rest == "" || strings.Trim(rest, "0123456789") != "" || !e.Type().IsRegular() {
+			continue
+		}
+		stale = append(stale, filepath.Join(dir, e.Name()))
+	}
+	return stale, nil
+}
 
 // Write writes the file at path with the bytes that write produces.
 //
@@ -25,7 +70,7 @@ import (
 // mode of a temporary file.
 func Write(path string, write func(w io.Writer) error) (err error) {
 	dir := filepath.Dir(path)
-	tmp, err := os.CreateTemp(dir, "."+filepath.Base(path)+".tmp-*")
+	tmp, err := os.CreateTemp(dir, tempPrefix(filepath.Base(path))+"*")
 	if err != nil {
 		return fmt.Errorf("writing %s: %w", path, err)
 	}

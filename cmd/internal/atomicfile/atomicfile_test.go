@@ -135,3 +135,55 @@ func TestWriteFailuresNameThePath(t *testing.T) {
 		t.Errorf("left behind: %s", e.Name())
 	}
 }
+
+// A name of the file system's longest length can be written: the
+// temporary name stays within the limit too.
+func TestWriteLongName(t *testing.T) {
+	dir := t.TempDir()
+	path := filepath.Join(dir, strings.Repeat("n", maxNameBytes-5)+".xlsx")
+	if err := Write(path, func(w io.Writer) error { _, err := io.WriteString(w, "x"); return err }); err != nil {
+		t.Fatalf("Write of a %d-byte name: %v", maxNameBytes, err)
+	}
+	if got, err := os.ReadFile(path); err != nil || string(got) != "x" {
+		t.Fatalf("read back %q, %v", got, err)
+	}
+}
+
+// Stale finds the temporary files of the named target only.
+func TestStale(t *testing.T) {
+	dir := t.TempDir()
+	long := strings.Repeat("l", maxNameBytes-5) + ".xlsx"
+	files := map[string]bool{ // name: is a stale temporary file of its target
+		".report.xlsx.tmp-123456":      true,
+		".report.xlsx.tmp-9":           true,
+		".report.xlsx.tmp-":            false, // no digits: not CreateTemp's
+		".report.xlsx.tmp-12a":         false,
+		".report.xlsx.bak":             false,
+		".other.xlsx.tmp-123":          false, // another target's
+		"report.xlsx":                  false,
+		tempPrefix(long)[0:] + "77889": true,
+	}
+	for name := range files {
+		if err := os.WriteFile(filepath.Join(dir, name), nil, 0o644); err != nil {
+			t.Fatal(err)
+		}
+	}
+	got := map[string]bool{}
+	for _, target := range []string{"report.xlsx", long} {
+		stale, err := Stale(filepath.Join(dir, target))
+		if err != nil {
+			t.Fatal(err)
+		}
+		for _, p := range stale {
+			got[filepath.Base(p)] = true
+		}
+	}
+	for name, want := range files {
+		if got[name] != want {
+			t.Errorf("%s: stale %v, want %v", name, got[name], want)
+		}
+	}
+	if stale, err := Stale(filepath.Join(dir, "missing", "x")); err != nil || len(stale) != 0 {
+		t.Errorf("missing folder: %v, %v", stale, err)
+	}
+}
