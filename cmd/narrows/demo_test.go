@@ -237,7 +237,7 @@ func checkScanCommand(t *testing.T, dir string, before patterns.ScanOptions, hou
 	}
 
 	// The same over the map layer written beside it.
-	layerData, err := os.ReadFile(strings.TrimSuffix(out, ".json")+".geojson")
+	layerData, err := os.ReadFile(strings.TrimSuffix(out, ".json") + ".geojson")
 	if err != nil {
 		t.Fatal(err)
 	}
