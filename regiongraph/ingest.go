@@ -73,7 +73,7 @@ func Ingest(ctx context.Context, regions *partition.Partition, regionsSHA256 str
 		return nil, err
 	}
 	edges, quality := finish(st, loc, tallies)
-	if err := checkYield(st, quality); err != nil {
+	if err := checkYield(st, quality, sources); err != nil {
 		return nil, err
 	}
 	return &Store{

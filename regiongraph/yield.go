@@ -12,6 +12,7 @@ import (
 // column mapping or time zone, which a store of next to nothing would only
 // show later as "no days".
 type YieldError struct {
+	Files    []string // the inputs, as given
 	Quality  Quality
 	MinShare float64
 	Top      []ReasonCount // the most frequent reasons, most first (up to 3)
@@ -26,10 +27,14 @@ type ReasonCount struct {
 
 func (e *YieldError) Error() string {
 	var b strings.Builder
+	b.WriteString("regiongraph: ")
+	if len(e.Files) > 0 {
+		b.WriteString(strings.Join(e.Files, ", ") + ": ")
+	}
 	if e.Quality.Used == 0 {
-		fmt.Fprintf(&b, "regiongraph: no row of %d used", e.Quality.Read)
+		fmt.Fprintf(&b, "no row of %d used", e.Quality.Read)
 	} else {
-		fmt.Fprintf(&b, "regiongraph: %d of %d rows used (%.2g %%), under the least share %g",
+		fmt.Fprintf(&b, "%d of %d rows used (%.2g %%), under the least share %g",
 			e.Quality.Used, e.Quality.Read, 100*float64(e.Quality.Used)/float64(e.Quality.Read), e.MinShare)
 	}
 	for i, rc := range e.Top {
@@ -69,11 +74,14 @@ var hints = map[Reason]string{
 }
 
 // checkYield returns a *YieldError when the ingest used no row or too few.
-func checkYield(st *settings, q Quality) error {
+func checkYield(st *settings, q Quality, sources []Source) error {
 	if q.Used > 0 && float64(q.Used) >= st.opts.MinUsedShare*float64(q.Read) {
 		return nil
 	}
 	e := &YieldError{Quality: q, MinShare: st.opts.MinUsedShare}
+	for _, src := range sources {
+		e.Files = append(e.Files, src.Path)
+	}
 	for _, r := range RejectReasons() {
 		if n := q.Rejected[string(r)]; n > 0 {
 			e.Top = append(e.Top, ReasonCount{r, n})
