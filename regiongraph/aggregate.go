@@ -114,6 +114,9 @@ type trip struct {
 // trip when it passes. It returns the row's outcome; the caller counts rows.
 func (t *tally) add(tr *trip) Reason {
 	st := t.st
+	if !st.plausible(tr.startMS) || !st.plausible(tr.endMS) {
+		return ReasonImplausibleTime // CSV readers check it per field; Parquet and GPX here
+	}
 	from := t.loc.locate(tr.origin)
 	if from == 0 {
 		return ReasonOutside

@@ -311,7 +311,7 @@ func syntheticStore(days, regions, perDay int, windows ...string) *Store {
 			seen := make(map[pair]bool, perDay)
 			var pairs []pair
 			for len(pairs) < perDay {
-				p := pair{rng.IntN(regions), rng.IntN(regions)}
+				p := pair{1 + rng.IntN(regions), 1 + rng.IntN(regions)} // region ids from 1
 				if p.from != p.to && !seen[p] {
 					seen[p] = true
 					pairs = append(pairs, p)
@@ -331,6 +331,14 @@ func syntheticStore(days, regions, perDay int, windows ...string) *Store {
 			}
 		}
 	}
+	// The accounting of an ingest that used as many rows as the busiest
+	// window holds trips.
+	perWindow := map[string]int64{}
+	for _, e := range s.Edges {
+		perWindow[e.Window] += int64(e.Trips)
+		s.Meta.Quality.Used = max(s.Meta.Quality.Used, perWindow[e.Window])
+	}
+	s.Meta.Quality.Read = s.Meta.Quality.Used
 	return s
 }
 

@@ -153,7 +153,7 @@ type chunk struct {
 	seq       int64
 	data      []byte
 	firstLine int64 // line number of data's first byte
-	quoted    bool  // data has a '"': records may span lines
+	last      bool  // the file's last chunk: its end is the end of the file
 	buf       []byte
 }
 
@@ -162,6 +162,7 @@ type chunk struct {
 type chunker struct {
 	src      io.Reader
 	hash     hash.Hash
+	limits   quoteLimits
 	free     chan []byte
 	out      chan chunk
 	progress func(n int64)
@@ -199,11 +200,13 @@ func (k *chunker) run(ctx context.Context) error {
 			} else if err != nil {
 				return err
 			}
-			if end = recordEnd(buf[:n], bytes.IndexByte(buf[:n], '"') >= 0); end >= 0 {
+			if end = recordsEnd(buf[:n], k.limits); end >= 0 {
 				break
 			}
+			// No record ends in the buffer: with quoted fields bounded,
+			// only a line without a line end gets here.
 			if len(buf) >= maxLineSize {
-				return fmt.Errorf("line %d: record longer than %d bytes (unbalanced quote?)", line, maxLineSize)
+				return fmt.Errorf("line %d: longer than %d bytes without a line end", line, maxLineSize)
 			}
 			buf = append(buf[:n], make([]byte, len(buf))...)
 			buf = buf[:cap(buf)]
@@ -211,7 +214,7 @@ func (k *chunker) run(ctx context.Context) error {
 		data := buf[:end]
 		carry = append(carry[:0], buf[end:n]...)
 		k.hash.Write(data)
-		ch := chunk{seq: seq, data: data, firstLine: line, quoted: bytes.IndexByte(data, '"') >= 0, buf: buf}
+		ch := chunk{seq: seq, data: data, firstLine: line, last: eof, buf: buf}
 		line += int64(bytes.Count(data, []byte{'\n'}))
 		if k.progress != nil {
 			k.progress(int64(len(data)))
@@ -228,79 +231,205 @@ func (k *chunker) run(ctx context.Context) error {
 	return nil
 }
 
-// recordEnd returns the index after the last newline that ends a record, or
-// -1. With quotes present, newlines inside quoted fields do not count.
-func recordEnd(data []byte, quoted bool) int {
-	if !quoted {
-		i := bytes.LastIndexByte(data, '\n')
-		if i < 0 {
-			return -1
+// quoteLimits bound a quoted field: it may hold at most lines-1 line ends
+// and span at most bytes bytes from its opening quote.
+type quoteLimits struct {
+	lines int
+	bytes int64
+}
+
+func (st *settings) quoteLimits() quoteLimits {
+	return quoteLimits{lines: st.opts.MaxQuotedLines, bytes: st.opts.MaxQuotedBytes}
+}
+
+// The outcomes of scanRecord.
+const (
+	recordWhole    = iota // a whole record
+	recordBadQuote        // a quoted field that does not close within the limits, or text after a closing quote
+	recordMore            // the data ends inside a record that may yet be whole
+)
+
+// scanRecord finds the record at the start of data, which starts a line,
+// and returns its length with its line end and its outcome. A quote opens a
+// quoted field only as the first byte of a field (elsewhere it is text, so
+// that an inch mark 12" is read as written); inside, "" is a quote, and the
+// closing quote must be followed by a comma or the line end. A record with
+// a quote fault is its first line alone: reading resumes on the next line.
+// atEOF says that data ends where the file does. The work is linear: each
+// byte is looked at a bounded number of times, whatever the quotes.
+func scanRecord(data []byte, atEOF bool, lim quoteLimits) (n, outcome int) {
+	bad := func() (int, int) {
+		if i := bytes.IndexByte(data, '\n'); i >= 0 {
+			return i + 1, recordBadQuote
 		}
-		return i + 1
+		if atEOF {
+			return len(data), recordBadQuote
+		}
+		return 0, recordMore
 	}
-	last := -1
-	in := false
-	for i, c := range data {
-		switch c {
-		case '"':
-			in = !in
-		case '\n':
-			if !in {
-				last = i
+	i, fieldStart := 0, true
+	for {
+		if i >= len(data) {
+			if atEOF {
+				return len(data), recordWhole
 			}
+			return 0, recordMore
+		}
+		switch c := data[i]; {
+		case c == '\n':
+			return i + 1, recordWhole
+		case c == ',':
+			fieldStart = true
+			i++
+			continue
+		case c != '"' || !fieldStart:
+			fieldStart = false
+			i++
+			continue
+		}
+		// A quoted field opens at i.
+		open := i
+		i++
+		lineEnds := 0
+		for {
+			rest := data[i:]
+			q := bytes.IndexByte(rest, '"')
+			span := rest
+			if q >= 0 {
+				span = rest[:q]
+			}
+			if int64(i+len(span)-open) > lim.bytes {
+				span = span[:max(0, int(lim.bytes)-(i-open))]
+				q = -2 // over the byte limit
+			}
+			lineEnds += bytes.Count(span, []byte{'\n'})
+			if lineEnds > lim.lines-1 || q == -2 {
+				return bad()
+			}
+			if q < 0 {
+				if atEOF {
+					return bad() // never closes
+				}
+				return 0, recordMore
+			}
+			k := i + q // the quote
+			if k+1 == len(data) {
+				if atEOF {
+					return len(data), recordWhole
+				}
+				return 0, recordMore
+			}
+			switch data[k+1] {
+			case '"':
+				i = k + 2
+				continue
+			case ',':
+				i, fieldStart = k+2, true
+			case '\n':
+				return k + 2, recordWhole
+			case '\r':
+				if k+2 == len(data) {
+					if atEOF {
+						return len(data), recordWhole
+					}
+					return 0, recordMore
+				}
+				if data[k+2] == '\n' {
+					return k + 3, recordWhole
+				}
+				return bad()
+			default:
+				return bad()
+			}
+			break
 		}
 	}
-	if last < 0 {
-		return -1
+}
+
+// recordsEnd returns the index after the last whole record of data, which
+// starts a record, or -1 when no record ends in data. Lines without a quote
+// before the next quote are records of their own.
+func recordsEnd(data []byte, lim quoteLimits) int {
+	end := -1
+	for pos := 0; pos < len(data); {
+		q := bytes.IndexByte(data[pos:], '"')
+		if q < 0 {
+			if nl := bytes.LastIndexByte(data[pos:], '\n'); nl >= 0 {
+				return pos + nl + 1
+			}
+			return end
+		}
+		ls := pos + bytes.LastIndexByte(data[pos:pos+q], '\n') + 1 // the start of the quote's line
+		if ls > pos {
+			end = ls
+		}
+		n, outcome := scanRecord(data[ls:], false, lim)
+		if outcome == recordMore {
+			return end
+		}
+		pos = ls + n
+		end = pos
 	}
-	return last + 1
+	return end
 }
 
 // lineSplitter yields the records of a chunk with their line numbers.
 type lineSplitter struct {
 	data   []byte
 	line   int64 // line number of the next record
-	quoted bool
+	atEOF  bool  // data ends where the file does
+	limits quoteLimits
 }
 
-// next returns the next record without its line end, the line it starts on,
-// whether it needs the quoted-field parser, and false at the end.
-func (s *lineSplitter) next() (rec []byte, line int64, slow, ok bool) {
+// The kinds of record next returns.
+const (
+	plainRecord  = iota // no quote: split at commas
+	quotedRecord        // quotes: split by splitQuoted
+	badQuote            // a quote fault (see scanRecord): the record is one line, not to be split
+)
+
+// next returns the next record without its line end, the line it starts
+// on, its kind, and false at the end.
+func (s *lineSplitter) next() (rec []byte, line int64, kind int, ok bool) {
 	for len(s.data) > 0 {
 		line = s.line
 		i := bytes.IndexByte(s.data, '\n')
 		if i < 0 {
-			rec, s.data = s.data, nil
+			rec = s.data
 		} else {
-			rec, s.data = s.data[:i], s.data[i+1:]
+			rec = s.data[:i]
 		}
-		s.line++
-		if s.quoted && bytes.IndexByte(rec, '"') >= 0 {
-			slow = true
-			// Extend over quoted newlines until the quotes balance.
-			for bytes.Count(rec, []byte{'"'})%2 == 1 && len(s.data) > 0 {
-				j := bytes.IndexByte(s.data, '\n')
-				if j < 0 {
-					j = len(s.data)
-				}
-				rec = rec[:len(rec)+1+j] // rec and s.data are adjacent in the chunk
-				if j < len(s.data) {
-					s.data = s.data[j+1:]
-				} else {
-					s.data = nil
-				}
-				s.line++
+		kind = plainRecord
+		n := len(rec) + 1
+		if bytes.IndexByte(rec, '"') >= 0 {
+			var outcome int
+			n, outcome = scanRecord(s.data, true, s.limits)
+			rec = s.data[:n]
+			if outcome == recordBadQuote {
+				kind = badQuote
+			} else {
+				kind = quotedRecord
 			}
+			rec = bytes.TrimSuffix(rec, []byte{'\n'})
 		}
+		s.line += int64(bytes.Count(rec, []byte{'\n'})) + 1
+		s.data = s.data[min(n, len(s.data)):]
 		if n := len(rec); n > 0 && rec[n-1] == '\r' {
 			rec = rec[:n-1]
 		}
 		if len(bytes.TrimSpace(rec)) == 0 {
 			continue // blank lines are not rows
 		}
-		return rec, line, slow, true
+		return rec, line, kind, true
 	}
-	return nil, 0, false, false
+	return nil, 0, 0, false
+}
+
+// quoteFault says what is wrong with a record of kind badQuote.
+func quoteFault(lim quoteLimits) fault {
+	detail := fmt.Sprintf("a quoted field opened on this line does not close within %d line(s) and %d bytes, or has text after its closing quote; reading resumes on the next line",
+		lim.lines, lim.bytes)
+	return fault{reason: ReasonUnbalancedQuote, detail: detail}
 }
 
 // splitFields cuts an unquoted record at commas into dst, trimming spaces
@@ -318,19 +447,51 @@ func splitFields(rec []byte, dst [][]byte) [][]byte {
 	return append(dst, trimSpace(rec[start:]))
 }
 
-// splitQuoted parses a record with quoted fields through encoding/csv.
-func splitQuoted(rec []byte, dst [][]byte) ([][]byte, error) {
-	r := csv.NewReader(bytes.NewReader(rec))
-	r.FieldsPerRecord = -1
-	fields, err := r.Read()
-	if err != nil {
-		return dst[:0], err
-	}
+var errQuote = errors.New("text after a closing quote")
+
+// splitQuoted cuts a record with quotes, whole by scanRecord, into fields:
+// a field opening with a quote runs to its closing quote, "" inside it
+// being a quote. Unquoted values are kept in buf, which is returned for
+// reuse; the fields point into rec and buf.
+func splitQuoted(rec []byte, dst [][]byte, buf []byte) ([][]byte, []byte, error) {
 	dst = dst[:0]
-	for _, f := range fields {
-		dst = append(dst, trimSpace([]byte(f)))
+	if cap(buf) < len(rec) {
+		buf = make([]byte, 0, len(rec)) // no growth below: fields keep pointing into it
 	}
-	return dst, nil
+	buf = buf[:0]
+	for i := 0; ; i++ { // i is at a field's start
+		if i < len(rec) && rec[i] == '"' {
+			start := len(buf)
+			closed := false
+			for i++; i < len(rec); i++ {
+				if rec[i] == '"' {
+					if i+1 < len(rec) && rec[i+1] == '"' {
+						buf = append(buf, '"')
+						i++
+						continue
+					}
+					i++
+					closed = true
+					break
+				}
+				buf = append(buf, rec[i])
+			}
+			if !closed || i < len(rec) && rec[i] != ',' {
+				return dst[:0], buf, errQuote
+			}
+			dst = append(dst, trimSpace(buf[start:len(buf):len(buf)]))
+		} else {
+			j := bytes.IndexByte(rec[i:], ',')
+			if j < 0 {
+				return append(dst, trimSpace(rec[i:])), buf, nil
+			}
+			dst = append(dst, trimSpace(rec[i:i+j]))
+			i += j
+		}
+		if i >= len(rec) {
+			return dst, buf, nil
+		}
+	}
 }
 
 func trimSpace(b []byte) []byte {

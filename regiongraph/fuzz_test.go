@@ -47,6 +47,9 @@ func FuzzTripCSV(f *testing.F) {
 	f.Add([]byte("start_time,end_time\n1,2\n"), false)
 	f.Add([]byte("\xef\xbb\xbf"+tripHeader+"a,1,2,x,y,z,w,v\n\"unterminated\n"), false)
 	f.Add([]byte{0x50, 0x41, 0x52, 0x31, 0, 0}, false)
+	f.Add([]byte(tripHeader+"\"a,2024-05-01T08:00:00Z,2024-05-01T08:10:00Z,13.01,52.01,13.05,52.05,9000\nb,2024-05-01T08:00:00Z,2024-05-01T08:10:00Z,13.01,52.01,13.05,52.05,9000\n"), true)
+	f.Add([]byte(tripHeader+"pipe 12\",2024-05-01T08:00:00Z,2024-05-01T08:10:00Z,13.01,52.01,13.05,52.05,0x1p13\n\"a\"b,1,2,3,4,5,6,7\r\n"), false)
+	f.Add([]byte(tripHeader+"a,0,600,13.01,52.01,13.05,52.05,1_000\na,9000-01-01T00:00:00Z,2024-10-27 02:30:00,13.01,52.01,13.05,52.05,9000\na,0,600,13.01,52.01,13.05,52.05,1_000\n"), false)
 	f.Fuzz(func(t *testing.T, data []byte, strict bool) {
 		fuzzIngest(t, "trips.csv", FormatTrips, data, strict)
 	})
@@ -55,6 +58,7 @@ func FuzzTripCSV(f *testing.F) {
 func FuzzPointsCSV(f *testing.F) {
 	f.Add([]byte("vehicle_id,time,lon,lat,occupied\nv,2024-05-01T08:00:00Z,13.01,52.01,1\nv,2024-05-01T08:05:00Z,13.05,52.01,1\nv,2024-05-01T08:06:00Z,13.05,52.01,0\n"), false)
 	f.Add([]byte("vehicle_id,time,lon,lat\nv,1714550400,13.01,52.01\nv,1714550460,13.02,52.01\nv,1714550400,13.03,52.01\nw,1,2,3\n"), true)
+	f.Add([]byte("vehicle_id,time,lon,lat\nv,1714550400,13.01,52.01\nv,1714550400,13.01,52.01\n\"v,1714550460,13.02,52.01\nv,2024-03-31 02:30:00,13.02,52.01\n"), false)
 	f.Fuzz(func(t *testing.T, data []byte, strict bool) {
 		fuzzIngest(t, "points.csv", FormatPoints, data, strict)
 	})
@@ -101,7 +105,7 @@ func FuzzParseTime(f *testing.F) {
 }
 
 func FuzzParseFloat(f *testing.F) {
-	for _, s := range []string{"13.404954", "-0.5", "1e3", "123456789012345678", ".", "0x1p3"} {
+	for _, s := range []string{"13.404954", "-0.5", "1e3", "123456789012345678", ".", "0x1p3", "1_000", "Inf", "nan", "1e400", "5."} {
 		f.Add(s)
 	}
 	f.Fuzz(func(t *testing.T, s string) {
@@ -111,6 +115,9 @@ func FuzzParseFloat(f *testing.F) {
 		}
 		if got != got {
 			t.Fatalf("%q: NaN accepted", s)
+		}
+		if !plainNumber([]byte(s)) {
+			t.Fatalf("%q: accepted, not a plain decimal", s)
 		}
 	})
 }

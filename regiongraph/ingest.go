@@ -45,6 +45,7 @@ func Ingest(ctx context.Context, regions *partition.Partition, regionsSHA256 str
 	if err != nil {
 		return nil, err
 	}
+	st.seen = newRowSet()
 	files, err := expandInputs(inputs, st)
 	if err != nil {
 		return nil, err
@@ -72,6 +73,9 @@ func Ingest(ctx context.Context, regions *partition.Partition, regionsSHA256 str
 		return nil, err
 	}
 	edges, quality := finish(st, loc, tallies)
+	if err := checkYield(st, quality, sources); err != nil {
+		return nil, err
+	}
 	return &Store{
 		regionsGeoJSON: regionsJSON.Bytes(),
 		Meta: Meta{

@@ -108,6 +108,28 @@ type Options struct {
 	DwellMinutes float64 `toml:"dwell_minutes"`
 	DwellMetres  float64 `toml:"dwell_metres"`
 
+	// MaxQuotedLines and MaxQuotedBytes bound a quoted field (default 10
+	// lines and 64 KiB): a field still open after that many lines or bytes,
+	// or one that never closes, makes its record "unbalanced quote", that
+	// record is its first line alone and reading resumes on the next line.
+	// A stray quote (an inch mark, a truncated export) so costs one row,
+	// whatever the size of the file, and reading stays linear. Multi-line
+	// free-text fields of a few lines still read as one row.
+	MaxQuotedLines int   `toml:"max_quoted_lines"`
+	MaxQuotedBytes int64 `toml:"max_quoted_bytes"`
+	// EarliestTime and LatestTime bound the plausible trip and point times
+	// (default 2000-01-01 00:00 UTC and, when zero, one day after the
+	// ingest starts): a time outside is "implausible time", not a day graph
+	// of its own (a zero Unix time reads as 1970).
+	EarliestTime time.Time `toml:"earliest_time"`
+	LatestTime   time.Time `toml:"latest_time"`
+	// MinUsedShare is the least share of the rows read that an ingest must
+	// use (default 0.01); under it, or when no row is used, Ingest fails
+	// with a *YieldError naming the top rejection reasons and what to check
+	// (distance unit, column mapping, time zone), rather than write a store
+	// that holds next to nothing.
+	MinUsedShare float64 `toml:"min_used_share"`
+
 	// Strict stops at the first row with bad data (unparseable, missing
 	// field, bad duration, GPS jump, bad speed, detour below floor) with an
 	// error "file:line: reason". Rows that only fail a filter (outside the
@@ -134,6 +156,10 @@ func DefaultOptions() Options {
 		GapMinutes:        5,
 		DwellMinutes:      3,
 		DwellMetres:       50,
+		MaxQuotedLines:    10,
+		MaxQuotedBytes:    64 << 10,
+		EarliestTime:      time.Date(2000, 1, 1, 0, 0, 0, 0, time.UTC),
+		MinUsedShare:      0.01,
 	}
 }
 
@@ -260,6 +286,12 @@ type settings struct {
 	gapMS         int64
 	dwellMS       int64
 	dwellMetres   float64
+	earliestMS    int64 // plausible times, Unix milliseconds, both included
+	latestMS      int64
+
+	// seen is the row set of one ingest, shared by its files (set by
+	// Ingest, not by Validate).
+	seen *rowSet
 }
 
 func (o Options) settings() (*settings, error) {
@@ -326,6 +358,27 @@ func (o Options) settings() (*settings, error) {
 	if o.MinSpeedKMH > o.MaxSpeedKMH {
 		return nil, fmt.Errorf("regiongraph: MinSpeedKMH %v is above MaxSpeedKMH %v", o.MinSpeedKMH, o.MaxSpeedKMH)
 	}
+	if o.MaxQuotedLines < 1 {
+		return nil, fmt.Errorf("regiongraph: option MaxQuotedLines = %d: want at least 1", o.MaxQuotedLines)
+	}
+	if o.MaxQuotedBytes < 1 || o.MaxQuotedBytes > maxLineSize {
+		return nil, fmt.Errorf("regiongraph: option MaxQuotedBytes = %d: want 1 to %d", o.MaxQuotedBytes, maxLineSize)
+	}
+	if !(o.MinUsedShare >= 0 && o.MinUsedShare <= 1) {
+		return nil, fmt.Errorf("regiongraph: option MinUsedShare = %v: want a share from 0 to 1", o.MinUsedShare)
+	}
+	latest := o.LatestTime
+	if latest.IsZero() {
+		latest = time.Now().Add(24 * time.Hour)
+	}
+	if !o.EarliestTime.IsZero() && !latest.After(o.EarliestTime) {
+		return nil, fmt.Errorf("regiongraph: LatestTime %v is not after EarliestTime %v", latest, o.EarliestTime)
+	}
+	st.earliestMS = math.MinInt64
+	if !o.EarliestTime.IsZero() {
+		st.earliestMS = o.EarliestTime.UnixMilli()
+	}
+	st.latestMS = latest.UnixMilli()
 	st.minStraight = o.MinStraightMetres
 	st.maxDurationS = o.MaxDuration.Seconds()
 	st.minSpeed = o.MinSpeedKMH / 3.6

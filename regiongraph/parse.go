@@ -8,7 +8,11 @@ import (
 	"unsafe"
 )
 
-var errSyntax = errors.New("syntax")
+var (
+	errSyntax     = errors.New("syntax")
+	errDSTGap     = errors.New("local time in a DST gap")
+	errDSTOverlap = errors.New("local time in a DST overlap")
+)
 
 // bytesString views b as a string without copying; the string must not
 // outlive b's contents.
@@ -23,10 +27,14 @@ func bytesString(b []byte) string {
 var pow10 = [...]float64{1e0, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10,
 	1e11, 1e12, 1e13, 1e14, 1e15, 1e16, 1e17, 1e18, 1e19, 1e20, 1e21, 1e22}
 
-// parseFloat parses a decimal number. Plain decimals with at most 15
-// significant digits take a fast path that is exact (one correctly rounded
-// division of exact values, the same result as strconv); anything else goes
-// to strconv.ParseFloat. Infinities and NaN are rejected.
+// parseFloat parses a decimal number: an optional sign, digits with an
+// optional fraction, and an optional exponent ("13.4", "-.5", "1e3",
+// "2.5E-1"). Plain decimals with at most 15 significant digits take a fast
+// path that is exact (one correctly rounded division of exact values, the
+// same result as strconv); the rest go to strconv.ParseFloat once the
+// syntax is checked, since strconv also reads Go literal forms (0x1p10,
+// 1_000, Inf, NaN) that no table of measurements means. Values out of
+// range are rejected.
 func parseFloat(b []byte) (float64, error) {
 	i, neg := 0, false
 	if len(b) > 0 && (b[0] == '-' || b[0] == '+') {
@@ -64,11 +72,48 @@ func parseFloat(b []byte) (float64, error) {
 		}
 		return f, nil
 	}
+	if !plainNumber(b) {
+		return 0, errSyntax
+	}
 	f, err := strconv.ParseFloat(bytesString(b), 64)
 	if err != nil || math.IsInf(f, 0) || math.IsNaN(f) {
 		return 0, errSyntax
 	}
 	return f, nil
+}
+
+// plainNumber reports whether b is [+-]digits[.digits][(e|E)[+-]digits],
+// with digits on at least one side of the point.
+func plainNumber(b []byte) bool {
+	i := 0
+	if i < len(b) && (b[i] == '+' || b[i] == '-') {
+		i++
+	}
+	digits := func() int {
+		n := 0
+		for ; i < len(b) && b[i] >= '0' && b[i] <= '9'; i++ {
+			n++
+		}
+		return n
+	}
+	n := digits()
+	if i < len(b) && b[i] == '.' {
+		i++
+		n += digits()
+	}
+	if n == 0 {
+		return false
+	}
+	if i < len(b) && (b[i] == 'e' || b[i] == 'E') {
+		i++
+		if i < len(b) && (b[i] == '+' || b[i] == '-') {
+			i++
+		}
+		if digits() == 0 {
+			return false
+		}
+	}
+	return i == len(b)
 }
 
 // zoneCache converts between instants and local civil time in one zone,
@@ -122,16 +167,12 @@ func (z *zoneCache) local(unix int64) int64 {
 	return unix + z.lookup(unix).offset
 }
 
-// fromCivil returns the Unix time of a local civil time. Near a zone
-// transition (where a civil time may not exist or exist twice) it defers to
-// time.Date, which resolves both cases deterministically.
+// fromCivil returns the Unix time of a local civil time; in a gap or an
+// overlap, the one time.Date gives (for Parquet timestamps without zone,
+// which are checked elsewhere).
 func (z *zoneCache) fromCivil(civil int64) int64 {
-	const margin = 2 * 86400
-	for i := range z.periods {
-		p := &z.periods[i]
-		if u := civil - p.offset; u-margin >= p.start && u+margin < p.end {
-			return u
-		}
+	if u, err := z.civilInstant(civil); err == nil {
+		return u
 	}
 	days := floorDiv(civil, 86400)
 	y, m, d := civilFromDays(days)
@@ -139,6 +180,42 @@ func (z *zoneCache) fromCivil(civil int64) int64 {
 	u := time.Date(y, time.Month(m), d, int(sec/3600), int(sec/60%60), int(sec%60), 0, z.loc).Unix()
 	z.lookup(u)
 	return u
+}
+
+// civilInstant returns the Unix time of a local civil time. Near a zone
+// transition it checks the offsets on both sides: a civil time that none
+// gives back lies in a gap (the clocks skip it, errDSTGap), one that two
+// give back in an overlap (the clocks show it twice, errDSTOverlap), and
+// its instant is unknown in both cases.
+func (z *zoneCache) civilInstant(civil int64) (int64, error) {
+	const margin = 2 * 86400
+	for i := range z.periods {
+		p := &z.periods[i]
+		if u := civil - p.offset; u-margin >= p.start && u+margin < p.end {
+			return u, nil
+		}
+	}
+	found, n := int64(0), 0
+	var offsets [2]int64
+	// One lookup at a time: lookup returns its cache's first slot.
+	offsets[0] = z.lookup(civil - margin).offset
+	offsets[1] = z.lookup(civil + margin).offset
+	for i, off := range offsets {
+		if i == 1 && off == offsets[0] {
+			break
+		}
+		if u := civil - off; z.local(u) == civil {
+			found = u
+			n++
+		}
+	}
+	switch n {
+	case 0:
+		return 0, errDSTGap
+	case 2:
+		return 0, errDSTOverlap
+	}
+	return found, nil
 }
 
 func floorDiv(a, b int64) int64 {
@@ -303,7 +380,8 @@ func parseDateTime(b []byte, z *zoneCache) (int64, error) {
 	}
 	civil := daysFromCivil(y, mo, d)*86400 + int64(h*3600+mi*60+s)
 	if i == len(b) {
-		return z.fromCivil(civil)*1000 + ms, nil
+		u, err := z.civilInstant(civil)
+		return u*1000 + ms, err
 	}
 	switch b[i] {
 	case 'Z', 'z':

@@ -58,17 +58,19 @@ func readPoints(ctx context.Context, st *settings, c *csvFile, t *tally, fail *f
 	}
 	ctx, cancel := context.WithCancel(ctx)
 	defer cancel()
-	k := &chunker{src: c.br, hash: newHash(), free: free, out: make(chan chunk, 1), progress: progress}
+	lim := st.quoteLimits()
+	k := &chunker{src: c.br, hash: newHash(), limits: lim, free: free, out: make(chan chunk, 1), progress: progress}
 	errc := make(chan error, 1)
 	go func() { errc <- k.run(ctx) }()
 
 	vehicles := make(map[string]uint32)
 	var points []gpsPoint
 	fields := make([][]byte, 0, len(c.header))
+	var buf []byte
 	for ch := range k.out {
-		sp := lineSplitter{data: ch.data, line: ch.firstLine, quoted: ch.quoted}
+		sp := lineSplitter{data: ch.data, line: ch.firstLine, atEOF: ch.last, limits: lim}
 		for {
-			rec, line, slow, ok := sp.next()
+			rec, line, kind, ok := sp.next()
 			if !ok {
 				break
 			}
@@ -76,20 +78,27 @@ func readPoints(ctx context.Context, st *settings, c *csvFile, t *tally, fail *f
 				continue
 			}
 			var err error
-			if slow {
-				fields, err = splitQuoted(rec, fields)
-			} else {
+			switch kind {
+			case badQuote:
+				err = errQuote
+			case quotedRecord:
+				fields, buf, err = splitQuoted(rec, fields, buf)
+			default:
 				fields = splitFields(rec, fields)
 			}
-			r, col := ReasonUnparseable, "record"
+			r, col := ReasonUnbalancedQuote, ""
 			var p gpsPoint
 			if err == nil {
-				r, col = parsePointFields(t.zone, fields, need, iv, it, ilon, ilat, iocc, &p)
+				r, col = parsePointFields(st, t.zone, fields, need, iv, it, ilon, ilat, iocc, &p)
 			}
 			if r != reasonUsed {
 				t.count(r, 1)
-				if st.opts.Strict {
-					fail.keep(0, pointFault(r, col, err, fields, m).at(c.path, line, 0))
+				if st.opts.Strict && r.isDataError() {
+					f := quoteFault(lim)
+					if err == nil {
+						f = pointFault(st, r, col, fields, m)
+					}
+					fail.keep(0, f.at(c.path, line, 0))
 				}
 				continue
 			}
@@ -112,20 +121,17 @@ func readPoints(ctx context.Context, st *settings, c *csvFile, t *tally, fail *f
 	return points, hexSum(k.hash), nil
 }
 
-// pointFault is the fault of a point row rejected for r at column col, or
-// for the CSV parser's error err; m maps logical columns to fields.
-func pointFault(r Reason, col string, err error, fields [][]byte, m map[string]int) fault {
-	if err != nil {
-		return fault{reason: r, err: err}
-	}
-	f := fault{reason: r, column: col}
-	if i := m[col]; r == ReasonUnparseable && i >= 0 && i < len(fields) {
+// pointFault is the fault of a point row rejected for r at column col; m
+// maps logical columns to fields.
+func pointFault(st *settings, r Reason, col string, fields [][]byte, m map[string]int) fault {
+	f := fault{reason: r, column: col, detail: st.timeDetail(r)}
+	if i := m[col]; r != ReasonMissingField && i >= 0 && i < len(fields) {
 		f.value = string(fields[i])
 	}
 	return f
 }
 
-func parsePointFields(z *zoneCache, fields [][]byte, need, iv, it, ilon, ilat, iocc int, p *gpsPoint) (Reason, string) {
+func parsePointFields(st *settings, z *zoneCache, fields [][]byte, need, iv, it, ilon, ilat, iocc int, p *gpsPoint) (Reason, string) {
 	if len(fields) < need {
 		for _, c := range []struct {
 			i    int
@@ -146,7 +152,10 @@ func parsePointFields(z *zoneCache, fields [][]byte, need, iv, it, ilon, ilat, i
 	}
 	var err error
 	if p.ms, err = parseTime(fields[it], z); err != nil {
-		return ReasonUnparseable, colTime
+		return timeReason(err), colTime
+	}
+	if !st.plausible(p.ms) {
+		return ReasonImplausibleTime, colTime
 	}
 	if p.lon, err = parseFloat(fields[ilon]); err != nil || p.lon < -180 || p.lon > 180 {
 		return ReasonUnparseable, colLon
@@ -188,8 +197,8 @@ func (s *pointSegmenter) reject(p []gpsPoint, r Reason, detail string) {
 	}
 }
 
-// vehicles sorts the points by vehicle and time and cuts each vehicle's
-// points into trips.
+// vehicles sorts the points by vehicle and time, drops repeated points
+// and cuts each vehicle's points into trips.
 func (s *pointSegmenter) vehicles(ctx context.Context, points []gpsPoint) error {
 	slices.SortFunc(points, func(a, b gpsPoint) int {
 		if c := cmp.Compare(a.vehicle, b.vehicle); c != 0 {
@@ -200,6 +209,7 @@ func (s *pointSegmenter) vehicles(ctx context.Context, points []gpsPoint) error 
 		}
 		return cmp.Compare(a.line, b.line)
 	})
+	points = s.dropRepeats(points)
 	for start := 0; start < len(points); {
 		if err := ctx.Err(); err != nil {
 			return err
@@ -212,6 +222,32 @@ func (s *pointSegmenter) vehicles(ctx context.Context, points []gpsPoint) error 
 		start = end
 	}
 	return nil
+}
+
+// dropRepeats counts and drops the points of points (sorted by vehicle,
+// time and line) that repeat an earlier line's vehicle, time, place and
+// flag: the same fix written twice, or by two overlapping exports.
+func (s *pointSegmenter) dropRepeats(points []gpsPoint) []gpsPoint {
+	out := points[:0]
+	for i, p := range points {
+		if len(out) > 0 {
+			// Points of one vehicle and time are adjacent; compare with
+			// each kept one of them.
+			repeat := false
+			for j := len(out) - 1; j >= 0 && out[j].vehicle == p.vehicle && out[j].ms == p.ms; j-- {
+				if q := out[j]; q.lon == p.lon && q.lat == p.lat && q.occupied == p.occupied {
+					repeat = true
+					break
+				}
+			}
+			if repeat {
+				s.t.count(ReasonDuplicatePoint, 1)
+				continue
+			}
+		}
+		out = append(out, points[i])
+	}
+	return out
 }
 
 // vehicle handles all points of one vehicle: with an occupied flag, each

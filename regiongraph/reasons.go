@@ -9,18 +9,25 @@ type Reason string
 // first that applies in the order of RejectReasons. Points count with the
 // trip they belong to.
 const (
-	ReasonUnparseable  Reason = "unparseable"         // a value that is not a number, time or flag, or out of range
-	ReasonMissingField Reason = "missing field"       // an empty required field, or too few fields
-	ReasonOutside      Reason = "outside study area"  // origin or destination in no region
-	ReasonIntraRegion  Reason = "intra-region"        // origin and destination in the same region
-	ReasonShortTrip    Reason = "short trip"          // great-circle origin-destination under MinStraightMetres, or fewer than two points
-	ReasonBadDuration  Reason = "bad duration"        // duration not positive or over MaxDuration
-	ReasonGPSJump      Reason = "gps jump"            // implied speed between consecutive points over MaxJumpKMH
-	ReasonBadSpeed     Reason = "bad speed"           // travel speed outside MinSpeedKMH..MaxSpeedKMH
-	ReasonDetourFloor  Reason = "detour below floor"  // travel distance / great-circle distance under MinDetour
-	ReasonNotOccupied  Reason = "not occupied"        // GPS point while the occupied flag is off
-	ReasonStationary   Reason = "stationary"          // GPS point inside a dwell (parked vehicle)
-	ReasonOutsideTimes Reason = "outside time window" // start time in none of the windows
+	ReasonUnbalancedQuote Reason = "unbalanced quote"    // a quoted field not closed within MaxQuotedLines lines and MaxQuotedBytes bytes, or text after its closing quote: the record is its first line
+	ReasonUnparseable     Reason = "unparseable"         // a value that is not a number, time or flag, or out of range
+	ReasonMissingField    Reason = "missing field"       // an empty required field, or too few fields
+	ReasonDSTGap          Reason = "time in DST gap"     // a local time without offset that the clocks skip (spring forward)
+	ReasonDSTOverlap      Reason = "time in DST overlap" // a local time without offset that the clocks show twice (fall back)
+	ReasonImplausibleTime Reason = "implausible time"    // a time before EarliestTime or after LatestTime
+	ReasonDuplicateRow    Reason = "duplicate row"       // the same text as an earlier row (of any input file); the first is kept
+	ReasonDuplicateTripID Reason = "duplicate trip id"   // a trip_id of an earlier row with other values; the first is kept
+	ReasonDuplicatePoint  Reason = "duplicate point"     // a GPS point of the same vehicle, time and place as an earlier one
+	ReasonOutside         Reason = "outside study area"  // origin or destination in no region
+	ReasonIntraRegion     Reason = "intra-region"        // origin and destination in the same region
+	ReasonShortTrip       Reason = "short trip"          // great-circle origin-destination under MinStraightMetres, or fewer than two points
+	ReasonBadDuration     Reason = "bad duration"        // duration not positive or over MaxDuration
+	ReasonGPSJump         Reason = "gps jump"            // implied speed between consecutive points over MaxJumpKMH
+	ReasonBadSpeed        Reason = "bad speed"           // travel speed outside MinSpeedKMH..MaxSpeedKMH
+	ReasonDetourFloor     Reason = "detour below floor"  // travel distance / great-circle distance under MinDetour
+	ReasonNotOccupied     Reason = "not occupied"        // GPS point while the occupied flag is off
+	ReasonStationary      Reason = "stationary"          // GPS point inside a dwell (parked vehicle)
+	ReasonOutsideTimes    Reason = "outside time window" // start time in none of the windows
 )
 
 // reasonUsed is the outcome of a row that passes every check.
@@ -29,7 +36,9 @@ const reasonUsed Reason = ""
 // RejectReasons returns the rejection reasons in the order they are checked
 // and reported.
 func RejectReasons() []Reason {
-	return []Reason{ReasonUnparseable, ReasonMissingField, ReasonOutside, ReasonIntraRegion,
+	return []Reason{ReasonUnbalancedQuote, ReasonUnparseable, ReasonMissingField,
+		ReasonDSTGap, ReasonDSTOverlap, ReasonImplausibleTime,
+		ReasonDuplicateRow, ReasonDuplicateTripID, ReasonDuplicatePoint, ReasonOutside, ReasonIntraRegion,
 		ReasonShortTrip, ReasonBadDuration, ReasonGPSJump, ReasonBadSpeed, ReasonDetourFloor,
 		ReasonNotOccupied, ReasonStationary, ReasonOutsideTimes}
 }
@@ -37,10 +46,12 @@ func RejectReasons() []Reason {
 // isDataError reports whether r marks bad data, on which Strict stops. The
 // other reasons are filters that well-formed data meets too (trips leaving
 // the study area or staying in one region, parked or vacant vehicles, times
-// outside the windows).
+// outside the windows), and duplicates, which overlapping exports of sound
+// data hold too.
 func (r Reason) isDataError() bool {
 	switch r {
-	case ReasonUnparseable, ReasonMissingField, ReasonBadDuration, ReasonGPSJump, ReasonBadSpeed, ReasonDetourFloor:
+	case ReasonUnbalancedQuote, ReasonUnparseable, ReasonMissingField, ReasonDSTGap, ReasonDSTOverlap,
+		ReasonImplausibleTime, ReasonBadDuration, ReasonGPSJump, ReasonBadSpeed, ReasonDetourFloor:
 		return true
 	}
 	return false

@@ -72,8 +72,8 @@ func TestStrictRowError(t *testing.T) {
 				return Input{Path: writeTemp(t, "trips.csv", tripHeader+
 					"\"q,2024-05-01T08:00:00Z\"x,2024-05-01T08:10:00Z,13.010,52.010,13.030,52.010,2000\n"), Format: FormatTrips}
 			},
-			RowError{Line: 2, Reason: ReasonUnparseable},
-			`trips.csv:2: unparseable: `},
+			RowError{Line: 2, Reason: ReasonUnbalancedQuote, Detail: quoteFault(quoteLimits{10, 64 << 10}).detail},
+			`trips.csv:2: unbalanced quote: a quoted field opened on this line does not close within 10 line(s) and 65536 bytes`},
 		{"CSV points, unparseable value",
 			func(t *testing.T) Input {
 				return Input{Path: writeTemp(t, "points.csv", "vehicle_id,time,lon,lat\n"+

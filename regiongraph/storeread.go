@@ -88,6 +88,9 @@ func readFile(path string, opts ReadOptions, stretchRows int64) (*Store, error) 
 	if s.Edges, err = readStretches(stretches, opts); err != nil {
 		return nil, err
 	}
+	if err := checkStore(path, s); err != nil {
+		return nil, err
+	}
 	if !slices.IsSortedFunc(s.Edges, compareEdges) {
 		slices.SortStableFunc(s.Edges, compareEdges)
 	}

@@ -3,8 +3,11 @@ package regiongraph
 import (
 	"context"
 	"fmt"
+	"math"
+	"strconv"
 	"sync"
 	"sync/atomic"
+	"time"
 
 	"narrows/partition/geodesy"
 )
@@ -43,10 +46,16 @@ func parseTripFields(st *settings, z *zoneCache, c *tripColumns, fields [][]byte
 	}
 	var err error
 	if tr.startMS, err = parseTime(fields[c.idx[0]], z); err != nil {
-		return ReasonUnparseable, colStartTime
+		return timeReason(err), colStartTime
 	}
 	if tr.endMS, err = parseTime(fields[c.idx[1]], z); err != nil {
-		return ReasonUnparseable, colEndTime
+		return timeReason(err), colEndTime
+	}
+	if !st.plausible(tr.startMS) {
+		return ReasonImplausibleTime, colStartTime
+	}
+	if !st.plausible(tr.endMS) {
+		return ReasonImplausibleTime, colEndTime
 	}
 	var v [5]float64
 	for k := 0; k < 5; k++ {
@@ -89,19 +98,65 @@ func explain(st *settings, tr *trip, r Reason) string {
 	case ReasonBadDuration:
 		return fmt.Sprintf("%g s (want more than 0 and at most %v)", duration, st.opts.MaxDuration)
 	case ReasonBadSpeed:
-		return fmt.Sprintf("%.2f km/h (allowed %g-%g km/h)", tr.distance/duration*3.6, st.opts.MinSpeedKMH, st.opts.MaxSpeedKMH)
+		return fmt.Sprintf("%s km/h (allowed %g-%g km/h)", shortNumber(tr.distance/duration*3.6), st.opts.MinSpeedKMH, st.opts.MaxSpeedKMH)
 	case ReasonDetourFloor:
-		return fmt.Sprintf("distance %.0f m over straight line %.0f m is %.3f, under %g", tr.distance, straight, tr.distance/straight, st.minDetour)
+		return fmt.Sprintf("distance %s m over straight line %.0f m is %.3f, under %g", shortNumber(tr.distance), straight, tr.distance/straight, st.minDetour)
 	case ReasonGPSJump:
 		return fmt.Sprintf("a step between points faster than %g km/h", st.opts.MaxJumpKMH)
 	}
 	return ""
 }
 
+// timeReason is the reason of a time that parseTime refused.
+func timeReason(err error) Reason {
+	switch err {
+	case errDSTGap:
+		return ReasonDSTGap
+	case errDSTOverlap:
+		return ReasonDSTOverlap
+	}
+	return ReasonUnparseable
+}
+
+// plausible reports whether a time (Unix milliseconds) lies in the span
+// of EarliestTime and LatestTime.
+func (st *settings) plausible(ms int64) bool { return ms >= st.earliestMS && ms <= st.latestMS }
+
+// timeDetail says why a time was refused, for strict mode messages.
+func (st *settings) timeDetail(r Reason) string {
+	switch r {
+	case ReasonDSTGap:
+		return "the clocks skip this local time in " + st.opts.TimeZone + "; give an offset or UTC"
+	case ReasonDSTOverlap:
+		return "the clocks show this local time twice in " + st.opts.TimeZone + "; give an offset or UTC"
+	case ReasonImplausibleTime:
+		to := "the ingest's day + 1"
+		if !st.opts.LatestTime.IsZero() {
+			to = st.opts.LatestTime.UTC().Format(time.RFC3339)
+		}
+		from := "any time"
+		if !st.opts.EarliestTime.IsZero() {
+			from = st.opts.EarliestTime.UTC().Format(time.RFC3339)
+		}
+		return "plausible times are " + from + " to " + to + " (EarliestTime, LatestTime)"
+	}
+	return ""
+}
+
+// shortNumber formats a measured value for a message: two decimals, or
+// four significant digits when it is so large that a file's typo (a
+// hundred-digit distance) would fill the screen.
+func shortNumber(v float64) string {
+	if math.Abs(v) < 1e7 {
+		return strconv.FormatFloat(v, 'f', 2, 64)
+	}
+	return strconv.FormatFloat(v, 'g', 4, 64)
+}
+
 // fieldFault is the fault of a trip table row whose column col failed to
-// parse (r is ReasonMissingField or ReasonUnparseable).
-func fieldFault(r Reason, col string, fields [][]byte, c *tripColumns) fault {
-	f := fault{reason: r, column: col}
+// parse or check (r is a reason of the row's fields).
+func fieldFault(st *settings, r Reason, col string, fields [][]byte, c *tripColumns) fault {
+	f := fault{reason: r, column: col, detail: st.timeDetail(r)}
 	if r == ReasonMissingField {
 		return f
 	}
@@ -131,7 +186,8 @@ func ingestTripCSV(ctx context.Context, st *settings, c *csvFile, tallies []*tal
 	var stopSeq atomic.Int64
 	stopSeq.Store(1<<62 - 1)
 	k := &chunker{src: c.br, hash: newHash(), free: free, out: make(chan chunk, workers),
-		progress: progress, stop: func(seq int64) bool { return seq > stopSeq.Load() }}
+		limits: st.quoteLimits(), progress: progress, stop: func(seq int64) bool { return seq > stopSeq.Load() }}
+	r := &tripReader{st: st, file: c.path, cols: cols, idCol: m[colTripID], order: newTurnstile()}
 
 	var mu sync.Mutex
 	var first firstFault
@@ -152,13 +208,11 @@ func ingestTripCSV(ctx context.Context, st *settings, c *csvFile, tallies []*tal
 		wg.Add(1)
 		go func(t *tally) {
 			defer wg.Done()
-			fields := make([][]byte, 0, len(c.header))
-			var tr trip
+			var w tripWorker
+			w.fields = make([][]byte, 0, len(c.header))
 			for ch := range k.out {
-				if ch.seq <= stopSeq.Load() {
-					if e := tripChunk(st, t, c.path, &cols, ch, fields, &tr); e != nil {
-						fail(ch.seq, e)
-					}
+				if e := r.chunk(t, &w, ch, ch.seq <= stopSeq.Load()); e != nil {
+					fail(ch.seq, e)
 				}
 				free <- ch.buf[:0]
 			}
@@ -182,44 +236,113 @@ func ingestTripCSV(ctx context.Context, st *settings, c *csvFile, tallies []*tal
 	return hexSum(k.hash), nil
 }
 
-// tripChunk parses and tallies the rows of one chunk of file. In strict
-// mode it returns the first row with bad data.
-func tripChunk(st *settings, t *tally, file string, cols *tripColumns, ch chunk, fields [][]byte, tr *trip) *RowError {
-	sp := lineSplitter{data: ch.data, line: ch.firstLine, quoted: ch.quoted}
+// tripReader reads the chunks of one trip table CSV.
+type tripReader struct {
+	st    *settings
+	file  string
+	cols  tripColumns
+	idCol int // field of trip_id, -1 without
+	order *turnstile
+}
+
+// tripWorker is one reader goroutine's scratch space.
+type tripWorker struct {
+	fields [][]byte
+	buf    []byte
+	rows   []parsedTrip
+}
+
+// parsedTrip is a row of a chunk between parsing and tallying.
+type parsedTrip struct {
+	line   int64
+	reason Reason // reasonUsed when the row parsed
+	fault  *RowError
+	key    rowKey
+	tr     trip
+}
+
+// chunk parses the rows of ch, lets the row set judge repeats in file
+// order, and tallies the rows. wanted is false for a chunk after a strict
+// run's first fault, which only passes the turnstile. In strict mode it
+// returns the first row with bad data.
+func (r *tripReader) chunk(t *tally, w *tripWorker, ch chunk, wanted bool) *RowError {
+	st := r.st
+	w.rows = w.rows[:0]
+	if wanted {
+		r.parse(t, w, ch)
+	}
+	r.order.pass(ch.seq, func() {
+		for i := range w.rows {
+			if p := &w.rows[i]; p.reason == reasonUsed {
+				p.reason = st.seen.check(p.key)
+			}
+		}
+	})
+	for i := range w.rows {
+		p := &w.rows[i]
+		if p.reason == reasonUsed {
+			p.reason = t.add(&p.tr)
+			if p.reason != reasonUsed && p.reason.isDataError() && st.opts.Strict {
+				p.fault = fault{reason: p.reason, detail: explain(st, &p.tr, p.reason)}.at(r.file, p.line, 0)
+			}
+		}
+		t.count(p.reason, 1)
+		if p.fault != nil && st.opts.Strict {
+			return p.fault
+		}
+	}
+	return nil
+}
+
+// parse parses the rows of ch into w.rows. In strict mode a row with a
+// bad field gets its fault, and parsing stops after it.
+func (r *tripReader) parse(t *tally, w *tripWorker, ch chunk) {
+	st := r.st
+	lim := st.quoteLimits()
+	sp := lineSplitter{data: ch.data, line: ch.firstLine, atEOF: ch.last, limits: lim}
 	for {
-		rec, line, slow, ok := sp.next()
+		rec, line, kind, ok := sp.next()
 		if !ok {
-			return nil
+			return
 		}
 		if line == 1 {
 			continue // the header
 		}
+		w.rows = append(w.rows, parsedTrip{line: line})
+		p := &w.rows[len(w.rows)-1]
 		var err error
-		if slow {
-			fields, err = splitQuoted(rec, fields)
-		} else {
-			fields = splitFields(rec, fields)
+		switch kind {
+		case badQuote:
+			p.reason = ReasonUnbalancedQuote
+			if st.opts.Strict {
+				p.fault = quoteFault(lim).at(r.file, line, 0)
+			}
+			continue
+		case quotedRecord:
+			w.fields, w.buf, err = splitQuoted(rec, w.fields, w.buf)
+		default:
+			w.fields = splitFields(rec, w.fields)
 		}
-		var r Reason
-		var col string
 		if err != nil {
-			r, col = ReasonUnparseable, "record"
-		} else {
-			r, col = parseTripFields(st, t.zone, cols, fields, tr)
-			if r == reasonUsed {
-				r = t.add(tr)
-				col = ""
+			p.reason = ReasonUnbalancedQuote
+			if st.opts.Strict {
+				p.fault = quoteFault(lim).at(r.file, line, 0)
 			}
+			continue
 		}
-		t.count(r, 1)
-		if r != reasonUsed && st.opts.Strict && r.isDataError() {
-			f := fault{reason: r, detail: explain(st, tr, r)}
-			if col == "record" {
-				f = fault{reason: r, err: err}
-			} else if col != "" {
-				f = fieldFault(r, col, fields, cols)
+		var col string
+		p.reason, col = parseTripFields(st, t.zone, &r.cols, w.fields, &p.tr)
+		if p.reason != reasonUsed {
+			if st.opts.Strict && p.reason.isDataError() {
+				p.fault = fieldFault(st, p.reason, col, w.fields, &r.cols).at(r.file, line, 0)
+				return
 			}
-			return f.at(file, line, 0)
+			continue
 		}
+		var id []byte
+		if r.idCol >= 0 && r.idCol < len(w.fields) {
+			id = w.fields[r.idCol]
+		}
+		p.key = st.seen.key(rec, id)
 	}
 }

@@ -72,6 +72,36 @@ func bindIngest(fs *flag.FlagSet, o *regiongraph.Options, format *regiongraph.Fo
 	fs.Float64Var(&o.GapMinutes, "gap", o.GapMinutes, "GPS without an occupied column: cut trips at time gaps over this many `minutes`")
 	fs.Float64Var(&o.DwellMinutes, "dwell-minutes", o.DwellMinutes, "GPS: cut trips where a vehicle stays put longer than this many `minutes`")
 	fs.Float64Var(&o.DwellMetres, "dwell-metres", o.DwellMetres, "GPS: the radius of such a dwell, in `metres`")
+	fs.IntVar(&o.MaxQuotedLines, "max-quoted-lines", o.MaxQuotedLines, "a quoted field may span at most this many `lines`; else its row is rejected as an unbalanced quote")
+	fs.Int64Var(&o.MaxQuotedBytes, "max-quoted-bytes", o.MaxQuotedBytes, "a quoted field may span at most this many `bytes`")
+	fs.Var(&timeValue{&o.EarliestTime}, "earliest", "reject times before this `time` (YYYY-MM-DD or RFC 3339, UTC)")
+	fs.Var(&timeValue{&o.LatestTime}, "latest", "reject times after this `time` (default: a day after the ingest starts)")
+	fs.Float64Var(&o.MinUsedShare, "min-used-share", o.MinUsedShare, "fail when fewer than this `share` of the rows read are used")
+}
+
+// timeValue is a date or RFC 3339 time over a time.Time field; empty is
+// the zero time.
+type timeValue struct{ t *time.Time }
+
+func (v *timeValue) String() string {
+	if v.t == nil || v.t.IsZero() {
+		return ""
+	}
+	return v.t.Format(time.RFC3339)
+}
+
+func (v *timeValue) Set(s string) error {
+	if s == "" {
+		*v.t = time.Time{}
+		return nil
+	}
+	for _, layout := range []string{time.DateOnly, time.RFC3339} {
+		if t, err := time.Parse(layout, s); err == nil {
+			*v.t = t
+			return nil
+		}
+	}
+	return fmt.Errorf("%q is not a date YYYY-MM-DD or an RFC 3339 time", s)
 }
 
 // bindScan binds the thresholds shared by scan and compare to o.

@@ -20,11 +20,15 @@ import (
 
 // storeFlags name a day-graph store and, optionally, the regions it was
 // built on: the input of scan and compare.
-type storeFlags struct{ graphs, regions string }
+type storeFlags struct {
+	graphs, regions string
+	trust           bool // use the regions file for a store without a regions hash
+}
 
 func (f *storeFlags) register(fs *flag.FlagSet) {
 	fs.StringVar(&f.graphs, "graphs", "", "day-graph store written by 'narrows ingest'")
 	fs.StringVar(&f.regions, "regions", "", "regions GeoJSON (default: the regions recorded in the store)")
+	fs.BoolVar(&f.trust, "trust-regions", false, "use --regions for a store that records no regions hash (its ids cannot be checked against the file)")
 }
 
 // open reads the store for an analysis with the given thresholds and the
@@ -34,7 +38,7 @@ func (f *storeFlags) open(opts patterns.ScanOptions) (*regiongraph.Store, *parti
 	if err != nil {
 		return nil, nil, err
 	}
-	regions, err := regionsFor(store, f.regions, f.graphs)
+	regions, err := regionsFor(store, f.regions, f.graphs, f.trust)
 	if err != nil {
 		return nil, nil, err
 	}
@@ -109,19 +113,34 @@ func readStore(path string, opts patterns.ScanOptions) (*regiongraph.Store, erro
 }
 
 // regionsFor returns the regions a store was built on: from the given file
-// (which must be the one the store was built from) or from the store.
-func regionsFor(store *regiongraph.Store, path, storePath string) (*partition.Partition, error) {
+// (which must be the one the store was built from) or from the store. A
+// store that records no regions hash is refused, unless the regions file
+// is given and trusted; in every case the store's region ids must be the
+// regions'.
+func regionsFor(store *regiongraph.Store, path, storePath string, trust bool) (*partition.Partition, error) {
+	if store.Meta.RegionsSHA256 == "" && (path == "" || !trust) {
+		return nil, fmt.Errorf("%s records no regions hash, so nothing ties it to a regions file: pass the regions it was built on with --regions FILE --trust-regions", storePath)
+	}
+	var p *partition.Partition
 	if path != "" {
-		p, sum, err := readRegions(path)
-		if err != nil {
+		var sum string
+		var err error
+		if p, sum, err = readRegions(path); err != nil {
 			return nil, err
 		}
 		if store.Meta.RegionsSHA256 != "" && sum != store.Meta.RegionsSHA256 {
 			return nil, fmt.Errorf("%s was not built on %s (SHA-256 differs): pass the regions file given to ingest", storePath, path)
 		}
-		return p, nil
+	} else {
+		var err error
+		if p, err = store.Regions(); err != nil {
+			return nil, err
+		}
 	}
-	return store.Regions()
+	if err := store.CheckRegions(p); err != nil {
+		return nil, fmt.Errorf("%s: %w", storePath, err)
+	}
+	return p, nil
 }
 
 // writeFindingsJSON writes a scan's findings, each a place with its name,

@@ -56,6 +56,11 @@ max_jump_speed_kmh = 180
 gap_minutes = 6
 dwell_minutes = 4
 dwell_metres = 40
+max_quoted_lines = 3
+max_quoted_bytes = 1000
+earliest_time = 2020-01-01T00:00:00Z
+latest_time = 2030-01-01T00:00:00Z
+min_used_share = 0.2
 
 [[windows]]
 name = "am"
@@ -114,7 +119,9 @@ min_publish = 5
 		{"trips", s.Trips.Options, regiongraph.Options{TimeZone: "Etc/GMT-1", Windows: []regiongraph.Window{am},
 			Columns: map[string]string{"start_time": "pickup"}, DistanceUnit: "km", Strict: true,
 			MinStraightMetres: 100, MaxDuration: 2 * time.Hour, MinSpeedKMH: 2, MaxSpeedKMH: 120, MinDetour: 0.9,
-			MaxJumpKMH: 180, GapMinutes: 6, DwellMinutes: 4, DwellMetres: 40}},
+			MaxJumpKMH: 180, GapMinutes: 6, DwellMinutes: 4, DwellMetres: 40,
+			MaxQuotedLines: 3, MaxQuotedBytes: 1000, MinUsedShare: 0.2,
+			EarliestTime: time.Date(2020, 1, 1, 0, 0, 0, 0, time.UTC), LatestTime: time.Date(2030, 1, 1, 0, 0, 0, 0, time.UTC)}},
 		{"scan", s.Scan.ScanOptions, patterns.ScanOptions{From: "2026-03-02", To: "2026-03-09", Window: "am",
 			Days: patterns.Weekends, Exclude: []string{"2026-03-03"}, Support: 0.5, MaxGroupEdges: 3, MaximalOnly: true,
 			JoinCorrelation: 0.5, MaxGroupVisits: 2_000_000,
