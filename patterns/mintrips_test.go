@@ -2,6 +2,7 @@ package patterns
 
 import (
 	"context"
+	"fmt"
 	"math/rand/v2"
 	"os"
 	"path/filepath"
@@ -99,10 +100,13 @@ func TestCompareMinTripsAsReadFilter(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if !reflect.DeepEqual(got, want) {
+	// NaN fields (tests not done) are never DeepEqual: compare them as text.
+	if !reflect.DeepEqual(got.Before, want.Before) || !reflect.DeepEqual(got.After, want.After) ||
+		fmt.Sprint(got.Network, got.Counts, got.BarSpeed, got.PoolSize) != fmt.Sprint(want.Network, want.Counts, want.BarSpeed, want.PoolSize) ||
+		fmt.Sprint(got.Assessments) != fmt.Sprint(want.Assessments) {
 		t.Errorf("comparison of the unfiltered store differs from the comparison of the store read with MinTrips %d", before.Skyline.MinTrips)
 		for i := range min(len(got.Assessments), len(want.Assessments)) {
-			if g, w := got.Assessments[i], want.Assessments[i]; !reflect.DeepEqual(g, w) {
+			if g, w := got.Assessments[i], want.Assessments[i]; fmt.Sprint(g) != fmt.Sprint(w) {
 				t.Errorf("assessment %d:\n%+v\n%+v", i, g, w)
 			}
 		}
@@ -110,7 +114,7 @@ func TestCompareMinTripsAsReadFilter(t *testing.T) {
 	// The thin days are out of the series: fewer than the 28 days of each
 	// period remain.
 	for _, a := range got.Assessments {
-		if len(a.Speed.Before) == 28 && len(a.Speed.After) == 28 {
+		if a.DaysWithTrips == [2]int{28, 28} {
 			t.Errorf("finding %s keeps every day in its series", a.Finding.ID)
 		}
 	}

@@ -149,8 +149,8 @@ func TestDemoFindsThePlantedWeaknessAndTheFixWorks(t *testing.T) {
 		if a.Verdict != patterns.Cleared && a.Verdict != patterns.Eased {
 			t.Errorf("finding %s with the planted pair: verdict %s, want cleared or eased (%s)", a.Finding.ID, a.Verdict, report.Reason(&a))
 		}
-		if a.Detour.Shift >= 0 {
-			t.Errorf("finding %s: detour shift %+.2f after the bridge opened, want a fall", a.Finding.ID, a.Detour.Shift)
+		if d := a.Effects[patterns.Detour].Raw; d >= 0 {
+			t.Errorf("finding %s: detour change %+.2f after the bridge opened, want a fall", a.Finding.ID, d)
 		}
 	}
 	if checked == 0 {
