@@ -591,3 +591,27 @@ func TestCompareRejectsDifferentWindows(t *testing.T) {
 		t.Errorf("same window: %v", err)
 	}
 }
+
+// BenchmarkCompareYearAgainstYear compares a year against the next over a
+// 45 x 45 grid (2,025 regions, about 4,000 edges a day, 2.9 million edges
+// in all): both scans, the comparison groups, the effects and the rule.
+func BenchmarkCompareYearAgainstYear(b *testing.B) {
+	store := scanTestStore(6, 45, 730, 4200, []scanPlant{scanPlantA, scanPlantB})
+	first, last := store.Edges[0].Day, store.Edges[len(store.Edges)-1].Day
+	split, _ := time.Parse("2006-01-02", first)
+	mid := split.AddDate(0, 0, 365).Format("2006-01-02")
+	before, after := DefaultScanOptions(), DefaultScanOptions()
+	before.From, before.To = first, split.AddDate(0, 0, 364).Format("2006-01-02")
+	after.From, after.To = mid, last
+	var c *Comparison
+	b.ResetTimer()
+	for b.Loop() {
+		var err error
+		if c, err = Compare(context.Background(), store, nil, before, after, DefaultCompareOptions()); err != nil {
+			b.Fatal(err)
+		}
+	}
+	b.ReportMetric(float64(len(store.Edges)), "edges")
+	b.ReportMetric(float64(len(c.Assessments)), "findings")
+	b.ReportMetric(float64(c.PoolSize), "pool")
+}
