@@ -119,7 +119,7 @@ func TestAdjustedCostAgainstDirectEnumeration(t *testing.T) {
 	// (outside every finding and the focus, trips on at least half of each
 	// period's days), scored on the before period's sums.
 	type sums struct {
-		days                [2]int
+		days                  [2]int
 		trips, dist, str, dur float64
 	}
 	all := map[EdgeKey]*sums{}
