@@ -68,6 +68,10 @@ func simulateTown(ctx context.Context, env *environment, dir string, size town.S
 		fmt.Fprintf(env.stdout, "  the new %s opens on %s at %.5f,%.5f\n", t.Link.Tag("name"),
 			plan.LinkOpens.Format(time.DateOnly), t.LinkMidpoint[0], t.LinkMidpoint[1])
 	}
+	if c := plan.Change; c != nil {
+		fmt.Fprintf(env.stdout, "  from %s the whole town has %+.0f %% trips at %+.0f %% driving speed; nothing is built\n",
+			c.From.Format(time.DateOnly), 100*(c.Demand-1), 100*(c.Speed-1))
+	}
 	return files, t, plan, nil
 }
 
