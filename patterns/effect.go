@@ -9,8 +9,10 @@ import (
 // Effect is one measure of a finding compared across the periods, on its
 // own and against its comparison group.
 type Effect struct {
-	// Before and After are the medians of the finding's daily values.
-	Before, After float64
+	// Before and After are the medians of the finding's daily values, with
+	// their 95 % confidence intervals (stats.MedianCI).
+	Before, After                              float64
+	BeforeLow, BeforeHigh, AfterLow, AfterHigh float64
 	// Raw is the finding's own change, After − Before.
 	Raw float64
 	// Group is the comparison group's relative change on the same days:
@@ -41,6 +43,8 @@ func (e Effect) RelativeCI() (low, high float64) {
 // confidence interval; otherwise only the Hodges-Lehmann shift is given.
 func effect(fb, fa, gb, ga []float64, full bool) Effect {
 	e := Effect{Before: stats.Median(fb), After: stats.Median(fa)}
+	e.BeforeLow, e.BeforeHigh = stats.MedianCI(fb, 0.95)
+	e.AfterLow, e.AfterHigh = stats.MedianCI(fa, 0.95)
 	e.Raw = e.After - e.Before
 	ab, aa := fb, fa
 	if gb != nil {

@@ -197,7 +197,8 @@ func fxComparison() *patterns.Comparison {
 	effects := func(costB, costA, timeB, timeA, speedB, speedA, detourB, detourA float64, cost, tt patterns.Change) [patterns.NumMeasures]patterns.Effect {
 		var e [patterns.NumMeasures]patterns.Effect
 		set := func(m patterns.Measure, b, a float64, ch patterns.Change) {
-			e[m] = patterns.Effect{Before: b, After: a, Raw: a - b, Group: 0.02, Adjusted: shift(b, a), Relative: (a - b) / b}
+			e[m] = patterns.Effect{Before: b, After: a, Raw: a - b, Group: 0.02, Adjusted: shift(b, a), Relative: (a - b) / b,
+				BeforeLow: 0.9 * b, BeforeHigh: 1.1 * b, AfterLow: 0.9 * a, AfterHigh: 1.1 * a}
 			e[m].Adjusted.Change = ch
 		}
 		set(patterns.Cost, costB, costA, cost)

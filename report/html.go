@@ -99,7 +99,7 @@ table#findings { font-size: 0.95em; }
 {{.Map}}
 <h2>Weak links</h2>
 {{if .Rows}}<table id="findings">
-<tr>{{if .Comparing}}<th>Rank (period)</th>{{else}}<th>Rank</th>{{end}}<th>Place (edges)</th>{{if .Comparing}}<th>Verdict</th><th>Extra vehicle-hours per day before</th><th>after</th><th>Comparison group change</th><th>Adjusted change veh-h/day (95 % CI)</th><th>Adjusted travel time change min (95 % CI)</th><th>Detour ratio before, after</th><th>Days on the skyline before</th><th>after</th><th>Why</th>{{else}}<th>Share of days</th><th>Trips per day</th><th>Speed km/h</th><th>Detour ratio</th><th>Extra km per day</th><th>Extra vehicle-hours per day</th>{{end}}</tr>
+<tr>{{if .Comparing}}<th>Rank (period)</th>{{else}}<th>Rank</th>{{end}}<th>Place (edges)</th>{{if .Comparing}}<th>Verdict</th><th>Extra vehicle-hours per day before (95 % CI)</th><th>after (95 % CI)</th><th>Comparison group change</th><th>Adjusted change veh-h/day (95 % CI)</th><th>Adjusted travel time change min (95 % CI)</th><th>Detour ratio before, after</th><th>Days on the skyline before</th><th>after</th><th>Why</th>{{else}}<th>Share of days</th><th>Trips per day</th><th>Speed km/h</th><th>Detour ratio</th><th>Extra km per day</th><th>Extra vehicle-hours per day</th>{{end}}</tr>
 {{range .Rows}}<tr><td class="num">{{.Rank}}{{if $.Comparing}} ({{.Period}}){{end}}</td><td title="Edges {{.Edges}}">{{.Name}} <span class="ci">({{.ID}})</span>{{if .Focus}} (focus){{end}}</td>{{if $.Comparing}}<td><span class="swatch" style="background: {{.Colour}}; color: {{.Text}}">{{.Verdict}}</span></td><td class="num">{{.CostBefore}}</td><td class="num">{{.CostAfter}}</td><td class="num">{{.GroupChange}}</td><td class="num">{{.CostShift}}{{if .CostCI}}<br/><span class="ci">{{.CostCI}}</span>{{end}}</td><td class="num">{{.TimeShift}}{{if .TimeCI}}<br/><span class="ci">{{.TimeCI}}</span>{{end}}</td><td class="num">{{.DetourChange}}</td><td class="num">{{.ShareBefore}}</td><td class="num">{{.ShareAfter}}</td><td class="why">{{.Note}}</td>{{else}}<td class="num">{{.Share}}</td><td class="num">{{.Trips}}</td><td class="num">{{.Speed}}</td><td class="num">{{.Detour}}</td><td class="num">{{.ExtraKM}}</td><td class="num">{{.ExtraHours}}</td>{{end}}</tr>
 {{end}}</table>{{else}}<p>No weak link recurred.</p>{{end}}
 <h2>Inputs</h2>
@@ -170,7 +170,7 @@ func (v *view) html(w io.Writer) error {
 				row.CostBefore, row.CostAfter, row.CostShift, row.TimeShift, row.DetourChange = v.valueMark(), v.valueMark(), v.valueMark(), v.valueMark(), v.valueMark()
 			} else {
 				c := a.Effects[patterns.Cost]
-				row.CostBefore, row.CostAfter = fmtFixed(c.Before, 1), fmtFixed(c.After, 1)
+				row.CostBefore, row.CostAfter = levelWithCI(c.Before, c.BeforeLow, c.BeforeHigh), levelWithCI(c.After, c.AfterLow, c.AfterHigh)
 				row.GroupChange = formatPercentChange(c.Group)
 				row.CostShift, row.CostCI = fmtInterval(c.Adjusted.Shift, c.Adjusted.Low, c.Adjusted.High, 1)
 				dt := a.Effects[patterns.Detour]

@@ -98,7 +98,7 @@ func TestDashPattern(t *testing.T) {
 }
 
 const (
-	headLead    = "Across Mill Lane between Ring Road 1 and Ring Road 2 (1>2): 3.0 extra vehicle-hours a day before, 3.4 after, against its comparison group +0.4 (95 % CI +0.1 to +0.7): worse; across Mill Lane between Ring Road 8 and Ring Road 9 (8>9): 5.0 extra vehicle-hours a day before, 2.0 after, against its comparison group -3.0 (95 % CI -3.3 to -2.7): cleared; across Mill Lane between Ring Road 7 and Ring Road 8 (7>8): 2.0 extra vehicle-hours a day before, 2.1 after, against its comparison group +0.1 (95 % CI -0.2 to +0.4): unchanged (2026-03-02 to 2026-03-15 against 2026-05-04 to 2026-05-17). "
+	headLead    = "Across Mill Lane between Ring Road 1 and Ring Road 2 (1>2): 3.0 (2.7 to 3.3) extra vehicle-hours a day before, 3.4 (3.1 to 3.7) after, against its comparison group +0.4 (95 % CI +0.1 to +0.7): worse; across Mill Lane between Ring Road 8 and Ring Road 9 (8>9): 5.0 (4.5 to 5.5) extra vehicle-hours a day before, 2.0 (1.8 to 2.2) after, against its comparison group -3.0 (95 % CI -3.3 to -2.7): cleared; across Mill Lane between Ring Road 7 and Ring Road 8 (7>8): 2.0 (1.8 to 2.2) extra vehicle-hours a day before, 2.1 (1.9 to 2.3) after, against its comparison group +0.1 (95 % CI -0.2 to +0.4): unchanged (2026-03-02 to 2026-03-15 against 2026-05-04 to 2026-05-17). "
 	headNetwork = " Across the network, trips per day changed by -25 %, travel time per trip by -9 % and speed by +10 %; the verdicts allow for such changes through each weak link's comparison group."
 )
 

@@ -95,7 +95,7 @@ func (b *book) comparison() {
 	v := b.v
 	s := b.newSheet(SheetComparison)
 	cols := append(v.rankColumns(), "Place", "Weak link", "Verdict", "Decided by", "Focus",
-		"Cost before veh-h/day", "Cost after veh-h/day", "Cost raw change", "Comparison group change", "Cost adjusted change", "Cost adjusted CI low", "Cost adjusted CI high", "Cost adjusted change share", "Cost p adjusted",
+		"Cost before veh-h/day", "Cost before CI low", "Cost before CI high", "Cost after veh-h/day", "Cost after CI low", "Cost after CI high", "Cost raw change", "Comparison group change", "Cost adjusted change", "Cost adjusted CI low", "Cost adjusted CI high", "Cost adjusted change share", "Cost p adjusted",
 		"Travel time before min", "Travel time after min", "Travel time raw change", "Comparison group travel time change", "Travel time adjusted change", "Travel time adjusted CI low", "Travel time adjusted CI high", "Travel time adjusted change share", "Travel time p adjusted",
 		"Trips per day before", "Trips per day after", "Speed before km/h", "Speed after km/h", "Detour ratio before", "Detour ratio after",
 		"Days at the fixed bar before", "Days with trips before", "Days at the fixed bar after", "Days with trips after", "Comparison pairs",
@@ -116,7 +116,7 @@ func (b *book) comparison() {
 		// The reason wraps in its column; the row is made tall enough.
 		s.tall(wrappedLines(Reason(a), reasonWidth*9/10))
 		s.add(append(b.rankCells(it), b.str(it.Name), b.str(a.Finding.ID), textCell(string(a.Verdict), b.st.verdict[a.Verdict]), b.str(string(a.Basis)), yesNo(a.Focus, b.st.centre),
-			g(c.Before, b.st.dec1), g(c.After, b.st.dec1), g(c.Raw, b.st.signed1), pct(c.Group), g(c.Adjusted.Shift, b.st.signed1), g(c.Adjusted.Low, b.st.signed1), g(c.Adjusted.High, b.st.signed1), pct(c.Relative), b.pval(c.Adjusted.PAdjusted),
+			g(c.Before, b.st.dec1), g(c.BeforeLow, b.st.dec1), g(c.BeforeHigh, b.st.dec1), g(c.After, b.st.dec1), g(c.AfterLow, b.st.dec1), g(c.AfterHigh, b.st.dec1), g(c.Raw, b.st.signed1), pct(c.Group), g(c.Adjusted.Shift, b.st.signed1), g(c.Adjusted.Low, b.st.signed1), g(c.Adjusted.High, b.st.signed1), pct(c.Relative), b.pval(c.Adjusted.PAdjusted),
 			g(minutes(tt.Before), b.st.dec1), g(minutes(tt.After), b.st.dec1), g(minutes(tt.Raw), b.st.signed1), pct(tt.Group), g(minutes(tt.Adjusted.Shift), b.st.signed1), g(minutes(tt.Adjusted.Low), b.st.signed1), g(minutes(tt.Adjusted.High), b.st.signed1), pct(tt.Relative), b.pval(tt.Adjusted.PAdjusted),
 			g(a.Effects[patterns.Trips].Before, b.st.dec1), g(a.Effects[patterns.Trips].After, b.st.dec1),
 			g(kmh(a.Effects[patterns.Speed].Before), b.st.dec1), g(kmh(a.Effects[patterns.Speed].After), b.st.dec1),

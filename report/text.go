@@ -211,7 +211,17 @@ func costSentence(a *patterns.Assessment, regions *partition.Partition) string {
 		ci = fmt.Sprintf(" (95 %% CI %s to %s)", signed("%+.1f", c.Adjusted.Low), signed("%+.1f", c.Adjusted.High))
 	}
 	return fmt.Sprintf("%s (%s): %s extra vehicle-hours a day before, %s after, against its comparison group %s%s: %s",
-		PlaceName(a.Finding, regions), a.Finding.ID, fmtFixed(c.Before, 1), fmtFixed(c.After, 1), signed("%+.1f", c.Adjusted.Shift), ci, a.Verdict)
+		PlaceName(a.Finding, regions), a.Finding.ID, levelWithCI(c.Before, c.BeforeLow, c.BeforeHigh), levelWithCI(c.After, c.AfterLow, c.AfterHigh),
+		signed("%+.1f", c.Adjusted.Shift), ci, a.Verdict)
+}
+
+// levelWithCI writes a daily median with its 95 % interval: "43.2 (41.0 to
+// 45.1)"; without an interval the median alone.
+func levelWithCI(v, low, high float64) string {
+	if !finite(low) || !finite(high) {
+		return fmtFixed(v, 1)
+	}
+	return fmt.Sprintf("%s (%s to %s)", fmtFixed(v, 1), fmtFixed(low, 1), fmtFixed(high, 1))
 }
 
 // networkSentence states the change over the whole network.
