@@ -5,9 +5,9 @@ import (
 	"fmt"
 	"math"
 	"sort"
+	"time"
 
 	"narrows/partition"
-	"narrows/partition/geodesy"
 	"narrows/regiongraph"
 )
 
@@ -18,28 +18,52 @@ type CompareOptions struct {
 	// Alpha is the significance level applied to Benjamini-Hochberg adjusted
 	// p-values (default 0.05).
 	Alpha float64 `toml:"alpha"`
-	// Focus, when not nil, marks the findings around a scheme.
+	// Focus, when not nil, marks the findings around a scheme; its pairs
+	// are left out of every comparison group.
 	Focus *Focus `toml:"-"`
-	// MinShiftSpeed is the smallest change of daily speed, in m/s, that
-	// counts as material (default 1 km/h): a significant shift smaller than
-	// this is treated as no change.
-	MinShiftSpeed float64 `toml:"-"`
-	// MinShiftDetour is the smallest change of the daily detour ratio that
-	// counts as material (default 0.05).
-	MinShiftDetour float64 `toml:"-"`
-	// MinDayTrips leaves out of a finding's daily speed and detour series the
-	// days with fewer trips than this on the finding's edges together
-	// (default 1: every analysed day with trips).
+	// Opening is the day YYYY-MM-DD the scheme opened, for the report's
+	// timeline (default none). It does not enter the verdicts.
+	Opening string `toml:"opening"`
+	// MaterialCost is the smallest adjusted change of a finding's cost
+	// (extra vehicle-hours per day), as a share of its before level, that
+	// counts (default 0.25: a quarter).
+	MaterialCost float64 `toml:"material_cost"`
+	// MaterialTime is the smallest adjusted change of the travel time per
+	// trip, as a share of its before level, that counts (default 0.10).
+	MaterialTime float64 `toml:"material_time"`
+	// ClearCost is the adjusted fall of the cost, as a share of its before
+	// level, that clears a finding (default 0.5: by half).
+	ClearCost float64 `toml:"clear_cost"`
+	// ClearBarShare: a finding that is better and met the fixed bar on
+	// fewer than this share of the after days (and fewer than before) is
+	// cleared (default 0.5: no longer on most days).
+	ClearBarShare float64 `toml:"clear_bar_share"`
+	// GroupSize is the number of pairs in a comparison group (default 20).
+	GroupSize int `toml:"group_size"`
+	// GroupMinSize is the fewest pairs of a distance band for a comparison
+	// group; with fewer the band widens (default 5).
+	GroupMinSize int `toml:"group_min_size"`
+	// GroupMinDays is the share of each period's analysed days on which a
+	// pair must carry trips to be in a comparison group (default 0.5).
+	GroupMinDays float64 `toml:"group_min_days"`
+	// MinDayTrips leaves out of a finding's daily series the days with
+	// fewer trips than this on the finding's edges together (default 1:
+	// every analysed day with trips).
 	MinDayTrips int `toml:"-"`
 }
 
 // DefaultCompareOptions returns the documented defaults.
 func DefaultCompareOptions() CompareOptions {
 	return CompareOptions{
-		Alpha:          0.05,
-		MinShiftSpeed:  geodesy.MPS(1),
-		MinShiftDetour: 0.05,
-		MinDayTrips:    1,
+		Alpha:         0.05,
+		MaterialCost:  0.25,
+		MaterialTime:  0.10,
+		ClearCost:     0.5,
+		ClearBarShare: 0.5,
+		GroupSize:     20,
+		GroupMinSize:  5,
+		GroupMinDays:  0.5,
+		MinDayTrips:   1,
 	}
 }
 
@@ -47,11 +71,21 @@ func (o CompareOptions) validate(regions *partition.Partition) error {
 	if !(o.Alpha > 0 && o.Alpha < 1) {
 		return fmt.Errorf("compare: alpha %v must lie strictly between 0 and 1", o.Alpha)
 	}
-	if !(o.MinShiftSpeed >= 0) || math.IsInf(o.MinShiftSpeed, 0) {
-		return fmt.Errorf("compare: minimum speed shift %v m/s must be a finite number ≥ 0", o.MinShiftSpeed)
+	for _, s := range []struct {
+		name string
+		v    float64
+	}{{"material cost share", o.MaterialCost}, {"material travel time share", o.MaterialTime}, {"clearing cost share", o.ClearCost}, {"clearing bar share", o.ClearBarShare}, {"group minimum days share", o.GroupMinDays}} {
+		if !(s.v >= 0 && s.v <= 1) {
+			return fmt.Errorf("compare: %s %v must lie between 0 and 1", s.name, s.v)
+		}
 	}
-	if !(o.MinShiftDetour >= 0) || math.IsInf(o.MinShiftDetour, 0) {
-		return fmt.Errorf("compare: minimum detour shift %v must be a finite number ≥ 0", o.MinShiftDetour)
+	if o.GroupSize < 1 || o.GroupMinSize < 1 || o.GroupMinSize > o.GroupSize {
+		return fmt.Errorf("compare: group size %d and minimum group size %d must be at least 1, the minimum no larger than the size", o.GroupSize, o.GroupMinSize)
+	}
+	if o.Opening != "" {
+		if _, err := time.Parse(dayLayout, o.Opening); err != nil {
+			return fmt.Errorf("compare: opening %q is not a date YYYY-MM-DD", o.Opening)
+		}
 	}
 	if o.MinDayTrips < 0 {
 		return fmt.Errorf("compare: minimum trips per day %d must be ≥ 0", o.MinDayTrips)
@@ -89,49 +123,40 @@ func (o CompareOptions) validate(regions *partition.Partition) error {
 // For each finding (the union of both scans' findings by ID; the Finding
 // recorded is the before one when it exists):
 //
-//   - Recurrence: the days of each period on which at least one of the
-//     finding's edges was a candidate (from Scan.DayCandidates, so it is
-//     counted even in a period where the place is not a finding), compared with a
-//     two-sided Fisher exact test of [[days before, other days before],
-//     [days after, other days after]].
-//   - Daily series: for every analysed day of a period on which the
-//     finding's edges carried at least MinDayTrips trips together, the
-//     trip-weighted mean over the edges with trips that day of their median
-//     speed, and likewise of their median detour ratio. Days on which only
-//     some edges had trips count, so that a group whose traffic moves to a
-//     new road keeps a series. The values come from the store itself, since
-//     an edge need not be a candidate in either period.
-//   - Shift: a two-sided Mann-Whitney U test (stats.Auto) of after against
-//     before and the Hodges-Lehmann shift, after minus before, with its
-//     95 % confidence interval. A period without a day in the series gives
-//     NaN for P, PAdjusted, Shift, Low and High.
+//   - Daily measures (see Measure): on every analysed day of a period on
+//     which the finding's edges carried at least MinDayTrips trips
+//     together (and its comparison group carried trips), its cost (extra
+//     vehicle-hours), travel time per trip, trips, speed, detour ratio and
+//     extra vehicle-km, read from the store itself, since an edge need not
+//     be a candidate in either period.
+//   - Comparison group (matchGroup): GroupSize region pairs like the
+//     finding, matched on straight-line distance band and before-period
+//     detour and speed, outside every finding of either period and outside
+//     the focus area, with trips on at least GroupMinDays of each period's
+//     days.
+//   - Effects: each day's value divided by the group's index that day (the
+//     group's value over its before-period median; for the costs, its
+//     vehicle-hours and vehicle-km travelled), then the Hodges-Lehmann
+//     shift of after against before with its 95 % confidence interval and
+//     a two-sided Mann-Whitney test: a difference in differences on daily
+//     values, taken on the ratio scale so that a change of the whole
+//     network by a share (a season, growth) cancels whatever a pair's
+//     size. The raw change and the group's change are kept beside it.
+//   - Fixed bar: the days on which any edge was at least as circuitous as
+//     the skyline's detour floor and slower than the before period's median
+//     speed (Comparison.BarSpeed), thresholds held fixed across periods.
+//   - Skyline recurrence, as context: the days of each period on which any
+//     edge was a candidate, with a two-sided Fisher exact test. It never
+//     decides a verdict: skyline membership is relative to the rest of
+//     the day, so when the worst pair improves others join it.
 //
-// p-values are adjusted with Benjamini-Hochberg in three families, each
-// across all findings: the Fisher tests, the speed tests and the detour
-// tests.
-//
-// Decision rule. With α = opts.Alpha, a change is significant when its
-// adjusted p-value is below α, and a speed or detour change is material when
-// also its Hodges-Lehmann shift is at least MinShiftSpeed or MinShiftDetour
-// in size. Improvements are: significantly lower recurrence share, material
-// speed increase, material detour decrease; deteriorations are the
-// opposites. Then, in order:
-//
-//  1. both improvements and deteriorations: Unchanged (mixed evidence);
-//  2. a finding before but not after, recurring significantly less: Cleared;
-//  3. a finding after but not before, recurring significantly more: New;
-//  4. any deterioration: Worse;
-//  5. any improvement: Eased;
-//  6. otherwise Unchanged (this includes a group that crossed the support
-//     threshold without a significant change in recurrence).
-//
-// The changes the rule counted are kept with the verdict, as numbers rather
-// than words: Assessment.Recurrence, Speed.Change and Detour.Change (a
-// report puts them into sentences).
+// p-values are adjusted with Benjamini-Hochberg, each measure a family
+// across all findings, and the Fisher tests a family of their own. The
+// verdict is Decide(EvidenceOf(a), opts).
 //
 // Assessments are ordered by verdict, most urgent first: worse, new,
 // unchanged, eased, cleared; then by Finding.Rank and ID. Counts holds all
-// five verdicts, zero or not.
+// five verdicts, zero or not. Network is the change over every pair.
 //
 // regions is used for the focus (and may be nil when Focus has no Point);
 // when given, every region of every finding must be in it, which catches a
@@ -153,21 +178,29 @@ func Compare(ctx context.Context, store *regiongraph.Store, regions *partition.P
 	if err := checkFindingRegions(union, regions); err != nil {
 		return nil, err
 	}
-	assessments, err := assess(ctx, store, regions, sb, sa, union, opts)
+	pd := readPeriods(store, sb, sa)
+	if err := ctx.Err(); err != nil {
+		return nil, err
+	}
+	c := &Comparison{Before: sb, After: sa, Alpha: opts.Alpha, Options: opts, BarSpeed: pd.barSpeed}
+	c.Network = networkChange(pd)
+	assessments, poolSize, err := assess(ctx, store, regions, pd, sb, sa, union, opts)
 	if err != nil {
 		return nil, err
 	}
+	c.PoolSize = poolSize
 	adjustFamilies(assessments)
-	counts := map[Verdict]int{Worse: 0, New: 0, Unchanged: 0, Eased: 0, Cleared: 0}
+	c.Counts = map[Verdict]int{Worse: 0, New: 0, Unchanged: 0, Eased: 0, Cleared: 0}
 	for i := range assessments {
 		a := &assessments[i]
-		var c changes
-		a.Verdict, c = decide(evidenceOf(a), opts)
-		a.Recurrence, a.Speed.Change, a.Detour.Change = c.recurrence, c.speed, c.detour
-		counts[a.Verdict]++
+		d := Decide(EvidenceOf(a), opts)
+		a.Verdict, a.Basis = d.Verdict, d.Basis
+		a.Effects[Cost].Adjusted.Change, a.Effects[TravelTime].Adjusted.Change = d.Cost, d.Time
+		c.Counts[a.Verdict]++
 	}
 	sortBySeverity(assessments)
-	return &Comparison{Before: sb, After: sa, Assessments: assessments, Counts: counts, Alpha: opts.Alpha}, nil
+	c.Assessments = assessments
+	return c, nil
 }
 
 // scanPeriods scans both periods and checks that each has analysed days and
@@ -215,19 +248,39 @@ func checkFindingRegions(union []unionEntry, regions *partition.Partition) error
 	return nil
 }
 
-// assess gathers the evidence of every finding of the union: recurrence
-// with its Fisher test, the daily series with their shift tests, and the
-// focus. The p-values are not yet adjusted and there is no verdict.
-func assess(ctx context.Context, store *regiongraph.Store, regions *partition.Partition, sb, sa *Scan, union []unionEntry, opts CompareOptions) ([]Assessment, error) {
-	var needed []EdgeKey
+// assess gathers the evidence of every finding of the union: daily
+// measures, comparison group and effects, the fixed bar, skyline recurrence
+// with its Fisher test, and the focus. The p-values are not yet adjusted
+// and there is no verdict. It also returns the size of the pool of pairs
+// the comparison groups were drawn from.
+func assess(ctx context.Context, store *regiongraph.Store, regions *partition.Partition, pd *periodData, sb, sa *Scan, union []unionEntry, opts CompareOptions) ([]Assessment, int, error) {
+	exclude := map[EdgeKey]bool{}
 	for _, u := range union {
-		needed = append(needed, findingKeys(u.finding)...)
+		for _, k := range findingKeys(u.finding) {
+			exclude[k] = true
+		}
 	}
-	valuesBefore := edgeDayValues(store, sb, needed)
-	valuesAfter := edgeDayValues(store, sa, needed)
+	pool := matchPool(pd, exclude, focusRegionSet(opts.Focus, regions), opts)
+	spread := poolSpread(pool)
+	groupsOf := make([]ComparisonGroup, len(union))
+	needed := map[EdgeKey]bool{}
+	for k := range exclude {
+		needed[k] = true
+	}
+	for i, u := range union {
+		straight, detour, speed := findingFeatures(pd, findingKeys(u.finding))
+		groupsOf[i] = matchGroup(pool, spread, straight, detour, speed, opts)
+		for _, k := range groupsOf[i].Edges {
+			needed[k] = true
+		}
+	}
 	if err := ctx.Err(); err != nil {
-		return nil, err
+		return nil, 0, err
 	}
+	days := pd.edgeDays(store, sb.Window, sb.Options.Skyline.MinTrips, needed)
+	bar := newFixedBar(sb.Options.Skyline, pd.barSpeed)
+	ref := sb.Options.ReferenceSpeed
+	minTrips := float64(max(opts.MinDayTrips, 1))
 
 	assessments := make([]Assessment, len(union))
 	for i, u := range union {
@@ -236,25 +289,92 @@ func assess(ctx context.Context, store *regiongraph.Store, regions *partition.Pa
 			Finding:     u.finding,
 			InBefore:    u.inBefore,
 			InAfter:     u.inAfter,
+			Group:       groupsOf[i],
 			DaysBefore:  recurrenceDays(sb, keys),
 			TotalBefore: len(sb.Days),
 			DaysAfter:   recurrenceDays(sa, keys),
 			TotalAfter:  len(sa.Days),
 		}
 		a.FisherP = recurrenceTest(&a)
-		speedBefore, detourBefore := dailySeries(valuesBefore, sb.Days, keys, opts.MinDayTrips)
-		speedAfter, detourAfter := dailySeries(valuesAfter, sa.Days, keys, opts.MinDayTrips)
-		a.Speed = shiftTest(speedBefore, speedAfter)
-		a.Detour = shiftTest(detourBefore, detourAfter)
+		var own, group [2][NumMeasures][]float64
+		hasGroup := len(a.Group.Edges) > 0
+		for p := range 2 {
+			ft := dailyTotals(days[p], len(pd.days[p]), keys, ref, bar)
+			var gt []dayTotals
+			if hasGroup {
+				gt = dailyTotals(days[p], len(pd.days[p]), a.Group.Edges, ref, nil)
+			}
+			for d := range ft {
+				if ft[d].trips < minTrips || (hasGroup && gt[d].trips == 0) {
+					continue
+				}
+				a.DaysWithTrips[p]++
+				if ft[d].bar {
+					a.BarDays[p]++
+				}
+				for m := range NumMeasures {
+					own[p][m] = append(own[p][m], ft[d].value(m))
+					if hasGroup {
+						group[p][m] = append(group[p][m], gt[d].scale(m))
+					}
+				}
+			}
+		}
+		for m := range NumMeasures {
+			full := true
+			a.Effects[m] = effect(own[0][m], own[1][m], group[0][m], group[1][m], full)
+		}
 		a.Focus = inFocus(u.finding, opts.Focus, regions)
 		assessments[i] = a
 		if i%64 == 0 {
 			if err := ctx.Err(); err != nil {
-				return nil, err
+				return nil, 0, err
 			}
 		}
 	}
-	return assessments, nil
+	return assessments, len(pool), nil
+}
+
+// findingFeatures returns the straight-line distance per trip, detour and
+// speed of a set of edges over the before period, or over the after period
+// when they carried no trips before.
+func findingFeatures(pd *periodData, keys []EdgeKey) (straight, detour, speed float64) {
+	for _, p := range []int{0, 1} {
+		var s edgeSummary
+		for _, k := range keys {
+			if e := pd.summary[k]; e != nil {
+				s.trips[0] += e.trips[p]
+				s.distanceSum[0] += e.distanceSum[p]
+				s.straightSum[0] += e.straightSum[p]
+				s.durationSum[0] += e.durationSum[p]
+			}
+		}
+		if s.trips[0] > 0 {
+			return s.features(0)
+		}
+	}
+	return math.NaN(), math.NaN(), math.NaN()
+}
+
+// focusRegionSet lists the regions of the focus area: those named, and
+// with a point and the regions those within the radius (see Focus).
+func focusRegionSet(focus *Focus, regions *partition.Partition) map[int]bool {
+	out := map[int]bool{}
+	if focus == nil {
+		return out
+	}
+	for _, id := range focus.Regions {
+		out[id] = true
+	}
+	if focus.Point != nil && regions != nil {
+		for i := range regions.Regions {
+			r := &regions.Regions[i]
+			if regionDistance(r, *focus.Point) <= focus.RadiusMetres {
+				out[r.ID] = true
+			}
+		}
+	}
+	return out
 }
 
 // sortBySeverity orders assessments by verdict, most urgent first, then by

@@ -201,24 +201,30 @@ func TestComparePlantedChange(t *testing.T) {
 		t.Fatalf("analysed %d and %d days, want 28 and 28", len(c.Before.Days), len(c.After.Days))
 	}
 	tests := []struct {
-		name                string
-		from, to            int
-		want                Verdict
-		inBefore, inAfter   bool
-		focus               bool
-		speedKMH, detour    float64 // planted shift, after − before
-		minBefore, maxAfter int     // recurrence bounds
-		changes             changes // recurrence, speed, detour
+		name              string
+		from, to          int
+		want              Verdict
+		basis             Basis
+		inBefore, inAfter bool
+		focus             bool
+		speedKMH, detour  float64 // planted change, after − before
+		cost, time        Change  // the deciding changes
 	}{
-		{"A new link clears it", 1, 2, Cleared, true, false, false, 18, -0.65, 26, 0, changes{Down, Up, Down}},
-		{"B untouched", 6, 7, Unchanged, true, true, true, 0, 0, 26, 28, changes{}},
-		{"C appears", 11, 12, New, false, true, true, -22, 0.78, 0, 28, changes{Up, Down, Up}},
-		{"D eased", 3, 4, Eased, true, true, false, 7, -0.25, 26, 28, changes{NoChange, Up, Down}},
+		{"A a new link clears it", 1, 2, Cleared, BasisCost, true, false, false, 18, -0.65, Down, Down},
+		{"B untouched", 6, 7, Unchanged, BasisNone, true, true, true, 0, 0, NoChange, NoChange},
+		{"C appears", 11, 12, New, BasisCost, false, true, true, -22, 0.78, Up, Up},
+		{"D eased", 3, 4, Eased, BasisCost, true, true, false, 7, -0.25, Down, Down},
+	}
+	inFinding := map[EdgeKey]bool{}
+	for _, a := range c.Assessments {
+		for _, k := range findingKeys(a.Finding) {
+			inFinding[k] = true
+		}
 	}
 	for _, tc := range tests {
 		a := assessmentFor(t, c, tc.from, tc.to)
-		if a.Verdict != tc.want {
-			t.Errorf("%s: verdict %s, want %s (%s)", tc.name, a.Verdict, tc.want, why(a))
+		if a.Verdict != tc.want || a.Basis != tc.basis {
+			t.Errorf("%s: verdict %s on %s, want %s on %s (%s)", tc.name, a.Verdict, a.Basis, tc.want, tc.basis, why(a))
 		}
 		if a.InBefore != tc.inBefore || a.InAfter != tc.inAfter {
 			t.Errorf("%s: in before/after = %v/%v, want %v/%v", tc.name, a.InBefore, a.InAfter, tc.inBefore, tc.inAfter)
@@ -226,32 +232,36 @@ func TestComparePlantedChange(t *testing.T) {
 		if a.Focus != tc.focus {
 			t.Errorf("%s: focus %v, want %v", tc.name, a.Focus, tc.focus)
 		}
-		if a.TotalBefore != 28 || a.TotalAfter != 28 || a.DaysBefore < tc.minBefore || a.DaysAfter > tc.maxAfter {
-			t.Errorf("%s: recurred %d/%d before, %d/%d after", tc.name, a.DaysBefore, a.TotalBefore, a.DaysAfter, a.TotalAfter)
+		if a.TotalBefore != 28 || a.TotalAfter != 28 || a.DaysWithTrips != [2]int{28, 28} {
+			t.Errorf("%s: %d/%d analysed days, %v with trips; want 28 of each", tc.name, a.TotalBefore, a.TotalAfter, a.DaysWithTrips)
 		}
 		if tc.inBefore && a.DaysBefore != len(c.Before.Findings[indexOfFinding(c.Before, a.Finding.ID)].Days) {
 			t.Errorf("%s: recurrence before %d differs from the finding's %d days", tc.name, a.DaysBefore, len(a.Finding.Days))
 		}
-		// Every analysed day had trips on the edge, in both periods.
-		if len(a.Speed.Before) != 28 || len(a.Speed.After) != 28 || len(a.Detour.Before) != 28 {
-			t.Errorf("%s: series lengths %d, %d, %d; want 28", tc.name, len(a.Speed.Before), len(a.Speed.After), len(a.Detour.Before))
+		// The raw changes recover the planted change within the day-to-day
+		// noise.
+		if got := a.Effects[Speed].Raw * 3.6; math.Abs(got-tc.speedKMH) > 1 {
+			t.Errorf("%s: speed change %+.2f km/h, planted %+.0f", tc.name, got, tc.speedKMH)
 		}
-		// The Hodges-Lehmann shift recovers the planted change within the
-		// day-to-day noise, and its interval brackets it.
-		if got := a.Speed.Shift * 3.6; math.Abs(got-tc.speedKMH) > 1 {
-			t.Errorf("%s: speed shift %+.2f km/h, planted %+.0f", tc.name, got, tc.speedKMH)
+		if got := a.Effects[Detour].Raw; math.Abs(got-tc.detour) > 0.03 {
+			t.Errorf("%s: detour change %+.3f, planted %+.2f", tc.name, got, tc.detour)
 		}
-		if !(a.Speed.Low <= a.Speed.Shift && a.Speed.Shift <= a.Speed.High) {
-			t.Errorf("%s: speed interval [%v, %v] misses the estimate %v", tc.name, a.Speed.Low, a.Speed.High, a.Speed.Shift)
+		cost := a.Effects[Cost].Adjusted
+		if !(cost.Low <= cost.Shift && cost.Shift <= cost.High) || cost.PAdjusted < cost.P || a.FisherPAdjusted < a.FisherP {
+			t.Errorf("%s: cost interval [%v, %v] misses %v, or an adjusted p-value is below its raw value", tc.name, cost.Low, cost.High, cost.Shift)
 		}
-		if math.Abs(a.Detour.Shift-tc.detour) > 0.03 {
-			t.Errorf("%s: detour shift %+.3f, planted %+.2f", tc.name, a.Detour.Shift, tc.detour)
+		if got := [2]Change{cost.Change, a.Effects[TravelTime].Adjusted.Change}; got != [2]Change{tc.cost, tc.time} {
+			t.Errorf("%s: cost and time changes %v, want %v", tc.name, got, [2]Change{tc.cost, tc.time})
 		}
-		if a.Speed.PAdjusted < a.Speed.P || a.FisherPAdjusted < a.FisherP {
-			t.Errorf("%s: an adjusted p-value is below its raw value", tc.name)
+		// The comparison group: background pairs only, none in a finding or
+		// touching the focus area (regions 6 and 12).
+		if len(a.Group.Edges) < DefaultCompareOptions().GroupMinSize {
+			t.Errorf("%s: comparison group of %d pairs", tc.name, len(a.Group.Edges))
 		}
-		if got := (changes{a.Recurrence, a.Speed.Change, a.Detour.Change}); got != tc.changes {
-			t.Errorf("%s: changes %+v, want %+v", tc.name, got, tc.changes)
+		for _, k := range a.Group.Edges {
+			if inFinding[k] || k.From == 6 || k.To == 6 || k.From == 12 || k.To == 12 {
+				t.Errorf("%s: comparison pair %v is in a finding or the focus area", tc.name, k)
+			}
 		}
 		t.Logf("%s: %s — %s", tc.name, a.Verdict, why(a))
 	}
@@ -277,9 +287,11 @@ func TestComparePlantedChange(t *testing.T) {
 // why describes the evidence behind an assessment's verdict for test
 // messages.
 func why(a *Assessment) string {
-	return fmt.Sprintf("recurred %d/%d -> %d/%d days (Fisher p adjusted %.4f, %v), speed shift %+.2f km/h (p adjusted %.4f, %v), detour shift %+.3f (p adjusted %.4f, %v)",
-		a.DaysBefore, a.TotalBefore, a.DaysAfter, a.TotalAfter, a.FisherPAdjusted, a.Recurrence,
-		a.Speed.Shift*3.6, a.Speed.PAdjusted, a.Speed.Change, a.Detour.Shift, a.Detour.PAdjusted, a.Detour.Change)
+	c, tt := a.Effects[Cost], a.Effects[TravelTime]
+	return fmt.Sprintf("%s on %s; cost %.2f -> %.2f veh-h/day, group %+.3f, adjusted %+.2f (%+.2f, p adjusted %.4f); time %.0f -> %.0f s, group %+.3f, adjusted %+.0f (%+.2f, p adjusted %.4f); bar %v of %v days; skyline %d/%d -> %d/%d days",
+		a.Verdict, a.Basis, c.Before, c.After, c.Group, c.Adjusted.Shift, c.Relative, c.Adjusted.PAdjusted,
+		tt.Before, tt.After, tt.Group, tt.Adjusted.Shift, tt.Relative, tt.Adjusted.PAdjusted,
+		a.BarDays, a.DaysWithTrips, a.DaysBefore, a.TotalBefore, a.DaysAfter, a.TotalAfter)
 }
 
 func indexOfFinding(s *Scan, id string) int {
@@ -412,8 +424,10 @@ func TestCompareErrors(t *testing.T) {
 		{"empty after period", store, grid, good, empty, DefaultCompareOptions(), "after period"},
 		{"different windows", store, grid, good, otherWindow, DefaultCompareOptions(), ""},
 		{"alpha zero", store, grid, good, later, withOpts(func(o *CompareOptions) { o.Alpha = 0 }), "alpha"},
-		{"negative speed shift", store, grid, good, later, withOpts(func(o *CompareOptions) { o.MinShiftSpeed = -1 }), "speed"},
-		{"NaN detour shift", store, grid, good, later, withOpts(func(o *CompareOptions) { o.MinShiftDetour = math.NaN() }), "detour"},
+		{"negative material cost", store, grid, good, later, withOpts(func(o *CompareOptions) { o.MaterialCost = -1 }), "material cost"},
+		{"NaN material time", store, grid, good, later, withOpts(func(o *CompareOptions) { o.MaterialTime = math.NaN() }), "travel time"},
+		{"group smaller than its minimum", store, grid, good, later, withOpts(func(o *CompareOptions) { o.GroupSize = 3 }), "group size"},
+		{"opening not a day", store, grid, good, later, withOpts(func(o *CompareOptions) { o.Opening = "30/03/2026" }), "opening"},
 		{"unknown focus region", store, grid, good, later, withOpts(func(o *CompareOptions) { o.Focus = &Focus{Regions: []int{99}} }), "99"},
 		{"focus point without regions", store, nil, good, later, withOpts(func(o *CompareOptions) { o.Focus = &Focus{Point: &orb.Point{0.2, 0.1}} }), "partition"},
 		{"focus point off the globe", store, grid, good, later, withOpts(func(o *CompareOptions) { o.Focus = &Focus{Point: &orb.Point{200, 0.1}} }), "WGS84"},
@@ -454,7 +468,7 @@ func TestCompareDeterministic(t *testing.T) {
 		}
 		var b strings.Builder
 		for _, a := range c.Assessments {
-			fmt.Fprintf(&b, "%s %s %v %v %s\n", a.Finding.ID, a.Verdict, a.Speed, a.Detour, why(&a))
+			fmt.Fprintf(&b, "%s %s %v %v %s\n", a.Finding.ID, a.Verdict, a.Effects, a.Group, why(&a))
 		}
 		return b.String()
 	}
@@ -482,12 +496,12 @@ func TestCompareLinkRoad(t *testing.T) {
 	var b strings.Builder
 	for _, a := range c.Assessments {
 		fmt.Fprintf(&b, "%-6s %-9s recurred %2d/%d -> %2d/%d days, speed %+5.1f km/h\n", a.Finding.ID, a.Verdict,
-			a.DaysBefore, a.TotalBefore, a.DaysAfter, a.TotalAfter, a.Speed.Shift*3.6)
+			a.DaysBefore, a.TotalBefore, a.DaysAfter, a.TotalAfter, a.Effects[Speed].Raw*3.6)
 	}
 	want := `11>12  new       recurred  0/28 -> 28/28 days, speed -21.8 km/h
-6>7    unchanged recurred 28/28 -> 28/28 days, speed  +0.1 km/h
-3>4    eased     recurred 28/28 -> 28/28 days, speed  +7.0 km/h
-1>2    cleared   recurred 28/28 ->  0/28 days, speed +17.7 km/h
+6>7    unchanged recurred 28/28 -> 28/28 days, speed  +0.2 km/h
+3>4    eased     recurred 28/28 -> 28/28 days, speed  +6.9 km/h
+1>2    cleared   recurred 28/28 ->  0/28 days, speed +17.6 km/h
 `
 	if got := b.String(); got != want {
 		t.Errorf("got\n%s\nwant\n%s", got, want)
@@ -540,12 +554,12 @@ func TestCompareMultiEdgeFinding(t *testing.T) {
 		t.Errorf("finding %s with %d edges: %s, %d and %d days; want 2 edges, cleared, 28 and 0 days (%s)",
 			a.Finding.ID, len(a.Finding.Edges), a.Verdict, a.DaysBefore, a.DaysAfter, why(&a))
 	}
-	if len(a.Speed.After) != 28 {
-		t.Errorf("speed series after has %d days, want 28 (days with trips on any edge)", len(a.Speed.After))
+	if len(a.Effects[Speed].Adjusted.After) != 28 {
+		t.Errorf("speed series after has %d days, want 28 (days with trips on any edge)", len(a.Effects[Speed].Adjusted.After))
 	}
 	// Before: trip-weighted mean of 14 and 18 km/h with 30 and 45 trips is
 	// 16.4 km/h; after: 33 km/h. The shift is about +16.6 km/h.
-	if got := a.Speed.Shift * 3.6; math.Abs(got-16.6) > 1 {
+	if got := a.Effects[Speed].Raw * 3.6; math.Abs(got-16.6) > 1 {
 		t.Errorf("speed shift %+.2f km/h, want about +16.6", got)
 	}
 }
@@ -576,4 +590,35 @@ func TestCompareRejectsDifferentWindows(t *testing.T) {
 	if _, err := Compare(context.Background(), store, gridPartition(), before, after, DefaultCompareOptions()); err != nil {
 		t.Errorf("same window: %v", err)
 	}
+}
+
+// BenchmarkCompareYearAgainstYear compares a year against the next over a
+// 45 x 45 grid (2,025 regions, about 4,000 edges a day, 2.9 million edges
+// in all): both scans, the comparison groups, the effects and the rule.
+func BenchmarkCompareYearAgainstYear(b *testing.B) {
+	store := scanTestStore(6, 45, 730, 4200, []scanPlant{scanPlantA, scanPlantB})
+	first, last := store.Edges[0].Day, store.Edges[len(store.Edges)-1].Day
+	// As the command reads it: edges under the scan's minimum trips are
+	// dropped while reading (regiongraph.ReadOptions.MinTrips).
+	store.Edges = keptEdges(store.Edges, DefaultScanOptions().Skyline.MinTrips)
+	split, _ := time.Parse("2006-01-02", first)
+	mid := split.AddDate(0, 0, 365).Format("2006-01-02")
+	before, after := DefaultScanOptions(), DefaultScanOptions()
+	before.From, before.To = first, split.AddDate(0, 0, 364).Format("2006-01-02")
+	after.From, after.To = mid, last
+	// The synthetic pairs are drawn afresh each day, each present on about
+	// 9 % of the days and with 10 trips or more on a fifth of those: a pool
+	// needs the share lowered to fill.
+	opts := DefaultCompareOptions()
+	opts.GroupMinDays = 0.01
+	var c *Comparison
+	for b.Loop() {
+		var err error
+		if c, err = Compare(context.Background(), store, nil, before, after, opts); err != nil {
+			b.Fatal(err)
+		}
+	}
+	b.ReportMetric(float64(len(store.Edges)), "edges")
+	b.ReportMetric(float64(len(c.Assessments)), "findings")
+	b.ReportMetric(float64(c.PoolSize), "pool")
 }

@@ -1,16 +1,31 @@
 package patterns
 
-import "strconv"
+import (
+	"math"
+	"strconv"
+)
 
-// Verdict is the outcome of comparing a finding across two periods.
+// Verdict is the outcome of comparing a finding across two periods, on
+// its own measures against its comparison group (see Compare).
 type Verdict string
 
 const (
-	Cleared   Verdict = "cleared"   // recurred before, no longer recurs
-	Eased     Verdict = "eased"     // still recurs, significantly faster or less circuitous
-	Unchanged Verdict = "unchanged" // no significant change
-	Worse     Verdict = "worse"     // significantly slower, more circuitous or more frequent
-	New       Verdict = "new"       // recurs only after
+	Cleared   Verdict = "cleared"   // the weakness went: cost fell by half or more, or the bar is no longer met on most days
+	Eased     Verdict = "eased"     // significantly and materially quicker or cheaper, beyond the network's change
+	Unchanged Verdict = "unchanged" // no significant, material change of its own (or mixed)
+	Worse     Verdict = "worse"     // significantly and materially slower or costlier, beyond the network's change
+	New       Verdict = "new"       // a finding of the after period only, and worse on its own measures
+)
+
+// Basis names the evidence that decided a verdict.
+type Basis string
+
+const (
+	BasisNone  Basis = "none"  // no significant, material change
+	BasisMixed Basis = "mixed" // one deciding measure better, the other worse
+	BasisCost  Basis = "cost"  // the adjusted cost (extra vehicle-hours per day)
+	BasisTime  Basis = "time"  // the adjusted travel time per trip
+	BasisBar   Basis = "bar"   // the fixed bar no longer met on most days, with a better cost or time
 )
 
 // Change is the direction in which one measure of a finding changed, after
@@ -53,17 +68,47 @@ type Shift struct {
 type Assessment struct {
 	Finding           Finding // from the before scan when present there, else after
 	Verdict           Verdict
+	Basis             Basis // the evidence that decided the verdict
 	InBefore, InAfter bool
-	// Recurrence: days on which the group recurred / analysed days.
+	// Effects holds each measure, by Measure: the finding's daily medians
+	// in each period, its raw change, its comparison group's change and
+	// the adjusted change. Cost and TravelTime decide the verdict (their
+	// Adjusted.Change is set); the others explain it.
+	Effects [NumMeasures]Effect
+	// Group is the finding's comparison group.
+	Group ComparisonGroup
+	// DaysWithTrips counts, per period (0 before, 1 after), the analysed
+	// days on which the finding's edges carried trips (at least
+	// MinDayTrips) and its comparison group too: the days of the daily
+	// series. BarDays counts those of them on which the finding met the
+	// fixed bar (any edge at least as circuitous as the detour floor and
+	// slower than the before period's median speed).
+	DaysWithTrips, BarDays [2]int
+	// Skyline recurrence, context only: days on which any edge was a
+	// candidate / analysed days, with the Fisher test.
 	DaysBefore, TotalBefore  int
 	DaysAfter, TotalAfter    int
 	FisherP, FisherPAdjusted float64
-	// Recurrence is the direction of a significant change of the share of
-	// days on which the group recurred (Fisher test).
-	Recurrence Change
-	Speed      Shift // daily trip-weighted median speed of the finding's edges, m/s
-	Detour     Shift // daily median detour of the finding's edges
-	Focus      bool  // within the focus area
+	Focus                    bool // within the focus area
+}
+
+// BarShare returns the share of the days of period p (0 before, 1 after)
+// on which the finding met the fixed bar (NaN without days).
+func (a *Assessment) BarShare(p int) float64 {
+	if a.DaysWithTrips[p] == 0 {
+		return math.NaN()
+	}
+	return float64(a.BarDays[p]) / float64(a.DaysWithTrips[p])
+}
+
+// NetworkChange is the change over every pair of the window with trips, on
+// the same days: what happened to the whole town (season, growth).
+type NetworkChange struct {
+	// Trips per day, TravelTime per trip (s) and Speed (m/s, vehicle-km
+	// over vehicle-hours): Before and After are daily medians, Raw the
+	// change, Adjusted.Shift the Hodges-Lehmann shift of the daily values
+	// and Relative that shift over Before.
+	Trips, TravelTime, Speed Effect
 }
 
 // Comparison is the before/after study.
@@ -72,6 +117,14 @@ type Comparison struct {
 	Assessments   []Assessment // ordered by verdict severity then rank
 	Counts        map[Verdict]int
 	Alpha         float64 // significance level after adjustment (default 0.05)
+	Options       CompareOptions
+	// Network is the change over the whole network.
+	Network NetworkChange
+	// BarSpeed is the fixed bar's speed, m/s: the before period's median
+	// of the daily trip-weighted median speed.
+	BarSpeed float64
+	// PoolSize is the number of pairs eligible for comparison groups.
+	PoolSize int
 }
 
 // severity orders verdicts for the report, most urgent first.

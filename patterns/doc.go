@@ -6,8 +6,11 @@
 // skyline options, support).
 // Out: a Scan, ranked Findings with their days and per-edge medians and
 // costs; and, for two periods, a Comparison with one Verdict per finding
-// and its evidence: recurrence, the shifts of daily speed and detour with
-// their tests, and the direction of each change the decision rule counted.
+// and its evidence: the finding's daily measures (cost, travel time,
+// trips, speed, detour, extra km) in both periods, its comparison group of
+// like region pairs, the raw, group and adjusted changes with their tests,
+// the fixed bar, the skyline recurrence as context, the basis of the
+// verdict (Decide, a pure function), and the change of the whole network.
 // Speeds are in m/s; wording and units for people are the report's.
 //
 // The groups are mined by narrows/patterns/groups; the tests come from

@@ -2,6 +2,7 @@ package patterns
 
 import (
 	"context"
+	"fmt"
 	"math/rand/v2"
 	"os"
 	"path/filepath"
@@ -111,10 +112,15 @@ func TestCompareMinTripsAsReadFilter(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if !reflect.DeepEqual(got, want) {
+	// NaN fields (tests not done) are never DeepEqual: compare them as
+	// text. The network's change counts the thin pairs too, so it alone
+	// may differ.
+	if !reflect.DeepEqual(got.Before, want.Before) || !reflect.DeepEqual(got.After, want.After) ||
+		fmt.Sprint(got.Counts, got.BarSpeed, got.PoolSize) != fmt.Sprint(want.Counts, want.BarSpeed, want.PoolSize) ||
+		fmt.Sprint(got.Assessments) != fmt.Sprint(want.Assessments) {
 		t.Errorf("comparison of the unfiltered store differs from the comparison of the store read with MinTrips %d", before.Skyline.MinTrips)
 		for i := range min(len(got.Assessments), len(want.Assessments)) {
-			if g, w := got.Assessments[i], want.Assessments[i]; !reflect.DeepEqual(g, w) {
+			if g, w := got.Assessments[i], want.Assessments[i]; fmt.Sprint(g) != fmt.Sprint(w) {
 				t.Errorf("assessment %d:\n%+v\n%+v", i, g, w)
 			}
 		}
@@ -122,7 +128,7 @@ func TestCompareMinTripsAsReadFilter(t *testing.T) {
 	// The thin days are out of the series: fewer than the 28 days of each
 	// period remain.
 	for _, a := range got.Assessments {
-		if len(a.Speed.Before) == 28 && len(a.Speed.After) == 28 {
+		if a.DaysWithTrips == [2]int{28, 28} {
 			t.Errorf("finding %s keeps every day in its series", a.Finding.ID)
 		}
 	}

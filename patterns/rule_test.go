@@ -5,98 +5,61 @@ import (
 	"testing"
 )
 
+// TestDecide covers every verdict and every basis of the rule, and the
+// edges of its thresholds.
 func TestDecide(t *testing.T) {
 	opts := DefaultCompareOptions()
-	const kmh = 1 / 3.6
-	// base: a finding in both periods with no change at all.
-	base := evidence{InBefore: true, InAfter: true, ShareBefore: 0.6, ShareAfter: 0.6, FisherPAdjusted: 1, SpeedPAdj: 0.8, DetourPAdj: 0.8}
-	with := func(f func(*evidence)) evidence { e := base; f(&e); return e }
+	nan := math.NaN()
+	// base: a finding of both periods that met the bar on 18 of 20 days
+	// before and after, nothing significant.
+	base := Evidence{InBefore: true, InAfter: true, BarShareBefore: 0.9, BarShareAfter: 0.9,
+		CostRelative: -0.05, CostP: 0.6, TimeRelative: 0.02, TimeP: 0.7}
+	with := func(f func(*Evidence)) Evidence { e := base; f(&e); return e }
 	tests := []struct {
-		name string
-		e    evidence
-		want Verdict
+		name       string
+		e          Evidence
+		want       Verdict
+		basis      Basis
+		cost, time Change
 	}{
-		{"no change", base, Unchanged},
-		{"gone, significant drop", with(func(e *evidence) { e.InAfter, e.ShareAfter, e.FisherPAdjusted = false, 0.05, 0.001 }), Cleared},
-		{"gone and faster", with(func(e *evidence) {
-			e.InAfter, e.ShareAfter, e.FisherPAdjusted, e.SpeedShift, e.SpeedPAdj = false, 0.05, 0.001, 5*kmh, 0.001
-		}), Cleared},
-		{"below threshold, drop not significant", with(func(e *evidence) { e.InAfter, e.ShareAfter, e.FisherPAdjusted = false, 0.15, 0.2 }), Unchanged},
-		{"below threshold, not significant, but faster", with(func(e *evidence) {
-			e.InAfter, e.ShareAfter, e.FisherPAdjusted, e.SpeedShift, e.SpeedPAdj = false, 0.15, 0.2, 3*kmh, 0.01
-		}), Eased},
-		{"gone but slower: mixed", with(func(e *evidence) {
-			e.InAfter, e.ShareAfter, e.FisherPAdjusted, e.SpeedShift, e.SpeedPAdj = false, 0.05, 0.001, -3*kmh, 0.01
-		}), Unchanged},
-		{"new, significant rise", with(func(e *evidence) { e.InBefore, e.ShareBefore, e.FisherPAdjusted = false, 0.02, 0.001 }), New},
-		{"new, slower too", with(func(e *evidence) {
-			e.InBefore, e.ShareBefore, e.FisherPAdjusted, e.SpeedShift, e.SpeedPAdj = false, 0.02, 0.001, -4*kmh, 0.001
-		}), New},
-		{"crossed threshold, rise not significant", with(func(e *evidence) { e.InBefore, e.ShareBefore, e.FisherPAdjusted = false, 0.18, 0.6 }), Unchanged},
-		{"crossed threshold, not significant, slower", with(func(e *evidence) {
-			e.InBefore, e.ShareBefore, e.FisherPAdjusted, e.SpeedShift, e.SpeedPAdj = false, 0.18, 0.6, -2*kmh, 0.001
-		}), Worse},
-		{"faster, material", with(func(e *evidence) { e.SpeedShift, e.SpeedPAdj = 2*kmh, 0.01 }), Eased},
-		{"faster, not material", with(func(e *evidence) { e.SpeedShift, e.SpeedPAdj = 0.5*kmh, 0.0001 }), Unchanged},
-		{"faster, material, not significant", with(func(e *evidence) { e.SpeedShift, e.SpeedPAdj = 5*kmh, 0.06 }), Unchanged},
-		{"faster exactly at the threshold", with(func(e *evidence) { e.SpeedShift, e.SpeedPAdj = opts.MinShiftSpeed, 0.01 }), Eased},
-		{"p exactly alpha is not significant", with(func(e *evidence) { e.SpeedShift, e.SpeedPAdj = 5*kmh, 0.05 }), Unchanged},
-		{"slower", with(func(e *evidence) { e.SpeedShift, e.SpeedPAdj = -2*kmh, 0.01 }), Worse},
-		{"less circuitous", with(func(e *evidence) { e.DetourShift, e.DetourPAdj = -0.1, 0.01 }), Eased},
-		{"more circuitous", with(func(e *evidence) { e.DetourShift, e.DetourPAdj = 0.1, 0.01 }), Worse},
-		{"detour shift too small", with(func(e *evidence) { e.DetourShift, e.DetourPAdj = 0.02, 0.0001 }), Unchanged},
-		{"faster but more circuitous: mixed", with(func(e *evidence) {
-			e.SpeedShift, e.SpeedPAdj, e.DetourShift, e.DetourPAdj = 2*kmh, 0.01, 0.1, 0.01
-		}), Unchanged},
-		{"recurs more often while in both", with(func(e *evidence) { e.ShareAfter, e.FisherPAdjusted = 0.95, 0.001 }), Worse},
-		{"recurs less often while in both", with(func(e *evidence) { e.ShareAfter, e.FisherPAdjusted = 0.25, 0.001 }), Eased},
-		{"untested series (NaN)", with(func(e *evidence) {
-			e.SpeedShift, e.SpeedPAdj, e.DetourShift, e.DetourPAdj = math.NaN(), math.NaN(), math.NaN(), math.NaN()
-		}), Unchanged},
+		{"nothing significant", base, Unchanged, BasisNone, NoChange, NoChange},
+		{"significant but not material", with(func(e *Evidence) { e.CostRelative, e.CostP, e.TimeRelative, e.TimeP = -0.2, 0.001, 0.05, 0.001 }), Unchanged, BasisNone, NoChange, NoChange},
+		{"material but not significant", with(func(e *Evidence) { e.CostRelative, e.CostP = -0.8, 0.06 }), Unchanged, BasisNone, NoChange, NoChange},
+		{"tests not done", with(func(e *Evidence) { e.CostRelative, e.CostP, e.TimeRelative, e.TimeP = -0.9, nan, -0.9, nan }), Unchanged, BasisNone, NoChange, NoChange},
+		{"cost halved: cleared", with(func(e *Evidence) { e.CostRelative, e.CostP = -0.5, 0.01 }), Cleared, BasisCost, Down, NoChange},
+		{"cost down a third: eased", with(func(e *Evidence) { e.CostRelative, e.CostP = -0.33, 0.01 }), Eased, BasisCost, Down, NoChange},
+		{"cost down at the material edge: eased", with(func(e *Evidence) { e.CostRelative, e.CostP = -opts.MaterialCost, 0.049 }), Eased, BasisCost, Down, NoChange},
+		{"quicker: eased on time", with(func(e *Evidence) { e.TimeRelative, e.TimeP = -0.15, 0.001 }), Eased, BasisTime, NoChange, Down},
+		{"quicker and off the bar: cleared by the bar", with(func(e *Evidence) { e.TimeRelative, e.TimeP, e.BarShareAfter = -0.15, 0.001, 0.3 }), Cleared, BasisBar, NoChange, Down},
+		{"off the bar but not better: unchanged", with(func(e *Evidence) { e.BarShareAfter = 0.1 }), Unchanged, BasisNone, NoChange, NoChange},
+		{"quicker, bar share under half but not lower than before: eased", with(func(e *Evidence) {
+			e.TimeRelative, e.TimeP, e.BarShareBefore, e.BarShareAfter = -0.15, 0.001, 0.3, 0.3
+		}), Eased, BasisTime, NoChange, Down},
+		{"cost halved in an after-only finding: eased, not cleared", with(func(e *Evidence) { e.InBefore, e.CostRelative, e.CostP = false, -0.6, 0.001 }), Eased, BasisCost, Down, NoChange},
+		{"costlier: worse", with(func(e *Evidence) { e.CostRelative, e.CostP = 0.4, 0.01 }), Worse, BasisCost, Up, NoChange},
+		{"slower: worse on time", with(func(e *Evidence) { e.TimeRelative, e.TimeP = 0.1, 0.01 }), Worse, BasisTime, NoChange, Up},
+		{"costlier, after only: new", with(func(e *Evidence) { e.InBefore, e.CostRelative, e.CostP = false, 0.4, 0.01 }), New, BasisCost, Up, NoChange},
+		{"costlier from nothing, after only: new", with(func(e *Evidence) { e.InBefore, e.CostRelative, e.CostP = false, math.Inf(1), 0.01 }), New, BasisCost, Up, NoChange},
+		{"after only without a change of its own: unchanged", with(func(e *Evidence) { e.InBefore = false }), Unchanged, BasisNone, NoChange, NoChange},
+		{"cheaper but slower: mixed", with(func(e *Evidence) { e.CostRelative, e.CostP, e.TimeRelative, e.TimeP = -0.6, 0.001, 0.2, 0.001 }), Unchanged, BasisMixed, Down, Up},
 	}
+	seen := map[Verdict]bool{}
+	bases := map[Basis]bool{}
 	for _, tc := range tests {
-		if got, _ := decide(tc.e, opts); got != tc.want {
-			t.Errorf("%s: %s, want %s", tc.name, got, tc.want)
+		d := Decide(tc.e, opts)
+		if d.Verdict != tc.want || d.Basis != tc.basis || d.Cost != tc.cost || d.Time != tc.time {
+			t.Errorf("%s: %+v, want %s on %s, cost %v, time %v", tc.name, d, tc.want, tc.basis, tc.cost, tc.time)
+		}
+		seen[d.Verdict], bases[d.Basis] = true, true
+	}
+	for _, v := range []Verdict{Cleared, Eased, Unchanged, Worse, New} {
+		if !seen[v] {
+			t.Errorf("no case gives %s", v)
 		}
 	}
-}
-
-// TestDecideChanges checks the changes decide returns with its verdict: one
-// per measure, in the direction of the change, only when significant and
-// material.
-func TestDecideChanges(t *testing.T) {
-	opts := DefaultCompareOptions()
-	const kmh = 1 / 3.6
-	base := evidence{InBefore: true, InAfter: true, ShareBefore: 0.6, ShareAfter: 0.6, FisherPAdjusted: 1, SpeedPAdj: 0.8, DetourPAdj: 0.8}
-	with := func(f func(*evidence)) evidence { e := base; f(&e); return e }
-	tests := []struct {
-		name string
-		e    evidence
-		want changes
-	}{
-		{"no change", base, changes{}},
-		{"gone, faster, more direct", with(func(e *evidence) {
-			e.InAfter, e.ShareAfter, e.FisherPAdjusted = false, 0.05, 0.001
-			e.SpeedShift, e.SpeedPAdj, e.DetourShift, e.DetourPAdj = 5*kmh, 0.001, -0.2, 0.001
-		}), changes{Down, Up, Down}},
-		{"new, slower, more circuitous", with(func(e *evidence) {
-			e.InBefore, e.ShareBefore, e.FisherPAdjusted = false, 0.02, 0.001
-			e.SpeedShift, e.SpeedPAdj, e.DetourShift, e.DetourPAdj = -4*kmh, 0.001, 0.3, 0.01
-		}), changes{Up, Down, Up}},
-		{"significant but not material", with(func(e *evidence) {
-			e.SpeedShift, e.SpeedPAdj, e.DetourShift, e.DetourPAdj = 0.5*kmh, 0.0001, 0.02, 0.0001
-		}), changes{}},
-		{"material but not significant", with(func(e *evidence) {
-			e.ShareAfter, e.FisherPAdjusted = 0.9, 0.2
-			e.SpeedShift, e.SpeedPAdj, e.DetourShift, e.DetourPAdj = -5*kmh, 0.06, 0.3, 0.05
-		}), changes{}},
-		{"untested series (NaN)", with(func(e *evidence) {
-			e.SpeedShift, e.SpeedPAdj, e.DetourShift, e.DetourPAdj = math.NaN(), math.NaN(), math.NaN(), math.NaN()
-		}), changes{}},
-	}
-	for _, tc := range tests {
-		if _, got := decide(tc.e, opts); got != tc.want {
-			t.Errorf("%s: %+v, want %+v", tc.name, got, tc.want)
+	for _, b := range []Basis{BasisNone, BasisMixed, BasisCost, BasisTime, BasisBar} {
+		if !bases[b] {
+			t.Errorf("no case decides on %s", b)
 		}
 	}
 }

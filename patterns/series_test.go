@@ -7,25 +7,44 @@ import (
 	"narrows/regiongraph"
 )
 
-func TestDailySeriesAndRecurrence(t *testing.T) {
+func TestDailyTotalsAndRecurrence(t *testing.T) {
 	a, b := EdgeKey{From: 1, To: 2}, EdgeKey{From: 2, To: 3}
-	values := map[EdgeKey]map[int]edgeValue{
-		a: {0: {trips: 10, speed: 5, detour: 1.5}, 1: {trips: 2, speed: 8, detour: 1.2}},
-		b: {0: {trips: 30, speed: 9, detour: 1.1}, 2: {trips: 4, speed: 7, detour: 1.4}},
+	days := map[EdgeKey][]edgeDay{
+		a: {{day: 0, trips: 10, speed: 5, detour: 1.5, duration: 600, distanceSum: 30000, straightSum: 20000, durationSum: 6000},
+			{day: 1, trips: 2, speed: 8, detour: 1.2, duration: 300}},
+		b: {{day: 0, trips: 30, speed: 9, detour: 1.1, duration: 200, distanceSum: 33000, straightSum: 30000, durationSum: 6000},
+			{day: 2, trips: 4, speed: 7, detour: 1.4, duration: 400}},
 	}
-	dayList := []string{"d0", "d1", "d2", "d3"}
-	speed, detour := dailySeries(values, dayList, []EdgeKey{a, b}, 1)
-	// Day 0: (10·5 + 30·9)/40 = 8, (10·1.5 + 30·1.1)/40 = 1.2; days 1 and 2
-	// from one edge each; day 3 has no trips.
-	wantSpeed, wantDetour := []float64{8, 8, 7}, []float64{1.2, 1.2, 1.4}
-	if !closeSlices(speed, wantSpeed) || !closeSlices(detour, wantDetour) {
-		t.Errorf("series %v, %v; want %v, %v", speed, detour, wantSpeed, wantDetour)
+	bar := &fixedBar{detourFloor: 1.3, detourGate: true, speed: 6, speedGate: true}
+	// Reference speed 10 m/s: edge a costs 6000 − 20000/10 = 4000 s, edge b
+	// 6000 − 3000 = 3000 s on day 0.
+	tot := dailyTotals(days, 4, []EdgeKey{a, b}, 10, bar)
+	want := []struct {
+		trips, speed, detour, time, cost, km float64
+		bar                                  bool
+	}{
+		{40, 8, 1.2, 300, 7000.0 / 3600, 13, true}, // (10·5 + 30·9)/40; a meets the bar (1.5, 5 m/s)
+		{2, 8, 1.2, 300, 0, 0, false},
+		{4, 7, 1.4, 400, 0, 0, false}, // 7 m/s is not below 6
+		{0, math.NaN(), math.NaN(), math.NaN(), 0, 0, false},
 	}
-	speed, _ = dailySeries(values, dayList, []EdgeKey{a, b}, 3)
-	if !closeSlices(speed, []float64{8, 7}) {
-		t.Errorf("with at least 3 trips a day: %v, want [8 7]", speed)
+	for d, w := range want {
+		got := []float64{tot[d].value(Trips), tot[d].value(Speed), tot[d].value(Detour), tot[d].value(TravelTime), tot[d].value(Cost), tot[d].value(ExtraKM)}
+		exp := []float64{w.trips, w.speed, w.detour, w.time, w.cost, w.km}
+		for i := range got {
+			if !(math.Abs(got[i]-exp[i]) < 1e-9 || math.IsNaN(got[i]) && math.IsNaN(exp[i])) {
+				t.Errorf("day %d measure %v = %v, want %v", d, Measure(i), got[i], exp[i])
+			}
+		}
+		if tot[d].bar != w.bar {
+			t.Errorf("day %d bar %v, want %v", d, tot[d].bar, w.bar)
+		}
 	}
-	s := &Scan{Days: dayList, DayCandidates: [][]EdgeKey{{a, b}, {a}, {{From: 0, To: 9}, b}, nil}}
+	// The group's scale of the cost is its vehicle-hours travelled.
+	if got := tot[0].scale(Cost); got != 12000 {
+		t.Errorf("cost scale %v, want 12000 s", got)
+	}
+	s := &Scan{Days: []string{"d0", "d1", "d2", "d3"}, DayCandidates: [][]EdgeKey{{a, b}, {a}, {{From: 0, To: 9}, b}, nil}}
 	for _, tc := range []struct {
 		keys []EdgeKey
 		want int
@@ -36,30 +55,23 @@ func TestDailySeriesAndRecurrence(t *testing.T) {
 	}
 }
 
-func closeSlices(a, b []float64) bool {
-	if len(a) != len(b) {
-		return false
-	}
-	for i := range a {
-		if math.Abs(a[i]-b[i]) > 1e-12 {
-			return false
-		}
-	}
-	return true
-}
-
-func TestEdgeDayValuesReadsOnlyTheScanWindowAndDays(t *testing.T) {
+func TestEdgeDaysReadsOnlyTheWindowDaysAndBusyEdges(t *testing.T) {
 	store := &regiongraph.Store{Edges: []regiongraph.Edge{
 		{Day: "2026-01-05", Window: "am", From: 1, To: 2, Trips: 5, SpeedMedian: 4, DetourMedian: 1.4},
 		{Day: "2026-01-05", Window: "pm", From: 1, To: 2, Trips: 9, SpeedMedian: 9, DetourMedian: 1.1},
 		{Day: "2026-01-06", Window: "am", From: 1, To: 2, Trips: 0, SpeedMedian: 1, DetourMedian: 1},
+		{Day: "2026-01-06", Window: "am", From: 2, To: 1, Trips: 2, SpeedMedian: 1, DetourMedian: 1},
 		{Day: "2026-01-07", Window: "am", From: 1, To: 2, Trips: 3, SpeedMedian: 6, DetourMedian: 1.2},
-		{Day: "2026-01-07", Window: "am", From: 2, To: 1, Trips: 3, SpeedMedian: 6, DetourMedian: 1.2},
+		{Day: "2026-01-08", Window: "am", From: 1, To: 2, Trips: 7, SpeedMedian: math.NaN(), DetourMedian: 1.2},
+		{Day: "2026-01-09", Window: "am", From: 1, To: 2, Trips: 8, SpeedMedian: 5, DetourMedian: 1.3},
 	}}
-	s := &Scan{Window: "am", Days: []string{"2026-01-05", "2026-01-06"}}
-	got := edgeDayValues(store, s, []EdgeKey{{From: 1, To: 2}})
-	want := map[int]edgeValue{0: {trips: 5, speed: 4, detour: 1.4}}
-	if len(got) != 1 || len(got[EdgeKey{From: 1, To: 2}]) != 1 || got[EdgeKey{From: 1, To: 2}][0] != want[0] {
-		t.Errorf("values %v, want only the am value of 2026-01-05: %v", got, want)
+	pd := &periodData{days: [2][]string{{"2026-01-05", "2026-01-06"}, {"2026-01-08", "2026-01-09"}}}
+	got := pd.edgeDays(store, "am", 3, map[EdgeKey]bool{{From: 1, To: 2}: true, {From: 2, To: 1}: true})
+	k := EdgeKey{From: 1, To: 2}
+	if len(got[0]) != 1 || len(got[0][k]) != 1 || got[0][k][0].trips != 5 || got[0][k][0].day != 0 {
+		t.Errorf("before: %v, want only the am value of 2026-01-05", got[0])
+	}
+	if len(got[1]) != 1 || len(got[1][k]) != 1 || got[1][k][0].trips != 8 || got[1][k][0].day != 1 {
+		t.Errorf("after: %v, want only 2026-01-09 (the NaN median of 2026-01-08 left out)", got[1])
 	}
 }

@@ -46,11 +46,23 @@ func adjust(as []Assessment, field func(*Assessment) (raw, adjusted *float64)) {
 	}
 }
 
-// adjustFamilies adjusts the p-values with Benjamini-Hochberg in three
-// families, each across all assessments: the Fisher tests, the speed tests
-// and the detour tests.
+// adjustFamilies adjusts the p-values with Benjamini-Hochberg, each family
+// across all assessments: the Fisher tests, and each measure's adjusted
+// test.
 func adjustFamilies(as []Assessment) {
 	adjust(as, func(a *Assessment) (*float64, *float64) { return &a.FisherP, &a.FisherPAdjusted })
-	adjust(as, func(a *Assessment) (*float64, *float64) { return &a.Speed.P, &a.Speed.PAdjusted })
-	adjust(as, func(a *Assessment) (*float64, *float64) { return &a.Detour.P, &a.Detour.PAdjusted })
+	for m := range NumMeasures {
+		adjust(as, func(a *Assessment) (*float64, *float64) {
+			return &a.Effects[m].Adjusted.P, &a.Effects[m].Adjusted.PAdjusted
+		})
+	}
+}
+
+// shiftEstimate is shiftTest without the test and the interval: the
+// Hodges-Lehmann shift only, P and the interval NaN.
+func shiftEstimate(before, after []float64) Shift {
+	nan := math.NaN()
+	s := Shift{Before: before, After: after, U: nan, P: nan, PAdjusted: nan, Low: nan, High: nan}
+	s.Shift = stats.HodgesLehmann(after, before)
+	return s
 }

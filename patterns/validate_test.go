@@ -55,7 +55,7 @@ func TestCompareOptionsValidate(t *testing.T) {
 		{"focus point", func(o *CompareOptions) { o.Focus = &Focus{Point: &pt, RadiusMetres: 600} }, ""},
 		{"focus regions", func(o *CompareOptions) { o.Focus = &Focus{Regions: []int{12, 15}} }, ""},
 		{"alpha", func(o *CompareOptions) { o.Alpha = 1 }, "alpha"},
-		{"speed shift", func(o *CompareOptions) { o.MinShiftSpeed = -1 }, "speed shift"},
+		{"material cost", func(o *CompareOptions) { o.MaterialCost = -1 }, "material cost"},
 		{"focus off the globe", func(o *CompareOptions) { o.Focus = &Focus{Point: &far, RadiusMetres: 600} }, "not a WGS84"},
 		{"negative radius", func(o *CompareOptions) { o.Focus = &Focus{Point: &pt, RadiusMetres: -1} }, "radius"},
 	}

@@ -16,14 +16,22 @@ func axisFont() excelize.Font { return excelize.Font{Color: "#333333", Size: 9} 
 
 // timelineChart draws the Timeline sheet's line chart of candidates and
 // recurring weak links per day, from the n rows below the header row head.
-func (b *book) timelineChart(head, n int) {
+// With opening, column E marks the day the scheme opened: one point, drawn
+// as a large triangle above the lines.
+func (b *book) timelineChart(head, n int, opening bool) {
 	ref := func(col string) string { return columnRange(SheetTimeline, col, head+1, head+n) }
+	series := []excelize.ChartSeries{
+		{Name: "'" + SheetTimeline + "'!$C$" + strconv.Itoa(head), Categories: ref("A"), Values: ref("C"), Line: excelize.LineOptions{Width: 1.5}},
+		{Name: "'" + SheetTimeline + "'!$D$" + strconv.Itoa(head), Categories: ref("A"), Values: ref("D"), Line: excelize.LineOptions{Width: 2.25}},
+	}
+	if opening {
+		fill := excelize.Fill{Type: "pattern", Pattern: 1, Color: []string{"#333333"}}
+		series = append(series, excelize.ChartSeries{Name: "'" + SheetTimeline + "'!$E$" + strconv.Itoa(head), Categories: ref("A"), Values: ref("E"),
+			Marker: excelize.ChartMarker{Symbol: "triangle", Size: 10, Fill: fill}, Fill: fill})
+	}
 	b.fail(b.f.AddChart(SheetTimeline, "F2", &excelize.Chart{
-		Type: excelize.Line,
-		Series: []excelize.ChartSeries{
-			{Name: "'" + SheetTimeline + "'!$C$" + strconv.Itoa(head), Categories: ref("A"), Values: ref("C"), Line: excelize.LineOptions{Width: 1.5}},
-			{Name: "'" + SheetTimeline + "'!$D$" + strconv.Itoa(head), Categories: ref("A"), Values: ref("D"), Line: excelize.LineOptions{Width: 2.25}},
-		},
+		Type:   excelize.Line,
+		Series: series,
 		Title:  excelize.ChartTitle{Paragraph: []excelize.RichTextRun{{Text: b.v.timelineTitle()}}},
 		Legend: excelize.ChartLegend{Position: "bottom"},
 		// About eight slanted day labels keep the dates legible; programs

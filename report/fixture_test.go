@@ -183,22 +183,44 @@ func fxComparison() *patterns.Comparison {
 		After:  fxScan(after, worseA, newA, unchA, easedA),
 		Alpha:  0.05,
 		Counts: map[patterns.Verdict]int{},
+		Network: patterns.NetworkChange{
+			Trips:      patterns.Effect{Before: 4000, After: 3000, Raw: -1000, Relative: -0.25},
+			TravelTime: patterns.Effect{Before: 600, After: 546, Raw: -54, Relative: -0.09},
+			Speed:      patterns.Effect{Before: 8, After: 8.8, Raw: 0.8, Relative: 0.1},
+		},
 	}
 	shift := func(b, a float64) patterns.Shift {
 		return patterns.Shift{Before: []float64{b, b, b + 0.2}, After: []float64{a, a, a + 0.2}, U: 1, P: 0.004, PAdjusted: 0.01, Shift: a - b, Low: a - b - 0.3, High: a - b + 0.3}
 	}
-	moved := func(s patterns.Shift, c patterns.Change) patterns.Shift { s.Change = c; return s }
+	// effects gives cost, travel time (s), speed and detour before and
+	// after, with a group change of 2 %; the deciding changes as given.
+	effects := func(costB, costA, timeB, timeA, speedB, speedA, detourB, detourA float64, cost, tt patterns.Change) [patterns.NumMeasures]patterns.Effect {
+		var e [patterns.NumMeasures]patterns.Effect
+		set := func(m patterns.Measure, b, a float64, ch patterns.Change) {
+			e[m] = patterns.Effect{Before: b, After: a, Raw: a - b, Group: 0.02, Adjusted: shift(b, a), Relative: (a - b) / b,
+				BeforeLow: 0.9 * b, BeforeHigh: 1.1 * b, AfterLow: 0.9 * a, AfterHigh: 1.1 * a}
+			e[m].Adjusted.Change = ch
+		}
+		set(patterns.Cost, costB, costA, cost)
+		set(patterns.TravelTime, timeB, timeA, tt)
+		set(patterns.Speed, speedB, speedA, patterns.NoChange)
+		set(patterns.Detour, detourB, detourA, patterns.NoChange)
+		set(patterns.Trips, 40, 41, patterns.NoChange)
+		set(patterns.ExtraKM, 30, 28, patterns.NoChange)
+		return e
+	}
+	group := patterns.ComparisonGroup{Edges: []patterns.EdgeKey{{From: 1, To: 3}, {From: 3, To: 1}}, Band: 1.5}
 	c.Assessments = []patterns.Assessment{
-		{Finding: c.Before.Findings[0], Verdict: patterns.Worse, InBefore: true, InAfter: true, DaysBefore: 10, TotalBefore: 14, DaysAfter: 12, TotalAfter: 14,
-			FisherP: 0.648, FisherPAdjusted: 0.81, Speed: moved(shift(5, 4), patterns.Down), Detour: shift(1.8, 1.9)},
-		{Finding: c.After.Findings[1], Verdict: patterns.New, InAfter: true, DaysAfter: 5, TotalBefore: 14, TotalAfter: 14,
-			FisherP: 0.041, FisherPAdjusted: 0.1, Recurrence: patterns.Up, Speed: shift(6, 5.5), Detour: shift(1.6, 1.7)},
-		{Finding: c.Before.Findings[2], Verdict: patterns.Unchanged, InBefore: true, InAfter: true, DaysBefore: 8, TotalBefore: 14, DaysAfter: 8, TotalAfter: 14,
-			FisherP: 1, FisherPAdjusted: 1, Speed: shift(6, 6.1), Detour: shift(1.6, 1.6)},
-		{Finding: c.Before.Findings[3], Verdict: patterns.Eased, InBefore: true, InAfter: true, DaysBefore: 7, TotalBefore: 14, DaysAfter: 6, TotalAfter: 14,
-			FisherP: 1, FisherPAdjusted: 1, Speed: moved(shift(suppressedSpeed, suppressedSpeed+1), patterns.Up), Detour: shift(1.7, 1.5)},
-		{Finding: c.Before.Findings[1], Verdict: patterns.Cleared, InBefore: true, DaysBefore: 9, TotalBefore: 14, TotalAfter: 14,
-			FisherP: 0.00006, FisherPAdjusted: 0.003, Recurrence: patterns.Down, Speed: shift(4.5, 0), Detour: shift(2.1, 0), Focus: true},
+		{Finding: c.Before.Findings[0], Verdict: patterns.Worse, Basis: patterns.BasisTime, InBefore: true, InAfter: true, DaysBefore: 10, TotalBefore: 14, DaysAfter: 12, TotalAfter: 14,
+			FisherP: 0.648, FisherPAdjusted: 0.81, Effects: effects(3, 3.4, 600, 700, 5, 4, 1.8, 1.9, patterns.NoChange, patterns.Up), Group: group, DaysWithTrips: [2]int{14, 14}, BarDays: [2]int{10, 12}},
+		{Finding: c.After.Findings[1], Verdict: patterns.New, Basis: patterns.BasisCost, InAfter: true, DaysAfter: 5, TotalBefore: 14, TotalAfter: 14,
+			FisherP: 0.041, FisherPAdjusted: 0.1, Effects: effects(1, 2, 500, 520, 6, 5.5, 1.6, 1.7, patterns.Up, patterns.NoChange), Group: group, DaysWithTrips: [2]int{14, 14}, BarDays: [2]int{2, 6}},
+		{Finding: c.Before.Findings[2], Verdict: patterns.Unchanged, Basis: patterns.BasisNone, InBefore: true, InAfter: true, DaysBefore: 8, TotalBefore: 14, DaysAfter: 8, TotalAfter: 14,
+			FisherP: 1, FisherPAdjusted: 1, Effects: effects(2, 2.1, 550, 540, 6, 6.1, 1.6, 1.6, patterns.NoChange, patterns.NoChange), DaysWithTrips: [2]int{14, 14}, BarDays: [2]int{8, 8}},
+		{Finding: c.Before.Findings[3], Verdict: patterns.Eased, Basis: patterns.BasisCost, InBefore: true, InAfter: true, DaysBefore: 7, TotalBefore: 14, DaysAfter: 6, TotalAfter: 14,
+			FisherP: 1, FisherPAdjusted: 1, Effects: effects(2, 1.4, 580, 500, suppressedSpeed, suppressedSpeed+1, 1.7, 1.5, patterns.Down, patterns.Down), Group: group, DaysWithTrips: [2]int{14, 14}, BarDays: [2]int{7, 6}},
+		{Finding: c.Before.Findings[1], Verdict: patterns.Cleared, Basis: patterns.BasisBar, InBefore: true, DaysBefore: 9, TotalBefore: 14, TotalAfter: 14,
+			FisherP: 0.00006, FisherPAdjusted: 0.003, Effects: effects(5, 2, 900, 600, 4.5, 6, 2.1, 1.4, patterns.Down, patterns.Down), Group: group, DaysWithTrips: [2]int{14, 14}, BarDays: [2]int{12, 1}, Focus: true},
 	}
 	for _, a := range c.Assessments {
 		c.Counts[a.Verdict]++

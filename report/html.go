@@ -7,6 +7,8 @@ import (
 	"strconv"
 	"strings"
 	"unicode/utf8"
+
+	"narrows/patterns"
 )
 
 // WriteHTML writes to w a single page that opens offline (no scripts, fonts
@@ -24,16 +26,18 @@ type htmlVerdict struct {
 }
 
 type htmlRow struct {
-	Rank                          int
-	ID, Name, Edges, Verdict      string
-	Colour, Text                  string
-	Share, Trips, Speed, Detour   string
-	ExtraKM, ExtraHours           string
-	ShareBefore, ShareAfter       string
-	Period                        string // the period that ranks the row
-	SpeedShift, DetourShift, Note string
-	SpeedCI, DetourCI             string // 95 % intervals of the shifts
-	Focus                         bool
+	Rank                               int
+	ID, Name, Edges, Verdict           string
+	Colour, Text                       string
+	Share, Trips, Speed, Detour        string
+	ExtraKM, ExtraHours                string
+	ShareBefore, ShareAfter            string
+	Period                             string // the period that ranks the row
+	CostBefore, CostAfter, GroupChange string
+	CostShift, TimeShift, Note         string
+	DetourChange                       string
+	CostCI, TimeCI                     string // 95 % intervals of the adjusted changes
+	Focus                              bool
 }
 
 type htmlPage struct {
@@ -95,8 +99,8 @@ table#findings { font-size: 0.95em; }
 {{.Map}}
 <h2>Weak links</h2>
 {{if .Rows}}<table id="findings">
-<tr>{{if .Comparing}}<th>Rank (period)</th>{{else}}<th>Rank</th>{{end}}<th>Place (edges)</th>{{if .Comparing}}<th>Verdict</th><th>Trips per day</th><th>Days recurring before</th><th>Days recurring after</th><th>Speed shift km/h (95 % CI)</th><th>Detour ratio shift (95 % CI)</th><th>Why</th>{{else}}<th>Share of days</th><th>Trips per day</th><th>Speed km/h</th><th>Detour ratio</th><th>Extra km per day</th><th>Extra vehicle-hours per day</th>{{end}}</tr>
-{{range .Rows}}<tr><td class="num">{{.Rank}}{{if $.Comparing}} ({{.Period}}){{end}}</td><td title="Edges {{.Edges}}">{{.Name}} <span class="ci">({{.ID}})</span>{{if .Focus}} (focus){{end}}</td>{{if $.Comparing}}<td><span class="swatch" style="background: {{.Colour}}; color: {{.Text}}">{{.Verdict}}</span></td><td class="num">{{.Trips}}</td><td class="num">{{.ShareBefore}}</td><td class="num">{{.ShareAfter}}</td><td class="num">{{.SpeedShift}}{{if .SpeedCI}}<br/><span class="ci">{{.SpeedCI}}</span>{{end}}</td><td class="num">{{.DetourShift}}{{if .DetourCI}}<br/><span class="ci">{{.DetourCI}}</span>{{end}}</td><td class="why">{{.Note}}</td>{{else}}<td class="num">{{.Share}}</td><td class="num">{{.Trips}}</td><td class="num">{{.Speed}}</td><td class="num">{{.Detour}}</td><td class="num">{{.ExtraKM}}</td><td class="num">{{.ExtraHours}}</td>{{end}}</tr>
+<tr>{{if .Comparing}}<th>Rank (period)</th>{{else}}<th>Rank</th>{{end}}<th>Place (edges)</th>{{if .Comparing}}<th>Verdict</th><th>Extra vehicle-hours per day before (95 % CI)</th><th>after (95 % CI)</th><th>Comparison group change</th><th>Adjusted change veh-h/day (95 % CI)</th><th>Adjusted travel time change min (95 % CI)</th><th>Detour ratio before, after</th><th>Days on the skyline before</th><th>after</th><th>Why</th>{{else}}<th>Share of days</th><th>Trips per day</th><th>Speed km/h</th><th>Detour ratio</th><th>Extra km per day</th><th>Extra vehicle-hours per day</th>{{end}}</tr>
+{{range .Rows}}<tr><td class="num">{{.Rank}}{{if $.Comparing}} ({{.Period}}){{end}}</td><td title="Edges {{.Edges}}">{{.Name}} <span class="ci">({{.ID}})</span>{{if .Focus}} (focus){{end}}</td>{{if $.Comparing}}<td><span class="swatch" style="background: {{.Colour}}; color: {{.Text}}">{{.Verdict}}</span></td><td class="num">{{.CostBefore}}</td><td class="num">{{.CostAfter}}</td><td class="num">{{.GroupChange}}</td><td class="num">{{.CostShift}}{{if .CostCI}}<br/><span class="ci">{{.CostCI}}</span>{{end}}</td><td class="num">{{.TimeShift}}{{if .TimeCI}}<br/><span class="ci">{{.TimeCI}}</span>{{end}}</td><td class="num">{{.DetourChange}}</td><td class="num">{{.ShareBefore}}</td><td class="num">{{.ShareAfter}}</td><td class="why">{{.Note}}</td>{{else}}<td class="num">{{.Share}}</td><td class="num">{{.Trips}}</td><td class="num">{{.Speed}}</td><td class="num">{{.Detour}}</td><td class="num">{{.ExtraKM}}</td><td class="num">{{.ExtraHours}}</td>{{end}}</tr>
 {{end}}</table>{{else}}<p>No weak link recurred.</p>{{end}}
 <h2>Inputs</h2>
 <table>
@@ -163,10 +167,16 @@ func (v *view) html(w io.Writer) error {
 			row.ShareBefore = fmtShare(a.DaysBefore, a.TotalBefore)
 			row.ShareAfter = fmtShare(a.DaysAfter, a.TotalAfter)
 			if v.suppressed(t.Trips) {
-				row.SpeedShift, row.DetourShift = v.valueMark(), v.valueMark()
+				row.CostBefore, row.CostAfter, row.CostShift, row.TimeShift, row.DetourChange = v.valueMark(), v.valueMark(), v.valueMark(), v.valueMark(), v.valueMark()
 			} else {
-				row.SpeedShift, row.SpeedCI = fmtInterval(kmh(a.Speed.Shift), kmh(a.Speed.Low), kmh(a.Speed.High), 1)
-				row.DetourShift, row.DetourCI = fmtInterval(a.Detour.Shift, a.Detour.Low, a.Detour.High, 2)
+				c := a.Effects[patterns.Cost]
+				row.CostBefore, row.CostAfter = levelWithCI(c.Before, c.BeforeLow, c.BeforeHigh), levelWithCI(c.After, c.AfterLow, c.AfterHigh)
+				row.GroupChange = formatPercentChange(c.Group)
+				row.CostShift, row.CostCI = fmtInterval(c.Adjusted.Shift, c.Adjusted.Low, c.Adjusted.High, 1)
+				dt := a.Effects[patterns.Detour]
+				row.DetourChange = fmtFixed(dt.Before, 2) + ", " + fmtFixed(dt.After, 2)
+				tt := a.Effects[patterns.TravelTime]
+				row.TimeShift, row.TimeCI = fmtInterval(tt.Adjusted.Shift/60, tt.Adjusted.Low/60, tt.Adjusted.High/60, 1)
 			}
 			row.Note = Reason(a)
 		}

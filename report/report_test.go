@@ -2,6 +2,7 @@ package report
 
 import (
 	"bytes"
+	"fmt"
 	"image"
 	"image/color"
 	"image/png"
@@ -96,6 +97,11 @@ func TestDashPattern(t *testing.T) {
 	}
 }
 
+const (
+	headLead    = "Across Mill Lane between Ring Road 1 and Ring Road 2 (1>2): 3.0 (2.7 to 3.3) extra vehicle-hours a day before, 3.4 (3.1 to 3.7) after, against its comparison group +0.4 (95 % CI +0.1 to +0.7): worse; across Mill Lane between Ring Road 8 and Ring Road 9 (8>9): 5.0 (4.5 to 5.5) extra vehicle-hours a day before, 2.0 (1.8 to 2.2) after, against its comparison group -3.0 (95 % CI -3.3 to -2.7): cleared; across Mill Lane between Ring Road 7 and Ring Road 8 (7>8): 2.0 (1.8 to 2.2) extra vehicle-hours a day before, 2.1 (1.9 to 2.3) after, against its comparison group +0.1 (95 % CI -0.2 to +0.4): unchanged (2026-03-02 to 2026-03-15 against 2026-05-04 to 2026-05-17). "
+	headNetwork = " Across the network, trips per day changed by -25 %, travel time per trip by -9 % and speed by +10 %; the verdicts allow for such changes through each weak link's comparison group."
+)
+
 func TestHeadline(t *testing.T) {
 	all := fxInput()
 	noneBefore := fxInput()
@@ -115,9 +121,11 @@ func TestHeadline(t *testing.T) {
 		in   Input
 		want string
 	}{
-		{"comparison", all, "Of 4 weak links recurring before (2026-03-02 to 2026-03-15), 1 cleared after (2026-05-04 to 2026-05-17), 1 eased, 1 unchanged and 1 worse. 1 new weak link appeared; around the scheme, of 1: 1 cleared and none eased."},
-		{"after-only without rise", afterOnly, "Of 4 weak links recurring before (2026-03-02 to 2026-03-15), 1 cleared after (2026-05-04 to 2026-05-17), 1 eased, 1 unchanged and 1 worse. No new weak link appeared; 1 more recurs only after, without a significant rise; around the scheme, of 1: 1 cleared and none eased."},
-		{"only new", noneBefore, "No weak link recurred in the before period (2026-03-02 to 2026-03-15). 1 new weak link appeared."},
+		// The three costliest weak links of the before period lead, by rank,
+		// with their cost before and after and the adjusted change.
+		{"comparison", all, "%sOf 4 weak links recurring before, 1 cleared, 1 eased, 1 unchanged and 1 worse. 1 new weak link appeared, significantly and materially worse on its own measures; around the scheme, of 1: 1 cleared and none eased.%s"},
+		{"after-only without rise", afterOnly, "%sOf 4 weak links recurring before, 1 cleared, 1 eased, 1 unchanged and 1 worse. No new weak link appeared; 1 more recurs only after, without a significant, material change of its own; around the scheme, of 1: 1 cleared and none eased.%s"},
+		{"only new", noneBefore, "No weak link recurred in the before period (2026-03-02 to 2026-03-15). 1 new weak link appeared, significantly and materially worse on its own measures.%[2]s"},
 		// Costliest is rank 1, 1>2: 40 trips * 1.5 km = 60 km, 40 * 0.05 = 2 h.
 		{"scan", fxScanInput(), "4 weak links recurred on at least 20 % of the 14 analysed days (2026-03-02 to 2026-03-15). The costliest, across Mill Lane between Ring Road 1 and Ring Road 2 (1>2), adds 60 km of travel and 2 vehicle-hours a day."},
 		{"empty scan", empty, "No weak link recurred on at least 20 % of the 14 analysed days (2026-03-02 to 2026-03-15)."},
@@ -125,8 +133,12 @@ func TestHeadline(t *testing.T) {
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
-			if got := Headline(tc.in); got != tc.want {
-				t.Errorf("Headline =\n%q\nwant\n%q", got, tc.want)
+			want := tc.want
+			if strings.Contains(want, "%") && tc.in.Comparison != nil {
+				want = fmt.Sprintf(want, headLead, headNetwork)
+			}
+			if got := Headline(tc.in); got != want {
+				t.Errorf("Headline =\n%q\nwant\n%q", got, want)
 			}
 		})
 	}
@@ -199,13 +211,19 @@ func TestNonFiniteValues(t *testing.T) {
 	in := fxInput()
 	a := &in.Comparison.Assessments[0]
 	a.FisherP = math.NaN()
-	a.Speed.Shift, a.Speed.Low = math.NaN(), math.Inf(1)
+	a.Effects[patterns.Cost].Adjusted.Shift, a.Effects[patterns.Cost].Adjusted.Low = math.NaN(), math.Inf(1)
 	a.Finding.Edges[0].DetourMedian = math.Inf(1)
 	if _, err := writeAll(in); err != nil {
 		t.Fatalf("writing every output with NaN and Inf values: %v", err)
 	}
 	f, _ := writeBook(t, in)
 	cmp := rowsByKey(t, f, SheetComparison, "Weak link")
+	if got := cmp["1>2"]["Fisher p adjusted"]; got != "0.8100" {
+		t.Errorf("Fisher p adjusted shown as %q, want 0.8100", got)
+	}
+	if got := cmp["1>2"]["Cost adjusted change"]; got != "" {
+		t.Errorf("NaN cost change shown as %q, want blank", got)
+	}
 	if got := cmp["1>2"]["Fisher p"]; got != "" {
 		t.Errorf("NaN Fisher p shown as %q, want blank", got)
 	}

@@ -67,17 +67,49 @@ type timelineDay struct {
 func (b *book) timeline() {
 	s := b.newSheet(SheetTimeline)
 	cols := []string{"Day", "Period", "Candidates", "Weak places"}
+	opening, mark := b.v.openingMark()
+	if opening != "" {
+		cols = append(cols, schemeOpens)
+	}
 	head := s.header(cols...)
 	days := b.v.timelineDays()
+	marked := false
 	for _, d := range days {
-		s.add(b.str(d.day), b.str(d.period), b.count(d.cands), b.count(d.recurring))
+		row := []cell{b.str(d.day), b.str(d.period), b.count(d.cands), b.count(d.recurring)}
+		if opening != "" {
+			// The mark stands on the first analysed day from the opening.
+			if !marked && d.day >= opening {
+				row, marked = append(row, b.count(mark)), true
+			} else {
+				row = append(row, cell{})
+			}
+		}
+		s.add(row...)
 	}
 	s.filter(head, len(cols))
 	s.finish()
 	if b.err != nil || len(days) == 0 {
 		return
 	}
-	b.timelineChart(head, len(days))
+	b.timelineChart(head, len(days), opening != "")
+}
+
+// schemeOpens is the Timeline column and chart series that marks the day
+// the scheme opened.
+const schemeOpens = "Scheme opens"
+
+// openingMark returns the scheme's opening day of a comparison ("" when
+// not given) and the height of its mark on the timeline: the largest daily
+// count, so that the mark stands above the lines.
+func (v *view) openingMark() (day string, height int) {
+	c := v.in.Comparison
+	if c == nil || c.Options.Opening == "" {
+		return "", 0
+	}
+	for _, d := range v.timelineDays() {
+		height = max(height, d.cands, d.recurring)
+	}
+	return c.Options.Opening, max(height, 1)
 }
 
 // timelineDays lists the analysed days of every period in day order, with

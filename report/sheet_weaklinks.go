@@ -5,6 +5,8 @@ import (
 	"sort"
 	"strconv"
 	"strings"
+
+	"narrows/patterns"
 )
 
 // The sheets of the weak links: one row per finding, one per finding edge,
@@ -92,32 +94,35 @@ func (b *book) edges() {
 func (b *book) comparison() {
 	v := b.v
 	s := b.newSheet(SheetComparison)
-	cols := append(v.rankColumns(), "Place", "Weak link", "Verdict", "Focus", "Days recurring before", "Days analysed before", "Share before",
-		"Days recurring after", "Days analysed after", "Share after", "Fisher p", "Fisher p adjusted",
-		"Speed before km/h", "Speed after km/h", "Speed shift km/h", "Speed shift CI low km/h", "Speed shift CI high km/h", "Speed p", "Speed p adjusted",
-		"Detour ratio before", "Detour ratio after", "Detour ratio shift", "Detour ratio shift CI low", "Detour ratio shift CI high", "Detour p", "Detour p adjusted", "Reason")
+	cols := append(v.rankColumns(), "Place", "Weak link", "Verdict", "Decided by", "Focus",
+		"Cost before veh-h/day", "Cost before CI low", "Cost before CI high", "Cost after veh-h/day", "Cost after CI low", "Cost after CI high", "Cost raw change", "Comparison group change", "Cost adjusted change", "Cost adjusted CI low", "Cost adjusted CI high", "Cost adjusted change share", "Cost p adjusted",
+		"Travel time before min", "Travel time after min", "Travel time raw change", "Comparison group travel time change", "Travel time adjusted change", "Travel time adjusted CI low", "Travel time adjusted CI high", "Travel time adjusted change share", "Travel time p adjusted",
+		"Trips per day before", "Trips per day after", "Speed before km/h", "Speed after km/h", "Detour ratio before", "Detour ratio after",
+		"Days at the fixed bar before", "Days with trips before", "Days at the fixed bar after", "Days with trips after", "Comparison pairs",
+		"Skyline days before", "Skyline days after", "Days analysed before", "Days analysed after", "Fisher p adjusted", "Reason")
 	head := s.header(cols...)
-	share := func(days, total int) cell {
-		if total <= 0 {
-			return cell{}
-		}
-		return numCell(float64(days)/float64(total), b.st.pct)
-	}
 	for _, it := range v.items {
 		a := it.Assessment
 		t := totals(a.Finding)
-		sp, dt := a.Speed, a.Detour
+		c, tt := a.Effects[patterns.Cost], a.Effects[patterns.TravelTime]
 		g := func(x float64, style int) cell { return b.gated(t.Trips, x, style) }
+		minutes := func(x float64) float64 { return x / 60 }
+		pct := func(x float64) cell {
+			if !finite(x) {
+				return cell{}
+			}
+			return numCell(x, b.st.pct)
+		}
 		// The reason wraps in its column; the row is made tall enough.
 		s.tall(wrappedLines(Reason(a), reasonWidth*9/10))
-		s.add(append(b.rankCells(it), b.str(it.Name), b.str(a.Finding.ID), textCell(string(a.Verdict), b.st.verdict[a.Verdict]), yesNo(a.Focus, b.st.centre),
-			b.count(a.DaysBefore), b.count(a.TotalBefore), share(a.DaysBefore, a.TotalBefore),
-			b.count(a.DaysAfter), b.count(a.TotalAfter), share(a.DaysAfter, a.TotalAfter),
-			b.pval(a.FisherP), b.pval(a.FisherPAdjusted),
-			g(kmh(median(sp.Before)), b.st.dec1), g(kmh(median(sp.After)), b.st.dec1),
-			g(kmh(sp.Shift), b.st.signed1), g(kmh(sp.Low), b.st.signed1), g(kmh(sp.High), b.st.signed1), b.pval(sp.P), b.pval(sp.PAdjusted),
-			g(median(dt.Before), b.st.dec2), g(median(dt.After), b.st.dec2),
-			g(dt.Shift, b.st.signed2), g(dt.Low, b.st.signed2), g(dt.High, b.st.signed2), b.pval(dt.P), b.pval(dt.PAdjusted),
+		s.add(append(b.rankCells(it), b.str(it.Name), b.str(a.Finding.ID), textCell(string(a.Verdict), b.st.verdict[a.Verdict]), b.str(string(a.Basis)), yesNo(a.Focus, b.st.centre),
+			g(c.Before, b.st.dec1), g(c.BeforeLow, b.st.dec1), g(c.BeforeHigh, b.st.dec1), g(c.After, b.st.dec1), g(c.AfterLow, b.st.dec1), g(c.AfterHigh, b.st.dec1), g(c.Raw, b.st.signed1), pct(c.Group), g(c.Adjusted.Shift, b.st.signed1), g(c.Adjusted.Low, b.st.signed1), g(c.Adjusted.High, b.st.signed1), pct(c.Relative), b.pval(c.Adjusted.PAdjusted),
+			g(minutes(tt.Before), b.st.dec1), g(minutes(tt.After), b.st.dec1), g(minutes(tt.Raw), b.st.signed1), pct(tt.Group), g(minutes(tt.Adjusted.Shift), b.st.signed1), g(minutes(tt.Adjusted.Low), b.st.signed1), g(minutes(tt.Adjusted.High), b.st.signed1), pct(tt.Relative), b.pval(tt.Adjusted.PAdjusted),
+			g(a.Effects[patterns.Trips].Before, b.st.dec1), g(a.Effects[patterns.Trips].After, b.st.dec1),
+			g(kmh(a.Effects[patterns.Speed].Before), b.st.dec1), g(kmh(a.Effects[patterns.Speed].After), b.st.dec1),
+			g(a.Effects[patterns.Detour].Before, b.st.dec2), g(a.Effects[patterns.Detour].After, b.st.dec2),
+			b.count(a.BarDays[0]), b.count(a.DaysWithTrips[0]), b.count(a.BarDays[1]), b.count(a.DaysWithTrips[1]), b.count(len(a.Group.Edges)),
+			b.count(a.DaysBefore), b.count(a.DaysAfter), b.count(a.TotalBefore), b.count(a.TotalAfter), b.pval(a.FisherPAdjusted),
 			textCell(Reason(a), b.st.wrap),
 		)...)
 	}

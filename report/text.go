@@ -3,6 +3,7 @@ package report
 import (
 	"fmt"
 	"math"
+	"slices"
 	"strconv"
 	"strings"
 
@@ -35,19 +36,19 @@ func (v *view) cautions() []string {
 }
 
 // verdictMeaning explains a verdict in one line, following the decision
-// rule of patterns.Compare.
+// rule of patterns.Decide.
 func verdictMeaning(vd patterns.Verdict) string {
 	switch vd {
 	case patterns.Cleared:
-		return "recurred before, no longer recurs after, and recurs significantly less"
+		return "a weak link of the before period whose cost, against its comparison group, fell by half or more (significantly), or that no longer meets the fixed bar on most days while significantly cheaper or quicker"
 	case patterns.Eased:
-		return "significantly and materially faster or less circuitous, or recurring significantly less; nothing worse"
+		return "significantly and materially cheaper or quicker against its comparison group; nothing worse"
 	case patterns.Unchanged:
-		return "no significant, material change, or mixed evidence"
+		return "no significant, material change of its own against its comparison group, or mixed evidence"
 	case patterns.Worse:
-		return "significantly and materially slower or more circuitous, or recurring significantly more; nothing better"
+		return "significantly and materially costlier or slower against its comparison group; nothing better"
 	case patterns.New:
-		return "recurs only after, and significantly more than before"
+		return "a weak link of the after period only that is significantly and materially costlier or slower against its comparison group"
 	case "":
 		return "recurring weak link (no comparison)"
 	}
@@ -58,15 +59,15 @@ func verdictMeaning(vd patterns.Verdict) string {
 func verdictShort(vd patterns.Verdict) string {
 	switch vd {
 	case patterns.Cleared:
-		return "no longer recurs"
+		return "cost halved or bar no longer met"
 	case patterns.Eased:
-		return "faster, less circuitous or rarer"
+		return "cheaper or quicker"
 	case patterns.Unchanged:
 		return "no material change"
 	case patterns.Worse:
-		return "slower, more circuitous or more frequent"
+		return "costlier or slower"
 	case patterns.New:
-		return "recurs only after"
+		return "new and costlier or slower"
 	}
 	return ""
 }
@@ -105,14 +106,7 @@ func (v *view) method() []definition {
 		{"Rank", "Findings ordered by cost (extra vehicle-hours), 1 = highest."},
 	}
 	if v.comparing() {
-		d = append(d,
-			definition{"Fisher exact test", "Two-sided test of recurrence days / analysed days before against after."},
-			definition{"Mann-Whitney U test", "Two-sided test of the finding's daily median speed (detour) before against after."},
-			definition{"Hodges-Lehmann shift", "Median of all after-minus-before differences of daily values, with a 95 % confidence interval."},
-			definition{"Benjamini-Hochberg", fmt.Sprintf("P-values are adjusted across findings, separately for the Fisher, speed and detour tests, to control the false discovery rate; a change is significant at adjusted p < %s.", strconv.FormatFloat(alpha, 'g', -1, 64))},
-			definition{"Material change", "A significant speed or detour shift counts only when the Hodges-Lehmann shift is at least the comparison's minimum (by default 1 km/h of speed, 0.05 of detour)."},
-			definition{"Decision rule", "In order: improvements and deteriorations together: unchanged (mixed evidence); before only and recurring significantly less: cleared; after only and recurring significantly more: new; any deterioration: worse; any improvement: eased; otherwise unchanged."},
-		)
+		d = append(d, v.comparisonMethod(alpha)...)
 		for _, vd := range verdictOrder {
 			d = append(d, definition{"Verdict: " + string(vd), verdictMeaning(vd) + "."})
 		}
@@ -136,24 +130,27 @@ func (v *view) method() []definition {
 func Headline(in Input) string {
 	switch {
 	case in.Comparison != nil && in.Comparison.Before != nil && in.Comparison.After != nil:
-		return comparisonHeadline(in.Comparison)
+		return comparisonHeadline(in.Comparison, in.Regions)
 	case in.Scan != nil:
 		return scanHeadline(in.Scan, in.Regions)
 	}
 	return "No scan or comparison to report."
 }
 
-func comparisonHeadline(c *patterns.Comparison) string {
-	// The first sentence follows the weak links of the before period; the
-	// second those that recur only after, and the focus area.
+func comparisonHeadline(c *patterns.Comparison, regions *partition.Partition) string {
+	// The costliest weak links of the before period lead, with their cost
+	// before and after; then the counts, the focus area and the network.
 	before := map[patterns.Verdict]int{} // verdicts of findings of the before period
 	focus := map[patterns.Verdict]int{}  // the same within the focus area
 	nBefore, nFocus, nNew, nAfterOnly := 0, 0, 0, 0
-	for _, a := range c.Assessments {
+	var lead []*patterns.Assessment
+	for i := range c.Assessments {
+		a := &c.Assessments[i]
 		switch {
 		case a.InBefore:
 			nBefore++
 			before[a.Verdict]++
+			lead = append(lead, a)
 			if a.Focus {
 				nFocus++
 				focus[a.Verdict]++
@@ -164,24 +161,30 @@ func comparisonHeadline(c *patterns.Comparison) string {
 			nAfterOnly++
 		}
 	}
+	slices.SortStableFunc(lead, func(x, y *patterns.Assessment) int { return x.Finding.Rank - y.Finding.Rank })
 	var b strings.Builder
 	if nBefore == 0 {
-		fmt.Fprintf(&b, "No weak link recurred in the before period (%s)", dayRange(c.Before))
+		fmt.Fprintf(&b, "No weak link recurred in the before period (%s).", dayRange(c.Before))
 	} else {
-		fmt.Fprintf(&b, "Of %d %s recurring before (%s), %s cleared after (%s), %s eased, %s unchanged and %s worse",
-			nBefore, plural(nBefore, "weak link", "weak links"), dayRange(c.Before),
-			numberWord(before[patterns.Cleared]), dayRange(c.After), numberWord(before[patterns.Eased]), numberWord(before[patterns.Unchanged]), numberWord(before[patterns.Worse]))
+		var costs []string
+		for _, a := range lead[:min(len(lead), headlineLeaders)] {
+			costs = append(costs, costSentence(a, regions))
+		}
+		lead := strings.Join(costs, "; ")
+		fmt.Fprintf(&b, "%s%s (%s against %s). ", strings.ToUpper(lead[:1]), lead[1:], dayRange(c.Before), dayRange(c.After))
+		fmt.Fprintf(&b, "Of %d %s recurring before, %s cleared, %s eased, %s unchanged and %s worse.",
+			nBefore, plural(nBefore, "weak link", "weak links"),
+			numberWord(before[patterns.Cleared]), numberWord(before[patterns.Eased]), numberWord(before[patterns.Unchanged]), numberWord(before[patterns.Worse]))
 	}
-	b.WriteString(".")
 	var second []string
 	switch {
 	case nNew > 0:
-		second = append(second, fmt.Sprintf("%d new %s appeared", nNew, plural(nNew, "weak link", "weak links")))
+		second = append(second, fmt.Sprintf("%d new %s appeared, significantly and materially worse on %s own measures", nNew, plural(nNew, "weak link", "weak links"), plural(nNew, "its", "their")))
 	case nBefore > 0:
 		second = append(second, "no new weak link appeared")
 	}
 	if nAfterOnly > 0 {
-		second = append(second, fmt.Sprintf("%d more %s only after, without a significant rise", nAfterOnly, plural(nAfterOnly, "recurs", "recur")))
+		second = append(second, fmt.Sprintf("%d more %s only after, without a significant, material change of %s own", nAfterOnly, plural(nAfterOnly, "recurs", "recur"), plural(nAfterOnly, "its", "their")))
 	}
 	if nFocus > 0 {
 		second = append(second, fmt.Sprintf("around the scheme, of %d: %s cleared and %s eased", nFocus, numberWord(focus[patterns.Cleared]), numberWord(focus[patterns.Eased])))
@@ -190,7 +193,41 @@ func comparisonHeadline(c *patterns.Comparison) string {
 		s := strings.Join(second, "; ")
 		b.WriteString(" " + strings.ToUpper(s[:1]) + s[1:] + ".")
 	}
+	b.WriteString(" " + networkSentence(c.Network))
 	return b.String()
+}
+
+// headlineLeaders is how many of the costliest weak links the headline
+// names with their cost.
+const headlineLeaders = 3
+
+// costSentence gives a finding's cost before and after and its adjusted
+// change: "across the Orvel … (18>24+24>18): 43.2 extra vehicle-hours a day
+// before, 11.7 after, adjusted −31.3 (95 % CI −34.5 to −28.5): cleared".
+func costSentence(a *patterns.Assessment, regions *partition.Partition) string {
+	c := a.Effects[patterns.Cost]
+	ci := ""
+	if finite(c.Adjusted.Low) && finite(c.Adjusted.High) {
+		ci = fmt.Sprintf(" (95 %% CI %s to %s)", signed("%+.1f", c.Adjusted.Low), signed("%+.1f", c.Adjusted.High))
+	}
+	return fmt.Sprintf("%s (%s): %s extra vehicle-hours a day before, %s after, against its comparison group %s%s: %s",
+		PlaceName(a.Finding, regions), a.Finding.ID, levelWithCI(c.Before, c.BeforeLow, c.BeforeHigh), levelWithCI(c.After, c.AfterLow, c.AfterHigh),
+		signed("%+.1f", c.Adjusted.Shift), ci, a.Verdict)
+}
+
+// levelWithCI writes a daily median with its 95 % interval: "43.2 (41.0 to
+// 45.1)"; without an interval the median alone.
+func levelWithCI(v, low, high float64) string {
+	if !finite(low) || !finite(high) {
+		return fmtFixed(v, 1)
+	}
+	return fmt.Sprintf("%s (%s to %s)", fmtFixed(v, 1), fmtFixed(low, 1), fmtFixed(high, 1))
+}
+
+// networkSentence states the change over the whole network.
+func networkSentence(n patterns.NetworkChange) string {
+	return fmt.Sprintf("Across the network, trips per day changed by %s, travel time per trip by %s and speed by %s; the verdicts allow for such changes through each weak link's comparison group.",
+		formatPercentChange(n.Trips.Relative), formatPercentChange(n.TravelTime.Relative), formatPercentChange(n.Speed.Relative))
 }
 
 func scanHeadline(s *patterns.Scan, regions *partition.Partition) string {
@@ -260,7 +297,11 @@ func (v *view) timelineTitle() string {
 	s := "Candidates and recurring weak links per day"
 	if v.comparing() {
 		b, a := v.periods[0].Scan, v.periods[1].Scan
-		s += " (before: " + dayRange(b) + "; after: " + dayRange(a) + ")"
+		s += " (before: " + dayRange(b) + "; after: " + dayRange(a)
+		if day, _ := v.openingMark(); day != "" {
+			s += "; the scheme opened on " + day
+		}
+		s += ")"
 	}
 	return s
 }

@@ -121,9 +121,12 @@ func TestWorkbookValues(t *testing.T) {
 	// Comparison figures.
 	cmp := rowsByKey(t, f, SheetComparison, "Weak link")
 	for id, cols := range map[string]map[string]string{
-		"1>2": {"Days recurring before": "10", "Days analysed before": "14", "Share after": "85.7%", "Fisher p": "0.6480", "Speed shift km/h": "-3.6", "Speed shift CI low km/h": "-4.7", "Detour ratio shift": "+0.10", "Reason": "It is significantly slower; recurred on 10 of 14 days before and 12 of 14 after (Fisher p 0.6480, adjusted 0.8100); daily speed changed by -3.6 km/h (95 % CI -4.7 to -2.5 km/h; Mann-Whitney p 0.0040, adjusted 0.0100); detour ratio changed by +0.10 (95 % CI -0.20 to +0.40; Mann-Whitney p 0.0040, adjusted 0.0100)."},
-		"8>9": {"Days recurring after": "0", "Fisher p adjusted": "0.0030", "Fisher p": "6.00E-05", "Verdict": "cleared"},
-		"2>5": {"Speed shift km/h": "n<10", "Speed before km/h": "n<10", "Fisher p": "1.0000"},
+		"1>2": {"Skyline days before": "10", "Days analysed before": "14", "Fisher p adjusted": "0.8100", "Decided by": "time",
+			"Cost before veh-h/day": "3.0", "Cost before CI low": "2.7", "Cost after veh-h/day": "3.4", "Cost after CI high": "3.7", "Cost adjusted change": "+0.4", "Cost adjusted CI low": "+0.1", "Comparison group change": "2.0%",
+			"Travel time before min": "10.0", "Travel time adjusted change": "+1.7", "Days at the fixed bar after": "12", "Comparison pairs": "2",
+			"Reason": "Decided by its travel time: significantly and materially slower per trip beyond the comparison group's change. cost 3.0 to 3.4 extra veh-h/day (raw +0.4), comparison group +2 %, adjusted +0.4 (+13 %, 95 % CI +0.1 to +0.7; Mann-Whitney p adjusted 0.0100); travel time 10.0 to 11.7 min per trip (raw +1.7), comparison group +2 %, adjusted +1.7 (+17 %, 95 % CI +1.7 to +1.7; Mann-Whitney p adjusted 0.0100) (comparison group of 2 like pairs). Explained by speed 18.0 to 14.4 km/h, detour ratio 1.80 to 1.90, trips per day 40 to 41; on the daily skyline 10 of 14 days before and 12 of 14 after (context only; Fisher p adjusted 0.8100)."},
+		"8>9": {"Skyline days after": "0", "Fisher p adjusted": "0.0030", "Verdict": "cleared", "Decided by": "bar"},
+		"2>5": {"Cost before veh-h/day": "n<10", "Speed before km/h": "n<10", "Fisher p adjusted": "1.0000"},
 	} {
 		for col, v := range cols {
 			if got := cmp[id][col]; got != v {

@@ -63,6 +63,10 @@ func simulateTown(ctx context.Context, env *environment, dir string, size town.S
 		fmt.Fprintf(env.stdout, "  the new %s opens on %s at %.5f,%.5f\n", t.Link.Tag("name"),
 			plan.LinkOpens.Format(time.DateOnly), t.LinkMidpoint[0], t.LinkMidpoint[1])
 	}
+	if c := plan.Change; c != nil {
+		fmt.Fprintf(env.stdout, "  from %s the whole town has %+.0f %% trips at %+.0f %% driving speed; nothing is built\n",
+			c.From.Format(time.DateOnly), 100*(c.Demand-1), 100*(c.Speed-1))
+	}
 	return files, t, plan, nil
 }
 
@@ -145,11 +149,20 @@ support = 0.3
 before = "%[4]s"
 after = "%[5]s"
 focus = "%[6]s"
-`, townName, plan.Location.String(), slug, inclusive(plan.Before), inclusive(plan.After), focus)
+%[7]s`, townName, plan.Location.String(), slug, inclusive(plan.Before), inclusive(plan.After), focus, openingLine(plan))
+}
+
+// openingLine is the study file's line with the day the scenario's change
+// begins, for the timeline's mark, or nothing for the control.
+func openingLine(plan town.Plan) string {
+	if day := plan.Opening(); day != nil {
+		return fmt.Sprintf("opening = %q\n", day.Format(time.DateOnly))
+	}
+	return ""
 }
 
 func runSimulate(ctx context.Context, env *environment, args []string) error {
-	fs := newFlagSet(env, "simulate", "--size town|city --out DIR [--seed N] [--days N] [--scenario link|control] [--trips-per-day N]")
+	fs := newFlagSet(env, "simulate", "--size town|city --out DIR [--seed N] [--days N] [--scenario link|control|season|growth] [--trips-per-day N]")
 	var size, out, kind string
 	var seed int64
 	var days, perDay, gpsEvery int
@@ -159,7 +172,7 @@ func runSimulate(ctx context.Context, env *environment, args []string) error {
 	fs.Int64Var(&seed, "seed", 1, "seed of every random draw: the same seed gives the same bytes")
 	fs.IntVar(&days, "days", 0, "days to simulate (default: the scenario's eight weeks)")
 	fs.IntVar(&perDay, "trips-per-day", 0, "fleet trips on an average weekday (default: the scenario's)")
-	fs.StringVar(&kind, "scenario", "link", "link (a new river crossing opens half-way) or control (nothing changes)")
+	fs.StringVar(&kind, "scenario", "link", "link (a new river crossing opens half-way), control (nothing changes), season (a quarter fewer trips and a tenth faster everywhere from half-way) or growth (a quarter more trips and a tenth slower everywhere)")
 	env.files.bindForce(fs)
 	fs.BoolVar(&noStudy, "no-study", false, "write the town and its trips only, without study.toml (for --days shorter than the study's periods)")
 	fs.IntVar(&gpsEvery, "gps-every", 0, "also write GPS traces of every `n`-th trip to points.csv and the first 50 to traces.gpx")

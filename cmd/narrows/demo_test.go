@@ -149,12 +149,36 @@ func TestDemoFindsThePlantedWeaknessAndTheFixWorks(t *testing.T) {
 		if a.Verdict != patterns.Cleared && a.Verdict != patterns.Eased {
 			t.Errorf("finding %s with the planted pair: verdict %s, want cleared or eased (%s)", a.Finding.ID, a.Verdict, report.Reason(&a))
 		}
-		if a.Detour.Shift >= 0 {
-			t.Errorf("finding %s: detour shift %+.2f after the bridge opened, want a fall", a.Finding.ID, a.Detour.Shift)
+		if d := a.Effects[patterns.Detour].Raw; d >= 0 {
+			t.Errorf("finding %s: detour change %+.2f after the bridge opened, want a fall", a.Finding.ID, d)
+		}
+		// Its cost before and after: tens of extra vehicle-hours a day
+		// before, at most half of that after.
+		if c := a.Effects[patterns.Cost]; !(c.Before > 10 && c.After < c.Before/2) {
+			t.Errorf("finding %s: cost %.1f veh-h/day before, %.1f after; want over 10, then under half", a.Finding.ID, c.Before, c.After)
 		}
 	}
 	if checked == 0 {
 		t.Error("no before finding holds the planted pair")
+	}
+	checkNoSpuriousWorse(t, cmp)
+}
+
+// checkNoSpuriousWorse checks every finding: none is new or worse unless
+// its own adjusted cost or travel time rose significantly and materially.
+func checkNoSpuriousWorse(t *testing.T, cmp *patterns.Comparison) {
+	t.Helper()
+	o := cmp.Options
+	for _, a := range cmp.Assessments {
+		if a.Verdict != patterns.New && a.Verdict != patterns.Worse {
+			continue
+		}
+		c, tt := a.Effects[patterns.Cost], a.Effects[patterns.TravelTime]
+		costUp := c.Adjusted.PAdjusted < o.Alpha && c.Relative >= o.MaterialCost
+		timeUp := tt.Adjusted.PAdjusted < o.Alpha && tt.Relative >= o.MaterialTime
+		if !costUp && !timeUp {
+			t.Errorf("finding %s is %s without a significant, material rise of its own: %s", a.Finding.ID, a.Verdict, report.Reason(&a))
+		}
 	}
 }
 
@@ -325,6 +349,7 @@ func TestControlScenarioHasNoClearedOrWorse(t *testing.T) {
 			t.Errorf("control: finding %s is %s: %s", a.Finding.ID, a.Verdict, report.Reason(&a))
 		}
 	}
+	checkNoSpuriousWorse(t, cmp)
 }
 
 // Same seed, same bytes: two demo runs give identical files.

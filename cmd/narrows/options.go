@@ -125,6 +125,7 @@ func bindScan(fs *flag.FlagSet, o *patterns.ScanOptions) {
 // bindCompare binds the decision rule of compare to o.
 func bindCompare(fs *flag.FlagSet, o *patterns.CompareOptions) *focusValue {
 	fs.Float64Var(&o.Alpha, "alpha", o.Alpha, "significance level after Benjamini-Hochberg adjustment")
+	fs.StringVar(&o.Opening, "opening", o.Opening, "day `YYYY-MM-DD` the scheme opened, marked on the timeline")
 	focus := &focusValue{f: &o.Focus}
 	fs.Var(focus, "focus", "pairs around a scheme: region ids `12,15` or a point and radius LON,LAT@METRES")
 	return focus

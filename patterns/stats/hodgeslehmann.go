@@ -18,6 +18,13 @@ const maxExactCIPairs = 40000
 // mean of the two middle ones when their number is even). It returns NaN if
 // either sample is empty or holds a NaN.
 func HodgesLehmann(x, y []float64) float64 {
+	if dd, ok := newDifferences(x, y); ok {
+		n := len(x) * len(y)
+		if n%2 == 1 {
+			return dd.kth(n/2 + 1)
+		}
+		return (dd.kth(n/2) + dd.kth(n/2+1)) / 2
+	}
 	d := pairwiseDifferences(x, y)
 	if d == nil {
 		return math.NaN()
@@ -50,11 +57,17 @@ func HodgesLehmannCI(x, y []float64, level float64) (low, high float64) {
 	if !(level > 0 && level < 1) {
 		return math.NaN(), math.NaN()
 	}
+	k := ciRank(len(x), len(y), (1-level)/2)
+	if dd, ok := newDifferences(x, y); ok {
+		if k < 1 {
+			return math.Inf(-1), math.Inf(1)
+		}
+		return dd.kth(k), dd.kth(len(x)*len(y) + 1 - k)
+	}
 	d := pairwiseDifferences(x, y)
 	if d == nil {
 		return math.NaN(), math.NaN()
 	}
-	k := ciRank(len(x), len(y), (1-level)/2)
 	if k < 1 {
 		return math.Inf(-1), math.Inf(1)
 	}

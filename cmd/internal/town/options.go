@@ -48,6 +48,9 @@ type SimOptions struct {
 	// LinkOpens is the day from which the new link exists (its calendar
 	// day in Location counts). Nil: the link never opens.
 	LinkOpens *time.Time
+	// Change, when not nil, scales demand and speeds over the whole town
+	// from its day on.
+	Change *NetworkChange
 	// Location is the study's time zone. Default Etc/GMT-1 (UTC+1), or a
 	// fixed +01:00 zone if the time zone database is not available.
 	Location *time.Location

@@ -20,6 +20,8 @@ type Plan struct {
 	Before, After Period
 	// LinkOpens is the first day with the link, nil for the control.
 	LinkOpens *time.Time
+	// Change, when not nil, changes the whole town ("season", "growth").
+	Change *NetworkChange
 
 	// kind is "link" (the link opens at the start of After) or "control"
 	// (nothing changes).
@@ -35,8 +37,11 @@ type Plan struct {
 // 2 March 2026, four before and four after; in "link" the new bridge opens
 // on the first day of the fifth week, in "control" it never opens.
 func Scenario(kind string) (Plan, error) {
+	if p, ok := networkScenario(kind); ok {
+		return p, nil
+	}
 	if kind != "link" && kind != "control" {
-		return Plan{}, fmt.Errorf("town: unknown scenario %q (want \"link\" or \"control\")", kind)
+		return Plan{}, fmt.Errorf("town: unknown scenario %q (want \"link\", \"control\", \"season\" or \"growth\")", kind)
 	}
 	loc := studyLocation()
 	start := time.Date(2026, 3, 2, 0, 0, 0, 0, loc)
@@ -62,5 +67,6 @@ func (p Plan) SimOptions(seed int64) SimOptions {
 	o.Days = p.days
 	o.TripsPerDay = p.tripsPerDay
 	o.LinkOpens = p.LinkOpens
+	o.Change = p.Change
 	return o
 }

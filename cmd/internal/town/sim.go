@@ -109,6 +109,8 @@ type dayPlan struct {
 	weekend   bool
 	withLink  bool
 	factor    float64 // demand factor of the day
+	volume    float64 // the NetworkChange's demand factor (1 without)
+	pace      float64 // the NetworkChange's factor on driving times (1 without)
 	incident  bool
 	incidentU float64 // draws the incident link
 	seed      uint64
@@ -129,6 +131,7 @@ func (t *Town) newSim(o SimOptions) (*sim, error) {
 		p := dayPlan{index: d, midnight: m, weekend: wd == time.Saturday || wd == time.Sunday}
 		p.withLink = o.LinkOpens != nil && !m.Before(linkDay)
 		p.factor = math.Max(0.5, 1+o.DayVariation*rng.NormFloat64())
+		p.volume, p.pace = o.Change.scale(m)
 		p.incident = rng.Float64() < o.IncidentRate
 		p.incidentU = rng.Float64()
 		p.seed = rng.Uint64()

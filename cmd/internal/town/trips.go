@@ -52,7 +52,7 @@ func (s *sim) dayTrips(day dayPlan, rs *netState) []trip {
 		if !ok {
 			continue // unreachable (does not happen on a connected town)
 		}
-		dur := rt.drive*math.Exp(durationNoise*rng.NormFloat64()) + rt.access/accessSpeed + 5 + 20*rng.Float64() // parking and starting
+		dur := rt.drive*day.pace*math.Exp(durationNoise*rng.NormFloat64()) + rt.access/accessSpeed + 5 + 20*rng.Float64() // parking and starting
 		rows = append(rows, trip{start: sec, duration: dur, o: op, d: dp, distance: rt.length + rt.access, seq: k, from: rt.from, to: rt.to})
 	}
 	// Rows by start second, then by draw (seq is unique).
@@ -71,7 +71,7 @@ func (s *sim) tripCounts(day dayPlan, rs *netState) (commutes, others int) {
 	if day.weekend {
 		wc, wo = weekendCommute, weekendOther
 	}
-	base := float64(s.o.TripsPerDay) * day.factor
+	base := float64(s.o.TripsPerDay) * day.factor * day.volume
 	commutes = int(math.Round(base * rs.shareC * wc))
 	others = int(math.Round(base * (1 - rs.shareC) * wo))
 	return commutes, others
