@@ -169,7 +169,7 @@ func (v *view) svg() string {
 	x0, y0, x1, y1 := p.mapRect()
 
 	var b strings.Builder
-	fmt.Fprintf(&b, `<svg xmlns="http://www.w3.org/2000/svg" width="%d" height="%d" viewBox="0 0 %d %d" role="img" aria-labelledby="map-title">`, totalW, totalH, totalW, totalH)
+	fmt.Fprintf(&b, `<svg xmlns="http://www.w3.org/2000/svg" id="map" width="%d" height="%d" viewBox="0 0 %d %d" role="img" aria-labelledby="map-title">`, totalW, totalH, totalW, totalH)
 	fmt.Fprintf(&b, `<title id="map-title">%s</title>`, xmlText("Map of regions and weak links: "+v.in.Title))
 	b.WriteString(`<defs>`)
 	for i, vd := range legend {
