@@ -209,6 +209,14 @@ func (v *view) mapLabels(p projection) []mapLabel {
 			out = append(out, mapLabel{Kind: labelRegion, Lines: []string{text}, Short: text, Box: box, AX: x, AY: y, Region: r.ID, Title: regionTitle(v, r.ID)})
 		}
 	}
+	// Callouts stay off the scheme itself: it is what the reader looks for.
+	for _, l := range v.schemeLines(p) {
+		for i := 1; i < len(l); i++ {
+			x0, x1 := math.Min(l[i-1][0], l[i][0]), math.Max(l[i-1][0], l[i][0])
+			y0, y1 := math.Min(l[i-1][1], l[i][1]), math.Max(l[i-1][1], l[i][1])
+			lb.placed = append(lb.placed, labelBox{x0 - 4, y0 - 4, x1 - x0 + 8, y1 - y0 + 8})
+		}
+	}
 	if ax, ay, ok := v.schemeAnchor(p); ok {
 		lines := []string{v.schemeName()}
 		w, h := textBox(lines, findingFontPx, 2)
