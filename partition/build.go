@@ -172,6 +172,7 @@ func fromExtract(ctx context.Context, ex *extract, o Options) (*Partition, error
 	}
 	p.Regions, p.WaterKM2 = regions(arr, fs, pr, ex.ways, water, o.MinBorderRoadMetres)
 	nameRegions(p.Regions, ex)
+	p.Network = networkOf(ex, bound)
 	return p, nil
 }
 

@@ -19,11 +19,12 @@ import (
 type wayRole uint8
 
 const (
-	roleBound  wayRole = iota // a chosen road or barrier: bounds regions
-	roleSplit                 // a SplitRoads way: splits oversized regions only
-	roleUnused                // a barrier of a kind not chosen: only warned about
-	rolePlace                 // a closed way tagged place: names regions
-	roleMember                // untagged: kept in case a water relation uses it
+	roleBound   wayRole = iota // a chosen road or barrier: bounds regions
+	roleSplit                  // a SplitRoads way: splits oversized regions only
+	roleUnused                 // a barrier of a kind not chosen: only warned about
+	rolePlace                  // a closed way tagged place: names regions
+	roleMember                 // untagged: kept in case a water relation uses it
+	roleNetwork                // a NetworkRoads way: drawn on maps only
 )
 
 // wayRec is a kept way until its nodes are resolved.
@@ -74,12 +75,16 @@ func placeOf(tags osm.Tags) (placeRec, bool) {
 type selector struct {
 	roads    map[string]int
 	split    map[string]bool
-	barriers []string // chosen barrier kinds, in Options order
-	water    bool     // water areas chosen
+	network  map[string]bool // NetworkRoads
+	barriers []string        // chosen barrier kinds, in Options order
+	water    bool            // water areas chosen
 }
 
 func newSelector(o *Options) *selector {
-	s := &selector{roads: make(map[string]int, len(o.Roads)), split: map[string]bool{}}
+	s := &selector{roads: make(map[string]int, len(o.Roads)), split: map[string]bool{}, network: map[string]bool{}}
+	for _, r := range o.NetworkRoads {
+		s.network[r] = true
+	}
 	for i, r := range o.Roads {
 		if _, dup := s.roads[r]; !dup {
 			s.roads[r] = i
@@ -117,6 +122,9 @@ func (s *selector) classify(tags osm.Tags) (class string, rank int, role wayRole
 	}
 	if _, ok := placeOf(tags); ok {
 		return "place", 0, rolePlace, true
+	}
+	if s.network[hw] && hw != "" {
+		return hw, 0, roleNetwork, true
 	}
 	if s.water && len(tags) == 0 {
 		return "", 0, roleMember, true

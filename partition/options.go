@@ -92,6 +92,12 @@ type Options struct {
 	// a region's BorderRoads and name: a road that only touches a corner
 	// is no border. Default 30 m, about the width of a junction.
 	MinBorderRoadMetres float64 `toml:"min_border_road_metres"`
+	// NetworkRoads are highway classes read only to be drawn under the
+	// findings on the report's maps (Partition.Network); they bound no
+	// region. Default: tertiary, unclassified, residential and the *_link
+	// ramps, the streets a reader finds their way by. An empty list leaves
+	// minor roads off the maps (and saves their memory on a large extract).
+	NetworkRoads []string `toml:"network_roads"`
 	// Exact turns all cleaning off: the regions are the plain faces of the
 	// noded linework plus the study-area rectangle (dangles and cut edges
 	// dropped), as a polygonizer would give.
@@ -117,6 +123,7 @@ func DefaultOptions() Options {
 		MaxRegionKM2:        4,
 		SplitRoads:          []string{"tertiary"},
 		MinBorderRoadMetres: 30,
+		NetworkRoads:        []string{"tertiary", "unclassified", "residential", "motorway_link", "trunk_link", "primary_link", "secondary_link", "tertiary_link"},
 	}
 }
 

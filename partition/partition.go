@@ -57,6 +57,11 @@ type Partition struct {
 	// Warnings are notes for the user (for example, study area taken from
 	// the data extent).
 	Warnings []string
+	// Network is the linework of the extract inside the study area, for
+	// maps: the roads, railways, waterways and coast read with the regions
+	// (one pass over the file). It is not written to GeoJSON and is nil
+	// after ReadGeoJSON.
+	Network []NetworkLine
 	// Stats describes the arrangement the regions came from. It is not
 	// written to GeoJSON and is zero after ReadGeoJSON.
 	Stats Stats

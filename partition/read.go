@@ -36,6 +36,7 @@ type extract struct {
 	waters     []waterArea  // water areas, by the lines that bound them
 	splitLines []rawLine    // SplitRoads lines (their ways are in ways too)
 	unused     []unusedLine // lines of barrier kinds not chosen
+	network    []unusedLine // lines of NetworkRoads, for the maps only
 	places     []placeRec   // named place nodes
 	placeAreas []placeArea  // named place outlines (closed ways)
 }

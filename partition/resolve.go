@@ -19,6 +19,8 @@ type waterArea struct {
 type unusedLine struct {
 	kind string
 	pts  []orb.Point
+	way  osm.WayID // for the maps' network
+	name string
 }
 
 // placeArea is a named place drawn as a closed way.
@@ -51,7 +53,7 @@ func (rd *elementReader) resolve(nodes []nodeRec, ex *extract) {
 			}
 		case roleMember:
 			byID[w.info.id] = i
-		case roleSplit, roleUnused, rolePlace:
+		case roleSplit, roleUnused, rolePlace, roleNetwork:
 			rd.resolveOther(ex, w, nodes)
 		}
 	}
@@ -82,7 +84,11 @@ func (rd *elementReader) resolveOther(ex *extract, w wayRec, nodes []nodeRec) {
 		}
 	case roleUnused:
 		for _, r := range runs {
-			ex.unused = append(ex.unused, unusedLine{kind: w.info.class, pts: r})
+			ex.unused = append(ex.unused, unusedLine{kind: w.info.class, pts: r, way: w.info.id, name: w.info.label})
+		}
+	case roleNetwork:
+		for _, r := range runs {
+			ex.network = append(ex.network, unusedLine{kind: w.info.class, pts: r, way: w.info.id, name: w.info.label})
 		}
 	case rolePlace:
 		if !missing && len(runs) == 1 && len(runs[0]) >= 4 && runs[0][0] == runs[0][len(runs[0])-1] {

@@ -50,6 +50,7 @@ type htmlPage struct {
 	MapCaption                     string
 	Cautions                       []string
 	Inputs                         [][2]string
+	Analysed                       [][2]string
 	MinTrips                       int
 }
 
@@ -89,19 +90,23 @@ table#findings { font-size: 0.95em; }
 {{range .Cautions}}<li>{{.}}</li>
 {{end}}</ul>
 </div>
+<h2>Map</h2>
+<p class="caption">{{.MapCaption}}</p>
+{{.Map}}
 {{if .Comparing}}<h2>Verdicts</h2>
 <table id="verdicts">
 <tr><th>Verdict</th><th>Weak links</th><th>Meaning</th>{{if .Focus}}<th>In focus area</th>{{end}}</tr>
 {{range .Verdicts}}<tr><td><span class="swatch" style="background: {{.Colour}}; color: {{.Text}}">{{.Name}}</span></td><td class="num">{{.Count}}</td><td>{{.Meaning}}</td>{{if $.Focus}}<td class="num">{{.Focus}}</td>{{end}}</tr>
 {{end}}</table>{{end}}
-<h2>Map</h2>
-<p class="caption">{{.MapCaption}}</p>
-{{.Map}}
 <h2>Weak links</h2>
 {{if .Rows}}<table id="findings">
 <tr>{{if .Comparing}}<th>Rank (period)</th>{{else}}<th>Rank</th>{{end}}<th>Place (edges)</th>{{if .Comparing}}<th>Verdict</th><th>Extra vehicle-hours per day before (95 % CI)</th><th>after (95 % CI)</th><th>Comparison group change</th><th>Adjusted change veh-h/day (95 % CI)</th><th>Adjusted travel time change min (95 % CI)</th><th>Detour ratio before, after</th><th>Days on the skyline before</th><th>after</th><th>Why</th>{{else}}<th>Share of days</th><th>Trips per day</th><th>Speed km/h</th><th>Detour ratio</th><th>Extra km per day</th><th>Extra vehicle-hours per day</th>{{end}}</tr>
 {{range .Rows}}<tr><td class="num">{{.Rank}}{{if $.Comparing}} ({{.Period}}){{end}}</td><td title="Edges {{.Edges}}">{{.Name}} <span class="ci">({{.ID}})</span>{{if .Focus}} (focus){{end}}</td>{{if $.Comparing}}<td><span class="swatch" style="background: {{.Colour}}; color: {{.Text}}">{{.Verdict}}</span></td><td class="num">{{.CostBefore}}</td><td class="num">{{.CostAfter}}</td><td class="num">{{.GroupChange}}</td><td class="num">{{.CostShift}}{{if .CostCI}}<br/><span class="ci">{{.CostCI}}</span>{{end}}</td><td class="num">{{.TimeShift}}{{if .TimeCI}}<br/><span class="ci">{{.TimeCI}}</span>{{end}}</td><td class="num">{{.DetourChange}}</td><td class="num">{{.ShareBefore}}</td><td class="num">{{.ShareAfter}}</td><td class="why">{{.Note}}</td>{{else}}<td class="num">{{.Share}}</td><td class="num">{{.Trips}}</td><td class="num">{{.Speed}}</td><td class="num">{{.Detour}}</td><td class="num">{{.ExtraKM}}</td><td class="num">{{.ExtraHours}}</td>{{end}}</tr>
 {{end}}</table>{{else}}<p>No weak link recurred.</p>{{end}}
+<h2>What was analysed</h2>
+<table id="analysed">
+{{range .Analysed}}<tr><th>{{index . 0}}</th><td>{{index . 1}}</td></tr>
+{{end}}</table>
 <h2>Inputs</h2>
 <table>
 <tr><th>File</th><th>SHA-256</th></tr>
@@ -185,6 +190,7 @@ func (v *view) html(w io.Writer) error {
 	for _, s := range v.in.Inputs {
 		pg.Inputs = append(pg.Inputs, [2]string{s.Path, s.SHA256})
 	}
+	pg.Analysed = v.analysed()
 	pg.clean()
 	if err := pageTemplate.Execute(w, pg); err != nil {
 		return fmt.Errorf("report: HTML page: %w", err)
@@ -234,6 +240,9 @@ func (pg *htmlPage) clean() {
 	for i := range pg.Inputs {
 		pg.Inputs[i] = [2]string{cleanText(pg.Inputs[i][0]), cleanText(pg.Inputs[i][1])}
 	}
+	for i := range pg.Analysed {
+		pg.Analysed[i] = [2]string{cleanText(pg.Analysed[i][0]), cleanText(pg.Analysed[i][1])}
+	}
 	for i := range pg.Verdicts {
 		pg.Verdicts[i].Name, pg.Verdicts[i].Meaning = cleanText(pg.Verdicts[i].Name), cleanText(pg.Verdicts[i].Meaning)
 	}
@@ -273,4 +282,37 @@ func xmlChar(r rune) bool {
 		r >= 0x20 && r <= 0xD7FF ||
 		r >= 0xE000 && r <= 0xFFFD ||
 		r >= 0x10000 && r <= 0x10FFFF
+}
+
+// analysed lists what the page's numbers come from: the regions and their
+// extract, the day graphs' time zone and windows, the periods and every
+// setting of the study (days, minimum trips, support, focus, excluded
+// days, ...), in the order given.
+func (v *view) analysed() [][2]string {
+	r := v.in.Regions
+	regions := strconv.Itoa(len(r.Regions)) + " regions"
+	if r.Source != "" {
+		regions += " from " + r.Source
+	}
+	out := [][2]string{{"regions", regions}}
+	if m := v.in.Store; m != nil {
+		if m.TimeZone != "" {
+			out = append(out, [2]string{"time zone of the days", m.TimeZone})
+		}
+		var wins []string
+		for _, w := range m.Windows {
+			wins = append(wins, w.String())
+		}
+		if len(wins) > 0 {
+			out = append(out, [2]string{"time windows", strings.Join(wins, ", ")})
+		}
+	}
+	for _, p := range v.periods {
+		out = append(out, [2]string{"days analysed, " + p.Label, dayRange(p.Scan) + " (" + strconv.Itoa(len(p.Scan.Days)) + " days)"})
+	}
+	out = append(out, v.in.Settings...)
+	if len(v.in.Scheme) > 0 {
+		out = append(out, [2]string{"scheme on the map", v.schemeName()})
+	}
+	return out
 }

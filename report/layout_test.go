@@ -307,7 +307,8 @@ func TestDrawRegionLabel(t *testing.T) {
 }
 
 // TestMapPictureHasRegionIDs checks that the workbook's map picture carries
-// the region ids: the label colour appears below every region point.
+// the region ids: every region gets a placed label, and the label colour
+// appears inside each label's box.
 func TestMapPictureHasRegionIDs(t *testing.T) {
 	in := fxInput()
 	v, err := newView(in)
@@ -322,19 +323,28 @@ func TestMapPictureHasRegionIDs(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	p := v.projection()
+	boxes := map[int]labelBox{}
+	for _, l := range v.mapLabels(v.projection()) {
+		if l.Kind == labelRegion {
+			boxes[l.Region] = l.Box
+		}
+	}
 	for _, r := range in.Regions.Regions {
-		x, y := p.xy(r.Point)
+		bx, ok := boxes[r.ID]
+		if !ok {
+			t.Errorf("region %d has no label", r.ID)
+			continue
+		}
 		ink := 0
-		for dy := 4; dy < 4+glyphH; dy++ {
-			for dx := -glyphW; dx <= glyphW; dx++ {
-				if c := color.RGBAModel.Convert(img.At(int(x)+dx, int(y)+dy)).(color.RGBA); c == (color.RGBA{85, 85, 85, 255}) {
+		for y := int(bx.Y); y <= int(bx.Y+bx.H); y++ {
+			for x := int(bx.X); x <= int(bx.X+bx.W); x++ {
+				if c := color.RGBAModel.Convert(img.At(x, y)).(color.RGBA); c == (color.RGBA{68, 68, 68, 255}) {
 					ink++
 				}
 			}
 		}
 		if ink < 5 {
-			t.Errorf("region %d: %d label pixels below its point, want its id drawn", r.ID, ink)
+			t.Errorf("region %d: %d label pixels in its box %v, want its id drawn", r.ID, ink, bx)
 		}
 	}
 }

@@ -151,28 +151,38 @@ func xmlText(s string) string {
 	return b.String()
 }
 
-// svg renders the map as a standalone SVG element.
+// svg renders the map as a standalone SVG element: the water, the
+// regions, the network and the scheme under the finding arrows, then the
+// labels, the scale bar, the north arrow and the legend.
 func (v *view) svg() string {
 	p := v.projection()
 	segs := v.segments(p)
 	legend := v.legendEntries(segs)
+	base := v.baseLegend(p)
 	const rowH = 20
-	legendRows := len(legend) + 1 // + regions
+	legendRows := len(legend) + len(base) + 1 // + regions
 	if len(v.focus) > 0 {
 		legendRows++
 	}
 	totalH := p.H + 12 + legendRows*rowH
 	totalW := max(p.W, legendWidth)
+	x0, y0, x1, y1 := p.mapRect()
 
 	var b strings.Builder
-	fmt.Fprintf(&b, `<svg xmlns="http://www.w3.org/2000/svg" width="%d" height="%d" viewBox="0 0 %d %d" role="img" aria-labelledby="map-title">`, totalW, totalH, totalW, totalH)
+	fmt.Fprintf(&b, `<svg xmlns="http://www.w3.org/2000/svg" id="map" width="%d" height="%d" viewBox="0 0 %d %d" role="img" aria-labelledby="map-title">`, totalW, totalH, totalW, totalH)
 	fmt.Fprintf(&b, `<title id="map-title">%s</title>`, xmlText("Map of regions and weak links: "+v.in.Title))
 	b.WriteString(`<defs>`)
 	for i, vd := range legend {
 		fmt.Fprintf(&b, `<marker id="arrow-%d" viewBox="0 0 10 10" refX="8" refY="5" markerWidth="4" markerHeight="4" orient="auto"><path d="M0,0L10,5L0,10z" fill="%s"/></marker>`, i, lookOf(vd).Hex)
 	}
+	fmt.Fprintf(&b, `<clipPath id="map-clip"><rect x="%s" y="%s" width="%s" height="%s"/></clipPath>`, fmtPx(x0), fmtPx(y0), fmtPx(x1-x0), fmtPx(y1-y0))
 	b.WriteString(`</defs>`)
 	fmt.Fprintf(&b, `<rect x="0" y="0" width="%d" height="%d" fill="#FFFFFF"/>`, totalW, totalH)
+	if v.in.Regions.WaterKM2 > 0 {
+		// Regions and water tile the study area: what the regions leave
+		// uncovered is water.
+		fmt.Fprintf(&b, `<rect id="water" x="%s" y="%s" width="%s" height="%s" fill="%s"/>`, fmtPx(x0), fmtPx(y0), fmtPx(x1-x0), fmtPx(y1-y0), waterFill)
+	}
 
 	b.WriteString(`<g id="regions" stroke="` + regionStroke + `" stroke-width="0.8" stroke-linejoin="round">`)
 	for _, r := range v.in.Regions.Regions {
@@ -182,12 +192,9 @@ func (v *view) svg() string {
 		}
 		fmt.Fprintf(&b, `<path d="%s" fill="%s"%s fill-rule="evenodd"><title>%s</title></path>`, pathData(p, r.Polygon), fill, extra, xmlText(regionTitle(v, r.ID)))
 	}
-	b.WriteString(`</g><g id="region-labels" font-family="sans-serif" font-size="9" fill="#555555" text-anchor="middle">`)
-	for _, r := range v.in.Regions.Regions {
-		x, y := p.xy(r.Point)
-		fmt.Fprintf(&b, `<text x="%s" y="%s">%d</text>`, fmtPx(x), fmtPx(y+3), r.ID)
-	}
-	b.WriteString(`</g><g id="findings" fill="none" stroke-width="3" stroke-linecap="round">`)
+	b.WriteString(`</g>`)
+	v.networkSVG(&b, p)
+	b.WriteString(`<g id="findings" fill="none" stroke-width="3" stroke-linecap="round">`)
 	markerOf := map[patterns.Verdict]int{}
 	for i, vd := range legend {
 		markerOf[vd] = i
@@ -202,6 +209,8 @@ func (v *view) svg() string {
 			fmtPx(s.X1), fmtPx(s.Y1), fmtPx(s.X2), fmtPx(s.Y2), lk.Hex, dash, markerOf[s.Verdict], xmlText(string(s.Verdict)), xmlText(s.Title))
 	}
 	b.WriteString(`</g>`)
+	v.labelsSVG(&b, v.mapLabels(p))
+	scaleAndNorthSVG(&b, p)
 
 	y := p.H + 12
 	b.WriteString(`<g id="legend" font-family="sans-serif" font-size="12" fill="#000000">`)
@@ -220,6 +229,10 @@ func (v *view) svg() string {
 		}
 		fmt.Fprintf(&b, `<g class="legend-entry" data-verdict="%s"><line x1="%d" y1="%d" x2="%d" y2="%d" stroke="%s" stroke-width="3"%s/><text x="%d" y="%d">%s</text></g>`,
 			xmlText(string(vd)), mapPad, y+8, mapPad+36, y+8, lk.Hex, dash, mapPad+44, y+12, xmlText(label))
+		y += rowH
+	}
+	for _, e := range base {
+		fmt.Fprintf(&b, `<g class="legend-entry" data-layer="%s">%s<text x="%d" y="%d">%s</text></g>`, e.Layer, e.sample(mapPad, y+8), mapPad+44, y+12, xmlText(e.Text))
 		y += rowH
 	}
 	fmt.Fprintf(&b, `<g class="legend-entry" data-layer="regions"><rect x="%d" y="%d" width="36" height="14" fill="%s" stroke="%s"/><text x="%d" y="%d">region (number = id)</text></g>`,
@@ -263,13 +276,19 @@ func pathData(p projection, poly orb.Polygon) string {
 }
 
 // png renders the map without a legend (the workbook's verdict cells and
-// caption serve as one): region polygons by scanline fill, region borders,
-// the finding lines with arrowheads, and the region points with their ids.
+// caption serve as one): the water, region polygons by scanline fill,
+// region borders, the network and the scheme, the finding lines with
+// arrowheads, the region points, the placed labels (region ids, findings'
+// ranks), the scale bar and the north arrow.
 func (v *view) png() ([]byte, error) {
 	p := v.projection()
 	img := image.NewRGBA(image.Rect(0, 0, p.W, p.H))
 	for i := range img.Pix {
 		img.Pix[i] = 255 // opaque white
+	}
+	if v.in.Regions.WaterKM2 > 0 {
+		x0, y0, x1, y1 := p.mapRect()
+		fillPolygon(img, [][][2]float64{{{x0, y0}, {x1, y0}, {x1, y1}, {x0, y1}}}, rgba(waterFill))
 	}
 	for _, r := range v.in.Regions.Regions {
 		fill := rgba(regionFill)
@@ -297,6 +316,7 @@ func (v *view) png() ([]byte, error) {
 			}
 		}
 	}
+	v.networkPNG(img, p)
 	for _, s := range v.segments(p) {
 		lk := lookOf(s.Verdict)
 		c := rgba(lk.Hex)
@@ -312,9 +332,10 @@ func (v *view) png() ([]byte, error) {
 	label := color.RGBA{85, 85, 85, 255}
 	for _, r := range v.in.Regions.Regions {
 		x, y := p.xy(r.Point)
-		fillDisc(img, x, y, 2.5, label)
-		drawRegionLabel(img, r.ID, x, y, label)
+		fillDisc(img, x, y, 2, label)
 	}
+	labelsPNG(img, v.mapLabels(p))
+	scaleAndNorthPNG(img, p)
 	var buf bytes.Buffer
 	if err := png.Encode(&buf, img); err != nil {
 		return nil, fmt.Errorf("report: encoding map picture: %w", err)

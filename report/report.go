@@ -40,6 +40,10 @@ type Input struct {
 	Scan *patterns.Scan
 	// Comparison is the before/after study; it takes precedence over Scan.
 	Comparison *patterns.Comparison
+	// Scheme is the scheme's linework (optional): the links it added,
+	// highlighted on every map under the findings. The network drawn
+	// beneath comes with the regions (Regions.Network).
+	Scheme []partition.NetworkLine
 	// FocusRegions are the region ids of the focus area (optional). When
 	// empty, the regions of the assessments marked Focus are taken.
 	FocusRegions []int

@@ -78,6 +78,7 @@ type compareJob struct {
 	minPublish    int
 	settings      [][2]string
 	extraInputs   []regiongraph.Source
+	scheme        []partition.NetworkLine // highlighted on the maps
 }
 
 func compareAndReport(ctx context.Context, env *environment, job compareJob) error {
@@ -97,6 +98,7 @@ func compareAndReport(ctx context.Context, env *environment, job compareJob) err
 		Store:               &job.store.Meta,
 		Scan:                cmp.Before,
 		Comparison:          cmp,
+		Scheme:              job.scheme,
 		PublicationMinTrips: job.minPublish,
 		Version:             version,
 	}

@@ -126,6 +126,7 @@ title = "%[1]s: the new river crossing, before and after"
 time_zone = "%[2]s"
 output = "out"
 name = "report"
+scheme = "town/%[3]s-after.osm"
 
 [regions]
 osm = "town/%[3]s-before.osm"

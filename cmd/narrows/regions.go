@@ -64,7 +64,13 @@ func buildRegions(ctx context.Context, env *environment, osmPath string, opts pa
 	}
 	fmt.Fprintf(env.stdout, "%d regions covering %.2f km² in %.2f s -> %s\n", len(p.Regions), area, time.Since(start).Seconds(), out)
 	printRegionSteps(env.stdout, p, opts)
-	return decodeRegions(geojson.Bytes(), out)
+	back, sum, err := decodeRegions(geojson.Bytes(), out)
+	if err != nil {
+		return nil, "", err
+	}
+	// The GeoJSON holds no linework; the maps take it from this read.
+	back.Network = p.Network
+	return back, sum, nil
 }
 
 // printRegionSteps says what bounds the regions and what each cleaning

@@ -27,6 +27,9 @@ type study struct {
 	TimeZone string `toml:"time_zone"` // of the day graphs (default: the ingest's)
 	Output   string `toml:"output"`    // folder for all outputs (default "out")
 	Name     string `toml:"name"`      // base name of the workbook and HTML page (default "report")
+	// Scheme is highlighted on the maps: way/N ids, a lon,lat line, or an
+	// extract with the scheme built (see parseScheme).
+	Scheme string `toml:"scheme"`
 
 	Regions studyRegions  `toml:"regions"`
 	Trips   studyTrips    `toml:"trips"`
@@ -113,6 +116,9 @@ func loadStudy(path string) (*study, error) {
 		s.Name = "report"
 	}
 	if err := s.checkPlaces(); err != nil {
+		return nil, fmt.Errorf("study file %s: %v", path, err)
+	}
+	if _, err := parseScheme(s.Scheme); err != nil {
 		return nil, fmt.Errorf("study file %s: %v", path, err)
 	}
 	if s.TimeZone != "" {
@@ -230,6 +236,10 @@ func (s *study) run(ctx context.Context, env *environment, dir, file string) err
 	if err != nil {
 		return err
 	}
+	scheme, err := r.schemeLines(ctx, regions)
+	if err != nil {
+		return err
+	}
 	fmt.Fprintln(env.stdout, "2/3 day graphs")
 	store, err := r.dayGraphs(ctx, env, regions, sum)
 	if err != nil {
@@ -239,6 +249,7 @@ func (s *study) run(ctx context.Context, env *environment, dir, file string) err
 	if err != nil {
 		return err
 	}
+	in.Scheme = scheme
 	if s.Compare.Before.from == "" && s.Compare.After.from == "" {
 		fmt.Fprintln(env.stdout, "3/3 scan")
 		return r.scan(ctx, env, store, in)
@@ -273,14 +284,22 @@ func (r *studyRun) reportInput(store *regiongraph.Store, regions *partition.Part
 	if err != nil {
 		return report.Input{}, err
 	}
+	inputs := []regiongraph.Source{studySource, osmSource}
+	if spec, err := parseScheme(r.Scheme); err == nil && spec.extract != "" {
+		src, err := sourceOf(r.rel(spec.extract))
+		if err != nil {
+			return report.Input{}, err
+		}
+		inputs = append(inputs, src)
+	}
 	title := r.Title
 	if title == "" {
 		title = "narrows study " + filepath.Base(r.file)
 	}
 	return report.Input{
 		Title:               title,
-		Inputs:              []regiongraph.Source{studySource, osmSource},
-		Settings:            append([][2]string{{"study file", filepath.Base(r.file)}, {"time zone", r.Trips.TimeZone}}, scanSettings(r.Scan.ScanOptions)...),
+		Inputs:              inputs,
+		Settings:            append(append([][2]string{{"study file", filepath.Base(r.file)}, {"time zone", r.Trips.TimeZone}}, regionSettings(regions, r.Regions.Options, r.Scheme)...), scanSettings(r.Scan.ScanOptions)...),
 		Regions:             regions,
 		Store:               &store.Meta,
 		PublicationMinTrips: r.Compare.MinPublish,
@@ -319,7 +338,7 @@ func (r *studyRun) compare(ctx context.Context, env *environment, store *regiong
 	return compareAndReport(ctx, env, compareJob{
 		store: store, regions: in.Regions, before: before, after: after, opts: r.Compare.CompareOptions,
 		out: filepath.Join(r.out, r.Name+".xlsx"), title: in.Title, minPublish: in.PublicationMinTrips, settings: settings,
-		extraInputs: in.Inputs,
+		extraInputs: in.Inputs, scheme: in.Scheme,
 	})
 }
 
@@ -344,4 +363,36 @@ func sourceOf(path string) (regiongraph.Source, error) {
 		return regiongraph.Source{}, err
 	}
 	return regiongraph.Source{Path: filepath.Base(path), SHA256: sum}, nil
+}
+
+// schemeLines resolves the study's scheme key (nil without one).
+func (r *studyRun) schemeLines(ctx context.Context, regions *partition.Partition) ([]partition.NetworkLine, error) {
+	spec, err := parseScheme(r.Scheme)
+	if err != nil {
+		return nil, fmt.Errorf("study file %s: %v", r.file, err)
+	}
+	lines, err := spec.lines(ctx, regions, r.rel, r.Regions.Options)
+	if err != nil {
+		return nil, fmt.Errorf("study file %s: %v", r.file, err)
+	}
+	return lines, nil
+}
+
+// regionSettings lists the extract and the regions' settings for the
+// report's table of what was analysed.
+func regionSettings(p *partition.Partition, o partition.Options, scheme string) [][2]string {
+	barriers := strings.Join(o.Barriers, ", ")
+	if barriers == "" {
+		barriers = "none"
+	}
+	out := [][2]string{
+		{"extract", p.Source},
+		{"regions", strconv.Itoa(len(p.Regions)) + " regions bounded by " + strings.Join(o.Roads, ", ") + "; barriers: " + barriers},
+		{"smallest region (km²)", strconv.FormatFloat(o.MinAreaKM2, 'g', -1, 64)},
+		{"largest region left whole (km²)", strconv.FormatFloat(o.MaxRegionKM2, 'g', -1, 64)},
+	}
+	if scheme != "" {
+		out = append(out, [2]string{"scheme", scheme})
+	}
+	return out
 }

@@ -35,6 +35,9 @@ func (r *studyRun) findingsPath() string { return filepath.Join(r.out, r.Name+"-
 // any work (see runFiles.claim).
 func (r *studyRun) claimOutputs(files *runFiles) error {
 	files.read(r.file, r.rel(r.Regions.OSM))
+	if spec, err := parseScheme(r.Scheme); err == nil && spec.extract != "" {
+		files.read(r.rel(spec.extract))
+	}
 	for _, t := range r.Trips.Files {
 		files.read(r.rel(t))
 	}
