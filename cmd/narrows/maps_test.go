@@ -282,7 +282,7 @@ func screenshotCheck(t *testing.T, page string) {
 	defer cancel()
 	cmd := exec.CommandContext(ctx, chromium, "--headless", "--no-sandbox", "--disable-gpu", "--disable-quic", "--no-first-run",
 		"--disable-background-networking", "--disable-component-update", "--disable-sync", "--user-data-dir="+t.TempDir(),
-		"--screenshot="+shot, "--window-size=1400,1000", "file://"+abs)
+		"--screenshot="+shot, "--window-size=1400,3000", "file://"+abs)
 	out, err := cmd.CombinedOutput()
 	if err != nil {
 		t.Fatalf("chromium: %v\n%s", err, out)
