@@ -109,6 +109,7 @@ func TestDemoFindsThePlantedWeaknessAndTheFixWorks(t *testing.T) {
 			t.Error(err)
 		}
 	}
+	checkOnePlacePerPair(t, filepath.Join(dir, "out"))
 	regions, store := studyOutputs(t, dir)
 	tw, err := town.Generate(town.Options{Size: town.SizeTown, Seed: 1})
 	if err != nil {
