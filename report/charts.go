@@ -15,7 +15,7 @@ import (
 func axisFont() excelize.Font { return excelize.Font{Color: "#333333", Size: 9} }
 
 // timelineChart draws the Timeline sheet's line chart of candidates and
-// recurring weak links per day, from the n rows below the header row head.
+// weak places per day, from the n rows below the header row head.
 func (b *book) timelineChart(head, n int) {
 	ref := func(col string) string { return columnRange(SheetTimeline, col, head+1, head+n) }
 	b.fail(b.f.AddChart(SheetTimeline, "F2", &excelize.Chart{

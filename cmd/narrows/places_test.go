@@ -1,16 +1,21 @@
 package main
 
 import (
+	"archive/zip"
 	"encoding/json"
 	"html"
+	"io"
 	"os"
 	"path/filepath"
 	"regexp"
+	"slices"
 	"strconv"
 	"strings"
 	"testing"
 
 	"github.com/xuri/excelize/v2"
+
+	"narrows/patterns"
 )
 
 // placeOwners collects, per output, which finding holds each region pair
@@ -174,5 +179,93 @@ func checkOnePlacePerPair(t *testing.T, dir string) {
 	}
 	if len(mapOwners.edges) == 0 {
 		t.Errorf("%s lists no finding", findingsLayerName)
+	}
+}
+
+// checkTimeline reads the Timeline sheet of the workbook in dir and
+// recounts it from the scans of the periods: on each day the candidates
+// are the day's candidate edges and the weak places the findings with at
+// least one of their edges among them (a brute-force recount over the
+// findings' edges, not over Finding.Days). Since every candidate edge
+// belongs to at most one finding, the places of a day never exceed its
+// candidates. The chart draws those two columns under their headers.
+func checkTimeline(t *testing.T, dir string, scans map[string]*patterns.Scan) {
+	t.Helper()
+	path := filepath.Join(dir, "report.xlsx")
+	f, err := excelize.OpenFile(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer f.Close()
+	rows := sheetRows(t, f, "Timeline")
+	want := 0
+	for _, s := range scans {
+		want += len(s.Days)
+	}
+	if len(rows) != want {
+		t.Errorf("Timeline has %d days, the scans %d", len(rows), want)
+	}
+	for _, r := range rows {
+		s := scans[r["Period"]]
+		if s == nil {
+			t.Errorf("Timeline row %v: no such period", r)
+			continue
+		}
+		i := slices.Index(s.Days, r["Day"])
+		if i < 0 {
+			t.Errorf("Timeline row %v: not an analysed day", r)
+			continue
+		}
+		places := 0
+		for _, fd := range s.Findings {
+			for _, e := range fd.Edges {
+				if slices.Contains(s.DayCandidates[i], patterns.EdgeKey{From: e.From, To: e.To}) {
+					places++
+					break
+				}
+			}
+		}
+		cands, err1 := strconv.Atoi(r["Candidates"])
+		got, err2 := strconv.Atoi(r["Weak places"])
+		if err1 != nil || err2 != nil {
+			t.Errorf("Timeline row %v: counts are not numbers", r)
+			continue
+		}
+		if cands != len(s.DayCandidates[i]) || got != places {
+			t.Errorf("Timeline %s: %d candidates and %d weak places, recount %d and %d", r["Day"], cands, got, len(s.DayCandidates[i]), places)
+		}
+		if got > cands {
+			t.Errorf("Timeline %s: %d weak places but %d candidates", r["Day"], got, cands)
+		}
+	}
+
+	// The chart: two series over the rows below the header, named by the
+	// header cells of the Candidates and Weak places columns.
+	z, err := zip.OpenReader(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer z.Close()
+	var chart []byte
+	for _, zf := range z.File {
+		if zf.Name != "xl/charts/chart1.xml" {
+			continue
+		}
+		rc, err := zf.Open()
+		if err != nil {
+			t.Fatal(err)
+		}
+		chart, err = io.ReadAll(rc)
+		rc.Close()
+		if err != nil {
+			t.Fatal(err)
+		}
+	}
+	last := strconv.Itoa(len(rows) + 1)
+	text := html.UnescapeString(string(chart))
+	for _, ref := range []string{"'Timeline'!$C$1", "'Timeline'!$D$1", "'Timeline'!$C$2:$C$" + last, "'Timeline'!$D$2:$D$" + last, "weak places per day"} {
+		if !strings.Contains(text, ref) {
+			t.Errorf("Timeline chart lacks %q", ref)
+		}
 	}
 }
