@@ -51,7 +51,7 @@ func weirRoad() report.Input {
 func ExampleHeadline() {
 	fmt.Println(report.Headline(weirRoad()))
 	// Output:
-	// 1 weak link recurred on at least 50 % of the 4 analysed days (2026-03-02 to 2026-03-05). The costliest, across Weir Road between region 1 and region 2 (1>2), adds 48 km of travel and 4.1 vehicle-hours a day.
+	// 1 weak place recurred on at least 50 % of the 4 analysed days (2026-03-02 to 2026-03-05). The costliest, across Weir Road between region 1 and region 2 (1>2), adds 48 km of travel and 4.1 vehicle-hours a day.
 }
 
 func ExampleWriteWorkbook() {

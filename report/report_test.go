@@ -127,8 +127,8 @@ func TestHeadline(t *testing.T) {
 		{"after-only without rise", afterOnly, "%sOf 4 weak links recurring before, 1 cleared, 1 eased, 1 unchanged and 1 worse. No new weak link appeared; 1 more recurs only after, without a significant, material change of its own; around the scheme, of 1: 1 cleared and none eased.%s"},
 		{"only new", noneBefore, "No weak link recurred in the before period (2026-03-02 to 2026-03-15). 1 new weak link appeared, significantly and materially worse on its own measures.%[2]s"},
 		// Costliest is rank 1, 1>2: 40 trips * 1.5 km = 60 km, 40 * 0.05 = 2 h.
-		{"scan", fxScanInput(), "4 weak links recurred on at least 20 % of the 14 analysed days (2026-03-02 to 2026-03-15). The costliest, across Mill Lane between Ring Road 1 and Ring Road 2 (1>2), adds 60 km of travel and 2 vehicle-hours a day."},
-		{"empty scan", empty, "No weak link recurred on at least 20 % of the 14 analysed days (2026-03-02 to 2026-03-15)."},
+		{"scan", fxScanInput(), "4 weak places recurred on at least 20 % of the 14 analysed days (2026-03-02 to 2026-03-15). The costliest, across Mill Lane between Ring Road 1 and Ring Road 2 (1>2), adds 60 km of travel and 2 vehicle-hours a day."},
+		{"empty scan", empty, "No weak place recurred on at least 20 % of the 14 analysed days (2026-03-02 to 2026-03-15)."},
 		{"nothing", Input{}, "No scan or comparison to report."},
 	}
 	for _, tc := range tests {

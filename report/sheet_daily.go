@@ -113,7 +113,7 @@ func (v *view) openingMark() (day string, height int) {
 }
 
 // timelineDays lists the analysed days of every period in day order, with
-// their candidate counts and the number of weak links recurring on them.
+// their candidate counts and the number of weak places recurring on them.
 func (v *view) timelineDays() []timelineDay {
 	var days []timelineDay
 	for _, p := range v.periods {

@@ -234,7 +234,7 @@ func scanHeadline(s *patterns.Scan, regions *partition.Partition) string {
 	share := formatPercent(support(s))
 	n := len(s.Findings)
 	if n == 0 {
-		return fmt.Sprintf("No weak link recurred on at least %s of the %d analysed days (%s).", share, len(s.Days), dayRange(s))
+		return fmt.Sprintf("No weak place recurred on at least %s of the %d analysed days (%s).", share, len(s.Days), dayRange(s))
 	}
 	top := s.Findings[0]
 	for _, f := range s.Findings {
@@ -243,7 +243,7 @@ func scanHeadline(s *patterns.Scan, regions *partition.Partition) string {
 		}
 	}
 	return fmt.Sprintf("%d %s recurred on at least %s of the %d analysed days (%s). The costliest, %s (%s), adds %s km of travel and %s vehicle-hours a day.",
-		n, plural(n, "weak link", "weak links"), share, len(s.Days), dayRange(s), PlaceName(top, regions), top.ID,
+		n, plural(n, "weak place", "weak places"), share, len(s.Days), dayRange(s), PlaceName(top, regions), top.ID,
 		strconv.FormatFloat(roundTo(top.ExtraKMPerDay, 0), 'f', -1, 64), strconv.FormatFloat(roundTo(top.ExtraHoursPerDay, 1), 'f', -1, 64))
 }
 
@@ -294,7 +294,7 @@ func (v *view) mapCaption() string {
 // timelineTitle is the title of the daily timeline chart, which names the
 // periods because the chart draws them as one run of days.
 func (v *view) timelineTitle() string {
-	s := "Candidates and recurring weak links per day"
+	s := "Candidates and weak places per day"
 	if v.comparing() {
 		b, a := v.periods[0].Scan, v.periods[1].Scan
 		s += " (before: " + dayRange(b) + "; after: " + dayRange(a)

@@ -381,7 +381,7 @@ func TestWorkbookChartsAndPicture(t *testing.T) {
 	// Both charts have a title and both axes a title; the timeline names
 	// the periods.
 	for name, wantTitles := range map[string][]string{
-		"xl/charts/chart1.xml": {"Candidates and recurring weak links per day (before: ", "Day", "Count"},
+		"xl/charts/chart1.xml": {"Candidates and weak places per day (before: ", "Day", "Count"},
 		"xl/charts/chart2.xml": {"Edge-days: speed against detour", "Detour ratio (travel / straight-line distance)", "Speed km/h"},
 	} {
 		for _, title := range wantTitles {

@@ -109,6 +109,7 @@ func TestDemoFindsThePlantedWeaknessAndTheFixWorks(t *testing.T) {
 			t.Error(err)
 		}
 	}
+	checkOnePlacePerPair(t, filepath.Join(dir, "out"))
 	regions, store := studyOutputs(t, dir)
 	tw, err := town.Generate(town.Options{Size: town.SizeTown, Seed: 1})
 	if err != nil {
@@ -136,6 +137,11 @@ func TestDemoFindsThePlantedWeaknessAndTheFixWorks(t *testing.T) {
 		t.Fatalf("the planted pair %d-%d is not among the top 3 findings before (first at index %d of %d)", housing, jobs, top, len(scan.Findings))
 	}
 	checkScanCommand(t, dir, before, housing, jobs, regions)
+	afterScan, err := patterns.ScanStore(ctx, store, after)
+	if err != nil {
+		t.Fatal(err)
+	}
+	checkTimeline(t, filepath.Join(dir, "out"), map[string]*patterns.Scan{"before": scan, "after": afterScan})
 	cmp, err := patterns.Compare(ctx, store, regions, before, after, patterns.DefaultCompareOptions())
 	if err != nil {
 		t.Fatal(err)

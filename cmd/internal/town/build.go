@@ -77,6 +77,7 @@ func (b *builder) build() {
 	b.river()
 	b.link()
 	b.districts()
+	b.railDistrict()
 	b.placeNodes()
 	t.nodes = b.nodes
 	t.ways = b.ways
@@ -162,7 +163,7 @@ func (b *builder) emitLine(path []*gridNode, s lineSpec) {
 				cur = []int64{p2, g.id}
 			case s.crossRail:
 				f := (xr - a.gx) / (g.gx - a.gx)
-				id := b.addNode(lerp(a.pos, g.pos, f), []tag{{"railway", "level_crossing"}})
+				id := b.addNode(lerp(a.pos, g.pos, f), b.levelCrossingTags())
 				b.rail = append(b.rail, railPoint{gy: a.gy, id: id})
 				cur = append(cur, id, g.id)
 			default:
@@ -236,7 +237,7 @@ func (b *builder) streets() {
 			}
 			s.name = streetName(j/lay.k+21, []string{"Road", "Boulevard"})
 			s.ref = fmt.Sprintf("Q%d", 50+j/lay.k)
-			s.crossRail = true
+			s.crossRail = !lay.railGapRow(j)
 		} else {
 			if j%lay.k == 1 {
 				s.class = classTertiary

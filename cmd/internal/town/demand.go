@@ -157,6 +157,7 @@ func (t *Town) landUse(zones []zone) {
 		zones[j].jobs = lay.plantedJobs * lay.population
 		zones[j].population *= 0.3
 	}
+	t.plantRailHousing(zones)
 }
 
 // plantedZones returns the indices of the housing and jobs zones.

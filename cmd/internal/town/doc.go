@@ -36,6 +36,14 @@
 // district carries its name as an OSM place node (place=neighbourhood, the
 // planted ones place=quarter), and the regions take their names from them.
 //
+// Options.RailWeakness plants a second weakness that shares the jobs
+// district's region but no region pair with the first: the railway runs
+// just east of the jobs district as a busy main line (full barriers, long
+// waits), the two arterials south of the river do not cross it, and a
+// housing district across it (Town.RailHousing) commutes to the jobs; the
+// river's second old bridge moves west of the railway. The method must
+// report the two as two places.
+//
 // # The trips
 //
 // Zones: one per arterial cell, split where the river or the railway runs

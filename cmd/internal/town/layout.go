@@ -40,6 +40,11 @@ type layout struct {
 	// the residents and of the jobs.
 	plantedHousing, plantedJobs float64
 	beta                        float64 // gravity deterrence, 1/metres
+	// railGap (> 0) is the number of arterial rows just south of the river
+	// without a level crossing, and railHousing the share of residents in the district across the
+	// railway from the jobs: the second planted weakness (railweakness.go).
+	railGap     int
+	railHousing float64
 }
 
 func layoutFor(s Size) (layout, error) {

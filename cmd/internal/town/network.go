@@ -178,7 +178,7 @@ func (nb *networkBuilder) finish(nodeTags map[int64][]tag) *network {
 		case "traffic_signals":
 			l.t0 += signalDelay
 		case "level_crossing":
-			l.t0 += crossingDelay
+			l.t0 += levelCrossingDelay(nodeTags[head])
 		default:
 			if len(nb.deg[l.to]) >= 3 {
 				l.t0 += junctionDelay

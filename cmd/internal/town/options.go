@@ -26,6 +26,11 @@ type Options struct {
 	Size Size
 	// Seed drives the perturbation of the grid; the demo uses 1.
 	Seed int64
+	// RailWeakness plants a second weakness beside the river crossing: the
+	// railway runs just east of the jobs district, the arterial along the
+	// jobs district's southern edge does not cross it, and a housing
+	// district across the railway commutes to the jobs (Town.RailHousing).
+	RailWeakness bool
 }
 
 // defaultOptions returns the demo town with seed 1.

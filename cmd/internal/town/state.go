@@ -137,8 +137,9 @@ func indexTripEnds(zones []zone) []int32 {
 func (s *sim) demand(rs *netState) error {
 	t, zones := s.t, rs.zones
 	h, jb := t.plantedZones(zones)
+	rh := t.railHousingZone(zones)
 	commuteK := func(i, j int) float64 {
-		if i == h && j == jb {
+		if (i == h || (rh >= 0 && i == rh)) && j == jb {
 			return plantedK
 		}
 		return 1

@@ -19,6 +19,9 @@ type Town struct {
 	LinkMidpoint orb.Point
 	// Housing (north bank) and Jobs (south bank) are the planted districts.
 	Housing, Jobs District
+	// RailHousing is the second planted district (Options.RailWeakness),
+	// across the railway from Jobs; zero otherwise.
+	RailHousing District
 
 	// size and seed are the options the town was generated with.
 	size Size
@@ -44,6 +47,9 @@ func Generate(opts Options) (*Town, error) {
 	lay, err := layoutFor(opts.Size)
 	if err != nil {
 		return nil, err
+	}
+	if opts.RailWeakness {
+		lay = lay.withRailWeakness()
 	}
 	size := opts.Size
 	if size == "" {
