@@ -50,9 +50,10 @@ type ScanOptions struct {
 	// least the support share of the days (default 0.5). Pairs that recur
 	// together no more than chance would have them stay apart.
 	JoinCorrelation float64 `toml:"join_correlation"`
-	// MaxGroupVisits bounds the listing of recurring groups by the number
-	// of connected groups visited over the whole scan (default 2,000,000,
-	// about a second); 0 means no bound.
+	// MaxGroupVisits bounds the listing of recurring groups by the search's
+	// work over the whole scan, in the units of groups.Options.MaxVisits
+	// (a group visited or an edge tested against a group's days; default
+	// 2,000,000, about a second); 0 means no bound.
 	MaxGroupVisits int `toml:"max_group_visits"`
 	// Progress, when not nil, is called as the scan goes: stage names the
 	// step ("candidates", "groups"), done counts the items of total done.
@@ -144,7 +145,7 @@ type Scan struct {
 	// Iterate in sorted key order for deterministic output.
 	EdgeDaily map[EdgeKey][]DailyValue
 	Findings  []Finding
-	// GroupVisits counts the connected groups visited while listing the
+	// GroupVisits counts the search's work (see MaxGroupVisits) while listing the
 	// findings' recurring groups; GroupsTruncated is set when the listing
 	// stopped at ScanOptions.MaxGroupVisits, so that some findings list
 	// only part of their groups. The findings, their edges and costs do

@@ -137,5 +137,5 @@ func GroupBoundNote(s *patterns.Scan) string {
 		return ""
 	}
 	return "Note: the listing of recurring groups stopped after " + strconv.Itoa(s.GroupVisits) +
-		" groups visited (the bound max_group_visits); some places list only part of their groups. The places, their edges and costs are complete."
+		" steps of the group search (the bound max_group_visits); some places list only part of their groups. The places, their edges and costs are complete."
 }

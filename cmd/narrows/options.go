@@ -118,7 +118,7 @@ func bindScan(fs *flag.FlagSet, o *patterns.ScanOptions) {
 	fs.IntVar(&o.MaxGroupEdges, "max-edges", o.MaxGroupEdges, "largest recurring group of edges to list within a place")
 	fs.BoolVar(&o.MaximalOnly, "maximal-only", o.MaximalOnly, "list only a place's groups not contained in another of its groups")
 	fs.Float64Var(&o.JoinCorrelation, "join-correlation", o.JoinCorrelation, "least correlation of two region pairs' weak days for them to be one place")
-	fs.IntVar(&o.MaxGroupVisits, "max-group-visits", o.MaxGroupVisits, "bound on the groups visited while listing recurring groups (0 = none)")
+	fs.IntVar(&o.MaxGroupVisits, "max-group-visits", o.MaxGroupVisits, "bound on the steps of the search that lists recurring groups: groups visited and edges tested (0 = none)")
 	fs.Var(&kmhValue{&o.ReferenceSpeed}, "reference-speed", "`km/h` against which extra vehicle-hours are counted")
 }
 

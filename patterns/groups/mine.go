@@ -31,17 +31,20 @@ type Options struct {
 	// its own days. The days of a dropped group are a superset of those of
 	// any group containing it.
 	MaximalOnly bool
-	// MaxVisits bounds the search by the number of connected groups it
-	// visits (0 = no bound). When the bound is reached the search stops
-	// and returns the groups found so far, with Result.Truncated set: a
-	// low support over many candidates would otherwise run for hours.
+	// MaxVisits bounds the search by its work (0 = no bound): each
+	// connected group visited counts one, and so does each neighbouring
+	// edge tested against a group's days (for closedness or a closure), so
+	// that the bound holds time as well on a few huge groups as on many
+	// small ones. When the bound is reached the search stops and returns
+	// the groups found so far, with Result.Truncated set: a low support over
+	// many candidates would otherwise run for hours.
 	MaxVisits int
 }
 
 // Result is the outcome of MineBounded.
 type Result struct {
 	Groups []Group
-	// Visited counts the connected groups the search visited.
+	// Visited counts the search's work in the units of Options.MaxVisits.
 	Visited int
 	// Truncated is set when the search stopped at Options.MaxVisits, so
 	// that Groups may lack some groups.
@@ -142,6 +145,7 @@ type miner struct {
 	setAt   [][]uint64 // day set of sub[:d+1]
 	extAt   [][]int32  // extension buffers
 	visited int
+	calls   int // extend calls, for checking the context now and then
 
 	groups   []Group
 	reported map[string]bool // closures larger than maxEdges already reported
@@ -286,7 +290,7 @@ func (m *miner) extend(v int32, ext []int32) error {
 		return errVisitBound
 	}
 	m.visited++
-	if m.visited%4096 == 0 {
+	if m.calls++; m.calls%4096 == 0 {
 		if err := m.ctx.Err(); err != nil {
 			return err
 		}
@@ -335,6 +339,7 @@ func (m *miner) report(set []uint64) {
 	}
 	closed := true
 	for _, s := range m.sub {
+		m.visited += len(m.neighbors[s])
 		for _, u := range m.neighbors[s] {
 			if !m.inSub[u] && subset(set, m.daySet(u)) {
 				closed = false
@@ -375,6 +380,7 @@ func (m *miner) closure(set []uint64) []int32 {
 		m.seen[s] = true
 	}
 	for head := 0; head < len(q); head++ {
+		m.visited += len(m.neighbors[q[head]])
 		for _, u := range m.neighbors[q[head]] {
 			if !m.seen[u] && subset(set, m.daySet(u)) {
 				m.seen[u] = true

@@ -441,3 +441,38 @@ func TestMaximalOnly(t *testing.T) {
 		t.Errorf("Mine(MaximalOnly) = %v, want %v", got, want)
 	}
 }
+
+// TestMaxVisitsBoundsWork: on one dense cluster that recurs every day, a
+// few groups cost many closedness tests each; the bound counts those
+// tests, so the search stops near the bound however large the cluster.
+func TestMaxVisitsBoundsWork(t *testing.T) {
+	var day []Edge
+	for a := 1; a <= 20; a++ {
+		day = append(day, Edge{From: 0, To: a}, Edge{From: a, To: 0})
+	}
+	days := [][]Edge{day, day, day, day}
+	// Every edge touches region 0, so each of the 40 has 39 neighbours; one
+	// step of the search tests at most MaxEdges x 39 of them for
+	// closedness, and a closure at most 40 x 39.
+	const bound, maxEdges = 5000, 4
+	res, err := MineBounded(context.Background(), days, Options{MinSupport: 2, MaxEdges: maxEdges, MaxVisits: bound})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !res.Truncated {
+		t.Fatalf("not truncated after %d units of work", res.Visited)
+	}
+	if step := maxEdges*39 + 40*39; res.Visited > bound+step {
+		t.Errorf("visited %d, want at most the bound %d plus one step (%d)", res.Visited, bound, step)
+	}
+	full, err := MineBounded(context.Background(), days, Options{MinSupport: 2, MaxEdges: maxEdges})
+	if err != nil {
+		t.Fatal(err)
+	}
+	// All 40 edges are adjacent, so the connected groups of at most 4
+	// edges are the C(40,1) + ... + C(40,4) = 102,090 subsets; each visit
+	// tests at least 36 neighbours, and the work counts them.
+	if full.Truncated || full.Visited < 102090*36 {
+		t.Errorf("unbounded search: %d units, truncated %v; want the visits and the tests, at least %d", full.Visited, full.Truncated, 102090*36)
+	}
+}
