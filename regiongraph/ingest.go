@@ -72,6 +72,9 @@ func Ingest(ctx context.Context, regions *partition.Partition, regionsSHA256 str
 		return nil, err
 	}
 	edges, quality := finish(st, loc, tallies)
+	if st.opts.Strict && quality.OffsetMismatch > 0 {
+		return nil, OffsetMismatchError(quality, st.loc.String())
+	}
 	return &Store{
 		regionsGeoJSON: regionsJSON.Bytes(),
 		Meta: Meta{

@@ -291,6 +291,9 @@ func (r *studyRun) reportInput(store *regiongraph.Store, regions *partition.Part
 // scan scans the study's period and writes the findings and the report.
 func (r *studyRun) scan(ctx context.Context, env *environment, store *regiongraph.Store, in report.Input) error {
 	opts := r.Scan.ScanOptions
+	if err := tooFewTrips(patterns.CheckPairs(store, opts)); err != nil {
+		return fmt.Errorf("study file %s: %w", r.file, err)
+	}
 	update, finish := stageProgress(env)
 	opts.Progress = update
 	scan, err := patterns.ScanStore(ctx, store, opts)
