@@ -15,7 +15,10 @@ import (
 // periods that overlap or reach outside the store's days (CheckPeriods), a
 // focus that selects no region (CheckFocus), or a minimum of trips that
 // leaves no region pair on either period's days (CheckPairs). The command
-// line calls it before Compare, and so does a study run.
+// line calls it before Compare, and so does a study run. The store must
+// hold every edge: one read with a minimum of trips lacks the days on which
+// no pair reached it (the command line then checks the parts one by one,
+// with regiongraph.ReadDayRange).
 func CheckComparison(store *regiongraph.Store, regions *partition.Partition, before, after ScanOptions, opts CompareOptions) error {
 	if err := CheckPeriods(store, before, after); err != nil {
 		return err
@@ -70,6 +73,19 @@ func CheckPeriods(store *regiongraph.Store, before, after ScanOptions) error {
 		return fmt.Errorf("after period: %w", err)
 	}
 	first, last := StoreDays(store)
+	return CheckPeriodsWithin(first, last, before, after)
+}
+
+// CheckPeriodsWithin is CheckPeriods for data that run from first to last
+// (YYYY-MM-DD), for a caller that holds only part of a store's edges (see
+// regiongraph.ReadDayRange).
+func CheckPeriodsWithin(first, last string, before, after ScanOptions) error {
+	if err := checkScanDays(&before); err != nil {
+		return fmt.Errorf("before period: %w", err)
+	}
+	if err := checkScanDays(&after); err != nil {
+		return fmt.Errorf("after period: %w", err)
+	}
 	if first == "" {
 		return errors.New("patterns: the day-graph store has no edges, so no period can be compared")
 	}

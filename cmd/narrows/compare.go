@@ -56,7 +56,7 @@ func runCompare(ctx context.Context, env *environment, args []string) error {
 	if err != nil {
 		return err
 	}
-	if err := pairsLeft(in.graphs, store, before.apply(scanOpts), after.apply(scanOpts)); err != nil {
+	if err := checkComparison(in.graphs, store, regions, before.apply(scanOpts), after.apply(scanOpts), copts); err != nil {
 		return err
 	}
 	if title == "" {
@@ -87,10 +87,6 @@ func compareAndReport(ctx context.Context, env *environment, job compareJob) err
 	start := time.Now()
 	update, finish := stageProgress(env)
 	job.before.Progress, job.after.Progress = update, update
-	if err := patterns.CheckComparison(job.store, job.regions, job.before, job.after, job.opts); err != nil {
-		finish()
-		return namedSetting(err)
-	}
 	cmp, err := patterns.Compare(ctx, job.store, job.regions, job.before, job.after, job.opts)
 	finish()
 	if err != nil {

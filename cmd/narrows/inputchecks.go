@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 
+	"narrows/partition"
 	"narrows/patterns"
 	"narrows/regiongraph"
 )
@@ -60,4 +61,22 @@ func pairsLeft(path string, store *regiongraph.Store, periods ...patterns.ScanOp
 		}
 	}
 	return nil
+}
+
+// checkComparison checks a comparison's periods against the days of the
+// store file (all of them, not only those the read kept), its focus
+// against the regions and its minimum of trips against the periods (see
+// patterns.CheckComparison, which needs every edge in memory).
+func checkComparison(path string, store *regiongraph.Store, regions *partition.Partition, before, after patterns.ScanOptions, opts patterns.CompareOptions) error {
+	first, last, err := regiongraph.ReadDayRange(path)
+	if err != nil {
+		return err
+	}
+	if err := patterns.CheckPeriodsWithin(first, last, before, after); err != nil {
+		return fmt.Errorf("%s: %w", path, err)
+	}
+	if err := patterns.CheckFocus(opts.Focus, regions); err != nil {
+		return err
+	}
+	return pairsLeft(path, store, before, after)
 }

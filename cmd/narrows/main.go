@@ -127,10 +127,10 @@ func dispatch(ctx context.Context, env *environment, args []string) int {
 		}
 		var ue usageError
 		if errors.As(err, &ue) {
-			fmt.Fprintf(env.stderr, "narrows %s: %v\nRun 'narrows help %s' for usage.\n", name, err, name)
+			fmt.Fprintf(env.stderr, "narrows %s: %s\nRun 'narrows help %s' for usage.\n", name, errorText(err), name)
 			return exitUsage
 		}
-		fmt.Fprintf(env.stderr, "narrows %s: %v\n", name, err)
+		fmt.Fprintf(env.stderr, "narrows %s: %s\n", name, errorText(err))
 		return exitError
 	}
 	fmt.Fprintf(env.stderr, "narrows: unknown command %q\n\n", name)

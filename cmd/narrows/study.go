@@ -317,6 +317,9 @@ func (r *studyRun) compare(ctx context.Context, env *environment, store *regiong
 	if err != nil {
 		return fmt.Errorf("study file %s: %v", r.file, err)
 	}
+	if err := patterns.CheckComparison(store, in.Regions, before, after, r.Compare.CompareOptions); err != nil {
+		return fmt.Errorf("study file %s: %w", r.file, namedSetting(err))
+	}
 	settings := append(in.Settings, [][2]string{{"before", r.Compare.Before.String()}, {"after", r.Compare.After.String()},
 		{"focus", r.Compare.Focus.String()}, {"alpha", strconv.FormatFloat(r.Compare.Alpha, 'g', -1, 64)}}...)
 	return compareAndReport(ctx, env, compareJob{
