@@ -114,7 +114,7 @@ func scanGPX(r io.Reader, each func(gpxSegment) error) error {
 type gpxParser struct {
 	each     func(gpxSegment) error // called with each segment as it ends
 	cur      *gpxSegment            // the open <trkseg>
-	pt       *gpxPoint   // the open <trkpt>
+	pt       *gpxPoint              // the open <trkpt>
 	text     bytes.Buffer
 	inTime   bool // in the <time> of pt
 	depth    int

@@ -51,7 +51,7 @@ func TestHostileGPXBounded(t *testing.T) {
 	p := gridPartition(2, 2, 13.0, 52.0, 0.02)
 	for _, tc := range []struct {
 		name, data, want string
-		limit           uint64
+		limit            uint64
 	}{
 		{"nested", "<gpx>" + strings.Repeat("<a>", size/3), "nest deeper than 64", 16 << 20},
 		{"text", "<gpx><trk><trkseg><trkpt lat=\"52\" lon=\"13\"><time>" + strings.Repeat("9", size), "a text of", 64 << 20},
