@@ -2,14 +2,10 @@ package report
 
 import (
 	"archive/zip"
-	"bufio"
 	"bytes"
-	"fmt"
 	"io"
 	"sort"
 	"strings"
-
-	"github.com/xuri/excelize/v2"
 )
 
 // This file works around what excelize v2.11.1 gets wrong. Each function
@@ -69,8 +65,6 @@ func repack(w io.Writer, pkg []byte) error {
 		switch {
 		case zf.Name == "[Content_Types].xml" || strings.HasPrefix(zf.Name, "xl/charts/chart"):
 			err = rewritePart(zw, zf)
-		case strings.HasPrefix(zf.Name, "xl/worksheets/sheet") && strings.HasSuffix(zf.Name, ".xml"):
-			err = fixDimension(zw, zf)
 		default:
 			err = copyPart(zw, zf)
 		}
@@ -79,137 +73,6 @@ func repack(w io.Writer, pkg []byte) error {
 		}
 	}
 	return zw.Close()
-}
-
-// fixDimension writes a worksheet part with its <dimension ref> set to the
-// range its cells and merged cells use: excelize leaves it at "A1", and
-// readers that trust it (openpyxl in read-only mode) then see one cell.
-// The part is read twice, streaming (a sheet near the row limit is a few
-// hundred megabytes of XML): once for the range, once to copy it with the
-// dimension, which excelize writes near the start, replaced. Delete when
-// excelize writes the dimension.
-func fixDimension(zw *zip.Writer, zf *zip.File) error {
-	rc, err := zf.Open()
-	if err != nil {
-		return err
-	}
-	ref, err := usedRange(rc)
-	rc.Close()
-	if err != nil {
-		return fmt.Errorf("report: workbook part %s: %v", zf.Name, err)
-	}
-	if rc, err = zf.Open(); err != nil {
-		return err
-	}
-	defer rc.Close()
-	br := bufio.NewReaderSize(rc, 64<<10)
-	head, err := br.Peek(64 << 10)
-	if err != nil && err != io.EOF && err != bufio.ErrBufferFull {
-		return err
-	}
-	const open = `<dimension ref="`
-	i := bytes.Index(head, []byte(open))
-	j := -1
-	if i >= 0 {
-		j = bytes.IndexByte(head[i+len(open):], '"')
-	}
-	if ref == "" || i < 0 || j < 0 {
-		return copyPart(zw, zf)
-	}
-	w, err := zw.CreateHeader(&zip.FileHeader{Name: zf.Name, Method: zip.Deflate})
-	if err != nil {
-		return err
-	}
-	start, end := i+len(open), i+len(open)+j
-	if _, err := w.Write(head[:start]); err != nil {
-		return err
-	}
-	if _, err := io.WriteString(w, ref); err != nil {
-		return err
-	}
-	if _, err := w.Write(head[end:]); err != nil {
-		return err
-	}
-	if _, err := br.Discard(len(head)); err != nil {
-		return err
-	}
-	_, err = io.Copy(w, br)
-	return err
-}
-
-// usedRange returns the range ("A1:L238") spanned by the cell references
-// (<c r="...">) and merged ranges (<mergeCell ref="...">) of a worksheet's
-// XML, or "" when it has none.
-func usedRange(r io.Reader) (string, error) {
-	sc := bufio.NewScanner(r)
-	sc.Buffer(make([]byte, 0, 64<<10), 4<<20) // a cell's text is at most 32,767 characters
-	sc.Split(splitAtTag)
-	minCol, minRow, maxCol, maxRow := 0, 0, 0, 0
-	see := func(ref string) {
-		col, row, err := excelize.CellNameToCoordinates(ref)
-		if err != nil {
-			return
-		}
-		if maxCol == 0 {
-			minCol, minRow, maxCol, maxRow = col, row, col, row
-			return
-		}
-		minCol, minRow = min(minCol, col), min(minRow, row)
-		maxCol, maxRow = max(maxCol, col), max(maxRow, row)
-	}
-	for sc.Scan() {
-		tok := sc.Bytes()
-		switch {
-		case bytes.HasPrefix(tok, []byte(`c r="`)):
-			if q := bytes.IndexByte(tok[5:], '"'); q >= 0 {
-				see(string(tok[5 : 5+q]))
-			}
-		case bytes.HasPrefix(tok, []byte(`mergeCell ref="`)):
-			rest := tok[len(`mergeCell ref="`):]
-			if q := bytes.IndexByte(rest, '"'); q >= 0 {
-				a, b, _ := strings.Cut(string(rest[:q]), ":")
-				see(a)
-				if b != "" {
-					see(b)
-				}
-			}
-		}
-	}
-	if err := sc.Err(); err != nil {
-		return "", err
-	}
-	if maxCol == 0 {
-		return "", nil
-	}
-	from, _ := excelize.CoordinatesToCellName(minCol, minRow)
-	to, _ := excelize.CoordinatesToCellName(maxCol, maxRow)
-	if from == to {
-		return from, nil
-	}
-	return from + ":" + to, nil
-}
-
-// splitAtTag splits XML into the pieces that follow each '<', so that each
-// token starts with an element's name.
-func splitAtTag(data []byte, atEOF bool) (advance int, token []byte, err error) {
-	start := bytes.IndexByte(data, '<')
-	if start < 0 {
-		if atEOF {
-			return len(data), nil, nil
-		}
-		return len(data), nil, nil
-	}
-	end := bytes.IndexByte(data[start+1:], '<')
-	if end < 0 {
-		if atEOF {
-			return len(data), data[start+1:], nil
-		}
-		if start > 0 {
-			return start, nil, nil
-		}
-		return 0, nil, nil
-	}
-	return start + 1 + end, data[start+1 : start+1+end], nil
 }
 
 // copyPart copies a part as it is, still compressed.
