@@ -16,6 +16,7 @@ import (
 	"slices"
 	"strings"
 	"sync"
+	"unicode"
 
 	"github.com/paulmach/orb"
 	"github.com/paulmach/osm"
@@ -171,7 +172,7 @@ func openOSM(ctx context.Context, r io.Reader, depth int) (osm.Scanner, *osmpbf.
 		case found && root == "osm":
 			return osmxml.New(ctx, newXMLGuard(br)), nil, "XML", nil
 		case found:
-			return nil, nil, "", fmt.Errorf("XML, but not OpenStreetMap: the root element is <%s>, want <osm>", root)
+			return nil, nil, "", fmt.Errorf("XML, but not OpenStreetMap: the root element is <%s>, want <osm>", printable([]byte(root), 40))
 		default:
 			return nil, nil, "", errors.New("XML without an <osm> root element in its first 4 kB (truncated, or not OpenStreetMap)")
 		}
@@ -231,7 +232,7 @@ func printable(b []byte, n int) string {
 		b = b[:n]
 	}
 	return strings.Map(func(r rune) rune {
-		if r < 0x20 || r == 0x7f || r == 0xfffd {
+		if unicode.IsControl(r) || r == 0xfffd || (r >= 0x202a && r <= 0x202e) || (r >= 0x2066 && r <= 0x2069) {
 			return '.'
 		}
 		return r

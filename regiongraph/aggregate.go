@@ -263,6 +263,8 @@ func gather(tallies []*tally) (Quality, map[bucketKey][]*dayRecords) {
 	for _, t := range tallies {
 		q.Read += t.read
 		q.Used += t.used
+		q.OffsetTimes += t.zone.offsetTimes
+		q.OffsetMismatch += t.zone.offsetMismatch
 		for r, n := range t.rejected {
 			q.Rejected[string(r)] += n
 		}

@@ -138,7 +138,7 @@ func (c *csvFile) requireColumns(st *settings, required, optional []string) (map
 				hint = fmt.Sprintf("; if the file names it differently, map it in Columns, e.g. %s=<header>", logical)
 			}
 			return nil, fmt.Errorf("regiongraph: %s:1: missing column %q (the %s column)%s; header has: %s",
-				c.path, h, logical, hint, strings.Join(c.header, ", "))
+				c.path, h, logical, hint, listExcerpt(c.header))
 		}
 		idx[logical] = i
 	}

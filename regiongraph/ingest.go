@@ -76,6 +76,9 @@ func Ingest(ctx context.Context, regions *partition.Partition, regionsSHA256 str
 	if err := checkYield(st, quality, sources); err != nil {
 		return nil, err
 	}
+	if st.opts.Strict && quality.OffsetMismatch > 0 {
+		return nil, OffsetMismatchError(quality, st.loc.String())
+	}
 	return &Store{
 		regionsGeoJSON: regionsJSON.Bytes(),
 		Meta: Meta{

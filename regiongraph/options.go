@@ -134,7 +134,9 @@ type Options struct {
 	// field, bad duration, GPS jump, bad speed, detour below floor) with an
 	// error "file:line: reason". Rows that only fail a filter (outside the
 	// study area, intra-region, short trip, not occupied, stationary,
-	// outside the time windows) are counted as usual.
+	// outside the time windows) are counted as usual. It also makes times
+	// whose UTC offset is not TimeZone's an error (see
+	// OffsetMismatchError), after all rows are read.
 	Strict bool `toml:"strict"`
 	// Progress, when not nil, is called from one goroutine at a time with the
 	// bytes read so far and the total bytes of all inputs.

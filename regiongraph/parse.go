@@ -124,6 +124,11 @@ func plainNumber(b []byte) bool {
 type zoneCache struct {
 	loc     *time.Location
 	periods [2]zonePeriod // most recently used first
+	// offsetTimes counts the parsed times that carry a numeric UTC offset
+	// (+HH:MM, -HHMM; not Z, which says only that the time is in UTC);
+	// offsetMismatch those whose offset is not the zone's at that instant,
+	// a sign that the study's time zone is not the data's.
+	offsetTimes, offsetMismatch int64
 }
 
 type zonePeriod struct {
@@ -416,6 +421,10 @@ func parseDateTime(b []byte, z *zoneCache) (int64, error) {
 		off := int64(oh*3600 + om*60)
 		if b[i] == '-' {
 			off = -off
+		}
+		z.offsetTimes++
+		if z.lookup(civil-off).offset != off {
+			z.offsetMismatch++
 		}
 		return (civil-off)*1000 + ms, nil
 	}

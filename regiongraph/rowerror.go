@@ -35,7 +35,7 @@ func (e *RowError) Error() string {
 		b.WriteString(" " + e.Column)
 	}
 	if e.Value != "" {
-		b.WriteString(" " + strconv.Quote(e.Value))
+		b.WriteString(" " + strconv.Quote(excerpt(e.Value, maxExcerpt)))
 	}
 	switch {
 	case e.Err != nil:

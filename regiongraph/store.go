@@ -51,6 +51,12 @@ type Quality struct {
 	Read     int64
 	Used     int64
 	Rejected map[string]int64 // reason text (a Reason as a string) -> rows, every reason of RejectReasons
+	// OffsetTimes counts the times read with a numeric UTC offset
+	// (+02:00); OffsetMismatch those whose offset differs from the time
+	// zone's at that instant. Such times are placed at the right instant,
+	// but days and windows are cut in the time zone, which then is most
+	// likely not the data's.
+	OffsetTimes, OffsetMismatch int64
 }
 
 // Meta is the store's provenance.
@@ -172,6 +178,8 @@ func Merge(stores ...*Store) (*Store, error) {
 		out.Edges = append(out.Edges, s.Edges...)
 		out.Meta.Quality.Read += s.Meta.Quality.Read
 		out.Meta.Quality.Used += s.Meta.Quality.Used
+		out.Meta.Quality.OffsetTimes += s.Meta.Quality.OffsetTimes
+		out.Meta.Quality.OffsetMismatch += s.Meta.Quality.OffsetMismatch
 		for r, n := range s.Meta.Quality.Rejected {
 			out.Meta.Quality.Rejected[r] += n
 		}

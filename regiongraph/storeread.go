@@ -238,7 +238,8 @@ func readStoreMeta(path string, pf *parquet.File, s *Store) error {
 		}
 		s.Meta.Windows = append(s.Meta.Windows, pw)
 	}
-	s.Meta.Quality = Quality{Read: quality.Read, Used: quality.Used, Rejected: quality.Rejected}
+	s.Meta.Quality = Quality{Read: quality.Read, Used: quality.Used, Rejected: quality.Rejected,
+		OffsetTimes: quality.OffsetTimes, OffsetMismatch: quality.OffsetMismatch}
 	if s.Meta.Quality.Rejected == nil {
 		s.Meta.Quality.Rejected = make(map[string]int64)
 	}

@@ -147,6 +147,10 @@ type (
 		Read     int64            `json:"read"`
 		Used     int64            `json:"used"`
 		Rejected map[string]int64 `json:"rejected"`
+		// Written only when not zero, so stores of data without offsets
+		// keep their bytes.
+		OffsetTimes    int64 `json:"offset_times,omitempty"`
+		OffsetMismatch int64 `json:"offset_mismatch,omitempty"`
 	}
 	sourceJSON struct {
 		Path   string `json:"path"`

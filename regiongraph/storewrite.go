@@ -61,7 +61,8 @@ func storeMetadata(s *Store) ([]parquet.WriterOption, error) {
 		v   any
 	}{
 		{metaWindows, windows},
-		{metaQuality, qualityJSON{Read: s.Meta.Quality.Read, Used: s.Meta.Quality.Used, Rejected: rejected}},
+		{metaQuality, qualityJSON{Read: s.Meta.Quality.Read, Used: s.Meta.Quality.Used, Rejected: rejected,
+			OffsetTimes: s.Meta.Quality.OffsetTimes, OffsetMismatch: s.Meta.Quality.OffsetMismatch}},
 		{metaSources, sources},
 	}
 	opts := []parquet.WriterOption{

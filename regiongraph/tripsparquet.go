@@ -7,7 +7,6 @@ import (
 	"io"
 	"math"
 	"os"
-	"strings"
 
 	"github.com/parquet-go/parquet-go"
 	"github.com/parquet-go/parquet-go/format"
@@ -83,7 +82,7 @@ func parquetTripColumns(st *settings, path string, schema *parquet.Schema) (*par
 		leaf, ok := schema.Lookup(header)
 		if !ok {
 			return nil, fmt.Errorf("regiongraph: %s: missing column %q (the %s column); file has: %s",
-				path, header, logical, strings.Join(names, ", "))
+				path, header, logical, listExcerpt(names))
 		}
 		cols.idx[i] = leaf.ColumnIndex
 		typ := leaf.Node.Type()

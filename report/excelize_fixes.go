@@ -62,9 +62,10 @@ func repack(w io.Writer, pkg []byte) error {
 	zw := zip.NewWriter(w)
 	for _, zf := range files {
 		var err error
-		if zf.Name == "[Content_Types].xml" || strings.HasPrefix(zf.Name, "xl/charts/chart") {
+		switch {
+		case zf.Name == "[Content_Types].xml" || strings.HasPrefix(zf.Name, "xl/charts/chart"):
 			err = rewritePart(zw, zf)
-		} else {
+		default:
 			err = copyPart(zw, zf)
 		}
 		if err != nil {

@@ -53,6 +53,13 @@ type Input struct {
 	PublicationMinTrips int
 	// Version is the version of the program that made the report.
 	Version string
+	// DailyRowCap is the most rows the workbook's Daily sheet holds
+	// (default DefaultDailyRowCap); with more, the sheet holds a note and
+	// the rows go to the daily CSV (see DailyOverflows, WriteDailyCSV).
+	DailyRowCap int
+	// DailyCSVName is the daily CSV's file name, which the note names
+	// (default "daily.csv").
+	DailyCSVName string
 	// Created is written as the workbook's creation time. Zero means
 	// midnight UTC after the last analysed day, so that the same study gives
 	// byte-identical files.

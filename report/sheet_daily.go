@@ -12,9 +12,22 @@ import (
 // candidates and recurring weak links, and every edge-day for the
 // speed-against-detour chart. Their charts are in charts.go.
 
+// dailyColumns are the columns of the Daily sheet and of the daily CSV.
+var dailyColumns = []string{"Rank", "Weak link", "Period", "Day", "From", "To", "Trips", "Speed km/h", "Detour ratio", "Extra km", "Candidate", "Weak link recurred"}
+
 func (b *book) daily() {
+	rows := b.dailyRows()
+	if limit := b.v.dailyRowCap(); len(rows) > limit {
+		b.dailyMoved(len(rows), limit)
+		return
+	}
+	b.streamTable(SheetDaily, dailyColumns, rows, nil)
+}
+
+// dailyRows returns the rows of the Daily sheet: every day of every
+// finding edge, by period.
+func (b *book) dailyRows() [][]cell {
 	v := b.v
-	cols := []string{"Rank", "Weak link", "Period", "Day", "From", "To", "Trips", "Speed km/h", "Detour ratio", "Extra km", "Candidate", "Weak link recurred"}
 	var rows [][]cell
 	// An edge can belong to a finding of each period; its days are shown
 	// once per period, with the first finding (in the report's order)
@@ -40,7 +53,7 @@ func (b *book) daily() {
 			}
 		}
 	}
-	b.streamTable(SheetDaily, cols, rows, nil)
+	return rows
 }
 
 // recurredDays returns the days on which the finding with id recurred in

@@ -100,6 +100,9 @@ type sheet struct {
 	// finish sets so that every wrapped header shows in full.
 	headRow   int
 	headNames []string
+	// maxRow and maxCol are the last row and column written (merged
+	// cells included), the sheet's dimension that finish declares.
+	maxRow, maxCol int
 }
 
 func (b *book) newSheet(name string) *sheet {
@@ -129,6 +132,7 @@ func (s *sheet) put(col, r int, c cell) {
 		b.fail(err)
 		return
 	}
+	s.maxRow, s.maxCol = max(s.maxRow, r), max(s.maxCol, col)
 	v, width := c.value()
 	if c.kind == kindText {
 		v = escapeHexEscapes(c.s)
@@ -162,6 +166,9 @@ func (s *sheet) para(text string, lastCol string, charsPerLine int) {
 	s.widths[1] = w // the text wraps across columns: it does not size column A
 	if b.err == nil {
 		b.fail(b.f.MergeCell(s.name, "A"+r, lastCol+r))
+		last, err := excelize.ColumnNameToNumber(lastCol)
+		b.fail(err)
+		s.maxCol = max(s.maxCol, last)
 	}
 	lines := (utf8.RuneCountInString(text) + charsPerLine - 1) / max(charsPerLine, 1)
 	if b.err == nil && lines > 1 {
@@ -239,7 +246,23 @@ func (s *sheet) finish() {
 		}
 		s.b.fail(s.b.f.SetRowHeight(s.name, s.headRow, headerHeight(lines)))
 	}
+	s.b.declareDimension(s.name, s.maxCol, s.maxRow)
 	s.b.printSetup(s.name, s.headRow)
+}
+
+// declareDimension sets the used range a sheet declares, A1 to the last
+// column and row written: excelize leaves it at A1 otherwise, and readers
+// that trust it (openpyxl in read-only mode) then see one cell.
+func (b *book) declareDimension(name string, lastCol, lastRow int) {
+	if b.err != nil || lastCol < 1 || lastRow < 1 {
+		return
+	}
+	end, err := excelize.CoordinatesToCellName(lastCol, lastRow)
+	if err != nil {
+		b.fail(err)
+		return
+	}
+	b.fail(b.f.SetSheetDimension(name, "A1:"+end))
 }
 
 // colWidth is the column width for values up to chars characters wide,
@@ -335,6 +358,10 @@ func (b *book) streamTable(name string, header []string, rows [][]cell, extra fu
 	// it is created, so they are set first.
 	const head = 1
 	b.printSetup(name, head)
+	// The stream writer writes the dimension before the rows, so it is
+	// declared from the rows to come: the header, the rows and, past the
+	// format's limit, the note in the last row (see streamRows).
+	b.declareDimension(name, len(header), min(head+len(rows), excelize.TotalRows))
 	sw, err := b.f.NewStreamWriter(name)
 	if err != nil {
 		b.fail(err)

@@ -547,41 +547,59 @@ func xmlSafe(s string) string {
 	return b.String()
 }
 
-// FuzzWorkbookText writes an arbitrary road name and reads it back: the
-// workbook must be written, the cell must be a string equal to the text
-// (up to characters XML cannot hold) and never a formula.
+// FuzzWorkbookText writes an arbitrary text through both paths of the
+// spreadsheet writer (cell by cell, as the Regions sheet's road names, and
+// streamed, as the Daily sheet's) and reads it back: the workbook must be
+// written, the cell must be a string equal to the text (up to characters
+// XML cannot hold) and never a formula. The workbook holds only the two
+// cells, so that each input takes milliseconds; TestWorkbookTextRoundTrip
+// puts names through the whole report.
 func FuzzWorkbookText(f *testing.F) {
 	for _, s := range []string{"Mill Lane", evilRoad, "_x0041_", "a\r\nb", "\x00", "\xff", " lead", "=1", "@A1", "-2+3", "+1"} {
 		f.Add(s)
+	}
+	v, err := newView(fxInput()) // the styles need a view: made once
+	if err != nil {
+		f.Fatal(err)
 	}
 	f.Fuzz(func(t *testing.T, name string) {
 		if utf8.RuneCountInString(name) > 1000 {
 			t.Skip("long names are not the point here")
 		}
-		in := fxInput()
-		in.Regions.Regions[4].BorderRoads = []partition.BorderRoad{{Name: name, LengthKM: 1}}
-		v, err := newView(in)
+		wb := excelize.NewFile()
+		b := &book{f: wb, v: v}
+		b.newStyles()
+		s := b.newSheet(SheetRegions)
+		s.add(b.str(name))
+		s.finish()
+		b.streamTable(SheetDaily, []string{"Name"}, [][]cell{{b.str(name)}}, nil)
+		if b.err != nil {
+			t.Fatal(b.err)
+		}
+		var raw, buf bytes.Buffer
+		if err := wb.Write(&raw); err != nil {
+			t.Fatal(err)
+		}
+		wb.Close()
+		if err := repack(&buf, raw.Bytes()); err != nil {
+			t.Fatal(err)
+		}
+		back, err := excelize.OpenReader(&buf)
 		if err != nil {
 			t.Fatal(err)
 		}
-		var buf bytes.Buffer
-		if err := v.workbook(&buf); err != nil {
-			t.Fatal(err)
-		}
-		wb, err := excelize.OpenReader(&buf)
-		if err != nil {
-			t.Fatal(err)
-		}
-		defer wb.Close()
-		got, err := wb.GetCellValue(SheetRegions, "D6")
-		if err != nil {
-			t.Fatal(err)
-		}
-		if want := xmlSafe(name); got != want {
-			t.Errorf("road %q read back as %q, want %q", name, got, want)
-		}
-		if fm, _ := wb.GetCellFormula(SheetRegions, "D6"); fm != "" {
-			t.Errorf("road %q became formula %q", name, fm)
+		defer back.Close()
+		for _, at := range []struct{ sheet, cell string }{{SheetRegions, "A1"}, {SheetDaily, "A2"}} {
+			got, err := back.GetCellValue(at.sheet, at.cell)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if want := xmlSafe(name); got != want {
+				t.Errorf("%s: %q read back as %q, want %q", at.sheet, name, got, want)
+			}
+			if fm, _ := back.GetCellFormula(at.sheet, at.cell); fm != "" {
+				t.Errorf("%s: %q became formula %q", at.sheet, name, fm)
+			}
 		}
 	})
 }

@@ -56,6 +56,9 @@ func runCompare(ctx context.Context, env *environment, args []string) error {
 	if err != nil {
 		return err
 	}
+	if err := checkComparison(in.graphs, store, regions, before.apply(scanOpts), after.apply(scanOpts), copts); err != nil {
+		return err
+	}
 	if title == "" {
 		title = "Before and after: " + before.String() + " against " + after.String()
 	}

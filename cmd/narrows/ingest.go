@@ -85,6 +85,9 @@ func ingest(ctx context.Context, env *environment, regions *partition.Partition,
 		return nil, err
 	}
 	printQuality(env, store.Meta.Quality)
+	if q := store.Meta.Quality; q.OffsetMismatch > 0 {
+		fmt.Fprintf(env.stderr, "warning: %v (--tz, time_zone in a study file; --strict makes this an error)\n", regiongraph.OffsetMismatchError(q, store.Meta.TimeZone))
+	}
 	fmt.Fprintf(env.stdout, "%d edges on %d days in %.2f s -> %s\n", len(store.Edges), countDays(store), time.Since(start).Seconds(), out)
 	return store, nil
 }

@@ -72,6 +72,7 @@ func commands() []command {
 		{"scan", "find the weak links that recur in one period", runScan},
 		{"compare", "compare two periods and write the workbook, map layers and HTML page", runCompare},
 		{"run", "run a whole study from a study file (TOML)", runStudy},
+		{"check", "check a study file and its inputs without running it", runCheck},
 		{"demo", "generate a fictional town with a known weakness and run its study", runDemo},
 		{"simulate", "generate a fictional town and simulated trips", runSimulate},
 		{"version", "print the version", func(_ context.Context, env *environment, _ []string) error {
@@ -127,10 +128,10 @@ func dispatch(ctx context.Context, env *environment, args []string) int {
 		}
 		var ue usageError
 		if errors.As(err, &ue) {
-			fmt.Fprintf(env.stderr, "narrows %s: %v\nRun 'narrows help %s' for usage.\n", name, err, name)
+			fmt.Fprintf(env.stderr, "narrows %s: %s\nRun 'narrows help %s' for usage.\n", name, errorText(err), name)
 			return exitUsage
 		}
-		fmt.Fprintf(env.stderr, "narrows %s: %v\n", name, err)
+		fmt.Fprintf(env.stderr, "narrows %s: %s\n", name, errorText(err))
 		return exitError
 	}
 	fmt.Fprintf(env.stderr, "narrows: unknown command %q\n\n", name)

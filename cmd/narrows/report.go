@@ -32,6 +32,15 @@ func writeReportFiles(files *runFiles, dir, base string, in report.Input) ([]str
 	}
 	writers := []func(io.Writer, report.Input) error{report.WriteWorkbook, report.WriteRegionsGeoJSON, report.WriteFindingsGeoJSON, report.WriteHTML}
 	outs := reportOutputs(dir, base)
+	// A Daily sheet too long for the workbook goes to a CSV beside it,
+	// written first, so that the workbook never names a CSV not there.
+	in.DailyCSVName = base + "-daily.csv"
+	if over, err := report.DailyOverflows(in); err != nil {
+		return nil, err
+	} else if over {
+		outs = append([]output{{filepath.Join(dir, in.DailyCSVName), kindDaily}}, outs...)
+		writers = append([]func(io.Writer, report.Input) error{report.WriteDailyCSV}, writers...)
+	}
 	outputs := make([]struct {
 		output
 		write func(io.Writer, report.Input) error

@@ -26,3 +26,28 @@ func terminalText(s string) string {
 		return r
 	}, s)
 }
+
+// maxErrorText is the most characters of an error message printed: the
+// libraries quote only short excerpts of files, and this bounds what any
+// message, a library's or another's, can bring to a terminal or a log.
+const maxErrorText = 2000
+
+// errorText is err's message as printed: control characters replaced (see
+// terminalText; line breaks kept, some messages list items a line each)
+// and cut at maxErrorText characters.
+func errorText(err error) string {
+	lines := strings.Split(err.Error(), "\n")
+	for i, l := range lines {
+		lines[i] = terminalText(l)
+	}
+	s := strings.Join(lines, "\n")
+	if n := 0; len(s) > maxErrorText {
+		for i := range s {
+			if n == maxErrorText {
+				return s[:i] + "... (cut)"
+			}
+			n++
+		}
+	}
+	return s
+}

@@ -79,6 +79,9 @@ func runScan(ctx context.Context, env *environment, args []string) error {
 	if err != nil {
 		return err
 	}
+	if err := pairsLeft(in.graphs, store, opts); err != nil {
+		return err
+	}
 	start := time.Now()
 	update, finish := stageProgress(env)
 	opts.Progress = update

@@ -310,6 +310,9 @@ func (r *studyRun) reportInput(store *regiongraph.Store, regions *partition.Part
 // scan scans the study's period and writes the findings and the report.
 func (r *studyRun) scan(ctx context.Context, env *environment, store *regiongraph.Store, in report.Input) error {
 	opts := r.Scan.ScanOptions
+	if err := tooFewTrips(patterns.CheckPairs(store, opts)); err != nil {
+		return fmt.Errorf("study file %s: %w", r.file, err)
+	}
 	update, finish := stageProgress(env)
 	opts.Progress = update
 	scan, err := patterns.ScanStore(ctx, store, opts)
@@ -332,6 +335,9 @@ func (r *studyRun) compare(ctx context.Context, env *environment, store *regiong
 	before, after, err := r.periods()
 	if err != nil {
 		return fmt.Errorf("study file %s: %v", r.file, err)
+	}
+	if err := patterns.CheckComparison(store, in.Regions, before, after, r.Compare.CompareOptions); err != nil {
+		return fmt.Errorf("study file %s: %w", r.file, namedSetting(err))
 	}
 	settings := append(in.Settings, [][2]string{{"before", r.Compare.Before.String()}, {"after", r.Compare.After.String()},
 		{"focus", r.Compare.Focus.String()}, {"alpha", strconv.FormatFloat(r.Compare.Alpha, 'g', -1, 64)}}...)
