@@ -7,11 +7,11 @@ import (
 	"slices"
 
 	"narrows/partition"
+	"narrows/partition/route"
 	"narrows/patterns"
 	"narrows/patterns/appraise"
 	"narrows/regiongraph"
 	"narrows/report"
-	"narrows/route"
 )
 
 // runAppraise appraises candidate links for a finding of a study's

@@ -8,8 +8,8 @@ import (
 	"slices"
 
 	"narrows/partition/geodesy"
+	"narrows/partition/route"
 	"narrows/regiongraph"
-	"narrows/route"
 )
 
 // Options sets the appraisal. Defaults are documented on each field.

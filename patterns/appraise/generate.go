@@ -10,7 +10,7 @@ import (
 
 	"narrows/partition"
 	"narrows/partition/geodesy"
-	"narrows/route"
+	"narrows/partition/route"
 )
 
 // Generate proposes new links for the region pairs (region ids): for

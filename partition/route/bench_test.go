@@ -8,7 +8,7 @@ import (
 
 	"github.com/paulmach/orb"
 
-	"narrows/route"
+	"narrows/partition/route"
 )
 
 // Baltimore extract: © OpenStreetMap contributors, ODbL.

@@ -12,7 +12,7 @@ import (
 	"gonum.org/v1/gonum/graph/simple"
 
 	"narrows/partition"
-	"narrows/route"
+	"narrows/partition/route"
 )
 
 // randomRouting makes a random road set: nodes on a jittered grid joined

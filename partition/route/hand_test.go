@@ -9,7 +9,7 @@ import (
 
 	"narrows/partition"
 	"narrows/partition/geodesy"
-	"narrows/route"
+	"narrows/partition/route"
 )
 
 // A hand-drawn network, along a parallel at 50° N where 0.01° of
