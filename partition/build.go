@@ -173,6 +173,7 @@ func fromExtract(ctx context.Context, ex *extract, o Options) (*Partition, error
 	p.Regions, p.WaterKM2 = regions(arr, fs, pr, ex.ways, water, o.MinBorderRoadMetres)
 	nameRegions(p.Regions, ex)
 	p.Network = networkOf(ex, bound)
+	p.Routing = ex.routing
 	return p, nil
 }
 

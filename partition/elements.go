@@ -25,6 +25,7 @@ const (
 	rolePlace                  // a closed way tagged place: names regions
 	roleMember                 // untagged: kept in case a water relation uses it
 	roleNetwork                // a NetworkRoads way: drawn on maps only
+	roleRoute                  // a RouteRoads way: routing only
 )
 
 // wayRec is a kept way until its nodes are resolved.
@@ -76,12 +77,16 @@ type selector struct {
 	roads    map[string]int
 	split    map[string]bool
 	network  map[string]bool // NetworkRoads
+	route    map[string]bool // RouteRoads
 	barriers []string        // chosen barrier kinds, in Options order
 	water    bool            // water areas chosen
 }
 
 func newSelector(o *Options) *selector {
-	s := &selector{roads: make(map[string]int, len(o.Roads)), split: map[string]bool{}, network: map[string]bool{}}
+	s := &selector{roads: make(map[string]int, len(o.Roads)), split: map[string]bool{}, network: map[string]bool{}, route: map[string]bool{}}
+	for _, r := range o.RouteRoads {
+		s.route[r] = true
+	}
 	for _, r := range o.NetworkRoads {
 		s.network[r] = true
 	}
@@ -126,6 +131,9 @@ func (s *selector) classify(tags osm.Tags) (class string, rank int, role wayRole
 	if s.network[hw] && hw != "" {
 		return hw, 0, roleNetwork, true
 	}
+	if s.route[hw] && hw != "" {
+		return hw, 0, roleRoute, true
+	}
 	if s.water && len(tags) == 0 {
 		return "", 0, roleMember, true
 	}
@@ -143,6 +151,7 @@ type elementReader struct {
 	store  *nodeStore
 	ways   []wayRec
 	waters []waterRel
+	routes []routeRec // RouteRoads ways and barriers, for routing
 }
 
 func newElementReader(o *Options) *elementReader {
@@ -217,6 +226,7 @@ func (rd *elementReader) addWay(w *osm.Way) {
 	if !ok {
 		return
 	}
+	rd.addRouting(w)
 	ids := make([]int64, len(w.Nodes))
 	for i, wn := range w.Nodes {
 		ids[i] = int64(wn.ID)

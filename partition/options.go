@@ -98,6 +98,12 @@ type Options struct {
 	// ramps, the streets a reader finds their way by. An empty list leaves
 	// minor roads off the maps (and saves their memory on a large extract).
 	NetworkRoads []string `toml:"network_roads"`
+	// RouteRoads are the highway classes read, with their node ids and
+	// oneway, maxspeed, bridge, tunnel and ford tags, for the routable
+	// network (Partition.Routing). Default: the motor roads from motorway
+	// to residential and living_street, with the links; service roads and
+	// tracks are left out. Empty reads none.
+	RouteRoads []string `toml:"route_roads"`
 	// Exact turns all cleaning off: the regions are the plain faces of the
 	// noded linework plus the study-area rectangle (dangles and cut edges
 	// dropped), as a polygonizer would give.
@@ -124,6 +130,8 @@ func DefaultOptions() Options {
 		SplitRoads:          []string{"tertiary"},
 		MinBorderRoadMetres: 30,
 		NetworkRoads:        []string{"tertiary", "unclassified", "residential", "motorway_link", "trunk_link", "primary_link", "secondary_link", "tertiary_link"},
+		RouteRoads: []string{"motorway", "trunk", "primary", "secondary", "tertiary", "unclassified", "residential", "living_street",
+			"motorway_link", "trunk_link", "primary_link", "secondary_link", "tertiary_link"},
 	}
 }
 

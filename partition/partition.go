@@ -62,6 +62,10 @@ type Partition struct {
 	// (one pass over the file). It is not written to GeoJSON and is nil
 	// after ReadGeoJSON.
 	Network []NetworkLine
+	// Routing holds the roads and barriers the routable network is built
+	// from (Options.RouteRoads), read in the same pass; nil after
+	// ReadGeoJSON or when RouteRoads is empty.
+	Routing *Routing
 	// Stats describes the arrangement the regions came from. It is not
 	// written to GeoJSON and is zero after ReadGeoJSON.
 	Stats Stats

@@ -40,6 +40,7 @@ type extract struct {
 	network    []unusedLine // lines of NetworkRoads, for the maps only
 	places     []placeRec   // named place nodes
 	placeAreas []placeArea  // named place outlines (closed ways)
+	routing    *Routing     // RouteRoads ways and barriers
 }
 
 // wayInfo describes a chosen way.
@@ -271,6 +272,7 @@ func readOSM(ctx context.Context, r io.Reader, o *Options) (*extract, error) {
 		return nil, fmt.Errorf("the %s file holds no OSM nodes or ways", format)
 	}
 	rd.resolve(nodes, ex)
+	ex.routing = rd.resolveRouting(nodes)
 	return ex, nil
 }
 

@@ -70,6 +70,7 @@ type tally struct {
 	read       int64
 	used       int64
 	rejected   map[Reason]int64
+	visit      func(tr *trip, from, to int, day int32, window int) // when set, sees each used trip per window (ReadTrips)
 }
 
 func newTally(st *settings, loc *locator) *tally {
@@ -160,6 +161,10 @@ func (t *tally) add(tr *trip) Reason {
 			continue
 		}
 		in = true
+		if t.visit != nil {
+			t.visit(tr, from, to, int32(day), wi)
+			continue
+		}
 		key := makeBucketKey(int32(day), t.windowRank[wi])
 		d := t.last[wi]
 		if d == nil || d.key != key {

@@ -73,6 +73,7 @@ func commands() []command {
 		{"compare", "compare two periods and write the workbook, map layers and HTML page", runCompare},
 		{"run", "run a whole study from a study file (TOML)", runStudy},
 		{"check", "check a study file and its inputs without running it", runCheck},
+		{"appraise", "re-route a finding's trips with candidate links and rank the links", runAppraise},
 		{"demo", "generate a fictional town with a known weakness and run its study", runDemo},
 		{"simulate", "generate a fictional town and simulated trips", runSimulate},
 		{"version", "print the version", func(_ context.Context, env *environment, _ []string) error {

@@ -13,6 +13,7 @@ import (
 
 	"narrows/partition"
 	"narrows/patterns"
+	"narrows/patterns/appraise"
 	"narrows/regiongraph"
 	"narrows/report"
 	"narrows/skyline"
@@ -36,6 +37,8 @@ type study struct {
 	Windows []studyWindow `toml:"windows"`
 	Scan    studyScan     `toml:"scan"`
 	Compare studyCompare  `toml:"compare"`
+	// Appraise sets the appraisal of candidate links (narrows appraise).
+	Appraise appraise.Options `toml:"appraise"`
 }
 
 type studyRegions struct {
@@ -75,10 +78,11 @@ type studyCompare struct {
 // adapters pointing at the fields they fill.
 func newStudy() *study {
 	s := &study{
-		Regions: studyRegions{Options: partition.DefaultOptions()},
-		Trips:   studyTrips{Format: regiongraph.FormatTrips, Options: regiongraph.DefaultOptions()},
-		Scan:    studyScan{ScanOptions: patterns.DefaultScanOptions()},
-		Compare: studyCompare{MinPublish: report.DefaultPublicationMinTrips, CompareOptions: patterns.DefaultCompareOptions()},
+		Regions:  studyRegions{Options: partition.DefaultOptions()},
+		Trips:    studyTrips{Format: regiongraph.FormatTrips, Options: regiongraph.DefaultOptions()},
+		Scan:     studyScan{ScanOptions: patterns.DefaultScanOptions()},
+		Compare:  studyCompare{MinPublish: report.DefaultPublicationMinTrips, CompareOptions: patterns.DefaultCompareOptions()},
+		Appraise: appraise.DefaultOptions(),
 	}
 	s.Regions.BBox.b = &s.Regions.Options.BBox
 	s.Trips.MaxDuration.d = &s.Trips.Options.MaxDuration

@@ -40,6 +40,7 @@ max_region_km2 = 9
 split_roads = ["unclassified"]
 min_border_road_metres = 12
 network_roads = ["residential"]
+route_roads = ["primary", "residential"]
 exact = true
 
 [trips]
@@ -114,7 +115,7 @@ min_publish = 5
 		{"name", s.Name, "n"},
 		{"regions", s.Regions.Options, partition.Options{BBox: &bbox, Roads: []string{"primary"}, Barriers: []string{"rail"},
 			SnapMetres: 5, MinAreaKM2: 0.5, MinCompactness: 0.25, MaxSliverWidthMetres: 50, Exact: true,
-			ExtendMetres: 60, MinWaterAreaKM2: 0.2, MaxRegionKM2: 9, SplitRoads: []string{"unclassified"}, MinBorderRoadMetres: 12, NetworkRoads: []string{"residential"}}},
+			ExtendMetres: 60, MinWaterAreaKM2: 0.2, MaxRegionKM2: 9, SplitRoads: []string{"unclassified"}, MinBorderRoadMetres: 12, NetworkRoads: []string{"residential"}, RouteRoads: []string{"primary", "residential"}}},
 		{"trips.files", s.Trips.Files, []string{"t.csv"}},
 		{"trips.format", s.Trips.Format, regiongraph.FormatPoints},
 		{"trips", s.Trips.Options, regiongraph.Options{TimeZone: "Etc/GMT-1", Windows: []regiongraph.Window{am},

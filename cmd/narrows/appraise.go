@@ -1,0 +1,148 @@
+package main
+
+import (
+	"context"
+	"fmt"
+	"path/filepath"
+	"slices"
+
+	"narrows/partition"
+	"narrows/partition/route"
+	"narrows/patterns"
+	"narrows/patterns/appraise"
+	"narrows/regiongraph"
+	"narrows/report"
+)
+
+// runAppraise appraises candidate links for a finding of a study's
+// (before) period: the scheme's new roads and generated links.
+func runAppraise(ctx context.Context, env *environment, args []string) error {
+	fs := newFlagSet(env, "appraise", "[--finding RANK] [--generate N] [--min-class CLASS] study.toml")
+	rank := fs.Int("finding", 1, "rank of the finding to appraise (1 = costliest)")
+	var file string
+	var flagOpts appraise.Options
+	fs.IntVar(&flagOpts.Generate, "generate", -1, "candidates to generate (default: the study's, else 5)")
+	fs.StringVar(&flagOpts.MinClass, "min-class", "", "lowest road class at whose junctions generated links end (default tertiary)")
+	if err := parseFlagsWithRest(env, fs, args, func(rest []string) {
+		if file == "" && len(rest) > 0 {
+			file, rest = rest[0], rest[1:]
+		}
+		if len(rest) > 0 {
+			file = "\x00"
+		}
+	}); err != nil {
+		return err
+	}
+	if file == "" || file == "\x00" {
+		return usagef("give exactly one study file")
+	}
+	s, err := loadStudy(file)
+	if err != nil {
+		return err
+	}
+	opts := s.Appraise
+	if flagOpts.Generate >= 0 {
+		opts.Generate = flagOpts.Generate
+	}
+	if flagOpts.MinClass != "" {
+		opts.MinClass = flagOpts.MinClass
+	}
+	r := &studyRun{study: s, file: file, dir: filepath.Dir(file)}
+	regions, err := partition.ReadFile(ctx, r.rel(s.Regions.OSM), s.Regions.Options)
+	if err != nil {
+		return err
+	}
+	var inputs []regiongraph.Input
+	for _, t := range s.Trips.Files {
+		inputs = append(inputs, regiongraph.Input{Path: r.rel(t), Format: s.Trips.Format})
+	}
+	store, err := regiongraph.Ingest(ctx, regions, "", inputs, s.Trips.Options)
+	if err != nil {
+		return err
+	}
+	beforeOpts, afterOpts := s.Scan.ScanOptions, patterns.ScanOptions{}
+	hasAfter := s.Compare.Before.from != ""
+	if hasAfter {
+		if beforeOpts, afterOpts, err = s.periods(); err != nil {
+			return fmt.Errorf("study file %s: %v", file, err)
+		}
+	}
+	scan, err := patterns.ScanStore(ctx, store, beforeOpts)
+	if err != nil {
+		return fmt.Errorf("study file %s: %w", file, err)
+	}
+	if *rank < 1 || *rank > len(scan.Findings) {
+		return fmt.Errorf("study file %s: no finding of rank %d (the period has %d findings)", file, *rank, len(scan.Findings))
+	}
+	f := scan.Findings[*rank-1]
+	trips, err := findingTrips(ctx, regions, inputs, s.Trips.Options, f, scan.Window, scan.Days)
+	if err != nil {
+		return err
+	}
+	net, err := route.Build(ctx, regions.Routing, route.DefaultOptions())
+	if err != nil {
+		return fmt.Errorf("%s: %w", s.Regions.OSM, err)
+	}
+	var cands []appraise.Candidate
+	scheme, err := parseScheme(s.Scheme)
+	if err != nil {
+		return fmt.Errorf("study file %s: %v", file, err)
+	}
+	if scheme.extract != "" {
+		after, err := partition.ReadRouting(ctx, r.rel(scheme.extract), s.Regions.Options)
+		if err != nil {
+			return err
+		}
+		cands = append(cands, appraise.FromRoads(partition.NewRoads(regions.Routing, after))...)
+	}
+	var pairs [][2]int
+	for _, e := range f.Edges {
+		pairs = append(pairs, [2]int{e.From, e.To})
+	}
+	gen, err := appraise.Generate(net, regions, pairs, opts)
+	if err != nil {
+		return err
+	}
+	cands = append(cands, gen...)
+	a, err := appraise.Appraise(ctx, net, trips, len(scan.Days), cands, opts)
+	if err != nil {
+		return fmt.Errorf("finding %s: %w", f.ID, err)
+	}
+	var observed *report.AppraisalObserved
+	if hasAfter && scheme.extract != "" {
+		afterScan, err := patterns.ScanStore(ctx, store, afterOpts)
+		if err != nil {
+			return err
+		}
+		afterTrips, err := findingTrips(ctx, regions, inputs, s.Trips.Options, f, afterScan.Window, afterScan.Days)
+		if err != nil {
+			return err
+		}
+		m, sec := appraise.ObservedSaving(pairsOf(trips), pairsOf(afterTrips), len(scan.Days))
+		observed = &report.AppraisalObserved{Name: "the scheme", Metres: m, Seconds: sec}
+	}
+	return report.WriteAppraisalText(env.stdout, report.PlaceName(f, regions), a, observed)
+}
+
+// findingTrips reads the trips of a finding's edges on the given days.
+func findingTrips(ctx context.Context, regions *partition.Partition, inputs []regiongraph.Input, opts regiongraph.Options, f patterns.Finding, window string, days []string) ([]regiongraph.Trip, error) {
+	pairs := map[[2]int]bool{}
+	for _, e := range f.Edges {
+		pairs[[2]int{e.From, e.To}] = true
+	}
+	return regiongraph.ReadTrips(ctx, regions, inputs, opts, func(t *regiongraph.Trip) bool {
+		if t.Window != window || !pairs[[2]int{t.From, t.To}] {
+			return false
+		}
+		_, ok := slices.BinarySearch(days, t.Day)
+		return ok
+	})
+}
+
+func pairsOf(trips []regiongraph.Trip) []struct{ Metres, Seconds float64 } {
+	out := make([]struct{ Metres, Seconds float64 }, len(trips))
+	for i, t := range trips {
+		out[i].Metres, out[i].Seconds = t.DistanceMetres, t.DurationSeconds
+	}
+	return out
+}

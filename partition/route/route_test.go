@@ -1,0 +1,123 @@
+package route_test
+
+import (
+	"context"
+	"math"
+	"math/rand/v2"
+	"os"
+	"testing"
+
+	"github.com/paulmach/orb"
+	"gonum.org/v1/gonum/graph/path"
+	"gonum.org/v1/gonum/graph/simple"
+
+	"narrows/partition"
+	"narrows/partition/route"
+)
+
+// randomRouting makes a random road set: nodes on a jittered grid joined
+// by ways of random class and direction.
+func randomRouting(rng *rand.Rand, nodes, ways int) *partition.Routing {
+	pts := make([]orb.Point, nodes)
+	for i := range pts {
+		pts[i] = orb.Point{10 + rng.Float64()*0.05, 50 + rng.Float64()*0.05}
+	}
+	classes := []string{"primary", "secondary", "residential", "tertiary"}
+	r := &partition.Routing{}
+	for w := 0; w < ways; w++ {
+		k := 2 + rng.IntN(4)
+		rw := partition.RoadWay{WayID: int64(w + 1), Class: classes[rng.IntN(len(classes))], Oneway: int8(rng.IntN(3) - 1)}
+		if rng.IntN(4) == 0 {
+			rw.MaxSpeedKMH = float64(20 + rng.IntN(60))
+		}
+		for j := 0; j < k; j++ {
+			id := rng.IntN(nodes)
+			rw.Nodes = append(rw.Nodes, int64(id+1))
+			rw.Line = append(rw.Line, pts[id])
+		}
+		r.Roads = append(r.Roads, rw)
+	}
+	return r
+}
+
+// checkAgainstGonum compares every shortest time from a few origins with
+// gonum's graph/path.DijkstraFrom on the same arcs (parallel arcs kept at
+// their cheapest, as gonum's simple graph holds one arc per pair).
+func checkAgainstGonum(t *testing.T, n *route.Network, origins []int) {
+	t.Helper()
+	g := simple.NewWeightedDirectedGraph(0, math.Inf(1))
+	for v := 0; v < n.Nodes(); v++ {
+		g.AddNode(simple.Node(v))
+	}
+	for _, a := range n.Arcs() {
+		if a.From == a.To {
+			continue
+		}
+		if e := g.WeightedEdge(int64(a.From), int64(a.To)); e != nil && e.Weight() <= a.Seconds {
+			continue
+		}
+		g.SetWeightedEdge(g.NewWeightedEdge(simple.Node(a.From), simple.Node(a.To), a.Seconds))
+	}
+	s := route.NewSearch(n)
+	for _, o := range origins {
+		s.From(o, nil)
+		sp := path.DijkstraFrom(simple.Node(o), g)
+		for v := 0; v < n.Nodes(); v++ {
+			want := sp.WeightTo(int64(v))
+			got := s.Seconds(v)
+			if math.IsInf(want, 1) != math.IsInf(got, 1) || (!math.IsInf(want, 1) && math.Abs(got-want) > 1e-9*max(1, want)) {
+				t.Fatalf("origin %d, node %d: %v s, gonum %v s", o, v, got, want)
+			}
+		}
+	}
+}
+
+func TestShortestTimesAgainstGonumRandom(t *testing.T) {
+	for seed := uint64(1); seed <= 30; seed++ {
+		rng := rand.New(rand.NewPCG(seed, 7))
+		r := randomRouting(rng, 40+rng.IntN(200), 30+rng.IntN(300))
+		n, err := route.Build(context.Background(), r, route.DefaultOptions())
+		if err != nil {
+			t.Fatal(err)
+		}
+		origins := []int{0, n.Nodes() / 2, n.Nodes() - 1}
+		checkAgainstGonum(t, n, origins)
+	}
+}
+
+// TestShortestTimesAgainstGonumExtract checks a real extract (Liechtenstein,
+// © OpenStreetMap contributors, ODbL).
+func TestShortestTimesAgainstGonumExtract(t *testing.T) {
+	if testing.Short() {
+		t.Skip("real extract")
+	}
+	path := "../../shared/data/osm/liechtenstein-latest.osm.pbf"
+	if _, err := os.Stat(path); err != nil {
+		t.Skip("no ../shared/data")
+	}
+	p := readPartition(t, path)
+	n, err := route.Build(context.Background(), p.Routing, route.DefaultOptions())
+	if err != nil {
+		t.Fatal(err)
+	}
+	comp, sizes := n.Components()
+	if sizes[0] < n.Nodes()/2 {
+		t.Fatalf("largest component %d of %d nodes", sizes[0], n.Nodes())
+	}
+	var origins []int
+	for v := 0; v < n.Nodes() && len(origins) < 3; v += n.Nodes() / 7 {
+		if comp[v] == 0 {
+			origins = append(origins, v)
+		}
+	}
+	checkAgainstGonum(t, n, origins)
+	t.Logf("%v; %d components, largest %d nodes", n, len(sizes), sizes[0])
+}
+
+func readPartition(t testing.TB, path string) *partition.Partition {
+	p, err := partition.ReadFile(context.Background(), path, partition.DefaultOptions())
+	if err != nil {
+		t.Fatal(err)
+	}
+	return p
+}
