@@ -419,8 +419,22 @@ func TestHTMLOrder(t *testing.T) {
 			if comparing && !strings.Contains(s, "1 (before)</td>") {
 				t.Error("no rank cell names its period")
 			}
-			if !strings.Contains(s, "<th>Detour ratio") {
+			if !strings.Contains(s, "<th>Detour ratio") && !strings.Contains(s, "detour ratio before, after") {
 				t.Error("the detour header does not say it is a ratio")
+			}
+			// The weak links' table keeps to its key columns (it must read
+			// at 1400 px); the reason and details fold away beneath each row.
+			table := s[findings:]
+			table = table[:strings.Index(table, "</tr>")]
+			if n := strings.Count(table, "<th>"); comparing && n > 7 {
+				t.Errorf("the weak links' table has %d columns, want at most 7", n)
+			}
+			if comparing && strings.Count(s, `<details class="reason">`) != len(tc.in.Comparison.Assessments) {
+				t.Errorf("%d reasons folded away, want one per weak link (%d)", strings.Count(s, `<details class="reason">`), len(tc.in.Comparison.Assessments))
+			}
+			// The summary of the weak links comes before the cautions.
+			if sum := strings.Index(s, `id="summary"`); sum < 0 || sum > cautions {
+				t.Errorf("the summary table is at %d, want it before the cautions (%d)", sum, cautions)
 			}
 		})
 	}
