@@ -105,6 +105,10 @@ func (v *view) method() []definition {
 		{"Extra km per day", "Median over the finding's days of travel distance minus straight-line distance, summed over trips."},
 		{"Extra vehicle-hours per day", "Median over the finding's days of vehicle-hours beyond those needed at the reference speed over the straight-line distance."},
 		{"Rank", "Findings ordered by cost (extra vehicle-hours), 1 = highest."},
+		{"Cost", "Extra vehicle-hours per day (veh-h/day); extra vehicle-km per day is veh-km/day. The same words are used in the terminal, this workbook, the HTML page, the GeoJSON keys (extra_vehicle_hours_per_day, extra_vehicle_km_per_day) and the README."},
+		{"Edge id", "A directed region pair is written A>B; a finding's id joins its edges with +, as in 18>24+24>18."},
+		{"CI", "95 % confidence interval, written (low to high)."},
+		{"Cautions", "The cautions of the Summary sheet and the HTML page; the Reason column explains each verdict."},
 	}
 	if v.comparing() {
 		d = append(d, v.comparisonMethod(alpha)...)
@@ -114,8 +118,8 @@ func (v *view) method() []definition {
 	}
 	d = append(d,
 		definition{"Suppression", fmt.Sprintf("Cells from fewer than %d trips are shown as %q (counts) or %q (values) in grey. Charts skip them.", v.minTrips, v.countMark(), v.valueMark())},
-		definition{"Units", "Speeds in km/h, distances in km, times in hours or minutes, areas in km2; days are local calendar days of the study's time zone."},
-		definition{"Map data", "Regions derived from OpenStreetMap data, (c) OpenStreetMap contributors, available under the Open Database Licence (ODbL)."},
+		definition{"Units", "Speeds in km/h, distances in km, times in hours or minutes, areas in km²; days are local calendar days of the study's time zone."},
+		definition{"Map data", "Regions derived from OpenStreetMap data, (c) OpenStreetMap contributors, available under the Open Database License (ODbL)."},
 	)
 	for _, s := range v.in.Inputs {
 		d = append(d, definition{"Source file", s.Path + " (SHA-256 " + s.SHA256 + ")"})

@@ -2,10 +2,12 @@ package main
 
 import (
 	"context"
+	"encoding/json"
 	"os"
 	"os/exec"
 	"path/filepath"
 	"regexp"
+	"strings"
 	"testing"
 	"time"
 
@@ -22,8 +24,64 @@ func TestDemoReport(t *testing.T) {
 		t.Skip("end-to-end demo")
 	}
 	dir := t.TempDir()
-	mustRunCLI(t, "demo", "--dir", dir)
+	stdout := mustRunCLI(t, "demo", "--dir", dir)
 	out := filepath.Join(dir, "out")
+
+	t.Run("one vocabulary", func(t *testing.T) {
+		texts := map[string][]string{"terminal": strings.Split(stdout, "\n")}
+		f, err := excelize.OpenFile(filepath.Join(out, "report.xlsx"))
+		if err != nil {
+			t.Fatal(err)
+		}
+		defer f.Close()
+		for _, sh := range f.GetSheetList() {
+			rows, err := f.GetRows(sh)
+			if err != nil {
+				t.Fatal(err)
+			}
+			for _, r := range rows {
+				texts["workbook "+sh] = append(texts["workbook "+sh], r...)
+			}
+		}
+		page, err := os.ReadFile(filepath.Join(out, "report.html"))
+		if err != nil {
+			t.Fatal(err)
+		}
+		texts["HTML"] = []string{string(page)}
+		readme, err := os.ReadFile(filepath.Join("..", "..", "README.md"))
+		if err != nil {
+			t.Fatal(err)
+		}
+		texts["README"] = []string{string(readme)}
+		var keys []string
+		for _, name := range []string{"report-findings.geojson", "report-regions.geojson"} {
+			data, err := os.ReadFile(filepath.Join(out, name))
+			if err != nil {
+				t.Fatal(err)
+			}
+			var doc any
+			if err := json.Unmarshal(data, &doc); err != nil {
+				t.Fatalf("%s: %v", name, err)
+			}
+			jsonKeys(doc, &keys)
+			texts[name] = []string{string(data)}
+		}
+		for _, term := range vocabulary {
+			for where, cells := range texts {
+				for _, c := range cells {
+					if term.not.MatchString(c) {
+						t.Errorf("%s: %q says %q; the report's word is %q", where, clip(c), term.not.FindString(c), term.use)
+						break
+					}
+				}
+			}
+			for _, k := range keys {
+				if term.key && term.not.MatchString(k) {
+					t.Errorf("JSON key %q; the report's word is %q", k, term.use)
+				}
+			}
+		}
+	})
 
 	t.Run("summary prints on one page", func(t *testing.T) {
 		soffice, err := exec.LookPath("soffice")
@@ -92,4 +150,45 @@ func printSummary(t *testing.T, soffice, path string, paper int, dir string) []b
 // streams, as LibreOffice writes it: "/Type /Page", not "/Type /Pages".
 func pdfPages(pdf []byte) int {
 	return len(regexp.MustCompile(`/Type\s*/Page[^s]`).FindAll(pdf, -1))
+}
+
+// vocabulary lists, for each term of the report, the spellings it does not
+// use (not) and the one it does (use); key marks terms checked in JSON keys.
+var vocabulary = []struct {
+	not *regexp.Regexp
+	use string
+	key bool
+}{
+	{regexp.MustCompile(`\bkm2\b`), "km²", false}, // JSON keys keep ASCII: area_km2
+	{regexp.MustCompile(`Licence`), "License (the ODbL's spelling)", false},
+	{regexp.MustCompile(`Read with care`), "Cautions", false},
+	{regexp.MustCompile(`>Why<|^Why$`), "Reason", false},
+	{regexp.MustCompile(`\d→\d`), "> in edge ids (18>24)", false},
+	{regexp.MustCompile(`(^|[^_])extra_(hours|km)_per`), "extra_vehicle_hours_per_day, extra_vehicle_km_per_day", true},
+	{regexp.MustCompile(`(hours|km) a day`), "per day", false},
+	{regexp.MustCompile(`(^|[^\d.])1 days`), "1 day", false},
+	{regexp.MustCompile(`\d\.\d*(0{6,}|9{6,})\d`), "numbers rounded for their meaning (no float noise)", false},
+}
+
+// jsonKeys appends every object key of a decoded JSON document to keys.
+func jsonKeys(doc any, keys *[]string) {
+	switch d := doc.(type) {
+	case map[string]any:
+		for k, v := range d {
+			*keys = append(*keys, k)
+			jsonKeys(v, keys)
+		}
+	case []any:
+		for _, v := range d {
+			jsonKeys(v, keys)
+		}
+	}
+}
+
+// clip shortens a long text for a message.
+func clip(s string) string {
+	if len(s) > 120 {
+		return s[:120] + "..."
+	}
+	return s
 }
