@@ -15,7 +15,7 @@ import (
 func axisFont() excelize.Font { return excelize.Font{Color: "#333333", Size: 9} }
 
 // timelineChart draws the Timeline sheet's line chart of candidates and
-// weak places per day, from the n rows below the header row head.
+// weak links per day, from the n rows below the header row head.
 // With opening, column E marks the day the scheme opened: one point, drawn
 // as a large triangle above the lines.
 func (b *book) timelineChart(head, n int, opening bool) {

@@ -51,7 +51,7 @@ func weirRoad() report.Input {
 func ExampleHeadline() {
 	fmt.Println(report.Headline(weirRoad()))
 	// Output:
-	// 1 weak place recurred on at least 50 % of the 4 analysed days (2026-03-02 to 2026-03-05). The costliest, across Weir Road between region 1 and region 2 (1>2), adds 48 km of travel and 4.1 vehicle-hours a day.
+	// One weak link recurred on at least 50 % of the 4 analysed days (2026-03-02 to 2026-03-05): across Weir Road between region 1 and region 2 (1>2), with 48 extra vehicle-km and 4.1 extra vehicle-hours per day.
 }
 
 func ExampleWriteWorkbook() {
@@ -73,7 +73,7 @@ func ExampleWriteWorkbook() {
 		fmt.Printf("%s: %s\n", rows[0][col], rows[1][col])
 	}
 	// Output:
-	// [Summary Weak links Edges Daily Timeline Speed v detour Regions Data quality Method]
+	// [Summary Weak links Edges Daily Timeline Speed v detour Regions Data quality Inputs Method]
 	// Trips per day: 24
 	// Speed km/h: 15.1
 	// Detour ratio: 2.30

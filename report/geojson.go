@@ -26,7 +26,7 @@ func WriteRegionsGeoJSON(w io.Writer, in Input) error {
 // WriteFindingsGeoJSON writes to w one LineString per finding edge, from the
 // origin region's representative point to the destination's, with
 // properties finding, rank, from, to, trips (median per day), speed_kmh,
-// detour, extra_km_per_day, extra_hours_per_day, share, colour (the map's
+// detour, extra_vehicle_km_per_day, extra_vehicle_hours_per_day, share, colour (the map's
 // colour for the verdict) and, with a comparison, verdict and focus. Values
 // from fewer trips than the publication threshold are null and the feature
 // has suppressed = true. Nothing is written to w when in is not valid.
@@ -84,15 +84,15 @@ func (v *view) findingsGeoJSON(w io.Writer) error {
 			f.Properties["suppressed"] = hide
 			f.Properties["colour"] = lookOf(it.Verdict()).Hex // as on the report's map
 			if hide {
-				for _, k := range []string{"trips", "speed_kmh", "detour", "extra_km_per_day", "extra_hours_per_day"} {
+				for _, k := range []string{"trips", "speed_kmh", "detour", "extra_vehicle_km_per_day", "extra_vehicle_hours_per_day"} {
 					f.Properties[k] = nil
 				}
 			} else {
 				f.Properties["trips"] = jsonNumber(e.TripsMedian, 1)
 				f.Properties["speed_kmh"] = jsonNumber(kmh(e.SpeedMedian), 2)
 				f.Properties["detour"] = jsonNumber(e.DetourMedian, 3)
-				f.Properties["extra_km_per_day"] = jsonNumber(e.ExtraKMPerDay, 2)
-				f.Properties["extra_hours_per_day"] = jsonNumber(e.ExtraHoursPerDay, 3)
+				f.Properties["extra_vehicle_km_per_day"] = jsonNumber(e.ExtraKMPerDay, 2)
+				f.Properties["extra_vehicle_hours_per_day"] = jsonNumber(e.ExtraHoursPerDay, 3)
 			}
 			if a := it.Assessment; a != nil {
 				f.Properties["verdict"] = string(a.Verdict)

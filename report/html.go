@@ -25,6 +25,12 @@ type htmlVerdict struct {
 	Count, Focus                int
 }
 
+// htmlSummaryRow is one weak link of the summary at the top of the page.
+type htmlSummaryRow struct {
+	Cells        []string
+	Colour, Text string // the verdict's colours ("" without comparison)
+}
+
 type htmlRow struct {
 	Rank                               int
 	ID, Name, Edges, Verdict           string
@@ -42,6 +48,10 @@ type htmlRow struct {
 
 type htmlPage struct {
 	Title, Area, Headline, Version string
+	Network, Scheme                string
+	SummaryHead                    []string
+	Summary                        []htmlSummaryRow
+	SummaryMore                    int
 	Periods                        [][2]string
 	Comparing, Focus               bool
 	Verdicts                       []htmlVerdict
@@ -75,17 +85,26 @@ table#findings { font-size: 0.95em; }
 .swatch { display: inline-block; min-width: 6em; padding: 0.1em 0.4em; }
 .headline { font-size: 1.2em; }
 .supp { color: #777777; }
+table#summary td:nth-child(2) { min-width: 18em; }
+details.reason { font-size: 0.85em; }
+details.reason summary { cursor: pointer; color: #333333; }
 </style>
 </head>
 <body>
 <h1>{{.Title}}</h1>
 {{if .Area}}<p>{{.Area}}</p>{{end}}
 <p class="headline">{{.Headline}}</p>
+{{if .Network}}<p>{{.Network}}</p>{{end}}
 <table>
-{{range .Periods}}<tr><th>{{index . 0}}</th><td>{{index . 1}}</td></tr>
+{{if .Scheme}}<tr><th>Scheme</th><td>{{.Scheme}}</td></tr>
+{{end}}{{range .Periods}}<tr><th>{{index . 0}}</th><td>{{index . 1}}</td></tr>
 {{end}}</table>
+{{if .Summary}}<table id="summary">
+<tr>{{range .SummaryHead}}<th>{{.}}</th>{{end}}</tr>
+{{range $r := .Summary}}<tr>{{range $i, $c := $r.Cells}}{{if eq $i 2}}{{if $.Comparing}}<td><span class="swatch" style="background: {{$r.Colour}}; color: {{$r.Text}}">{{$c}}</span></td>{{else}}<td class="num">{{$c}}</td>{{end}}{{else if eq $i 1}}<td>{{$c}}</td>{{else}}<td class="num">{{$c}}</td>{{end}}{{end}}</tr>
+{{end}}</table>{{if .SummaryMore}}<p>and {{.SummaryMore}} more under Weak links below.</p>{{end}}{{end}}
 <div class="cautions">
-<h2>Read with care</h2>
+<h2>Cautions</h2>
 <ul id="cautions">
 {{range .Cautions}}<li>{{.}}</li>
 {{end}}</ul>
@@ -100,9 +119,10 @@ table#findings { font-size: 0.95em; }
 {{end}}</table>{{end}}
 <h2>Weak links</h2>
 {{if .Rows}}<table id="findings">
-<tr>{{if .Comparing}}<th>Rank (period)</th>{{else}}<th>Rank</th>{{end}}<th>Place (edges)</th>{{if .Comparing}}<th>Verdict</th><th>Extra vehicle-hours per day before (95 % CI)</th><th>after (95 % CI)</th><th>Comparison group change</th><th>Adjusted change veh-h/day (95 % CI)</th><th>Adjusted travel time change min (95 % CI)</th><th>Detour ratio before, after</th><th>Days on the skyline before</th><th>after</th><th>Why</th>{{else}}<th>Share of days</th><th>Trips per day</th><th>Speed km/h</th><th>Detour ratio</th><th>Extra km per day</th><th>Extra vehicle-hours per day</th>{{end}}</tr>
-{{range .Rows}}<tr><td class="num">{{.Rank}}{{if $.Comparing}} ({{.Period}}){{end}}</td><td title="Edges {{.Edges}}">{{.Name}} <span class="ci">({{.ID}})</span>{{if .Focus}} (focus){{end}}</td>{{if $.Comparing}}<td><span class="swatch" style="background: {{.Colour}}; color: {{.Text}}">{{.Verdict}}</span></td><td class="num">{{.CostBefore}}</td><td class="num">{{.CostAfter}}</td><td class="num">{{.GroupChange}}</td><td class="num">{{.CostShift}}{{if .CostCI}}<br/><span class="ci">{{.CostCI}}</span>{{end}}</td><td class="num">{{.TimeShift}}{{if .TimeCI}}<br/><span class="ci">{{.TimeCI}}</span>{{end}}</td><td class="num">{{.DetourChange}}</td><td class="num">{{.ShareBefore}}</td><td class="num">{{.ShareAfter}}</td><td class="why">{{.Note}}</td>{{else}}<td class="num">{{.Share}}</td><td class="num">{{.Trips}}</td><td class="num">{{.Speed}}</td><td class="num">{{.Detour}}</td><td class="num">{{.ExtraKM}}</td><td class="num">{{.ExtraHours}}</td>{{end}}</tr>
-{{end}}</table>{{else}}<p>No weak link recurred.</p>{{end}}
+<tr>{{if .Comparing}}<th>Rank (period)</th>{{else}}<th>Rank</th>{{end}}<th>Place (edges)</th>{{if .Comparing}}<th>Verdict</th><th>Cost before veh-h/day (95 % CI)</th><th>Cost after veh-h/day (95 % CI)</th><th>Adjusted change veh-h/day (95 % CI)</th><th>Adjusted travel time change min (95 % CI)</th>{{else}}<th>Share of days</th><th>Trips per day</th><th>Speed km/h</th><th>Detour ratio</th><th>Extra km per day</th><th>Extra vehicle-hours per day</th>{{end}}</tr>
+{{range .Rows}}<tr><td class="num">{{.Rank}}{{if $.Comparing}} ({{.Period}}){{end}}</td><td title="Edges {{.Edges}}">{{.Name}} <span class="ci">({{.ID}})</span>{{if .Focus}} (focus){{end}}</td>{{if $.Comparing}}<td><span class="swatch" style="background: {{.Colour}}; color: {{.Text}}">{{.Verdict}}</span></td><td class="num">{{.CostBefore}}</td><td class="num">{{.CostAfter}}</td><td class="num">{{.CostShift}}{{if .CostCI}}<br/><span class="ci">{{.CostCI}}</span>{{end}}</td><td class="num">{{.TimeShift}}{{if .TimeCI}}<br/><span class="ci">{{.TimeCI}}</span>{{end}}</td>{{else}}<td class="num">{{.Share}}</td><td class="num">{{.Trips}}</td><td class="num">{{.Speed}}</td><td class="num">{{.Detour}}</td><td class="num">{{.ExtraKM}}</td><td class="num">{{.ExtraHours}}</td>{{end}}</tr>
+{{if $.Comparing}}<tr class="reason"><td></td><td colspan="6"><details class="reason"><summary>Reason and details</summary><p>{{.Note}}</p><p>Comparison group change {{.GroupChange}}; detour ratio before, after {{.DetourChange}}; days on the skyline before {{.ShareBefore}}, after {{.ShareAfter}}.</p></details></td></tr>
+{{end}}{{end}}</table>{{else}}<p>No weak link recurred.</p>{{end}}
 <h2>What was analysed</h2>
 <table id="analysed">
 {{range .Analysed}}<tr><th>{{index . 0}}</th><td>{{index . 1}}</td></tr>
@@ -136,6 +156,18 @@ func (v *view) html(w io.Writer) error {
 	if pg.Version == "" {
 		pg.Version = "(version not given)"
 	}
+	pg.Network, pg.Scheme = NetworkChange(v.in), v.schemeLine()
+	pg.SummaryHead = v.summaryColumns()
+	sum, vds, more := v.summaryRows()
+	for i, cells := range sum {
+		r := htmlSummaryRow{Cells: cells}
+		if v.comparing() {
+			lk := lookOf(vds[i])
+			r.Colour, r.Text = lk.Hex, lk.Text
+		}
+		pg.Summary = append(pg.Summary, r)
+	}
+	pg.SummaryMore = more
 	for _, p := range v.periods {
 		pg.Periods = append(pg.Periods, [2]string{"Period " + p.Label, dayRange(p.Scan) + ", " + strconv.Itoa(len(p.Scan.Days)) + " analysed days"})
 	}
@@ -233,7 +265,12 @@ func fmtInterval(x, lo, hi float64, d int) (shift, interval string) {
 // characters through.
 func (pg *htmlPage) clean() {
 	pg.Title, pg.Area, pg.Headline, pg.Version = cleanText(pg.Title), cleanText(pg.Area), cleanText(pg.Headline), cleanText(pg.Version)
-	pg.MapCaption = cleanText(pg.MapCaption)
+	pg.MapCaption, pg.Network, pg.Scheme = cleanText(pg.MapCaption), cleanText(pg.Network), cleanText(pg.Scheme)
+	for i := range pg.Summary {
+		for j := range pg.Summary[i].Cells {
+			pg.Summary[i].Cells[j] = cleanText(pg.Summary[i].Cells[j])
+		}
+	}
 	for i := range pg.Periods {
 		pg.Periods[i] = [2]string{cleanText(pg.Periods[i][0]), cleanText(pg.Periods[i][1])}
 	}

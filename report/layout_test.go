@@ -119,33 +119,39 @@ func TestHeaderWidth(t *testing.T) {
 	}
 }
 
-// TestSummaryOrder checks what the first screen of the summary shows: the
-// headline, then the cautions before any table, and the map picture in
-// column A below its caption, on rows left empty for it.
+// TestSummaryOrder checks the one-page summary: the headline in one
+// sentence within the first rows, the cautions, the weak links' table, and
+// the map picture in column A below the table, no wider than the columns
+// it spans, with the verdicts beside it from column D; the input files
+// are on their own sheet.
 func TestSummaryOrder(t *testing.T) {
-	f, _ := writeBook(t, fxInput())
+	in := fxInput()
+	f, _ := writeBook(t, in)
 	rows, err := f.GetRows(SheetSummary)
 	if err != nil {
 		t.Fatal(err)
 	}
-	find := func(first string) int {
+	find := func(col int, prefix string) int {
 		for i, r := range rows {
-			if len(r) > 0 && r[0] == first {
+			if len(r) > col && strings.HasPrefix(r[col], prefix) {
 				return i + 1
 			}
 		}
-		t.Fatalf("summary has no row starting %q", first)
+		t.Fatalf("summary has no cell in column %d starting %q", col+1, prefix)
 		return 0
 	}
-	cautions, verdicts, mapRow, inputs := find("Cautions"), find("Verdict"), find("Map"), find("Input files")
-	if cautions > 5 {
-		t.Errorf("cautions start at row %d, want them within the first five rows", cautions)
+	headline := find(0, Headline(in))
+	if headline != 2 || strings.Count(Headline(in), ". ") > 0 {
+		t.Errorf("headline at row %d (%q), want one sentence in row 2", headline, Headline(in))
 	}
-	if !(cautions < verdicts && verdicts < mapRow && mapRow < inputs) {
-		t.Errorf("summary order: cautions %d, verdicts %d, map %d, input files %d; want them in that order", cautions, verdicts, mapRow, inputs)
+	cautions, table, verdicts := find(0, "Cautions: "), find(1, "Place"), find(3, "Verdict")
+	if !(headline < cautions && cautions < table && table < verdicts) {
+		t.Errorf("summary order: headline %d, cautions %d, table %d, verdicts %d; want them in that order", headline, cautions, table, verdicts)
 	}
-	if !strings.Contains(rows[cautions][0], "not all traffic") {
-		t.Errorf("row after Cautions = %q, want the first caution", rows[cautions][0])
+	for _, r := range rows {
+		if len(r) > 0 && r[0] == "Input files" {
+			t.Error("the input files are on the summary; want them on the Inputs sheet")
+		}
 	}
 	pics, err := f.GetPictureCells(SheetSummary)
 	if err != nil || len(pics) != 1 {
@@ -155,29 +161,55 @@ func TestSummaryOrder(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if col != 1 || picRow != mapRow+2 {
-		t.Errorf("map picture at %s, want A%d (below the Map caption)", pics[0], mapRow+2)
+	if col != 1 || picRow != verdicts {
+		t.Errorf("map picture at %s, want A%d (beside the verdicts)", pics[0], verdicts)
 	}
-	// The picture is mapMaxHeight pixels high at full scale; rows are 20
-	// pixels, so the rows it covers must hold nothing.
-	covered := int(math.Ceil(float64(mapMaxHeight) * mapScale / 20))
-	if picRow+covered > inputs {
-		t.Errorf("map picture covers rows %d to %d but the input files start at row %d", picRow, picRow+covered, inputs)
+	pic, err := f.GetPictures(SheetSummary, pics[0])
+	if err != nil || len(pic) != 1 {
+		t.Fatal(err)
 	}
-	var pt float64 // height of the rows from the picture to the input files
-	for r := picRow; r < inputs; r++ {
-		if r <= len(rows) && len(rows[r-1]) > 0 {
-			t.Errorf("row %d under the map picture holds %q", r, rows[r-1])
+	var px float64 // width of columns A to C in pixels, 7 a character and 5 of padding
+	for _, c := range []string{"A", "B", "C"} {
+		w, err := f.GetColWidth(SheetSummary, c)
+		if err != nil {
+			t.Fatal(err)
 		}
+		px += 7*w + 5
+	}
+	cfg, err := png.DecodeConfig(bytes.NewReader(pic[0].File))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if w := float64(cfg.Width) * pic[0].Format.ScaleX; w > px {
+		t.Errorf("map picture %.0f px wide, columns A to C %.0f px", w, px)
+	}
+	// The rows under the picture hold nothing in columns A to C, and the
+	// print area reaches below the picture.
+	need, pt, r := float64(cfg.Height)*pic[0].Format.ScaleY*0.75, 0.0, picRow
+	for ; pt < need && r < picRow+200; r++ {
 		h, err := f.GetRowHeight(SheetSummary, r)
 		if err != nil {
 			t.Fatal(err)
 		}
 		pt += h
+		if r <= len(rows) {
+			for c, v := range rows[r-1] {
+				if c < 3 && v != "" {
+					t.Errorf("row %d under the map picture holds %q", r, v)
+				}
+			}
+		}
 	}
-	// 0.75 pt a pixel at 96 dpi.
-	if px := pt / 0.75; px < float64(mapMaxHeight)*mapScale {
-		t.Errorf("rows under the map picture are %.0f px high, the picture %.0f px", px, float64(mapMaxHeight)*mapScale)
+	var area string
+	for _, dn := range f.GetDefinedName() {
+		if dn.Name == "_xlnm.Print_Area" && dn.Scope == SheetSummary {
+			area = dn.RefersTo
+		}
+	}
+	i := strings.LastIndex(area, "$F$")
+	end, err := strconv.Atoi(area[i+3:])
+	if i < 0 || err != nil || end < r-1 {
+		t.Errorf("summary print area %q, want it to end in column F at row %d or below, under the picture", area, r-1)
 	}
 }
 
@@ -387,8 +419,22 @@ func TestHTMLOrder(t *testing.T) {
 			if comparing && !strings.Contains(s, "1 (before)</td>") {
 				t.Error("no rank cell names its period")
 			}
-			if !strings.Contains(s, "<th>Detour ratio") {
+			if !strings.Contains(s, "<th>Detour ratio") && !strings.Contains(s, "detour ratio before, after") {
 				t.Error("the detour header does not say it is a ratio")
+			}
+			// The weak links' table keeps to its key columns (it must read
+			// at 1400 px); the reason and details fold away beneath each row.
+			table := s[findings:]
+			table = table[:strings.Index(table, "</tr>")]
+			if n := strings.Count(table, "<th>"); comparing && n > 7 {
+				t.Errorf("the weak links' table has %d columns, want at most 7", n)
+			}
+			if comparing && strings.Count(s, `<details class="reason">`) != len(tc.in.Comparison.Assessments) {
+				t.Errorf("%d reasons folded away, want one per weak link (%d)", strings.Count(s, `<details class="reason">`), len(tc.in.Comparison.Assessments))
+			}
+			// The summary of the weak links comes before the cautions.
+			if sum := strings.Index(s, `id="summary"`); sum < 0 || sum > cautions {
+				t.Errorf("the summary table is at %d, want it before the cautions (%d)", sum, cautions)
 			}
 		})
 	}

@@ -248,7 +248,7 @@ func (v *view) svg() string {
 
 func regionTitle(v *view, id int) string {
 	r := v.regions[id]
-	s := fmt.Sprintf("Region %d, %s km2", id, strconv.FormatFloat(roundTo(r.AreaKM2, 2), 'f', -1, 64))
+	s := fmt.Sprintf("Region %d, %s km²", id, strconv.FormatFloat(roundTo(r.AreaKM2, 2), 'f', -1, 64))
 	if len(r.BorderRoads) > 0 {
 		s += ", along " + r.BorderRoads[0].Name
 	}

@@ -79,7 +79,7 @@ type timelineDay struct {
 
 func (b *book) timeline() {
 	s := b.newSheet(SheetTimeline)
-	cols := []string{"Day", "Period", "Candidates", "Weak places"}
+	cols := []string{"Day", "Period", "Candidates", "Weak links"}
 	opening, mark := b.v.openingMark()
 	if opening != "" {
 		cols = append(cols, schemeOpens)
@@ -126,7 +126,7 @@ func (v *view) openingMark() (day string, height int) {
 }
 
 // timelineDays lists the analysed days of every period in day order, with
-// their candidate counts and the number of weak places recurring on them.
+// their candidate counts and the number of weak links recurring on them.
 func (v *view) timelineDays() []timelineDay {
 	var days []timelineDay
 	for _, p := range v.periods {

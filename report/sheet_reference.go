@@ -13,7 +13,7 @@ import (
 func (b *book) regionsSheet() {
 	v := b.v
 	s := b.newSheet(SheetRegions)
-	cols := []string{"Region", "Area km2", "Perimeter km", "Border roads", "Border road lengths km", "Neighbours", "Weak links", "In focus"}
+	cols := []string{"Region", "Area km²", "Perimeter km", "Border roads", "Border road lengths km", "Neighbours", "Weak links", "In focus"}
 	head := s.header(cols...)
 	touching := map[int]int{}
 	for _, it := range v.items {

@@ -6,6 +6,7 @@ import (
 	"slices"
 	"strconv"
 	"strings"
+	"unicode/utf8"
 
 	"narrows/partition"
 	"narrows/patterns"
@@ -104,6 +105,10 @@ func (v *view) method() []definition {
 		{"Extra km per day", "Median over the finding's days of travel distance minus straight-line distance, summed over trips."},
 		{"Extra vehicle-hours per day", "Median over the finding's days of vehicle-hours beyond those needed at the reference speed over the straight-line distance."},
 		{"Rank", "Findings ordered by cost (extra vehicle-hours), 1 = highest."},
+		{"Cost", "Extra vehicle-hours per day (veh-h/day); extra vehicle-km per day is veh-km/day. The same words are used in the terminal, this workbook, the HTML page, the GeoJSON keys (extra_vehicle_hours_per_day, extra_vehicle_km_per_day) and the README."},
+		{"Edge id", "A directed region pair is written A>B; a finding's id joins its edges with +, as in 18>24+24>18."},
+		{"CI", "95 % confidence interval, written (low to high)."},
+		{"Cautions", "The cautions of the Summary sheet and the HTML page; the Reason column explains each verdict."},
 	}
 	if v.comparing() {
 		d = append(d, v.comparisonMethod(alpha)...)
@@ -113,8 +118,8 @@ func (v *view) method() []definition {
 	}
 	d = append(d,
 		definition{"Suppression", fmt.Sprintf("Cells from fewer than %d trips are shown as %q (counts) or %q (values) in grey. Charts skip them.", v.minTrips, v.countMark(), v.valueMark())},
-		definition{"Units", "Speeds in km/h, distances in km, times in hours or minutes, areas in km2; days are local calendar days of the study's time zone."},
-		definition{"Map data", "Regions derived from OpenStreetMap data, (c) OpenStreetMap contributors, available under the Open Database Licence (ODbL)."},
+		definition{"Units", "Speeds in km/h, distances in km, times in hours or minutes, areas in km²; days are local calendar days of the study's time zone."},
+		definition{"Map data", "Regions derived from OpenStreetMap data, (c) OpenStreetMap contributors, available under the Open Database License (ODbL)."},
 	)
 	for _, s := range v.in.Inputs {
 		d = append(d, definition{"Source file", s.Path + " (SHA-256 " + s.SHA256 + ")"})
@@ -122,11 +127,15 @@ func (v *view) method() []definition {
 	return d
 }
 
-// Headline summarises the study in one or two sentences, such as
-// "3 of 5 weak links of the before period (2026-03-01 to 2026-03-28)
-// cleared in the after period (2026-05-01 to 2026-05-28); 1 eased,
-// 1 unchanged and none worse. No new weak link appeared." It returns a note when
-// the input has neither a scan nor a comparison.
+// Headline summarises the study in one sentence: in a comparison the
+// costliest weak link of the before period by name, its verdict and its
+// cost before and after, then the verdicts of the others, such as
+// "Across the Orvel between Northbank housing and Southbank works, the
+// costliest weak link before, cleared: from 43.2 to 11.7 extra
+// vehicle-hours per day (adjusted change -31.3); of the 5 others, 1
+// cleared, 2 eased and 2 unchanged." Each finding's figures are in
+// SummaryRows, the network's change in NetworkChange. It returns a note
+// when the input has neither a scan nor a comparison.
 func Headline(in Input) string {
 	switch {
 	case in.Comparison != nil && in.Comparison.Before != nil && in.Comparison.After != nil:
@@ -137,82 +146,92 @@ func Headline(in Input) string {
 	return "No scan or comparison to report."
 }
 
-func comparisonHeadline(c *patterns.Comparison, regions *partition.Partition) string {
-	// The costliest weak links of the before period lead, with their cost
-	// before and after; then the counts, the focus area and the network.
-	before := map[patterns.Verdict]int{} // verdicts of findings of the before period
-	focus := map[patterns.Verdict]int{}  // the same within the focus area
-	nBefore, nFocus, nNew, nAfterOnly := 0, 0, 0, 0
-	var lead []*patterns.Assessment
-	for i := range c.Assessments {
-		a := &c.Assessments[i]
-		switch {
-		case a.InBefore:
-			nBefore++
-			before[a.Verdict]++
-			lead = append(lead, a)
-			if a.Focus {
-				nFocus++
-				focus[a.Verdict]++
-			}
-		case a.Verdict == patterns.New:
-			nNew++
-		default:
-			nAfterOnly++
-		}
+// NetworkChange states the change over the whole network in one sentence
+// ("" without a comparison).
+func NetworkChange(in Input) string {
+	if in.Comparison == nil {
+		return ""
 	}
-	slices.SortStableFunc(lead, func(x, y *patterns.Assessment) int { return x.Finding.Rank - y.Finding.Rank })
-	var b strings.Builder
-	if nBefore == 0 {
-		fmt.Fprintf(&b, "No weak link recurred in the before period (%s).", dayRange(c.Before))
-	} else {
-		var costs []string
-		for _, a := range lead[:min(len(lead), headlineLeaders)] {
-			costs = append(costs, costSentence(a, regions))
-		}
-		lead := strings.Join(costs, "; ")
-		fmt.Fprintf(&b, "%s%s (%s against %s). ", strings.ToUpper(lead[:1]), lead[1:], dayRange(c.Before), dayRange(c.After))
-		fmt.Fprintf(&b, "Of %d %s recurring before, %s cleared, %s eased, %s unchanged and %s worse.",
-			nBefore, plural(nBefore, "weak link", "weak links"),
-			numberWord(before[patterns.Cleared]), numberWord(before[patterns.Eased]), numberWord(before[patterns.Unchanged]), numberWord(before[patterns.Worse]))
-	}
-	var second []string
-	switch {
-	case nNew > 0:
-		second = append(second, fmt.Sprintf("%d new %s appeared, significantly and materially worse on %s own measures", nNew, plural(nNew, "weak link", "weak links"), plural(nNew, "its", "their")))
-	case nBefore > 0:
-		second = append(second, "no new weak link appeared")
-	}
-	if nAfterOnly > 0 {
-		second = append(second, fmt.Sprintf("%d more %s only after, without a significant, material change of %s own", nAfterOnly, plural(nAfterOnly, "recurs", "recur"), plural(nAfterOnly, "its", "their")))
-	}
-	if nFocus > 0 {
-		second = append(second, fmt.Sprintf("around the scheme, of %d: %s cleared and %s eased", nFocus, numberWord(focus[patterns.Cleared]), numberWord(focus[patterns.Eased])))
-	}
-	if len(second) > 0 {
-		s := strings.Join(second, "; ")
-		b.WriteString(" " + strings.ToUpper(s[:1]) + s[1:] + ".")
-	}
-	b.WriteString(" " + networkSentence(c.Network))
-	return b.String()
+	return networkSentence(in.Comparison.Network)
 }
 
-// headlineLeaders is how many of the costliest weak links the headline
-// names with their cost.
-const headlineLeaders = 3
-
-// costSentence gives a finding's cost before and after and its adjusted
-// change: "across the Orvel … (18>24+24>18): 43.2 extra vehicle-hours a day
-// before, 11.7 after, adjusted −31.3 (95 % CI −34.5 to −28.5): cleared".
-func costSentence(a *patterns.Assessment, regions *partition.Partition) string {
-	c := a.Effects[patterns.Cost]
-	ci := ""
-	if finite(c.Adjusted.Low) && finite(c.Adjusted.High) {
-		ci = fmt.Sprintf(" (95 %% CI %s to %s)", signed("%+.1f", c.Adjusted.Low), signed("%+.1f", c.Adjusted.High))
+func comparisonHeadline(c *patterns.Comparison, regions *partition.Partition) string {
+	var lead *patterns.Assessment
+	for i := range c.Assessments {
+		a := &c.Assessments[i]
+		if a.InBefore && (lead == nil || a.Finding.Rank < lead.Finding.Rank) {
+			lead = a
+		}
 	}
-	return fmt.Sprintf("%s (%s): %s extra vehicle-hours a day before, %s after, against its comparison group %s%s: %s",
-		PlaceName(a.Finding, regions), a.Finding.ID, levelWithCI(c.Before, c.BeforeLow, c.BeforeHigh), levelWithCI(c.After, c.AfterLow, c.AfterHigh),
-		signed("%+.1f", c.Adjusted.Shift), ci, a.Verdict)
+	others := map[patterns.Verdict]int{}
+	n := 0
+	for i := range c.Assessments {
+		if a := &c.Assessments[i]; a != lead {
+			others[a.Verdict]++
+			n++
+		}
+	}
+	if lead == nil {
+		if n == 0 {
+			return fmt.Sprintf("No weak link recurred in the before period (%s) or in the after period (%s).", dayRange(c.Before), dayRange(c.After))
+		}
+		if n == 1 {
+			return fmt.Sprintf("No weak link recurred in the before period (%s); the one weak link of the after period is %s.", dayRange(c.Before), verdictList(others)[2:])
+		}
+		return fmt.Sprintf("No weak link recurred in the before period (%s); of the %d weak links of the after period, %s.", dayRange(c.Before), n, verdictList(others))
+	}
+	cost := lead.Effects[patterns.Cost]
+	s := fmt.Sprintf("%s, the costliest weak link before, %s: from %s to %s extra vehicle-hours per day (adjusted change %s)",
+		upperFirst(PlaceName(lead.Finding, regions)), lead.Verdict, fmtFixed(cost.Before, 1), fmtFixed(cost.After, 1), signed("%+.1f", cost.Adjusted.Shift))
+	if n == 0 {
+		return s + "; no other weak link recurred."
+	}
+	if n == 1 {
+		return s + "; the other is " + verdictList(others)[2:] + "."
+	}
+	return fmt.Sprintf("%s; of the %d others, %s.", s, n, verdictList(others))
+}
+
+// verdictList names the counts of the verdicts present in severity order:
+// "1 cleared, 2 eased and 2 unchanged".
+func verdictList(counts map[patterns.Verdict]int) string {
+	var parts []string
+	for _, vd := range verdictOrder {
+		if counts[vd] > 0 {
+			parts = append(parts, strconv.Itoa(counts[vd])+" "+string(vd))
+		}
+	}
+	for vd, k := range counts { // verdicts outside the known set, sorted below
+		if !knownVerdict(vd) && k > 0 {
+			parts = append(parts, strconv.Itoa(k)+" "+string(vd))
+		}
+	}
+	slices.Sort(parts[min(len(parts), countKnown(counts)):])
+	switch len(parts) {
+	case 0:
+		return "none"
+	case 1:
+		return parts[0]
+	}
+	return strings.Join(parts[:len(parts)-1], ", ") + " and " + parts[len(parts)-1]
+}
+
+func countKnown(counts map[patterns.Verdict]int) int {
+	n := 0
+	for _, vd := range verdictOrder {
+		if counts[vd] > 0 {
+			n++
+		}
+	}
+	return n
+}
+
+// upperFirst capitalises the first letter of s.
+func upperFirst(s string) string {
+	for i, r := range s {
+		return strings.ToUpper(string(r)) + s[i+utf8.RuneLen(r):]
+	}
+	return s
 }
 
 // levelWithCI writes a daily median with its 95 % interval: "43.2 (41.0 to
@@ -234,7 +253,7 @@ func scanHeadline(s *patterns.Scan, regions *partition.Partition) string {
 	share := formatPercent(support(s))
 	n := len(s.Findings)
 	if n == 0 {
-		return fmt.Sprintf("No weak place recurred on at least %s of the %d analysed days (%s).", share, len(s.Days), dayRange(s))
+		return fmt.Sprintf("No weak link recurred on at least %s of the %d analysed days (%s).", share, len(s.Days), dayRange(s))
 	}
 	top := s.Findings[0]
 	for _, f := range s.Findings {
@@ -242,8 +261,13 @@ func scanHeadline(s *patterns.Scan, regions *partition.Partition) string {
 			top = f
 		}
 	}
-	return fmt.Sprintf("%d %s recurred on at least %s of the %d analysed days (%s). The costliest, %s (%s), adds %s km of travel and %s vehicle-hours a day.",
-		n, plural(n, "weak place", "weak places"), share, len(s.Days), dayRange(s), PlaceName(top, regions), top.ID,
+	if n == 1 {
+		return fmt.Sprintf("One weak link recurred on at least %s of the %d analysed days (%s): %s (%s), with %s extra vehicle-km and %s extra vehicle-hours per day.",
+			share, len(s.Days), dayRange(s), PlaceName(top, regions), top.ID,
+			strconv.FormatFloat(roundTo(top.ExtraKMPerDay, 0), 'f', -1, 64), strconv.FormatFloat(roundTo(top.ExtraHoursPerDay, 1), 'f', -1, 64))
+	}
+	return fmt.Sprintf("The costliest of %d %s recurring on at least %s of the %d analysed days (%s) is %s (%s), with %s extra vehicle-km and %s extra vehicle-hours per day.",
+		n, plural(n, "weak link", "weak links"), share, len(s.Days), dayRange(s), PlaceName(top, regions), top.ID,
 		strconv.FormatFloat(roundTo(top.ExtraKMPerDay, 0), 'f', -1, 64), strconv.FormatFloat(roundTo(top.ExtraHoursPerDay, 1), 'f', -1, 64))
 }
 
@@ -294,7 +318,7 @@ func (v *view) mapCaption() string {
 // timelineTitle is the title of the daily timeline chart, which names the
 // periods because the chart draws them as one run of days.
 func (v *view) timelineTitle() string {
-	s := "Candidates and weak places per day"
+	s := "Candidates and weak links per day"
 	if v.comparing() {
 		b, a := v.periods[0].Scan, v.periods[1].Scan
 		s += " (before: " + dayRange(b) + "; after: " + dayRange(a)

@@ -20,6 +20,7 @@ const (
 	SheetScatter     = "Speed v detour"
 	SheetRegions     = "Regions"
 	SheetDataQuality = "Data quality"
+	SheetInputs      = "Inputs"
 	SheetMethod      = "Method"
 )
 
@@ -29,7 +30,7 @@ func Sheets(in Input) []string {
 	if in.Comparison != nil {
 		s = append(s, SheetComparison)
 	}
-	return append(s, SheetDaily, SheetTimeline, SheetScatter, SheetRegions, SheetDataQuality, SheetMethod)
+	return append(s, SheetDaily, SheetTimeline, SheetScatter, SheetRegions, SheetDataQuality, SheetInputs, SheetMethod)
 }
 
 // WriteWorkbook writes the study workbook (.xlsx; see Sheets for its
@@ -73,6 +74,7 @@ func (v *view) workbook(w io.Writer) error {
 	b.scatter()
 	b.regionsSheet()
 	b.quality()
+	b.inputsSheet()
 	b.methodSheet()
 	if b.err != nil {
 		return fmt.Errorf("report: workbook: %w", b.err)

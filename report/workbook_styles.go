@@ -10,8 +10,8 @@ import (
 
 // styles holds the workbook's cell style ids.
 type styles struct {
-	title, bold, header, text, wrap, integer, intLeft, intCentre, centre, indent, mono, dec1, signed1, signed2, dec2, dec3, p4, sci, pct, supp int
-	verdict                                                                                                                                    map[patterns.Verdict]int
+	title, bold, header, text, wrap, wrapRight, integer, intLeft, intCentre, centre, indent, mono, dec1, signed1, signed2, dec2, dec3, p4, sci, pct, supp int
+	verdict                                                                                                                                               map[patterns.Verdict]int
 }
 
 // newStyles creates the workbook's styles, one per verdict present as well.
@@ -40,6 +40,7 @@ func (b *book) newStyles() {
 		header:    mk(&excelize.Style{Font: font(true, 0, ""), Fill: excelize.Fill{Type: "pattern", Pattern: 1, Color: []string{"#DDDDDD"}}, Alignment: &excelize.Alignment{WrapText: true, Vertical: "top", Horizontal: "center"}, Border: []excelize.Border{{Type: "bottom", Color: "#888888", Style: 1}}}),
 		text:      mk(&excelize.Style{NumFmt: 49, Alignment: &excelize.Alignment{Indent: 1}}), // "@": text, set off from a number to its left
 		wrap:      mk(&excelize.Style{NumFmt: 49, Alignment: &excelize.Alignment{WrapText: true, Vertical: "top", Horizontal: "left"}}),
+		wrapRight: mk(&excelize.Style{NumFmt: 49, Alignment: &excelize.Alignment{WrapText: true, Vertical: "top", Horizontal: "right"}}),
 		integer:   mk(&excelize.Style{NumFmt: 1}),
 		intLeft:   mk(&excelize.Style{NumFmt: 1, Alignment: &excelize.Alignment{Horizontal: "left"}}),
 		intCentre: mk(&excelize.Style{NumFmt: 1, Alignment: &excelize.Alignment{Horizontal: "center"}}),

@@ -64,8 +64,8 @@ func TestWorkbookSheets(t *testing.T) {
 		in   Input
 		want []string
 	}{
-		{"comparison", fxInput(), []string{"Summary", "Weak links", "Edges", "Comparison", "Daily", "Timeline", "Speed v detour", "Regions", "Data quality", "Method"}},
-		{"scan", fxScanInput(), []string{"Summary", "Weak links", "Edges", "Daily", "Timeline", "Speed v detour", "Regions", "Data quality", "Method"}},
+		{"comparison", fxInput(), []string{"Summary", "Weak links", "Edges", "Comparison", "Daily", "Timeline", "Speed v detour", "Regions", "Data quality", "Inputs", "Method"}},
+		{"scan", fxScanInput(), []string{"Summary", "Weak links", "Edges", "Daily", "Timeline", "Speed v detour", "Regions", "Data quality", "Inputs", "Method"}},
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
@@ -140,22 +140,27 @@ func TestWorkbookValues(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	counts := map[string]string{}
+	// Beside the map, from column D: verdict, count (in focus area), and
+	// key figures with their value in column F.
+	counts, figures := map[string]string{}, map[string]string{}
 	for _, r := range rows {
-		if len(r) >= 2 {
-			counts[r[0]] = r[1]
+		if len(r) >= 5 {
+			counts[r[3]] = r[4]
+		}
+		if len(r) >= 6 {
+			figures[r[3]] = r[5]
 		}
 	}
 	for _, vd := range []string{"cleared", "eased", "unchanged", "worse", "new"} {
-		if counts[vd] != "1" {
+		if !strings.HasPrefix(counts[vd], "1 (") {
 			t.Errorf("summary count of %s = %q, want 1", vd, counts[vd])
 		}
 	}
-	if counts["Total"] != "5" {
-		t.Errorf("summary total = %q, want 5", counts["Total"])
+	if counts["Total"] != "5 (1)" {
+		t.Errorf("summary total = %q, want 5 (1 in the focus area)", counts["Total"])
 	}
-	if counts["Analysed days before"] != strconv.Itoa(fxBeforeDays) {
-		t.Errorf("analysed days before = %q, want %d", counts["Analysed days before"], fxBeforeDays)
+	if figures["Analysed days before"] != strconv.Itoa(fxBeforeDays) {
+		t.Errorf("analysed days before = %q, want %d", figures["Analysed days before"], fxBeforeDays)
 	}
 
 	// Data quality accounts for every row: 12000 + 300 + 45 = 12345.
@@ -381,7 +386,7 @@ func TestWorkbookChartsAndPicture(t *testing.T) {
 	// Both charts have a title and both axes a title; the timeline names
 	// the periods.
 	for name, wantTitles := range map[string][]string{
-		"xl/charts/chart1.xml": {"Candidates and weak places per day (before: ", "Day", "Count"},
+		"xl/charts/chart1.xml": {"Candidates and weak links per day (before: ", "Day", "Count"},
 		"xl/charts/chart2.xml": {"Edge-days: speed against detour", "Detour ratio (travel / straight-line distance)", "Speed km/h"},
 	} {
 		for _, title := range wantTitles {

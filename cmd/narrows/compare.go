@@ -131,6 +131,9 @@ func writeReport(env *environment, dir, base string, in report.Input) error {
 		return err
 	}
 	fmt.Fprintln(env.stdout, report.Headline(in))
+	if n := report.NetworkChange(in); n != "" {
+		fmt.Fprintln(env.stdout, n)
+	}
 	for _, p := range paths {
 		fmt.Fprintln(env.stdout, "  wrote", p)
 	}

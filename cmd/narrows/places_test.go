@@ -226,7 +226,7 @@ func checkTimeline(t *testing.T, dir string, scans map[string]*patterns.Scan) {
 			}
 		}
 		cands, err1 := strconv.Atoi(r["Candidates"])
-		got, err2 := strconv.Atoi(r["Weak places"])
+		got, err2 := strconv.Atoi(r["Weak links"])
 		if err1 != nil || err2 != nil {
 			t.Errorf("Timeline row %v: counts are not numbers", r)
 			continue
@@ -240,7 +240,7 @@ func checkTimeline(t *testing.T, dir string, scans map[string]*patterns.Scan) {
 	}
 
 	// The chart: two series over the rows below the header, named by the
-	// header cells of the Candidates and Weak places columns.
+	// header cells of the Candidates and Weak links columns.
 	z, err := zip.OpenReader(path)
 	if err != nil {
 		t.Fatal(err)
@@ -263,7 +263,7 @@ func checkTimeline(t *testing.T, dir string, scans map[string]*patterns.Scan) {
 	}
 	last := strconv.Itoa(len(rows) + 1)
 	text := html.UnescapeString(string(chart))
-	for _, ref := range []string{"'Timeline'!$C$1", "'Timeline'!$D$1", "'Timeline'!$C$2:$C$" + last, "'Timeline'!$D$2:$D$" + last, "weak places per day"} {
+	for _, ref := range []string{"'Timeline'!$C$1", "'Timeline'!$D$1", "'Timeline'!$C$2:$C$" + last, "'Timeline'!$D$2:$D$" + last, "weak links per day"} {
 		if !strings.Contains(text, ref) {
 			t.Errorf("Timeline chart lacks %q", ref)
 		}

@@ -267,7 +267,7 @@ func printFindings(w io.Writer, scan *patterns.Scan, regions *partition.Partitio
 		fmt.Fprintf(tw, "%d\t%s (%s)\t%d (%.0f %%)\t\t\t\t%.0f\t%.1f\n", f.Rank, terminalText(report.PlaceName(f, regions)), f.ID,
 			len(f.Days), 100*f.Share, f.ExtraKMPerDay, f.ExtraHoursPerDay)
 		for _, e := range f.Edges {
-			fmt.Fprintf(tw, "\t  %d→%d\t%d (%.0f %%)\t%.0f\t%.1f\t%.2f\t%.0f\t%.1f\n", e.From, e.To,
+			fmt.Fprintf(tw, "\t  %d>%d\t%d (%.0f %%)\t%.0f\t%.1f\t%.2f\t%.0f\t%.1f\n", e.From, e.To,
 				len(e.Days), 100*e.Share, e.TripsMedian, geodesy.KMH(e.SpeedMedian), e.DetourMedian, e.ExtraKMPerDay, e.ExtraHoursPerDay)
 		}
 	}
