@@ -72,6 +72,7 @@ func commands() []command {
 		{"scan", "find the weak links that recur in one period", runScan},
 		{"compare", "compare two periods and write the workbook, map layers and HTML page", runCompare},
 		{"run", "run a whole study from a study file (TOML)", runStudy},
+		{"explore", "explore a study on a local web page: refine the scan and save the choices", runExplore},
 		{"demo", "generate a fictional town with a known weakness and run its study", runDemo},
 		{"simulate", "generate a fictional town and simulated trips", runSimulate},
 		{"version", "print the version", func(_ context.Context, env *environment, _ []string) error {
