@@ -74,6 +74,7 @@ func commands() []command {
 		{"run", "run a whole study from a study file (TOML)", runStudy},
 		{"check", "check a study file and its inputs without running it", runCheck},
 		{"appraise", "re-route a finding's trips with candidate links and rank the links", runAppraise},
+		{"explore", "explore a study on a local web page: refine the scan and save the choices", runExplore},
 		{"demo", "generate a fictional town with a known weakness and run its study", runDemo},
 		{"simulate", "generate a fictional town and simulated trips", runSimulate},
 		{"version", "print the version", func(_ context.Context, env *environment, _ []string) error {

@@ -64,6 +64,15 @@ type studyScan struct {
 	ReferenceSpeed kmhValue `toml:"reference_speed_kmh"`
 	patterns.ScanOptions
 	*skyline.Options // the ScanOptions' Skyline, whose keys stand in [scan]
+	// Days and region pairs left out, each with its reason (the fields of
+	// patterns.Exclusions; exclude stays a plain list of days).
+	ExcludedDays  []patterns.DayExclusion  `toml:"excluded_days"`
+	ExcludedPairs []patterns.PairExclusion `toml:"excluded_pairs"`
+}
+
+// exclusions returns the study's exclusions with their reasons.
+func (s *studyScan) exclusions() patterns.Exclusions {
+	return patterns.Exclusions{Days: s.ExcludedDays, Pairs: s.ExcludedPairs}
 }
 
 type studyCompare struct {
@@ -149,6 +158,7 @@ func loadStudy(path string) (*study, error) {
 		{"[regions]", s.Regions.Validate()},
 		{"[trips], [[windows]] or time_zone", s.Trips.Validate()},
 		{"[scan]", s.Scan.Validate()},
+		{"[scan]", s.Scan.exclusions().Validate(0)},
 		{"[compare]", s.Compare.Validate()},
 	} {
 		if v.err != nil {
@@ -249,6 +259,9 @@ func (s *study) run(ctx context.Context, env *environment, dir, file string) err
 	if err != nil {
 		return err
 	}
+	if store, err = s.applyExclusions(store, len(regions.Regions)); err != nil {
+		return fmt.Errorf("study file %s: %v", file, err)
+	}
 	in, err := r.reportInput(store, regions)
 	if err != nil {
 		return err
@@ -303,7 +316,7 @@ func (r *studyRun) reportInput(store *regiongraph.Store, regions *partition.Part
 	return report.Input{
 		Title:               title,
 		Inputs:              inputs,
-		Settings:            append(append([][2]string{{"study file", filepath.Base(r.file)}, {"time zone", r.Trips.TimeZone}}, regionSettings(regions, r.Regions.Options, r.Scheme)...), scanSettings(r.Scan.ScanOptions)...),
+		Settings:            append(append([][2]string{{"study file", filepath.Base(r.file)}, {"time zone", r.Trips.TimeZone}}, regionSettings(regions, r.Regions.Options, r.Scheme)...), append(scanSettings(r.Scan.ScanOptions), exclusionSettings(r.Scan.exclusions())...)...),
 		Regions:             regions,
 		Store:               &store.Meta,
 		PublicationMinTrips: r.Compare.MinPublish,

@@ -1,0 +1,130 @@
+package explore
+
+import (
+	"fmt"
+	"strings"
+	"time"
+
+	"narrows/partition"
+	"narrows/patterns"
+	"narrows/regiongraph"
+)
+
+// Study is what the page explores.
+type Study struct {
+	Title   string
+	Store   *regiongraph.Store // every edge of the study, before exclusions
+	Regions *partition.Partition
+	Scheme  []partition.NetworkLine // drawn on the map (optional)
+	// Scan holds the study's scan options (period, window, days, the
+	// thresholds); Before and After, "D1..D2", make it a comparison with
+	// the Compare options when both are set.
+	Scan          patterns.ScanOptions
+	Before, After string
+	Compare       patterns.CompareOptions
+	Exclusions    patterns.Exclusions
+	// Save writes the choices into the study file and returns what it
+	// wrote (nil: nothing to save into, as for a bare store).
+	Save func(Choices) (string, error)
+}
+
+// Choices are the planner's choices as they go into the study file: the
+// scan options as set on the page (Exclude holding only the study's own
+// plain list of days), the periods and the exclusions with reasons.
+type Choices struct {
+	Scan          patterns.ScanOptions
+	Before, After string
+	Exclusions    patterns.Exclusions
+}
+
+// Settings are the page's controls.
+type Settings struct {
+	// Before and After ("YYYY-MM-DD..YYYY-MM-DD") compare two periods when
+	// both are set; From and To bound the single period otherwise.
+	Before string `json:"before"`
+	After  string `json:"after"`
+	From   string `json:"from"`
+	To     string `json:"to"`
+	Window string `json:"window"`
+	Days   string `json:"days"`
+	// The thresholds.
+	MinTrips    int     `json:"min_trips"`
+	Support     float64 `json:"support"`
+	K           int     `json:"k"`
+	DetourFloor float64 `json:"detour_floor"`
+	SpeedGate   bool    `json:"speed_gate"`
+}
+
+// settingsOf returns the page's settings for the choices.
+func settingsOf(c Choices) Settings {
+	return Settings{
+		Before: c.Before, After: c.After, From: c.Scan.From, To: c.Scan.To,
+		Window: c.Scan.Window, Days: string(c.Scan.Days),
+		MinTrips: c.Scan.Skyline.MinTrips, Support: c.Scan.Support, K: c.Scan.Skyline.K,
+		DetourFloor: c.Scan.Skyline.DetourFloor, SpeedGate: !c.Scan.Skyline.NoSpeedGate,
+	}
+}
+
+// apply returns the choices with the settings applied, or an error
+// saying which setting is out of range.
+func (s Settings) apply(c Choices, windows []regiongraph.Window) (Choices, error) {
+	if (s.Before == "") != (s.After == "") {
+		return c, fmt.Errorf("give both periods to compare, or neither")
+	}
+	for _, p := range []struct{ name, v string }{{"before", s.Before}, {"after", s.After}} {
+		if p.v == "" {
+			continue
+		}
+		if _, _, err := ParsePeriod(p.v); err != nil {
+			return c, fmt.Errorf("%s: %v", p.name, err)
+		}
+	}
+	for _, d := range []struct{ name, v string }{{"from", s.From}, {"to", s.To}} {
+		if d.v == "" {
+			continue
+		}
+		if _, err := time.Parse(time.DateOnly, d.v); err != nil {
+			return c, fmt.Errorf("%s: %q is not a date YYYY-MM-DD", d.name, d.v)
+		}
+	}
+	if s.Window != "" {
+		known := false
+		for _, w := range windows {
+			known = known || w.Name == s.Window
+		}
+		if !known {
+			return c, fmt.Errorf("window: the day graphs have no window %q", s.Window)
+		}
+	}
+	o := c.Scan
+	o.From, o.To, o.Window, o.Days = s.From, s.To, s.Window, patterns.DaySelector(s.Days)
+	o.Skyline.MinTrips, o.Support, o.Skyline.K = s.MinTrips, s.Support, s.K
+	o.Skyline.DetourFloor, o.Skyline.NoSpeedGate = s.DetourFloor, !s.SpeedGate
+	switch o.Days {
+	case patterns.AllDays, patterns.Weekdays, patterns.Weekends:
+	default:
+		return c, fmt.Errorf("days: want all, weekdays or weekends, got %q", s.Days)
+	}
+	if err := o.Validate(); err != nil {
+		return c, err
+	}
+	c.Scan, c.Before, c.After = o, s.Before, s.After
+	return c, nil
+}
+
+// ParsePeriod parses "D1..D2", inclusive local days.
+func ParsePeriod(s string) (from, to string, err error) {
+	a, b, ok := strings.Cut(s, "..")
+	if !ok {
+		return "", "", fmt.Errorf("want FROM..TO such as 2026-03-02..2026-03-29, got %q", s)
+	}
+	for _, d := range []string{a, b} {
+		if _, err := time.Parse(time.DateOnly, d); err != nil {
+			return "", "", fmt.Errorf("%q is not a date YYYY-MM-DD", d)
+		}
+	}
+	if a > b {
+		return "", "", fmt.Errorf("period %q ends before it starts", s)
+	}
+	return a, b, nil
+}

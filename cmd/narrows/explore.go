@@ -1,0 +1,285 @@
+package main
+
+import (
+	"bytes"
+	"context"
+	"errors"
+	"fmt"
+	"io"
+	"net/http"
+	"os"
+	"path/filepath"
+	"strconv"
+	"strings"
+	"time"
+
+	"github.com/BurntSushi/toml"
+
+	"narrows/cmd/internal/atomicfile"
+	"narrows/cmd/internal/explore"
+	"narrows/partition"
+	"narrows/patterns"
+	"narrows/regiongraph"
+)
+
+func runExplore(ctx context.Context, env *environment, args []string) error {
+	fs := newFlagSet(env, "explore", "[--port N] study.toml | --graphs G.parquet [--regions R.geojson]")
+	var in storeFlags
+	var port int
+	var file string
+	in.register(fs)
+	fs.IntVar(&port, "port", 0, "port on 127.0.0.1 to serve on (default: a free one)")
+	if err := parseFlagsWithRest(env, fs, args, func(rest []string) {
+		if file == "" && len(rest) > 0 {
+			file, rest = rest[0], rest[1:]
+		}
+		if len(rest) > 0 {
+			file = "\x00"
+		}
+	}); err != nil {
+		return err
+	}
+	if (file == "") == (in.graphs == "") || file == "\x00" {
+		return usagef("give one study file, or --graphs")
+	}
+	if port < 0 || port > 65535 {
+		return usagef("--port: %d is not a port", port)
+	}
+	var st *explore.Study
+	var err error
+	if file != "" {
+		st, err = exploreStudy(ctx, env, file)
+	} else {
+		st, err = exploreStore(&in)
+	}
+	if err != nil {
+		return err
+	}
+	srv, err := explore.New(ctx, st)
+	if err != nil {
+		return err
+	}
+	ln, err := explore.Listen(port)
+	if err != nil {
+		return err
+	}
+	addr := ln.Addr().String()
+	srv.AllowHost(addr)
+	srv.AllowHost(strings.Replace(addr, "127.0.0.1", "localhost", 1))
+	hs := &http.Server{Handler: srv.Handler(), ReadHeaderTimeout: 10 * time.Second}
+	fmt.Fprintf(env.stdout, "narrows explore: open http://%s/ (this machine only; Ctrl-C to stop)\n", addr)
+	done := make(chan error, 1)
+	go func() { done <- hs.Serve(ln) }()
+	select {
+	case err := <-done:
+		return err
+	case <-ctx.Done():
+		shut, cancel := context.WithTimeout(context.Background(), 2*time.Second)
+		defer cancel()
+		hs.Shutdown(shut)
+		<-done
+		return nil
+	}
+}
+
+// exploreStore opens a day-graph store with its regions, at the default
+// scan options; there is no study file to save into.
+func exploreStore(in *storeFlags) (*explore.Study, error) {
+	opts := patterns.DefaultScanOptions()
+	// Every edge is read: the page may lower the minimum of trips.
+	opts.Skyline.MinTrips = 0
+	store, regions, err := in.open(opts)
+	if err != nil {
+		return nil, err
+	}
+	return &explore.Study{Title: "narrows explore " + filepath.Base(in.graphs), Store: store, Regions: regions,
+		Scan: patterns.DefaultScanOptions(), Compare: patterns.DefaultCompareOptions()}, nil
+}
+
+// exploreStudy builds the study's regions and day graphs in memory, as
+// run does but writing nothing, and returns them with the study's
+// choices and a Save that writes the choices back into the study file.
+func exploreStudy(ctx context.Context, env *environment, file string) (*explore.Study, error) {
+	s, err := loadStudy(file)
+	if err != nil {
+		return nil, err
+	}
+	r := &studyRun{study: s, file: file, dir: filepath.Dir(file)}
+	regions, sum, err := regionsInMemory(ctx, env, r.rel(s.Regions.OSM), s.Regions.Options)
+	if err != nil {
+		return nil, err
+	}
+	scheme, err := r.schemeLines(ctx, regions)
+	if err != nil {
+		return nil, err
+	}
+	var inputs []regiongraph.Input
+	for _, t := range s.Trips.Files {
+		inputs = append(inputs, regiongraph.Input{Path: r.rel(t), Format: s.Trips.Format})
+	}
+	update, finish := progress(env, "ingest")
+	opts := s.Trips.Options
+	opts.Progress = update
+	store, err := regiongraph.Ingest(ctx, regions, sum, inputs, opts)
+	finish()
+	if err != nil {
+		return nil, err
+	}
+	title := s.Title
+	if title == "" {
+		title = "narrows study " + filepath.Base(file)
+	}
+	return &explore.Study{
+		Title: title, Store: store, Regions: regions, Scheme: scheme,
+		Scan: s.Scan.ScanOptions, Before: s.Compare.Before.String(), After: s.Compare.After.String(),
+		Compare: s.Compare.CompareOptions, Exclusions: s.Scan.exclusions(),
+		Save: func(c explore.Choices) (string, error) { return saveStudy(file, c) },
+	}, nil
+}
+
+// regionsInMemory partitions an extract as buildRegions does, reading the
+// regions back from their GeoJSON bytes so that they are the regions run
+// analyses, without writing them.
+func regionsInMemory(ctx context.Context, env *environment, osmPath string, opts partition.Options) (*partition.Partition, string, error) {
+	opts.Warn = func(msg string) { fmt.Fprintf(env.stderr, "warning: %s: %s\n", osmPath, msg) }
+	p, err := partition.ReadFile(ctx, osmPath, opts)
+	if err != nil {
+		return nil, "", err
+	}
+	var geojson bytes.Buffer
+	if err := p.WriteGeoJSON(&geojson); err != nil {
+		return nil, "", err
+	}
+	back, sum, err := decodeRegions(geojson.Bytes(), osmPath)
+	if err != nil {
+		return nil, "", err
+	}
+	back.Network = p.Network
+	return back, sum, nil
+}
+
+// saveStudy writes the choices into the study file: the previous version
+// is kept beside it first (STEM.N.toml, never replaced), then the study is
+// replaced atomically and read back with every check of loadStudy; if that
+// fails, the previous version is put back. Keys the page does not set are
+// kept as they were; comments are not.
+func saveStudy(file string, c explore.Choices) (string, error) {
+	old, err := os.ReadFile(file)
+	if err != nil {
+		return "", err
+	}
+	doc := map[string]any{}
+	if _, err := toml.Decode(string(old), &doc); err != nil {
+		return "", fmt.Errorf("study file %s: %w", file, err)
+	}
+	setStudyChoices(doc, c)
+	var buf bytes.Buffer
+	buf.WriteString("# narrows study file, saved by narrows explore. Paths are relative to this file.\n")
+	if err := toml.NewEncoder(&buf).Encode(doc); err != nil {
+		return "", err
+	}
+	kept, err := keepVersion(file, old)
+	if err != nil {
+		return "", err
+	}
+	if err := atomicfile.Write(file, func(w io.Writer) error { _, err := w.Write(buf.Bytes()); return err }); err != nil {
+		return "", err
+	}
+	if _, err := loadStudy(file); err != nil {
+		restore := atomicfile.Write(file, func(w io.Writer) error { _, err := w.Write(old); return err })
+		return "", errors.Join(fmt.Errorf("the saved study does not read back, the previous one is restored: %w", err), restore)
+	}
+	return file + " (previous version kept as " + filepath.Base(kept) + ")", nil
+}
+
+// setStudyChoices sets the study keys the page controls in doc.
+func setStudyChoices(doc map[string]any, c explore.Choices) {
+	scan := table(doc, "scan")
+	o := c.Scan
+	for k, v := range map[string]string{"from": o.From, "to": o.To, "window": o.Window} {
+		if v == "" {
+			delete(scan, k)
+		} else {
+			scan[k] = v
+		}
+	}
+	scan["days"] = string(o.Days)
+	scan["min_trips"] = int64(o.Skyline.MinTrips)
+	scan["support"] = o.Support
+	scan["k"] = int64(o.Skyline.K)
+	scan["detour_floor"] = o.Skyline.DetourFloor
+	scan["no_speed_gate"] = o.Skyline.NoSpeedGate
+	if len(o.Exclude) == 0 {
+		delete(scan, "exclude")
+	} else {
+		scan["exclude"] = o.Exclude
+	}
+	days := []map[string]any{}
+	for _, d := range c.Exclusions.Days {
+		m := map[string]any{"from": d.From, "reason": d.Reason}
+		if d.To != "" {
+			m["to"] = d.To
+		}
+		days = append(days, m)
+	}
+	pairs := []map[string]any{}
+	for _, p := range c.Exclusions.Pairs {
+		m := map[string]any{"a": int64(p.A), "reason": p.Reason}
+		if p.B != 0 {
+			m["b"] = int64(p.B)
+		}
+		pairs = append(pairs, m)
+	}
+	scan["excluded_days"], scan["excluded_pairs"] = days, pairs
+	if len(days) == 0 {
+		delete(scan, "excluded_days")
+	}
+	if len(pairs) == 0 {
+		delete(scan, "excluded_pairs")
+	}
+	cmp := table(doc, "compare")
+	if c.Before == "" {
+		delete(cmp, "before")
+		delete(cmp, "after")
+	} else {
+		cmp["before"], cmp["after"] = c.Before, c.After
+	}
+	if len(cmp) == 0 {
+		delete(doc, "compare")
+	}
+}
+
+func table(doc map[string]any, key string) map[string]any {
+	t, ok := doc[key].(map[string]any)
+	if !ok {
+		t = map[string]any{}
+		doc[key] = t
+	}
+	return t
+}
+
+// keepVersion writes old beside file as STEM.N.toml with the first N not
+// taken, never replacing a file, and returns its path.
+func keepVersion(file string, old []byte) (string, error) {
+	stem := strings.TrimSuffix(file, filepath.Ext(file))
+	for n := 1; n < 10000; n++ {
+		path := stem + "." + strconv.Itoa(n) + filepath.Ext(file)
+		f, err := os.OpenFile(path, os.O_WRONLY|os.O_CREATE|os.O_EXCL, 0o644)
+		if errors.Is(err, os.ErrExist) {
+			continue
+		}
+		if err != nil {
+			return "", err
+		}
+		if _, err := f.Write(old); err != nil {
+			f.Close()
+			return "", err
+		}
+		if err := f.Sync(); err != nil {
+			f.Close()
+			return "", err
+		}
+		return path, f.Close()
+	}
+	return "", fmt.Errorf("%s: no free name for the previous version", file)
+}

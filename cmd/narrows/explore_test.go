@@ -1,0 +1,325 @@
+package main
+
+import (
+	"bytes"
+	"context"
+	"encoding/json"
+	"fmt"
+	"html"
+	"net/http"
+	"net/http/httptest"
+	"os"
+	"os/exec"
+	"path/filepath"
+	"regexp"
+	"slices"
+	"strings"
+	"sync"
+	"testing"
+	"time"
+
+	"narrows/cmd/internal/explore"
+	"narrows/patterns"
+	"narrows/regiongraph"
+)
+
+// exploreFixture is a scan-only simulated study served by explore.
+type exploreFixture struct {
+	study string
+	st    *explore.Study
+	srv   *explore.Server
+	http  *httptest.Server
+}
+
+func newExploreFixture(t *testing.T) *exploreFixture {
+	t.Helper()
+	dir := t.TempDir()
+	mustRunCLI(t, "simulate", "--out", dir, "--days", "14", "--trips-per-day", "4000", "--no-study")
+	text, err := os.ReadFile(filepath.Join("..", "..", "testdata", "study.toml"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	head, _, _ := strings.Cut(string(text), "[compare]")
+	study := filepath.Join(dir, "study.toml")
+	if err := os.WriteFile(study, []byte(head), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	env := &environment{stdout: &bytes.Buffer{}, stderr: &bytes.Buffer{}}
+	st, err := exploreStudy(context.Background(), env, study)
+	if err != nil {
+		t.Fatal(err)
+	}
+	srv, err := explore.New(context.Background(), st)
+	if err != nil {
+		t.Fatal(err)
+	}
+	hs := httptest.NewServer(srv.Handler()) // listens on 127.0.0.1
+	t.Cleanup(hs.Close)
+	srv.AllowHost(strings.TrimPrefix(hs.URL, "http://"))
+	return &exploreFixture{study: study, st: st, srv: srv, http: hs}
+}
+
+// post sends body to path with the token (unless token is "") and returns
+// the status and the decoded answer.
+func (f *exploreFixture) post(t *testing.T, path, token, body string) (int, map[string]any) {
+	t.Helper()
+	req, _ := http.NewRequest("POST", f.http.URL+path, strings.NewReader(body))
+	req.Header.Set("Content-Type", "application/json")
+	if token != "" {
+		req.Header.Set(explore.TokenHeader, token)
+	}
+	return do(t, req)
+}
+
+func do(t *testing.T, req *http.Request) (int, map[string]any) {
+	t.Helper()
+	res, err := http.DefaultClient.Do(req)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer res.Body.Close()
+	var out map[string]any
+	if err := json.NewDecoder(res.Body).Decode(&out); err != nil {
+		t.Fatalf("%s %s: answer is not JSON: %v", req.Method, req.URL.Path, err)
+	}
+	return res.StatusCode, out
+}
+
+func (f *exploreFixture) state(t *testing.T) explore.State {
+	t.Helper()
+	res, err := http.Get(f.http.URL + "/api/state")
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer res.Body.Close()
+	var s explore.State
+	if err := json.NewDecoder(res.Body).Decode(&s); err != nil {
+		t.Fatal(err)
+	}
+	return s
+}
+
+func settingsJSON(s explore.Settings) string {
+	b, _ := json.Marshal(s)
+	return string(b)
+}
+
+func TestExploreAPI(t *testing.T) {
+	if testing.Short() {
+		t.Skip("simulated study")
+	}
+	f := newExploreFixture(t)
+	tok := f.srv.Token()
+	s0 := f.state(t)
+	if s0.Mode != "scan" || len(s0.Findings) == 0 || len(s0.Days) != 14 {
+		t.Fatalf("first state: mode %s, %d findings, %d days", s0.Mode, len(s0.Findings), len(s0.Days))
+	}
+	top := s0.Findings[0]
+
+	// Bad requests: each a 4xx with a message, the state unchanged.
+	huge := `{"min_trips": 5, "window": "` + strings.Repeat("x", explore.MaxBody) + `"}`
+	for _, c := range []struct {
+		name, path, token, body string
+		code                    int
+	}{
+		{"no token", "/api/settings", "", settingsJSON(s0.Settings), 403},
+		{"wrong token", "/api/settings", "0" + tok[1:], settingsJSON(s0.Settings), 403},
+		{"malformed JSON", "/api/settings", tok, `{"min_trips":`, 400},
+		{"unknown field", "/api/settings", tok, `{"min_tripz": 3}`, 400},
+		{"malformed date", "/api/settings", tok, strings.Replace(settingsJSON(s0.Settings), `"from":""`, `"from":"2026-13-01"`, 1), 400},
+		{"support out of range", "/api/settings", tok, strings.Replace(settingsJSON(s0.Settings), `"support":0.3`, `"support":1.5`, 1), 400},
+		{"unknown window", "/api/settings", tok, strings.Replace(settingsJSON(s0.Settings), `"window":""`, `"window":"nightly"`, 1), 400},
+		{"one period only", "/api/settings", tok, strings.Replace(settingsJSON(s0.Settings), `"before":""`, `"before":"2026-03-02..2026-03-08"`, 1), 400},
+		{"huge body", "/api/settings", tok, huge, 413},
+		{"unknown region", "/api/exclusions", tok, `{"pairs":[{"a":9999,"b":1,"reason":"ferry"}]}`, 400},
+		{"no reason", "/api/exclusions", tok, `{"days":[{"from":"2026-03-03"}]}`, 400},
+		{"range backwards", "/api/exclusions", tok, `{"days":[{"from":"2026-03-05","to":"2026-03-03","reason":"works"}]}`, 400},
+		{"malformed day", "/api/exclusions", tok, `{"days":[{"from":"3 March","reason":"works"}]}`, 400},
+		{"save without token", "/api/save", "", `{}`, 403},
+	} {
+		code, ans := f.post(t, c.path, c.token, c.body)
+		if code != c.code || ans["error"] == "" {
+			t.Errorf("%s: status %d (want %d), answer %v", c.name, code, c.code, ans["error"])
+		}
+	}
+	req, _ := http.NewRequest("POST", f.http.URL+"/api/settings", strings.NewReader(settingsJSON(s0.Settings)))
+	req.Header.Set(explore.TokenHeader, tok)
+	req.Header.Set("Content-Type", "text/plain")
+	if code, _ := do(t, req); code != 415 {
+		t.Errorf("text/plain body: status %d, want 415", code)
+	}
+	req, _ = http.NewRequest("GET", f.http.URL+"/api/state", nil)
+	req.Host = "narrows.example:80"
+	if code, _ := do(t, req); code != 421 {
+		t.Errorf("foreign Host header: status %d, want 421", code)
+	}
+	if s := f.state(t); settingsJSON(s.Settings) != settingsJSON(s0.Settings) || len(s.Findings) != len(s0.Findings) {
+		t.Errorf("a refused request changed the state")
+	}
+
+	// Concurrent requests: every answer whole, the last state one of those sent.
+	var wg sync.WaitGroup
+	codes := make([]int, 8)
+	for i := range codes {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			s := s0.Settings
+			s.MinTrips = 8 + i%3
+			codes[i], _ = f.post(t, "/api/settings", tok, settingsJSON(s))
+			f.state(t)
+		}()
+	}
+	wg.Wait()
+	for i, c := range codes {
+		if c != 200 {
+			t.Errorf("concurrent request %d: status %d", i, c)
+		}
+	}
+	if m := f.state(t).Settings.MinTrips; m < 8 || m > 10 {
+		t.Errorf("after concurrent requests min trips is %d, none of those sent", m)
+	}
+
+	// The planner's changes; each answer is the scan of the library on the
+	// same store with the same options (an independent call, not the page's).
+	set := s0.Settings
+	set.MinTrips = 6
+	if code, ans := f.post(t, "/api/settings", tok, settingsJSON(set)); code != 200 {
+		t.Fatalf("settings: %d %v", code, ans)
+	}
+	day := s0.Days[2].Day
+	a, b := top.Edges[0].From, top.Edges[0].To
+	body := fmt.Sprintf(`{"days":[{"from":%q,"reason":"bridge works"}],"pairs":[{"a":%d,"b":%d,"reason":"ferry"}]}`, day, a, b)
+	if code, ans := f.post(t, "/api/exclusions", tok, body); code != 200 {
+		t.Fatalf("exclusions: %d %v", code, ans)
+	}
+	s1 := f.state(t)
+	opts := f.st.Scan
+	opts.Skyline.MinTrips = 6
+	opts.Exclude = append(slices.Clone(opts.Exclude), day)
+	kept := f.st.Store.Without(func(e *regiongraph.Edge) bool {
+		return (e.From == a && e.To == b) || (e.From == b && e.To == a)
+	})
+	want, err := patterns.ScanStore(context.Background(), kept, opts)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got, w := findingIDs(s1.Findings), scanIDs(want); !slices.Equal(got, w) {
+		t.Errorf("findings after the changes %v, the library's scan %v", got, w)
+	}
+	for _, fs := range s1.Findings {
+		for _, e := range fs.Edges {
+			if (e.From == a && e.To == b) || (e.From == b && e.To == a) {
+				t.Errorf("excluded pair %d-%d still in finding %s", a, b, fs.ID)
+			}
+		}
+	}
+	for _, d := range s1.Days {
+		if d.Day == day && (d.Excluded != "bridge works" || d.Period != "") {
+			t.Errorf("excluded day %s in the strip: %+v", day, d)
+		}
+	}
+	if slices.Equal(findingIDs(s1.Findings), findingIDs(s0.Findings)) {
+		t.Errorf("the changes left the findings as they were: %v", findingIDs(s0.Findings))
+	}
+
+	checkPageInChromium(t, f, s1)
+
+	// Save, then run the saved study: the same findings and costs.
+	if code, ans := f.post(t, "/api/save", tok, `{}`); code != 200 {
+		t.Fatalf("save: %d %v", code, ans)
+	}
+	if _, err := os.Stat(strings.TrimSuffix(f.study, ".toml") + ".1.toml"); err != nil {
+		t.Errorf("the previous study was not kept: %v", err)
+	}
+	text, _ := os.ReadFile(f.study)
+	for _, s := range []string{"bridge works", "ferry", "min_trips = 6"} {
+		if !strings.Contains(string(text), s) {
+			t.Errorf("saved study lacks %q:\n%s", s, text)
+		}
+	}
+	mustRunCLI(t, "run", f.study)
+	data, err := os.ReadFile(filepath.Join(filepath.Dir(f.study), "out", "report-findings.json"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	var run struct {
+		Findings []struct {
+			ID    string  `json:"id"`
+			Hours float64 `json:"extra_vehicle_hours_per_day"`
+		} `json:"findings"`
+	}
+	if err := json.Unmarshal(data, &run); err != nil {
+		t.Fatal(err)
+	}
+	if len(run.Findings) != len(s1.Findings) {
+		t.Fatalf("run on the saved study: %d findings, the page showed %d", len(run.Findings), len(s1.Findings))
+	}
+	for i, rf := range run.Findings {
+		if rf.ID != s1.Findings[i].ID || rf.Hours != s1.Findings[i].Cost {
+			t.Errorf("finding %d: run %s %.6f, page %s %.6f", i+1, rf.ID, rf.Hours, s1.Findings[i].ID, s1.Findings[i].Cost)
+		}
+	}
+	page, _ := os.ReadFile(filepath.Join(filepath.Dir(f.study), "out", "report.html"))
+	if !strings.Contains(string(page), "bridge works") || !strings.Contains(string(page), "ferry") {
+		t.Errorf("the report does not give the exclusions' reasons")
+	}
+}
+
+func findingIDs(fs []explore.FindingState) []string {
+	var out []string
+	for _, f := range fs {
+		out = append(out, f.ID)
+	}
+	return out
+}
+
+func scanIDs(s *patterns.Scan) []string {
+	var out []string
+	for _, f := range s.Findings {
+		out = append(out, f.ID)
+	}
+	return out
+}
+
+// checkPageInChromium loads the page in headless Chromium, when installed,
+// and checks that it shows the state's findings in order with no script
+// error; it leaves a screenshot in $NARROWS_SCREENSHOT when set.
+func checkPageInChromium(t *testing.T, f *exploreFixture, s explore.State) {
+	const chromium = "/usr/bin/chromium"
+	if _, err := os.Stat(chromium); err != nil {
+		t.Log("no " + chromium + ": page check skipped (.ci/run installs it)")
+		return
+	}
+	flags := []string{"--headless", "--no-sandbox", "--disable-gpu", "--disable-quic", "--no-first-run",
+		"--disable-background-networking", "--disable-component-update", "--disable-sync",
+		"--user-data-dir=" + t.TempDir(), "--virtual-time-budget=10000", "--window-size=1400,1800"}
+	ctx, cancel := context.WithTimeout(context.Background(), 90*time.Second)
+	defer cancel()
+	start := time.Now()
+	dom, err := exec.CommandContext(ctx, chromium, append(flags, "--dump-dom", f.http.URL+"/")...).Output()
+	if err != nil {
+		t.Fatalf("chromium: %v", err)
+	}
+	t.Logf("chromium loaded and dumped the page in %.1f s (process start included)", time.Since(start).Seconds())
+	page := string(dom)
+	if m := regexp.MustCompile(`<ul id="errors">(.*?)</ul>`).FindStringSubmatch(page); m == nil || m[1] != "" {
+		t.Errorf("page errors: %v", m)
+	}
+	rows := regexp.MustCompile(`<tr class="finding[^"]*" data-id="([^"]*)"`).FindAllStringSubmatch(page, -1)
+	var ids []string
+	for _, r := range rows {
+		ids = append(ids, html.UnescapeString(r[1]))
+	}
+	if !slices.Equal(ids, findingIDs(s.Findings)) {
+		t.Errorf("page lists %v, state %v", ids, findingIDs(s.Findings))
+	}
+	if !strings.Contains(page, `id="scale-bar"`) || !strings.Contains(page, "bridge works") {
+		t.Errorf("page lacks the map or the exclusion")
+	}
+	if shot := os.Getenv("NARROWS_SCREENSHOT"); shot != "" {
+		if err := exec.CommandContext(ctx, chromium, append(flags, "--screenshot="+shot, f.http.URL+"/")...).Run(); err != nil {
+			t.Errorf("screenshot: %v", err)
+		}
+	}
+}
