@@ -92,23 +92,21 @@ func newTally(st *settings, loc *locator) *tally {
 		rejected: make(map[Reason]int64), budget: budget, spilled: make(map[bucketKey][]segment)}
 }
 
-// spillAll writes every bucket's records to the spill file and frees them.
+// spillAll writes every bucket's records to the spill file, a chunk
+// (at most maxChunk records) at a time, and frees them.
 func (t *tally) spillAll() {
 	if t.err != nil {
 		return
 	}
-	var recs []record
 	for key, d := range t.buckets {
-		recs = recs[:0]
 		for _, c := range d.chunks {
-			recs = append(recs, c...)
+			seg, err := t.st.spill.spillRecords(c, &t.spillBuf)
+			if err != nil {
+				t.err = err
+				return
+			}
+			t.spilled[key] = append(t.spilled[key], seg)
 		}
-		seg, err := t.st.spill.spillRecords(recs, &t.spillBuf)
-		if err != nil {
-			t.err = err
-			return
-		}
-		t.spilled[key] = append(t.spilled[key], seg)
 		delete(t.buckets, key)
 	}
 	clear(t.last)
@@ -388,7 +386,7 @@ func (b *buckets) edges(ctx context.Context, names func(k bucketKey, i int) (day
 	workers := max(1, min(runtime.GOMAXPROCS(0), maxParsers, len(b.keys)))
 	next := make(chan int)
 	results := make(chan bucketResult, workers)
-	spare := make(chan []Edge, 2*workers) // buffers handed back once sunk
+	spare := make(chan []Edge, workers) // buffers handed back once sunk
 	var stopped atomic.Bool
 	var wg sync.WaitGroup
 	for w := 0; w < workers; w++ {

@@ -142,6 +142,7 @@ func ingest(ctx context.Context, regions *partition.Partition, regionsSHA256 str
 	if st.seen.err != nil {
 		return st.seen.err
 	}
+	st.seen = nil // the duplicate check is over: its tables go before the edges come
 
 	var regionsJSON bytes.Buffer
 	if err := regions.WriteGeoJSON(&regionsJSON); err != nil {
