@@ -21,11 +21,13 @@ import (
 //
 // The hash is fixed (no seed), so the rows judged repeats do not change
 // from run to run even in the unlikely case of a collision. The days'
-// tables together are held to a budget: past it, the least recently used
-// days' tables go to the spill file and come back when a row of their day
-// does. Input sorted by day (or a few days interleaved) so keeps one or two
-// days in memory; fully shuffled input gives the same result, reading
-// tables back often.
+// tables together are held to a budget: past it, the tables of cold days
+// (no row among the last coldRows checked) go to the spill file, least
+// recently used first, and come back when a row of their day does. Input
+// sorted by day (or a few days interleaved, or exports overlapping by some
+// days) so keeps a day or two in memory; in input whose days are shuffled
+// no day goes cold, and the tables stay in memory (10 bytes a row) rather
+// than go back and forth to the file.
 type rowSet struct {
 	days   map[int32]*dayRowSet
 	clock  int64
@@ -34,6 +36,10 @@ type rowSet struct {
 	spill  *spillFile
 	buf    []byte
 	err    error // the first spill failure
+	cold   int64 // coldRows, smaller in tests
+	// retry is the clock before which evict does not look again after it
+	// found no cold day.
+	retry int64
 }
 
 // dayRowSet is the set of one local day's rows.
@@ -48,7 +54,7 @@ type dayRowSet struct {
 // newRowSet returns a set holding at most budget bytes of tables in
 // memory (besides the day being checked), spilling to spill.
 func newRowSet(budget int64, spill *spillFile) *rowSet {
-	return &rowSet{days: make(map[int32]*dayRowSet), budget: budget, spill: spill}
+	return &rowSet{days: make(map[int32]*dayRowSet), budget: budget, spill: spill, cold: coldRows}
 }
 
 // rowKey is what a reader keeps of a parsed row for the set.
@@ -138,17 +144,25 @@ func (s *rowSet) day(day int32) *dayRowSet {
 
 func (d *dayRowSet) bytes() int64 { return d.ids.bytes() + d.content.bytes() }
 
-// evict writes the least recently used days other than keep to the spill
+// coldRows is the number of rows checked since a day's last row that
+// makes the day cold: about three days of a city of 300,000 trips a day.
+const coldRows = 1 << 20
+
+// evict writes the least recently used cold days other than keep to the spill
 // file until the tables in memory are under half the budget.
 func (s *rowSet) evict(keep *dayRowSet) {
+	if s.clock < s.retry {
+		return
+	}
 	for s.bytes > s.budget/2 && s.err == nil {
 		var lru *dayRowSet
 		for _, d := range s.days {
-			if d != keep && !d.evicted && d.bytes() > 0 && (lru == nil || d.lastUse < lru.lastUse) {
+			if d != keep && !d.evicted && d.bytes() > 0 && d.lastUse < s.clock-s.cold && (lru == nil || d.lastUse < lru.lastUse) {
 				lru = d
 			}
 		}
 		if lru == nil {
+			s.retry = s.clock + s.cold/16
 			return
 		}
 		b := s.buf[:0]
