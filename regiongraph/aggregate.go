@@ -2,10 +2,13 @@ package regiongraph
 
 import (
 	"cmp"
+	"context"
 	"math"
 	"runtime"
 	"slices"
 	"strconv"
+	"sync"
+	"sync/atomic"
 
 	"narrows/partition/geodesy"
 )
@@ -71,12 +74,44 @@ type tally struct {
 	used       int64
 	rejected   map[Reason]int64
 	visit      func(tr *trip, from, to int, day int32, window int) // when set, sees each used trip per window (ReadTrips)
+
+	// Records past budget go to the spill file, bucket by bucket.
+	held     int // records in memory
+	budget   int
+	spilled  map[bucketKey][]segment
+	spillBuf []byte
+	err      error // the first spill failure
 }
 
 func newTally(st *settings, loc *locator) *tally {
+	budget := st.recordBudget
+	if budget <= 0 {
+		budget = math.MaxInt // no spill file
+	}
 	return &tally{st: st, loc: loc, zone: newZoneCache(st.loc), windowRank: windowRanks(st.windows),
 		buckets: make(map[bucketKey]*dayRecords), last: make([]*dayRecords, len(st.windows)),
-		rejected: make(map[Reason]int64)}
+		rejected: make(map[Reason]int64), budget: budget, spilled: make(map[bucketKey][]segment)}
+}
+
+// spillAll writes every bucket's records to the spill file, a chunk
+// (at most maxChunk records) at a time, and frees them.
+func (t *tally) spillAll() {
+	if t.err != nil {
+		return
+	}
+	for key, d := range t.buckets {
+		for _, c := range d.chunks {
+			seg, err := t.st.spill.spillRecords(c, &t.spillBuf)
+			if err != nil {
+				t.err = err
+				return
+			}
+			t.spilled[key] = append(t.spilled[key], seg)
+		}
+		delete(t.buckets, key)
+	}
+	clear(t.last)
+	t.held = 0
 }
 
 // windowRanks orders windows by name, the order of edges in the store.
@@ -176,9 +211,13 @@ func (t *tally) add(tr *trip) Reason {
 			t.last[wi] = d
 		}
 		d.add(rec)
+		t.held++
 	}
 	if !in {
 		return ReasonOutsideTimes
+	}
+	if t.held > t.budget {
+		t.spillAll()
 	}
 	return reasonUsed
 }
@@ -227,15 +266,33 @@ func medianDecimal(sorted []float32) float64 {
 	return a + 0.5*(b-a)
 }
 
-// finish combines the tallies into sorted edges and the quality counts. Day
-// by day, it gathers the day's records, sorts them by window and pair, and
-// reads each edge's count, sums and quantiles; the tallies' records are
-// released as they are used.
-func finish(st *settings, loc *locator, tallies []*tally) ([]Edge, Quality) {
-	q, parts := gather(tallies)
-	keys := make([]bucketKey, 0, len(parts))
+// finish combines the tallies into sorted edges, handed to sink a day and
+// window at a time, and returns the quality counts. Day by day, it gathers
+// the day's records (from memory and the spill file), sorts them by pair,
+// and reads each edge's count, sums and quantiles; the records are
+// released as they are used. sink must not keep the slice it is given.
+//
+// begin is called with the quality counts before the first edge; it
+// returns the sink, or an error that ends finish.
+func finish(ctx context.Context, st *settings, loc *locator, tallies []*tally, begin func(Quality) (func([]Edge) error, error)) (Quality, error) {
+	for _, t := range tallies {
+		if t.err != nil {
+			return Quality{}, t.err
+		}
+	}
+	q, parts, spilled := gather(tallies)
+	sink, err := begin(q)
+	if err != nil {
+		return q, err
+	}
+	keys := make([]bucketKey, 0, len(parts)+len(spilled))
 	for key := range parts {
 		keys = append(keys, key)
+	}
+	for key := range spilled {
+		if _, ok := parts[key]; !ok {
+			keys = append(keys, key)
+		}
 	}
 	slices.Sort(keys)
 	byRank := make([]string, len(st.windows))
@@ -251,20 +308,31 @@ func finish(st *settings, loc *locator, tallies []*tally) ([]Edge, Quality) {
 			dayNames[i] = dayString(int64(k.day()))
 		}
 	}
-	edges := bucketsToEdges(loc, parts, keys, func(k bucketKey, i int) (string, string) {
+	b := &buckets{loc: loc, parts: parts, spilled: spilled, spill: st.spill, keys: keys}
+	err = b.edges(ctx, func(k bucketKey, i int) (string, string) {
 		return dayNames[i], byRank[k.windowRank()]
+	}, sink)
+	return q, err
+}
+
+// finishEdges is finish collecting the edges in memory.
+func finishEdges(ctx context.Context, st *settings, loc *locator, tallies []*tally) ([]Edge, Quality, error) {
+	var edges []Edge
+	q, err := finish(ctx, st, loc, tallies, func(Quality) (func([]Edge) error, error) {
+		return func(es []Edge) error { edges = append(edges, es...); return nil }, nil
 	})
-	return edges, q
+	return edges, q, err
 }
 
 // gather sums the tallies' row counts and collects their records by
-// bucket; the tallies give their records up.
-func gather(tallies []*tally) (Quality, map[bucketKey][]*dayRecords) {
+// bucket, in memory and spilled; the tallies give their records up.
+func gather(tallies []*tally) (Quality, map[bucketKey][]*dayRecords, map[bucketKey][]segment) {
 	q := Quality{Rejected: make(map[string]int64)}
 	for _, r := range RejectReasons() {
 		q.Rejected[string(r)] = 0
 	}
 	parts := make(map[bucketKey][]*dayRecords)
+	spilled := make(map[bucketKey][]segment)
 	for _, t := range tallies {
 		q.Read += t.read
 		q.Used += t.used
@@ -276,28 +344,62 @@ func gather(tallies []*tally) (Quality, map[bucketKey][]*dayRecords) {
 		for key, d := range t.buckets {
 			parts[key] = append(parts[key], d)
 		}
-		t.buckets, t.last = nil, nil
+		for key, segs := range t.spilled {
+			spilled[key] = append(spilled[key], segs...)
+		}
+		t.buckets, t.last, t.spilled = nil, nil, nil
 	}
-	return q, parts
+	return q, parts, spilled
 }
 
-// bucketsToEdges returns the edges of the buckets keys (sorted), named by
-// names(key, index). Buckets are independent: a few goroutines take them
-// in turn, and their edges are appended in bucket order as they come.
-func bucketsToEdges(loc *locator, parts map[bucketKey][]*dayRecords, keys []bucketKey, names func(k bucketKey, i int) (day, window string)) []Edge {
-	capacity, largest := edgeCapacity(parts, keys, len(loc.regions))
-	edges := make([]Edge, 0, capacity)
+// buckets are the records of an ingest by day and window, in memory and
+// in the spill file, with their keys sorted.
+type buckets struct {
+	loc     *locator
+	parts   map[bucketKey][]*dayRecords
+	spilled map[bucketKey][]segment
+	spill   *spillFile
+	keys    []bucketKey
+}
 
+// size returns the records of bucket k.
+func (b *buckets) size(k bucketKey) int {
+	n := 0
+	for _, part := range b.parts[k] {
+		for _, c := range part.chunks {
+			n += len(c)
+		}
+	}
+	for _, seg := range b.spilled[k] {
+		n += seg.n
+	}
+	return n
+}
+
+// edges hands the edges of the buckets to sink in bucket order, named by
+// names(key, index). Buckets are independent: a few goroutines take them
+// in turn while sink (the Parquet writer, with its compression) takes the
+// finished ones in order.
+func (b *buckets) edges(ctx context.Context, names func(k bucketKey, i int) (day, window string), sink func([]Edge) error) error {
+	largest := 0
+	for _, k := range b.keys {
+		largest = max(largest, b.size(k))
+	}
 	type bucketResult struct {
 		i     int
 		edges []Edge
+		err   error
 	}
-	workers := max(1, min(runtime.GOMAXPROCS(0), maxParsers, len(keys)))
+	workers := max(1, min(runtime.GOMAXPROCS(0), maxParsers, len(b.keys)))
 	next := make(chan int)
 	results := make(chan bucketResult, workers)
-	spare := make(chan []Edge, 2*workers) // buffers handed back once copied into edges
+	spare := make(chan []Edge, workers) // buffers handed back once sunk
+	var stopped atomic.Bool
+	var wg sync.WaitGroup
 	for w := 0; w < workers; w++ {
+		wg.Add(1)
 		go func() {
+			defer wg.Done()
 			// Sized once for the largest bucket: growing them would leave
 			// garbage while the records are still held.
 			buf := make([]record, 0, largest)
@@ -306,66 +408,76 @@ func bucketsToEdges(loc *locator, parts map[bucketKey][]*dayRecords, keys []buck
 				tmp = make([]record, largest)
 			}
 			var scratch []float32
+			var raw []byte
 			for i := range next {
 				buf = buf[:0]
-				for _, part := range parts[keys[i]] {
+				var err error
+				for _, part := range b.parts[b.keys[i]] {
 					for _, c := range part.chunks {
 						buf = append(buf, c...)
 					}
 					part.chunks = nil
 				}
-				tmp = sortByPair(buf, tmp, len(loc.regions))
-				var es []Edge
-				select {
-				case es = <-spare:
-				default:
+				for _, seg := range b.spilled[b.keys[i]] {
+					if buf, err = b.spill.appendRecords(buf, seg, &raw); err != nil {
+						break
+					}
 				}
-				day, window := names(keys[i], i)
-				es, scratch = bucketEdges(es[:0], day, window, buf, loc, scratch)
-				results <- bucketResult{i, es}
+				var es []Edge
+				if err == nil {
+					tmp = sortByPair(buf, tmp, len(b.loc.regions))
+					select {
+					case es = <-spare:
+					default:
+					}
+					day, window := names(b.keys[i], i)
+					es, scratch = bucketEdges(es[:0], day, window, buf, b.loc, scratch)
+				}
+				results <- bucketResult{i, es, err}
 			}
 		}()
 	}
 	go func() {
-		for i := range keys {
+		defer close(next)
+		for i := range b.keys {
+			if stopped.Load() {
+				return
+			}
 			next <- i
 		}
-		close(next)
 	}()
-	pending := make(map[int][]Edge)
-	for want, got := 0, 0; got < len(keys); got++ {
-		r := <-results
-		pending[r.i] = r.edges
-		for es, ok := pending[want]; ok; es, ok = pending[want] {
-			edges = append(edges, es...)
+	go func() {
+		wg.Wait()
+		close(results)
+	}()
+	var first error
+	pending := make(map[int]bucketResult)
+	want := 0
+	for r := range results {
+		if first != nil {
+			continue // draining after a failure
+		}
+		pending[r.i] = r
+		for p, ok := pending[want]; ok; p, ok = pending[want] {
 			delete(pending, want)
 			want++
+			if first = p.err; first == nil {
+				first = ctx.Err()
+			}
+			if first == nil {
+				first = sink(p.edges)
+			}
+			if first != nil {
+				stopped.Store(true)
+				break
+			}
 			select {
-			case spare <- es[:0]:
+			case spare <- p.edges[:0]:
 			default:
 			}
 		}
 	}
-	return edges
-}
-
-// edgeCapacity returns the most edges the buckets can give and the records
-// of the largest bucket. A bucket gives at most one edge per record and per
-// region pair; sizing the result up front avoids a second copy of the
-// edges.
-func edgeCapacity(parts map[bucketKey][]*dayRecords, keys []bucketKey, regions int) (capacity, largest int) {
-	pairs := regions * (regions - 1)
-	for _, k := range keys {
-		n := 0
-		for _, part := range parts[k] {
-			for _, c := range part.chunks {
-				n += len(c)
-			}
-		}
-		capacity += min(n, pairs)
-		largest = max(largest, n)
-	}
-	return capacity, largest
+	return first
 }
 
 // radixMin is the least bucket size sorted by radix.

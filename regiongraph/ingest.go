@@ -34,62 +34,150 @@ type inputFile struct {
 // Options.Strict the first one is a *RowError "file:line: reason". File-level
 // problems (missing file or column, binary or malformed content, unknown
 // time zone) are always errors.
+//
+// Ingest holds every edge in memory; IngestTo writes them as they come.
 func Ingest(ctx context.Context, regions *partition.Partition, regionsSHA256 string, inputs []Input, opts Options) (*Store, error) {
+	var store *Store
+	err := ingest(ctx, regions, regionsSHA256, inputs, opts, func(s *Store) (func([]Edge) error, func() error, error) {
+		store = s
+		add := func(es []Edge) error { s.Edges = append(s.Edges, es...); return nil }
+		return add, func() error { return nil }, nil
+	})
+	if err != nil {
+		return nil, err
+	}
+	return store, nil
+}
+
+// IngestTo is Ingest writing the store to w as one Parquet file, the bytes
+// WriteParquet writes of the store Ingest returns. Edges go to the writer
+// day by day as they are aggregated, with the writer's compression beside
+// the aggregation of the next days, and are not kept: the returned store
+// has the metadata and no edges. edit, when not nil, may change the
+// metadata (the sources' names) before it is written.
+func IngestTo(ctx context.Context, regions *partition.Partition, regionsSHA256 string, inputs []Input, opts Options, w io.Writer, edit func(*Meta)) (*Store, Written, error) {
+	var store *Store
+	var ew *edgeWriter
+	var spilled int64
+	err := ingest(ctx, regions, regionsSHA256, inputs, opts, func(s *Store) (func([]Edge) error, func() error, error) {
+		store = s
+		if edit != nil {
+			edit(&s.Meta)
+		}
+		wopts, err := storeMetadata(s)
+		if err != nil {
+			return nil, nil, fmt.Errorf("regiongraph: write: %v", err)
+		}
+		ew = newEdgeWriter(w, rowGroupRows, wopts)
+		spilled = s.spilled
+		add := func(es []Edge) error {
+			if err := ew.add(es); err != nil {
+				return fmt.Errorf("regiongraph: write: %w", err)
+			}
+			return nil
+		}
+		return add, func() error {
+			if err := ew.close(); err != nil {
+				return fmt.Errorf("regiongraph: write: %w", err)
+			}
+			return nil
+		}, nil
+	})
+	if err != nil {
+		return nil, Written{}, err
+	}
+	return store, Written{Edges: ew.n, Days: ew.days, Spilled: spilled}, nil
+}
+
+// Written counts what IngestTo wrote.
+type Written struct {
+	Edges   int   // rows
+	Days    int   // distinct local days
+	Spilled int64 // bytes that went through the temporary file (Options.MemoryMB)
+}
+
+// ingest runs an ingest: it reads the inputs, then calls begin with the
+// store's metadata (no edges yet; the checks of the yield passed) and
+// hands the edges in store order to the first function begin returns, and
+// calls the second at the end.
+func ingest(ctx context.Context, regions *partition.Partition, regionsSHA256 string, inputs []Input, opts Options,
+	begin func(*Store) (add func([]Edge) error, end func() error, err error)) error {
 	if regions == nil || len(regions.Regions) == 0 {
-		return nil, errors.New("regiongraph: no regions")
+		return errors.New("regiongraph: no regions")
 	}
 	if len(inputs) == 0 {
-		return nil, errors.New("regiongraph: no input files")
+		return errors.New("regiongraph: no input files")
 	}
 	st, err := opts.settings()
 	if err != nil {
-		return nil, err
+		return err
 	}
-	st.seen = newRowSet()
+	parsers := max(1, min(runtime.GOMAXPROCS(0), maxParsers))
+	memory := int64(opts.MemoryMB) << 20
+	if opts.MemoryMB <= 0 {
+		memory = defaultMemoryMB << 20
+	}
+	st.spill = newSpillFile(opts.SpillDir)
+	defer st.spill.close()
+	// A quarter for the duplicate check, the rest for trip records.
+	st.seen = newRowSet(memory/4, st.spill)
+	st.recordBudget = int(max(1, 3*memory/4/recordBytes/int64(parsers)))
 	files, err := expandInputs(inputs, st)
 	if err != nil {
-		return nil, err
+		return err
 	}
 	progress := progressOf(files, opts.Progress)
 	loc, err := newLocator(regions)
 	if err != nil {
-		return nil, err
+		return err
 	}
-	parsers := max(1, min(runtime.GOMAXPROCS(0), maxParsers))
 	tallies := make([]*tally, parsers)
 	for i := range tallies {
 		tallies[i] = newTally(st, loc)
 	}
 	sources, err := ingestFiles(ctx, st, files, tallies, progress)
 	if err != nil {
-		return nil, err
+		return err
 	}
+	if st.seen.err != nil {
+		return st.seen.err
+	}
+	st.seen = nil // the duplicate check is over: its tables go before the edges come
 
 	var regionsJSON bytes.Buffer
 	if err := regions.WriteGeoJSON(&regionsJSON); err != nil {
-		return nil, fmt.Errorf("regiongraph: keeping the regions in the store: %v", err)
+		return fmt.Errorf("regiongraph: keeping the regions in the store: %v", err)
 	}
 	if err := ctx.Err(); err != nil {
-		return nil, err
+		return err
 	}
-	edges, quality := finish(st, loc, tallies)
-	if err := checkYield(st, quality, sources); err != nil {
-		return nil, err
+	var end func() error
+	_, err = finish(ctx, st, loc, tallies, func(quality Quality) (func([]Edge) error, error) {
+		if err := checkYield(st, quality, sources); err != nil {
+			return nil, err
+		}
+		if st.opts.Strict && quality.OffsetMismatch > 0 {
+			return nil, OffsetMismatchError(quality, st.loc.String())
+		}
+		s := &Store{
+			spilled:        st.spill.written(),
+			regionsGeoJSON: regionsJSON.Bytes(),
+			Meta: Meta{
+				RegionsSHA256: regionsSHA256,
+				TimeZone:      st.opts.TimeZone,
+				Windows:       slices.Clone(st.windows),
+				Quality:       quality,
+				Sources:       sources,
+			},
+		}
+		add, e, err := begin(s)
+		end = e
+		return add, err
+	})
+	if err != nil {
+		return err
 	}
-	if st.opts.Strict && quality.OffsetMismatch > 0 {
-		return nil, OffsetMismatchError(quality, st.loc.String())
-	}
-	return &Store{
-		regionsGeoJSON: regionsJSON.Bytes(),
-		Meta: Meta{
-			RegionsSHA256: regionsSHA256,
-			TimeZone:      st.opts.TimeZone,
-			Windows:       slices.Clone(st.windows),
-			Quality:       quality,
-			Sources:       sources,
-		},
-		Edges: edges,
-	}, nil
+	return end()
 }
 
 // progressOf returns the function the readers call with the bytes they

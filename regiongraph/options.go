@@ -141,7 +141,18 @@ type Options struct {
 	// Progress, when not nil, is called from one goroutine at a time with the
 	// bytes read so far and the total bytes of all inputs.
 	Progress func(done, total int64) `toml:"-"`
+
+	// MemoryMB bounds the memory an ingest holds for the trips of days
+	// not yet aggregated and for its duplicate check (default 128 MB):
+	// past it they go to a temporary file in SpillDir (default the
+	// system's temporary folder), removed when the ingest ends. The store
+	// does not depend on either.
+	MemoryMB int    `toml:"-"`
+	SpillDir string `toml:"-"`
 }
+
+// defaultMemoryMB is the default of Options.MemoryMB.
+const defaultMemoryMB = 128
 
 // DefaultOptions returns the documented defaults.
 func DefaultOptions() Options {
@@ -291,9 +302,12 @@ type settings struct {
 	earliestMS    int64 // plausible times, Unix milliseconds, both included
 	latestMS      int64
 
-	// seen is the row set of one ingest, shared by its files (set by
-	// Ingest, not by Validate).
-	seen *rowSet
+	// seen is the row set of one ingest, shared by its files, and spill
+	// its temporary file (set by Ingest, not by Validate).
+	seen  *rowSet
+	spill *spillFile
+	// recordBudget is the trip records a tally holds before spilling.
+	recordBudget int
 }
 
 func (o Options) settings() (*settings, error) {

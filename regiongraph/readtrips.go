@@ -44,7 +44,13 @@ func ReadTrips(ctx context.Context, regions *partition.Partition, inputs []Input
 	if err != nil {
 		return nil, err
 	}
-	st.seen = newRowSet()
+	memory := int64(opts.MemoryMB) << 20
+	if opts.MemoryMB <= 0 {
+		memory = defaultMemoryMB << 20
+	}
+	st.spill = newSpillFile(opts.SpillDir)
+	defer st.spill.close()
+	st.seen = newRowSet(memory/4, st.spill)
 	files, err := expandInputs(inputs, st)
 	if err != nil {
 		return nil, err

@@ -187,7 +187,7 @@ func TestDuplicatesKeepTheFirstWhateverTheReaders(t *testing.T) {
 		t.Fatal(err)
 	}
 	for _, parsers := range []int{1, 4} {
-		st.seen = newRowSet()
+		st.seen = newRowSet(1<<30, nil)
 		tallies := make([]*tally, parsers)
 		for i := range tallies {
 			tallies[i] = newTally(st, loc)
@@ -195,7 +195,10 @@ func TestDuplicatesKeepTheFirstWhateverTheReaders(t *testing.T) {
 		if _, err := ingestFiles(t.Context(), st, []inputFile{{path: path, format: FormatTrips}}, tallies, func(int64) {}); err != nil {
 			t.Fatal(err)
 		}
-		edges, q := finish(st, loc, tallies)
+		edges, q, err := finishEdges(t.Context(), st, loc, tallies)
+		if err != nil {
+			t.Fatal(err)
+		}
 		if q.Rejected[string(ReasonDuplicateTripID)] != 1 || edges[0].DistanceSum != 60000*2000 {
 			t.Errorf("%d parsers: %+v, distance %v", parsers, q, edges[0].DistanceSum)
 		}

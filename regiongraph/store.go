@@ -76,6 +76,9 @@ type Store struct {
 	// regionsGeoJSON is the partition the store was built on, as written by
 	// partition.WriteGeoJSON; see Regions.
 	regionsGeoJSON []byte
+	// spilled is the bytes an ingest wrote to its temporary file before
+	// the first edge.
+	spilled int64
 }
 
 // compareEdges orders edges by day, window name, from, to.

@@ -90,42 +90,85 @@ func clock(m int) string { return fmt.Sprintf("%02d:%02d", m/60, m%60) }
 // small batches so that only the writer's buffers are added to the store in
 // memory.
 func writeEdges(w io.Writer, edges []Edge, groupRows int, opts []parquet.WriterOption) error {
-	pw := parquet.NewWriter(w, append([]parquet.WriterOption{storeSchema(nil)}, opts...)...)
-	const batch = 1 << 12
-	rows := make([]parquet.Row, 0, batch)
-	values := make(parquet.Row, 0, batch*numStoreColumns) // of the rows
-	flush := func() error {
-		_, err := pw.WriteRows(rows)
-		rows, values = rows[:0], values[:0]
+	ew := newEdgeWriter(w, groupRows, opts)
+	if err := ew.add(edges); err != nil {
 		return err
 	}
-	inGroup := 0
+	return ew.close()
+}
+
+// edgeWriter writes edges, given in store order a few at a time, as the
+// rows of one Parquet file: the layout does not depend on how the edges
+// are handed to it.
+type edgeWriter struct {
+	pw        *parquet.Writer
+	groupRows int
+	rows      []parquet.Row
+	values    parquet.Row // of the rows
+	inGroup   int
+	lastDay   string
+	n         int // edges written
+	days      int // distinct days written
+}
+
+// edgeBatch is the number of rows converted before they are handed to the
+// Parquet writer.
+const edgeBatch = 1 << 12
+
+func newEdgeWriter(w io.Writer, groupRows int, opts []parquet.WriterOption) *edgeWriter {
+	return &edgeWriter{
+		pw:        parquet.NewWriter(w, append([]parquet.WriterOption{storeSchema(nil)}, opts...)...),
+		groupRows: groupRows,
+		rows:      make([]parquet.Row, 0, edgeBatch),
+		values:    make(parquet.Row, 0, edgeBatch*numStoreColumns),
+	}
+}
+
+func (ew *edgeWriter) flush() error {
+	_, err := ew.pw.WriteRows(ew.rows)
+	ew.rows, ew.values = ew.rows[:0], ew.values[:0]
+	return err
+}
+
+// add writes edges, which follow the edges written before in store order.
+func (ew *edgeWriter) add(edges []Edge) error {
 	for i := range edges {
 		e := &edges[i]
 		if e.From < math.MinInt32 || e.From > math.MaxInt32 || e.To < math.MinInt32 || e.To > math.MaxInt32 {
-			return fmt.Errorf("region id out of int32 range in edge %d", i)
+			return fmt.Errorf("region id out of int32 range in edge %d", ew.n)
 		}
-		if inGroup >= 2*groupRows || inGroup >= groupRows && e.Day != edges[i-1].Day {
-			if err := flush(); err != nil {
+		newDay := ew.n == 0 || e.Day != ew.lastDay
+		if ew.inGroup >= 2*ew.groupRows || ew.inGroup >= ew.groupRows && newDay {
+			if err := ew.flush(); err != nil {
 				return err
 			}
-			if err := pw.Flush(); err != nil {
+			if err := ew.pw.Flush(); err != nil {
 				return err
 			}
-			inGroup = 0
+			ew.inGroup = 0
 		}
-		n := len(values)
-		values = appendRow(values, e)
-		rows = append(rows, values[n:len(values):len(values)])
-		inGroup++
-		if len(rows) == batch {
-			if err := flush(); err != nil {
+		if newDay {
+			ew.days++
+			ew.lastDay = e.Day
+		}
+		n := len(ew.values)
+		ew.values = appendRow(ew.values, e)
+		ew.rows = append(ew.rows, ew.values[n:len(ew.values):len(ew.values)])
+		ew.inGroup++
+		ew.n++
+		if len(ew.rows) == edgeBatch {
+			if err := ew.flush(); err != nil {
 				return err
 			}
 		}
 	}
-	if err := flush(); err != nil {
+	return nil
+}
+
+// close writes the rows left and the file's footer.
+func (ew *edgeWriter) close() error {
+	if err := ew.flush(); err != nil {
 		return err
 	}
-	return pw.Close()
+	return ew.pw.Close()
 }

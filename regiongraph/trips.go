@@ -343,6 +343,9 @@ func (r *tripReader) parse(t *tally, w *tripWorker, ch chunk) {
 		if r.idCol >= 0 && r.idCol < len(w.fields) {
 			id = w.fields[r.idCol]
 		}
-		p.key = st.seen.key(rec, id)
+		// Repeats are looked for among the rows starting on the same
+		// local day (see rowSet).
+		day := floorDiv(t.zone.local(floorDiv(p.tr.startMS, 1000)), 86400)
+		p.key = rowKeyOf(int32(max(math.MinInt32, min(math.MaxInt32, day))), rec, id)
 	}
 }

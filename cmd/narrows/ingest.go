@@ -4,6 +4,7 @@ import (
 	"context"
 	"flag"
 	"fmt"
+	"io"
 	"time"
 
 	"narrows/partition"
@@ -41,8 +42,40 @@ func runIngest(ctx context.Context, env *environment, args []string) error {
 	if err != nil {
 		return err
 	}
+	if len(merge) == 0 {
+		return ingestTo(ctx, env, regions, sum, trips, format, opts, out)
+	}
 	_, err = ingest(ctx, env, regions, sum, trips, nil, format, opts, merge, out)
 	return err
+}
+
+// ingestTo builds the day-graph store and writes it as it is built,
+// holding a day's trips at a time rather than the store.
+func ingestTo(ctx context.Context, env *environment, regions *partition.Partition, sum string, trips []string, format regiongraph.Format, opts regiongraph.Options, out string) error {
+	start := time.Now()
+	var inputs []regiongraph.Input
+	for _, t := range trips {
+		inputs = append(inputs, regiongraph.Input{Path: t, Format: format})
+	}
+	update, finish := progress(env, "ingest")
+	opts.Progress = update
+	var meta regiongraph.Meta
+	var written regiongraph.Written
+	err := env.files.write(out, kindStore, func(w io.Writer) error {
+		s, n, err := regiongraph.IngestTo(ctx, regions, sum, inputs, opts, w, nil)
+		if err != nil {
+			return err
+		}
+		meta, written = s.Meta, n
+		return nil
+	})
+	finish()
+	if err != nil {
+		return err
+	}
+	printQuality(env, meta.Quality)
+	fmt.Fprintf(env.stdout, "%d edges on %d days in %.2f s -> %s\n", written.Edges, written.Days, time.Since(start).Seconds(), out)
+	return nil
 }
 
 // ingest builds and writes the day-graph store of the regions whose
