@@ -271,11 +271,11 @@ func printFindings(w io.Writer, scan *patterns.Scan, regions *partition.Partitio
 				len(e.Days), 100*e.Share, e.TripsMedian, geodesy.KMH(e.SpeedMedian), e.DetourMedian, e.ExtraKMPerDay, e.ExtraHoursPerDay)
 		}
 	}
-	places := "places"
+	links := "weak links"
 	if len(scan.Findings) == 1 {
-		places = "place"
+		links = "weak link"
 	}
-	fmt.Fprintf(tw, "total\t%d %s, each edge counted once\t\t\t\t\t%.0f\t%.1f\n", len(scan.Findings), places, km, hours)
+	fmt.Fprintf(tw, "total\t%d %s, each edge counted once\t\t\t\t\t%.0f\t%.1f\n", len(scan.Findings), links, km, hours)
 	tw.Flush()
 }
 
