@@ -61,7 +61,7 @@ func TestAppraiseHand(t *testing.T) {
 	net := handNetwork(t)
 	gc := func(a, b int64) float64 { return geodesy.GreatCircleMetres(handPoints[a], handPoints[b]) }
 	round := gc(1, 2) + gc(2, 4) + gc(4, 3) // 1 -> 3 without a link, about 5,878 m
-	direct := gc(1, 3)                       // the link, about 1,430 m
+	direct := gc(1, 3)                      // the link, about 1,430 m
 	res, prim := geodesy.MPS(30), geodesy.MPS(60)
 	trips := []regiongraph.Trip{trip(1, 3), trip(1, 3), trip(3, 1), trip(1, 2)}
 	const days = 2
