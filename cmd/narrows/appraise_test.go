@@ -1,6 +1,8 @@
 package main
 
 import (
+	"bytes"
+	"context"
 	"fmt"
 	"math"
 	"os"
@@ -173,4 +175,31 @@ func readCandidates(t *testing.T, path string) map[string]map[string]any {
 		out[f.Properties["name"].(string)] = f.Properties
 	}
 	return out
+}
+
+// BenchmarkAppraise20 times narrows appraise on the demo's crossing
+// finding, whole command (reading the extracts and trips, scanning,
+// routing), with no generated candidate and with 20 (goal: under 10 s),
+// side by side; candidates/op is the number appraised.
+func BenchmarkAppraise20(b *testing.B) {
+	dir := b.TempDir()
+	run := func(args ...string) string {
+		var out bytes.Buffer
+		env := &environment{stdout: &out, stderr: &out}
+		if code := dispatch(context.Background(), env, args); code != exitOK {
+			b.Fatalf("%v: exit %d\n%s", args, code, out.String())
+		}
+		return out.String()
+	}
+	run("demo", "--dir", dir)
+	study := filepath.Join(dir, "study.toml")
+	for _, n := range []string{"0", "20"} {
+		b.Run("generate="+n, func(b *testing.B) {
+			var out string
+			for b.Loop() {
+				out = run("appraise", study, "--generate", n, "--force")
+			}
+			b.ReportMetric(float64(strings.Count(out, " generated ")+strings.Count(out, " yours ")), "candidates/op")
+		})
+	}
 }
