@@ -8,6 +8,7 @@ import (
 
 	"github.com/paulmach/orb"
 
+	"narrows/partition"
 	"narrows/patterns/appraise"
 )
 
@@ -83,4 +84,34 @@ func ExampleParseSpec() {
 	// Output:
 	// secondary true 2 <nil>
 	// secondary bridge 9.5071,47.1402 9.5153,47.142
+}
+
+// TestUserCandidates: way/N is looked up among the scheme extract's roads,
+// drawn lines are named by their place in the list, and a way without a
+// scheme extract or missing from it is an error.
+func TestUserCandidates(t *testing.T) {
+	scheme := &partition.Routing{Roads: []partition.RoadWay{
+		{WayID: 7, Class: "tertiary", Crossing: true, Nodes: []int64{1, 2}, Line: orb.LineString{{1, 1}, {1, 2}}},
+	}}
+	got, err := appraise.UserCandidates([]string{"way/7", "primary 1,1 2,2"}, scheme)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(got) != 2 || got[0].Link.Name != "way/7" || got[0].Link.Class != "tertiary" || !got[0].Link.Crossing ||
+		!slices.Equal(got[0].Link.Nodes, []int64{1, 2}) || got[1].Link.Name != "line 2" || got[1].Generated {
+		t.Fatalf("got %+v", got)
+	}
+	for _, c := range []struct {
+		text   string
+		scheme *partition.Routing
+		want   string
+	}{
+		{"way/8", scheme, "no road of the routable classes with that id"},
+		{"way/7", nil, "the study names none"},
+		{"tram 1,1 2,2", scheme, "not a road class"},
+	} {
+		if _, err := appraise.UserCandidates([]string{c.text}, c.scheme); err == nil || !strings.Contains(err.Error(), c.want) {
+			t.Errorf("%q: %v, want %q", c.text, err, c.want)
+		}
+	}
 }
