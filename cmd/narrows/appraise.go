@@ -3,8 +3,10 @@ package main
 import (
 	"context"
 	"fmt"
+	"io"
 	"path/filepath"
 	"slices"
+	"time"
 
 	"narrows/partition"
 	"narrows/partition/route"
@@ -17,12 +19,17 @@ import (
 // runAppraise appraises candidate links for a finding of a study's
 // (before) period: the scheme's new roads and generated links.
 func runAppraise(ctx context.Context, env *environment, args []string) error {
-	fs := newFlagSet(env, "appraise", "[--finding RANK] [--generate N] [--min-class CLASS] study.toml")
+	fs := newFlagSet(env, "appraise", "[--finding RANK] [--generate N] [--min-class CLASS] [--candidate TEXT ...] study.toml")
 	rank := fs.Int("finding", 1, "rank of the finding to appraise (1 = costliest)")
 	var file string
 	var flagOpts appraise.Options
 	fs.IntVar(&flagOpts.Generate, "generate", -1, "candidates to generate (default: the study's, else 5)")
 	fs.StringVar(&flagOpts.MinClass, "min-class", "", "lowest road class at whose junctions generated links end (default tertiary)")
+	fs.Func("candidate", "a candidate of yours, added to the study's: `way/N` of the scheme extract, or \"CLASS [bridge] LON,LAT LON,LAT ...\" (repeatable)", func(v string) error {
+		flagOpts.Candidates = append(flagOpts.Candidates, v)
+		return nil
+	})
+	env.files.bindForce(fs)
 	if err := parseFlagsWithRest(env, fs, args, func(rest []string) {
 		if file == "" && len(rest) > 0 {
 			file, rest = rest[0], rest[1:]
@@ -47,7 +54,19 @@ func runAppraise(ctx context.Context, env *environment, args []string) error {
 	if flagOpts.MinClass != "" {
 		opts.MinClass = flagOpts.MinClass
 	}
+	opts.Candidates = append(slices.Clone(opts.Candidates), flagOpts.Candidates...)
+	for _, c := range opts.Candidates {
+		if _, err := appraise.ParseSpec(c); err != nil {
+			return fmt.Errorf("study file %s [appraise] candidates or --candidate: %v", file, err)
+		}
+	}
 	r := &studyRun{study: s, file: file, dir: filepath.Dir(file)}
+	out := filepath.Join(r.rel(s.Output), fmt.Sprintf("appraisal-finding-%d", *rank))
+	book, layer := out+".xlsx", out+".geojson"
+	env.files.read(file)
+	if err := env.files.claimAll([]output{{book, kindAppraisal}, {layer, kindCandidatesLayer}}); err != nil {
+		return err
+	}
 	regions, err := partition.ReadFile(ctx, r.rel(s.Regions.OSM), s.Regions.Options)
 	if err != nil {
 		return err
@@ -88,13 +107,18 @@ func runAppraise(ctx context.Context, env *environment, args []string) error {
 	if err != nil {
 		return fmt.Errorf("study file %s: %v", file, err)
 	}
+	var after *partition.Routing
 	if scheme.extract != "" {
-		after, err := partition.ReadRouting(ctx, r.rel(scheme.extract), s.Regions.Options)
-		if err != nil {
+		if after, err = partition.ReadRouting(ctx, r.rel(scheme.extract), s.Regions.Options); err != nil {
 			return err
 		}
 		cands = append(cands, appraise.FromRoads(partition.NewRoads(regions.Routing, after))...)
 	}
+	mine, err := appraise.UserCandidates(opts.Candidates, after)
+	if err != nil {
+		return fmt.Errorf("study file %s: %v", file, err)
+	}
+	cands = append(cands, mine...)
 	var pairs [][2]int
 	for _, e := range f.Edges {
 		pairs = append(pairs, [2]int{e.From, e.To})
@@ -121,8 +145,30 @@ func runAppraise(ctx context.Context, env *environment, args []string) error {
 		m, sec := appraise.ObservedSaving(pairsOf(trips), pairsOf(afterTrips), len(scan.Days))
 		observed = &report.AppraisalObserved{Name: "the scheme", Metres: m, Seconds: sec}
 	}
-	return report.WriteAppraisalText(env.stdout, report.PlaceName(f, regions), a, observed)
+	place := report.PlaceName(f, regions)
+	if err := report.WriteAppraisalText(env.stdout, place, a, observed); err != nil {
+		return err
+	}
+	created, _ := time.Parse(time.DateOnly, scan.Days[len(scan.Days)-1])
+	if err := env.files.write(book, kindAppraisal, func(w io.Writer) error {
+		return report.WriteAppraisalWorkbook(w, place, a, observed, created)
+	}); err != nil {
+		return err
+	}
+	if err := env.files.write(layer, kindCandidatesLayer, func(w io.Writer) error {
+		return report.WriteAppraisalGeoJSON(w, place, a)
+	}); err != nil {
+		return err
+	}
+	fmt.Fprintf(env.stdout, "wrote %s and %s; to keep a candidate when the inputs change, list its text (in both) in the study's [appraise] candidates\n", book, layer)
+	return nil
 }
+
+// The outputs of narrows appraise.
+const (
+	kindAppraisal       outputKind = "appraisal workbook" // .xlsx of narrows appraise
+	kindCandidatesLayer outputKind = "candidates layer"   // map layer of narrows appraise
+)
 
 // findingTrips reads the trips of a finding's edges on the given days.
 func findingTrips(ctx context.Context, regions *partition.Partition, inputs []regiongraph.Input, opts regiongraph.Options, f patterns.Finding, window string, days []string) ([]regiongraph.Trip, error) {

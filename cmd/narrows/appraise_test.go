@@ -1,11 +1,18 @@
 package main
 
 import (
+	"bytes"
+	"context"
 	"fmt"
 	"math"
+	"os"
 	"path/filepath"
 	"strings"
 	"testing"
+
+	"github.com/paulmach/orb"
+	"github.com/paulmach/orb/geojson"
+	"github.com/xuri/excelize/v2"
 )
 
 // appraisalTolerance is the documented tolerance between the estimated
@@ -60,5 +67,139 @@ func TestAppraiseDemoBridge(t *testing.T) {
 	code, _, stderr := runCLI(t, "appraise", study, "--finding", "99")
 	if code == exitOK || !strings.Contains(stderr, "no finding of rank 99") {
 		t.Errorf("finding 99: exit %d, %s", code, stderr)
+	}
+}
+
+// TestAppraiseCandidatesCLI: narrows appraise writes the candidates sheet
+// and map layer with their figures and the cautions; a generated
+// candidate's text, listed in the study's [appraise] candidates key, re-runs
+// to the same figures; bad candidate texts get clear errors.
+func TestAppraiseCandidatesCLI(t *testing.T) {
+	if testing.Short() {
+		t.Skip("end-to-end demo")
+	}
+	dir := t.TempDir()
+	mustRunCLI(t, "demo", "--dir", dir)
+	study := filepath.Join(dir, "study.toml")
+	mustRunCLI(t, "appraise", study, "--generate", "2")
+	layer := filepath.Join(dir, "out", "appraisal-finding-1.geojson")
+	feats := readCandidates(t, layer)
+	if len(feats) != 3 {
+		t.Fatalf("%d candidates in the layer, want the bridge and 2 generated", len(feats))
+	}
+	g1, ok := feats["G1"]
+	if !ok {
+		t.Fatalf("no G1 in %v", feats)
+	}
+	// The study file records the candidate: append the key and re-run
+	// with nothing generated.
+	text := g1["study_text"].(string)
+	f, err := os.OpenFile(study, os.O_APPEND|os.O_WRONLY, 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	fmt.Fprintf(f, "\n[appraise]\ngenerate = 0\ncandidates = [%q]\n", text)
+	f.Close()
+	mustRunCLI(t, "appraise", study)
+	again := readCandidates(t, layer)
+	l1, ok := again["line 1"]
+	if !ok || len(again) != 2 {
+		t.Fatalf("re-run layer %v, want the bridge and line 1", again)
+	}
+	for _, k := range []string{"length_km", "vehicle_km_saved_per_day", "vehicle_hours_saved_per_day", "share_using", "detour_with", "study_text"} {
+		if l1[k] != g1[k] {
+			t.Errorf("%s: line 1 %v, G1 was %v", k, l1[k], g1[k])
+		}
+	}
+	// The workbook's sheet holds the same candidates and the cautions.
+	wb, err := excelize.OpenFile(filepath.Join(dir, "out", "appraisal-finding-1.xlsx"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer wb.Close()
+	rows, err := wb.GetRows("Candidates")
+	if err != nil {
+		t.Fatal(err)
+	}
+	var names []string
+	var all strings.Builder
+	for _, r := range rows {
+		if len(r) > 1 && (r[1] == "line 1" || r[1] == "Lantern Bridge") {
+			names = append(names, r[1])
+			if r[1] == "line 1" && r[9] != text {
+				t.Errorf("sheet text %q, want %q", r[9], text)
+			}
+		}
+		all.WriteString(strings.Join(r, " "))
+	}
+	if len(names) != 2 {
+		t.Errorf("sheet candidates %v, want Lantern Bridge and line 1", names)
+	}
+	for _, c := range []string{"not a traffic forecast", "Induced demand", "qualified, licensed engineers"} {
+		if !strings.Contains(all.String(), c) {
+			t.Errorf("sheet: no caution %q", c)
+		}
+	}
+	for _, c := range []struct{ cand, want string }{
+		{"footway 1,2 3,4", `"footway" is not a road class`},
+		{"secondary 5,5 5.01,5", "is not within 50 m of a road of the network"},
+		{"way/999999999", "no road of the routable classes with that id"},
+		{"secondary 1,2", "at least two points"},
+	} {
+		code, _, stderr := runCLI(t, "appraise", study, "--candidate", c.cand)
+		if code == exitOK || !strings.Contains(stderr, c.want) {
+			t.Errorf("--candidate %q: exit %d, %s; want %q", c.cand, code, stderr, c.want)
+		}
+	}
+}
+
+// readCandidates reads the candidates layer: properties by name.
+func readCandidates(t *testing.T, path string) map[string]map[string]any {
+	t.Helper()
+	b, err := os.ReadFile(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	fc, err := geojson.UnmarshalFeatureCollection(b)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if c, _ := fc.ExtraMembers["cautions"].([]any); len(c) < 4 {
+		t.Errorf("layer cautions %v", fc.ExtraMembers["cautions"])
+	}
+	out := map[string]map[string]any{}
+	for _, f := range fc.Features {
+		if _, ok := f.Geometry.(orb.LineString); !ok {
+			t.Errorf("candidate %v is a %T, want a line", f.Properties["name"], f.Geometry)
+		}
+		out[f.Properties["name"].(string)] = f.Properties
+	}
+	return out
+}
+
+// BenchmarkAppraise20 times narrows appraise on the demo's crossing
+// finding, whole command (reading the extracts and trips, scanning,
+// routing), with no generated candidate and with 20 (goal: under 10 s),
+// side by side; candidates/op is the number appraised.
+func BenchmarkAppraise20(b *testing.B) {
+	dir := b.TempDir()
+	run := func(args ...string) string {
+		var out bytes.Buffer
+		env := &environment{stdout: &out, stderr: &out}
+		if code := dispatch(context.Background(), env, args); code != exitOK {
+			b.Fatalf("%v: exit %d\n%s", args, code, out.String())
+		}
+		return out.String()
+	}
+	run("demo", "--dir", dir)
+	study := filepath.Join(dir, "study.toml")
+	for _, n := range []string{"0", "20"} {
+		b.Run("generate="+n, func(b *testing.B) {
+			var out string
+			for b.Loop() {
+				out = run("appraise", study, "--generate", n, "--force")
+			}
+			b.ReportMetric(float64(strings.Count(out, " generated ")+strings.Count(out, " yours ")), "candidates/op")
+		})
 	}
 }

@@ -12,7 +12,7 @@ import (
 )
 
 // Baltimore extract: © OpenStreetMap contributors, ODbL.
-const baltimore = "../../shared/data/osm/baltimore.osm.pbf"
+const baltimore = "../../../shared/data/osm/baltimore.osm.pbf"
 
 // BenchmarkBuildBaltimore builds the routable network from the roads the
 // partition read (target < 1 s).

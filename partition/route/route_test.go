@@ -91,7 +91,7 @@ func TestShortestTimesAgainstGonumExtract(t *testing.T) {
 	if testing.Short() {
 		t.Skip("real extract")
 	}
-	path := "../../shared/data/osm/liechtenstein-latest.osm.pbf"
+	path := "../../../shared/data/osm/liechtenstein-latest.osm.pbf"
 	if _, err := os.Stat(path); err != nil {
 		t.Skip("no ../shared/data")
 	}

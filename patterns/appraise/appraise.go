@@ -34,6 +34,12 @@ type Options struct {
 	// SpacingMetres: a generated candidate whose two ends both lie within
 	// this of an earlier one's ends is a near copy and skipped (default 300).
 	SpacingMetres float64 `toml:"spacing_metres"`
+	// Candidates are the user's own candidates, each "way/N" (a way of
+	// the extract with the scheme built) or a drawn line with a road
+	// class (see Spec); none by default. Generated candidates re-generate
+	// the same from the same inputs; listing one here (its text is in the
+	// appraisal's outputs) keeps it when the inputs change.
+	Candidates []string `toml:"candidates"`
 }
 
 // DefaultOptions returns the defaults documented on each field.
