@@ -309,6 +309,7 @@ func assess(ctx context.Context, store *regiongraph.Store, regions *partition.Pa
 					continue
 				}
 				a.DaysWithTrips[p]++
+				a.DailyCost[p] = append(a.DailyCost[p], DayValue{Day: pd.days[p][d], Value: ft[d].value(Cost)})
 				if ft[d].bar {
 					a.BarDays[p]++
 				}

@@ -84,12 +84,22 @@ type Assessment struct {
 	// fixed bar (any edge at least as circuitous as the detour floor and
 	// slower than the before period's median speed).
 	DaysWithTrips, BarDays [2]int
+	// DailyCost is the finding's own cost (extra vehicle-hours) on each day
+	// of the daily series, per period, in day order: the values the cost
+	// effect is computed from, before any adjustment (for a timeline).
+	DailyCost [2][]DayValue
 	// Skyline recurrence, context only: days on which any edge was a
 	// candidate / analysed days, with the Fisher test.
 	DaysBefore, TotalBefore  int
 	DaysAfter, TotalAfter    int
 	FisherP, FisherPAdjusted float64
 	Focus                    bool // within the focus area
+}
+
+// DayValue is one day's value of a daily series.
+type DayValue struct {
+	Day   string // YYYY-MM-DD
+	Value float64
 }
 
 // BarShare returns the share of the days of period p (0 before, 1 after)

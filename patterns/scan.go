@@ -120,24 +120,21 @@ func ScanStore(ctx context.Context, store *regiongraph.Store, opts ScanOptions) 
 // records them in scan, with the daily values of every edge that was a
 // candidate on at least one day.
 func findCandidates(ctx context.Context, scan *Scan, graphs [][]regiongraph.Edge) error {
+	indices, err := dayCandidates(ctx, graphs, scan.Options.Skyline, scan.Options.Progress)
+	if err != nil {
+		return err
+	}
 	candidate := make([][]bool, len(graphs)) // per day, per edge of its graph
 	for d, graph := range graphs {
-		if err := ctx.Err(); err != nil {
-			return err
-		}
-		res := skyline.Candidates(graph, scan.Options.Skyline)
-		keys := make([]EdgeKey, len(res.Indices))
+		keys := make([]EdgeKey, len(indices[d]))
 		candidate[d] = make([]bool, len(graph))
-		for j, i := range res.Indices {
+		for j, i := range indices[d] {
 			keys[j] = EdgeKey{From: graph[i].From, To: graph[i].To}
 			candidate[d][i] = true
 			scan.EdgeDaily[keys[j]] = nil
 		}
 		scan.CandidatesPerDay[d] = len(keys)
 		scan.DayCandidates[d] = keys // graphs are sorted by From, To
-		if p := scan.Options.Progress; p != nil {
-			p("candidates", d+1, len(graphs))
-		}
 	}
 	for d, graph := range graphs {
 		for i := range graph {

@@ -62,6 +62,8 @@ type htmlPage struct {
 	Inputs                         [][2]string
 	Analysed                       [][2]string
 	MinTrips                       int
+	Timeline                       template.HTML // inline SVG, built from escaped parts
+	TimelineCaption                string
 }
 
 var pageTemplate = template.Must(template.New("page").Parse(`<!DOCTYPE html>
@@ -117,7 +119,10 @@ details.reason summary { cursor: pointer; color: #333333; }
 <tr><th>Verdict</th><th>Weak links</th><th>Meaning</th>{{if .Focus}}<th>In focus area</th>{{end}}</tr>
 {{range .Verdicts}}<tr><td><span class="swatch" style="background: {{.Colour}}; color: {{.Text}}">{{.Name}}</span></td><td class="num">{{.Count}}</td><td>{{.Meaning}}</td>{{if $.Focus}}<td class="num">{{.Focus}}</td>{{end}}</tr>
 {{end}}</table>{{end}}
-<h2>Weak links</h2>
+{{if .Timeline}}<h2>Timeline</h2>
+<p class="caption">{{.TimelineCaption}}</p>
+{{.Timeline}}
+{{end}}<h2>Weak links</h2>
 {{if .Rows}}<table id="findings">
 <tr>{{if .Comparing}}<th>Rank (period)</th>{{else}}<th>Rank</th>{{end}}<th>Place (edges)</th>{{if .Comparing}}<th>Verdict</th><th>Cost before veh-h/day (95 % CI)</th><th>Cost after veh-h/day (95 % CI)</th><th>Adjusted change veh-h/day (95 % CI)</th><th>Adjusted travel time change min (95 % CI)</th>{{else}}<th>Share of days</th><th>Trips per day</th><th>Speed km/h</th><th>Detour ratio</th><th>Extra km per day</th><th>Extra vehicle-hours per day</th>{{end}}</tr>
 {{range .Rows}}<tr><td class="num">{{.Rank}}{{if $.Comparing}} ({{.Period}}){{end}}</td><td title="Edges {{.Edges}}">{{.Name}} <span class="ci">({{.ID}})</span>{{if .Focus}} (focus){{end}}</td>{{if $.Comparing}}<td><span class="swatch" style="background: {{.Colour}}; color: {{.Text}}">{{.Verdict}}</span></td><td class="num">{{.CostBefore}}</td><td class="num">{{.CostAfter}}</td><td class="num">{{.CostShift}}{{if .CostCI}}<br/><span class="ci">{{.CostCI}}</span>{{end}}</td><td class="num">{{.TimeShift}}{{if .TimeCI}}<br/><span class="ci">{{.TimeCI}}</span>{{end}}</td>{{else}}<td class="num">{{.Share}}</td><td class="num">{{.Trips}}</td><td class="num">{{.Speed}}</td><td class="num">{{.Detour}}</td><td class="num">{{.ExtraKM}}</td><td class="num">{{.ExtraHours}}</td>{{end}}</tr>
@@ -157,6 +162,8 @@ func (v *view) html(w io.Writer) error {
 		pg.Version = "(version not given)"
 	}
 	pg.Network, pg.Scheme = NetworkChange(v.in), v.schemeLine()
+	svg, caption := v.costTimeline()
+	pg.Timeline, pg.TimelineCaption = template.HTML(svg), caption // built from escaped parts in costTimeline()
 	pg.SummaryHead = v.summaryColumns()
 	sum, vds, more := v.summaryRows()
 	for i, cells := range sum {
@@ -266,6 +273,7 @@ func fmtInterval(x, lo, hi float64, d int) (shift, interval string) {
 func (pg *htmlPage) clean() {
 	pg.Title, pg.Area, pg.Headline, pg.Version = cleanText(pg.Title), cleanText(pg.Area), cleanText(pg.Headline), cleanText(pg.Version)
 	pg.MapCaption, pg.Network, pg.Scheme = cleanText(pg.MapCaption), cleanText(pg.Network), cleanText(pg.Scheme)
+	pg.TimelineCaption = cleanText(pg.TimelineCaption)
 	for i := range pg.Summary {
 		for j := range pg.Summary[i].Cells {
 			pg.Summary[i].Cells[j] = cleanText(pg.Summary[i].Cells[j])

@@ -156,13 +156,7 @@ func NetworkChange(in Input) string {
 }
 
 func comparisonHeadline(c *patterns.Comparison, regions *partition.Partition) string {
-	var lead *patterns.Assessment
-	for i := range c.Assessments {
-		a := &c.Assessments[i]
-		if a.InBefore && (lead == nil || a.Finding.Rank < lead.Finding.Rank) {
-			lead = a
-		}
-	}
+	lead := costliestBefore(c)
 	others := map[patterns.Verdict]int{}
 	n := 0
 	for i := range c.Assessments {
