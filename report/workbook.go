@@ -30,7 +30,7 @@ func Sheets(in Input) []string {
 	if in.Comparison != nil {
 		s = append(s, SheetComparison)
 	}
-	return append(s, SheetDaily, SheetTimeline, SheetScatter, SheetRegions, SheetDataQuality, SheetInputs, SheetMethod)
+	return append(s, SheetDaily, SheetTimeline, SheetScatter, SheetCostDays, SheetRegions, SheetDataQuality, SheetInputs, SheetMethod)
 }
 
 // WriteWorkbook writes the study workbook (.xlsx; see Sheets for its
@@ -72,6 +72,7 @@ func (v *view) workbook(w io.Writer) error {
 	b.daily()
 	b.timeline()
 	b.scatter()
+	b.costDays()
 	b.regionsSheet()
 	b.quality()
 	b.inputsSheet()
