@@ -16,7 +16,7 @@ import (
 // SheetCostDays is the sheet of each weak link's daily cost and detour.
 const SheetCostDays = "Cost by day"
 
-// costDaysMax is how many weak links (in the report's order) get a block
+// costDaysMax is how many weak links (in the summary's order) get a block
 // and charts: beyond it the charts no longer help a reader.
 const costDaysMax = 10
 
@@ -103,7 +103,7 @@ func (b *book) costDays() {
 	np := len(v.periods)
 	s.add(b.bold("Each weak link's extra vehicle-hours and detour ratio on every analysed day, one column per period; the charts show them with the scheme's opening marked."))
 	s.skip(1)
-	for n, it := range v.items {
+	for n, it := range v.summaryOrder() {
 		if n == costDaysMax {
 			s.add(b.str(strconv.Itoa(len(v.items)-n) + " more weak links are not shown here; their days are on the Daily sheet."))
 			break
