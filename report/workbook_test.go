@@ -64,7 +64,7 @@ func TestWorkbookSheets(t *testing.T) {
 		in   Input
 		want []string
 	}{
-		{"comparison", fxInput(), []string{"Summary", "Weak links", "Edges", "Comparison", "Daily", "Timeline", "Speed v detour", "Cost by day", "Regions", "Data quality", "Inputs", "Method"}},
+		{"comparison", fxInput(), []string{"Summary", "Weak links", "Edges", "Comparison", "Comparison detail", "Daily", "Timeline", "Speed v detour", "Cost by day", "Regions", "Data quality", "Inputs", "Method"}},
 		{"scan", fxScanInput(), []string{"Summary", "Weak links", "Edges", "Daily", "Timeline", "Speed v detour", "Cost by day", "Regions", "Data quality", "Inputs", "Method"}},
 	}
 	for _, tc := range tests {
@@ -120,6 +120,14 @@ func TestWorkbookValues(t *testing.T) {
 
 	// Comparison figures.
 	cmp := rowsByKey(t, f, SheetComparison, "Weak link")
+	for id, row := range rowsByKey(t, f, SheetComparisonDetail, "Weak link") {
+		for col, v := range row {
+			if got, ok := cmp[id][col]; ok && got != v {
+				t.Errorf("%s and %s disagree on %s %q: %q and %q", SheetComparison, SheetComparisonDetail, id, col, got, v)
+			}
+			cmp[id][col] = v
+		}
+	}
 	for id, cols := range map[string]map[string]string{
 		"1>2": {"Skyline days before": "10", "Days analysed before": "14", "Fisher p adjusted": "0.8100", "Decided by": "time",
 			"Cost before veh-h/day": "3.0", "Cost before CI low": "2.7", "Cost after veh-h/day": "3.4", "Cost after CI high": "3.7", "Cost adjusted change": "+0.4", "Cost adjusted CI low": "+0.1", "Comparison group change": "2.0%",
@@ -418,7 +426,7 @@ func TestWorkbookChartsAndPicture(t *testing.T) {
 
 func TestWorkbookFrozenAndFiltered(t *testing.T) {
 	f, _ := writeBook(t, fxInput())
-	for _, sh := range []string{SheetFindings, SheetEdges, SheetComparison, SheetDaily, SheetTimeline, SheetScatter, SheetRegions, SheetDataQuality, SheetMethod} {
+	for _, sh := range []string{SheetFindings, SheetEdges, SheetComparison, SheetComparisonDetail, SheetDaily, SheetTimeline, SheetScatter, SheetRegions, SheetDataQuality, SheetMethod} {
 		p, err := f.GetPanes(sh)
 		if err != nil {
 			t.Fatal(err)
@@ -434,7 +442,7 @@ func TestWorkbookFrozenAndFiltered(t *testing.T) {
 			filtered[dn.Scope] = true
 		}
 	}
-	for _, sh := range []string{SheetFindings, SheetComparison, SheetDaily, SheetRegions} {
+	for _, sh := range []string{SheetFindings, SheetComparison, SheetComparisonDetail, SheetDaily, SheetRegions} {
 		if !filtered[sh] {
 			t.Errorf("%s has no autofilter", sh)
 		}
