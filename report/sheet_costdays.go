@@ -101,16 +101,19 @@ func (b *book) costDays() {
 	}
 	cols := v.costDayHeaders(opening != "")
 	np := len(v.periods)
-	s.add(b.bold("Each weak link's extra vehicle-hours and detour ratio on every analysed day, one column per period; the charts show them with the scheme's opening marked."))
+	// The intro and the block titles overflow into the empty cells to their
+	// right: they do not size column A.
+	label := func(c cell) { w := s.widths[1]; s.add(c); s.widths[1] = w }
+	label(b.bold("Each weak link's extra vehicle-hours and detour ratio on every analysed day, one column per period; the charts show them with the scheme's opening marked."))
 	s.skip(1)
 	for n, it := range v.summaryOrder() {
 		if n == costDaysMax {
-			s.add(b.str(strconv.Itoa(len(v.items)-n) + " more weak links are not shown here; their days are on the Daily sheet."))
+			label(b.str(strconv.Itoa(len(v.items)-n) + " more weak links are not shown here; their days are on the Daily sheet."))
 			break
 		}
 		title := "Rank " + strconv.Itoa(it.Finding.Rank) + " (" + v.periodOf(it) + "): " + it.Name + " (" + it.Finding.ID + ")"
 		top := s.row
-		s.add(b.bold(title))
+		label(b.bold(title))
 		head := s.row
 		hc := make([]cell, len(cols))
 		for i, c := range cols {
@@ -186,7 +189,7 @@ func (b *book) costDayCharts(name string, head, n, ncols int, opening bool) {
 		b.fail(b.f.AddChart(SheetCostDays, at, &excelize.Chart{
 			Type:      excelize.Line,
 			Series:    series,
-			Title:     excelize.ChartTitle{Paragraph: []excelize.RichTextRun{{Text: name + ": " + title}}},
+			Title:     excelize.ChartTitle{Paragraph: []excelize.RichTextRun{{Text: upperFirst(name) + ": " + title}}},
 			Legend:    excelize.ChartLegend{Position: "bottom"},
 			XAxis:     excelize.ChartAxis{TickLabelSkip: max(n/8, 1), Alignment: excelize.Alignment{TextRotation: -45}, Font: axisFont()},
 			YAxis:     excelize.ChartAxis{Title: excelize.ChartTitle{Paragraph: []excelize.RichTextRun{{Text: axis}}}, MajorGridLines: true, Font: axisFont()},
