@@ -42,31 +42,67 @@ func (b *book) timelineChart(head, n int, opening bool) {
 	}))
 }
 
-// Series names of the speed-against-detour chart. excelize v2.11.1 writes
-// a series name only as a cell reference; fixChart turns these literal
-// names into literal series text.
-const (
-	scatterOthers     = "Edge-day, not a candidate"
-	scatterCandidates = "Candidate edge-day"
-)
+// scatterName is the literal name of a series of the speed-against-detour
+// chart: the edge-days of one period, candidates or not. excelize v2.11.1
+// writes a series name only as a cell reference; fixChart turns these
+// literal names (scatterNames) into literal series text.
+func scatterName(period string, candidate bool) string {
+	if candidate {
+		return upperFirst(period) + ", candidate edge-day"
+	}
+	return upperFirst(period) + ", edge-day not a candidate"
+}
+
+// scatterPeriods are the period labels a scatter series can carry.
+var scatterPeriods = []string{"before", "after", "study"}
+
+// scatterNames lists every literal series name the scatter chart can use.
+func scatterNames() []string {
+	var names []string
+	for _, p := range scatterPeriods {
+		names = append(names, scatterName(p, false), scatterName(p, true))
+	}
+	return names
+}
+
+// scatterColour is the marker colour of a scatter series: greys and the
+// worse colour before (or in a single study), blues after, so that before
+// and after read apart even in print.
+func scatterColour(period string, candidate bool) string {
+	switch {
+	case period == "after" && candidate:
+		return "#08519C"
+	case period == "after":
+		return "#9ECAE1"
+	case candidate:
+		return lookOf(patterns.Worse).Hex
+	}
+	return "#999999"
+}
+
+// scatterBlock is a run of rows of the Speed v detour sheet that makes one
+// chart series: rows from to to (0-based below the header).
+type scatterBlock struct {
+	period    string
+	candidate bool
+	from, to  int
+}
 
 // scatterChart draws the speed-against-detour chart of the Speed v detour
-// sheet, whose rows below the header row head hold the shown
-// non-candidates, then from firstCand the shown candidates, then from
-// firstSupp the suppressed edge-days, which stay out of the chart.
-func (b *book) scatterChart(head, firstCand, firstSupp int) {
-	seriesOf := func(name, colour string, size, from, to int) excelize.ChartSeries {
-		r := func(col string) string { return columnRange(SheetScatter, col, head+1+from, head+to) }
-		fill := excelize.Fill{Type: "pattern", Pattern: 1, Color: []string{colour}}
-		return excelize.ChartSeries{Name: name, Categories: r("H"), Values: r("G"),
-			Marker: excelize.ChartMarker{Symbol: "circle", Size: size, Fill: fill}, Fill: fill}
-	}
+// sheet, one series per block of rows below the header row head: each
+// period's non-candidate and candidate edge-days. Suppressed edge-days
+// stay out of the chart.
+func (b *book) scatterChart(head int, blocks []scatterBlock) {
 	var series []excelize.ChartSeries
-	if firstCand > 0 {
-		series = append(series, seriesOf(scatterOthers, "#999999", 4, 0, firstCand))
-	}
-	if firstCand < firstSupp {
-		series = append(series, seriesOf(scatterCandidates, lookOf(patterns.Worse).Hex, 6, firstCand, firstSupp))
+	for _, bl := range blocks {
+		r := func(col string) string { return columnRange(SheetScatter, col, head+1+bl.from, head+bl.to) }
+		size := 4
+		if bl.candidate {
+			size = 6
+		}
+		fill := excelize.Fill{Type: "pattern", Pattern: 1, Color: []string{scatterColour(bl.period, bl.candidate)}}
+		series = append(series, excelize.ChartSeries{Name: scatterName(bl.period, bl.candidate), Categories: r("H"), Values: r("G"),
+			Marker: excelize.ChartMarker{Symbol: "circle", Size: size, Fill: fill}, Fill: fill})
 	}
 	if len(series) == 0 {
 		return

@@ -73,7 +73,7 @@ func ExampleWriteWorkbook() {
 		fmt.Printf("%s: %s\n", rows[0][col], rows[1][col])
 	}
 	// Output:
-	// [Summary Weak links Edges Daily Timeline Speed v detour Regions Data quality Inputs Method]
+	// [Summary Weak links Edges Daily Timeline Speed v detour Cost by day Regions Data quality Inputs Method]
 	// Trips per day: 24
 	// Speed km/h: 15.1
 	// Detour ratio: 2.30

@@ -118,13 +118,13 @@ func rewritePart(zw *zip.Writer, zf *zip.File) error {
 // chart's x values as a string reference, which spreadsheet programs then
 // plot as categories 1, 2, 3... instead of the detour ratios; and series
 // names only as cell references, so that the literal names of the scatter
-// series (scatterOthers, scatterCandidates) would show as "Column G" or an
+// series (scatterNames) would show as "Column G" or an
 // error. Delete when excelize writes numeric x values and literal series
 // names.
 func fixChart(data []byte) []byte {
 	data = bytes.ReplaceAll(data, []byte("<xVal><strRef>"), []byte("<xVal><numRef>"))
 	data = bytes.ReplaceAll(data, []byte("</strRef></xVal>"), []byte("</numRef></xVal>"))
-	for _, name := range []string{scatterOthers, scatterCandidates} {
+	for _, name := range scatterNames() {
 		data = bytes.ReplaceAll(data, []byte("<tx><strRef><f>"+name+"</f></strRef></tx>"), []byte("<tx><v>"+name+"</v></tx>"))
 	}
 	return data

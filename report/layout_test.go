@@ -6,6 +6,7 @@ import (
 	"image/color"
 	"image/png"
 	"math"
+	"reflect"
 	"strconv"
 	"strings"
 	"testing"
@@ -14,7 +15,7 @@ import (
 )
 
 // tableSheets are the sheets that hold one table with its header in row 1.
-var tableSheets = []string{SheetFindings, SheetEdges, SheetComparison, SheetDaily, SheetTimeline, SheetScatter, SheetRegions, SheetDataQuality, SheetMethod}
+var tableSheets = []string{SheetFindings, SheetEdges, SheetComparison, SheetComparisonDetail, SheetDaily, SheetTimeline, SheetScatter, SheetRegions, SheetDataQuality, SheetMethod}
 
 // TestHeadersNameUnits checks that every header of a speed or detour
 // column says its unit: km/h for speeds, "ratio" for detours (a ratio of
@@ -456,6 +457,66 @@ func TestFmtInterval(t *testing.T) {
 		shift, within := fmtInterval(tc.x, tc.lo, tc.hi, tc.d)
 		if shift != tc.shift || within != tc.within {
 			t.Errorf("fmtInterval(%v, %v, %v, %d) = %q, %q; want %q, %q", tc.x, tc.lo, tc.hi, tc.d, shift, within, tc.shift, tc.within)
+		}
+	}
+}
+
+// TestComparisonColumns: the Comparison sheet holds the key columns a
+// reader needs, in reading order, and prints one page wide with its header
+// repeated; the Comparison detail sheet holds every other column once,
+// keyed by rank, place and weak link.
+func TestComparisonColumns(t *testing.T) {
+	f, _ := writeBook(t, fxInput())
+	header := func(sheet string) []string {
+		rows, err := f.GetRows(sheet)
+		if err != nil || len(rows) == 0 {
+			t.Fatalf("%s: %v", sheet, err)
+		}
+		return rows[0]
+	}
+	key := header(SheetComparison)
+	want := []string{"Rank in period", "Ranked in", "Place", "Weak link", "Verdict",
+		"Cost before veh-h/day", "Cost before CI low", "Cost before CI high", "Cost after veh-h/day", "Cost after CI low", "Cost after CI high",
+		"Cost adjusted change", "Cost adjusted CI low", "Cost adjusted CI high", "Reason"}
+	if !reflect.DeepEqual(key, want) {
+		t.Errorf("%s columns\n%q\nwant\n%q", SheetComparison, key, want)
+	}
+	detail := header(SheetComparisonDetail)
+	if !reflect.DeepEqual(detail[:4], want[:4]) {
+		t.Errorf("%s starts with %q, want the keys %q", SheetComparisonDetail, detail[:4], want[:4])
+	}
+	seen := map[string]int{}
+	for _, c := range append(key[4:], detail[4:]...) {
+		seen[c]++
+	}
+	for c, n := range seen {
+		if n > 1 {
+			t.Errorf("column %q is on both sheets", c)
+		}
+	}
+	// Every statistic per measure is still in the workbook.
+	for _, c := range []string{"Decided by", "Focus", "Cost raw change", "Comparison group change", "Cost p adjusted", "Travel time before min",
+		"Travel time adjusted CI high", "Speed before km/h", "Detour ratio after", "Days with trips after", "Comparison pairs", "Fisher p adjusted"} {
+		if seen[c] != 1 {
+			t.Errorf("column %q is on neither comparison sheet", c)
+		}
+	}
+	titles := map[string]string{}
+	for _, dn := range f.GetDefinedName() {
+		if dn.Name == "_xlnm.Print_Titles" {
+			titles[dn.Scope] = dn.RefersTo
+		}
+	}
+	for _, sh := range []string{SheetComparison, SheetComparisonDetail} {
+		pl, err := f.GetPageLayout(sh)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if pl.Orientation == nil || *pl.Orientation != "landscape" || pl.FitToWidth == nil || *pl.FitToWidth != 1 || pl.FitToHeight == nil || *pl.FitToHeight != 0 {
+			t.Errorf("%s page layout %+v, want landscape, one page wide, as tall as needed", sh, pl)
+		}
+		if want := "'" + sh + "'!$1:$1"; titles[sh] != want {
+			t.Errorf("%s print titles %q, want %q", sh, titles[sh], want)
 		}
 	}
 }

@@ -220,13 +220,14 @@ func TestNonFiniteValues(t *testing.T) {
 	}
 	f, _ := writeBook(t, in)
 	cmp := rowsByKey(t, f, SheetComparison, "Weak link")
-	if got := cmp["1>2"]["Fisher p adjusted"]; got != "0.8100" {
+	detail := rowsByKey(t, f, SheetComparisonDetail, "Weak link")
+	if got := detail["1>2"]["Fisher p adjusted"]; got != "0.8100" {
 		t.Errorf("Fisher p adjusted shown as %q, want 0.8100", got)
 	}
 	if got := cmp["1>2"]["Cost adjusted change"]; got != "" {
 		t.Errorf("NaN cost change shown as %q, want blank", got)
 	}
-	if got := cmp["1>2"]["Fisher p"]; got != "" {
+	if got := detail["1>2"]["Fisher p"]; got != "" {
 		t.Errorf("NaN Fisher p shown as %q, want blank", got)
 	}
 }

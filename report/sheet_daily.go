@@ -168,27 +168,29 @@ func (b *book) scatter() {
 			}
 		}
 	}
-	// Shown non-candidates first, then shown candidates, so that each chart
-	// series is one block of rows; suppressed edge-days come last and stay
-	// out of the chart (their cells hold markers, not numbers).
+	// Shown edge-days by period, non-candidates before candidates, so that
+	// each chart series is one block of rows; suppressed edge-days come
+	// last and stay out of the chart (their cells hold markers, not
+	// numbers).
 	block := func(pt edgeDay) int {
-		switch {
-		case v.suppressed(float64(pt.d.Trips)):
-			return 2
-		case pt.d.Candidate:
-			return 1
+		if v.suppressed(float64(pt.d.Trips)) {
+			return 2 * len(v.periods)
 		}
-		return 0
+		k := 2 * pt.period
+		if pt.d.Candidate {
+			k++
+		}
+		return k
 	}
 	sort.SliceStable(pts, func(i, j int) bool { return block(pts[i]) < block(pts[j]) })
-	firstCand, firstSupp := len(pts), len(pts)
+	var blocks []scatterBlock
 	rows := make([][]cell, len(pts))
 	for i, pt := range pts {
-		if k := block(pt); k >= 1 && firstCand == len(pts) {
-			firstCand = i
-		}
-		if block(pt) == 2 && firstSupp == len(pts) {
-			firstSupp = i
+		if k := block(pt); k < 2*len(v.periods) {
+			if n := len(blocks); n == 0 || block(pts[blocks[n-1].from]) != k {
+				blocks = append(blocks, scatterBlock{period: v.periods[pt.period].Label, candidate: pt.d.Candidate, from: i})
+			}
+			blocks[len(blocks)-1].to = i + 1
 		}
 		tr := float64(pt.d.Trips)
 		rows[i] = []cell{yesNo(pt.d.Candidate, b.st.centre), b.str(v.periods[pt.period].Label), b.str(pt.d.Day), b.count(pt.key.From), b.count(pt.key.To),
@@ -198,6 +200,6 @@ func (b *book) scatter() {
 		if len(pts) == 0 || head+len(pts) > excelize.TotalRows {
 			return
 		}
-		b.scatterChart(head, firstCand, firstSupp)
+		b.scatterChart(head, blocks)
 	})
 }

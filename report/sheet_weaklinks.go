@@ -91,16 +91,26 @@ func (b *book) edges() {
 	s.finish()
 }
 
+// comparisonKey are the Comparison sheet's columns after the rank
+// columns, in order: what a reader needs to see on a printed page. Every
+// other column goes to the Comparison detail sheet, which repeats the rank
+// columns, the place and the weak link as keys.
+var comparisonKey = []string{"Place", "Weak link", "Verdict",
+	"Cost before veh-h/day", "Cost before CI low", "Cost before CI high", "Cost after veh-h/day", "Cost after CI low", "Cost after CI high",
+	"Cost adjusted change", "Cost adjusted CI low", "Cost adjusted CI high", "Reason"}
+
+// comparisonKeys are the columns both comparison sheets carry.
+var comparisonKeys = map[string]bool{"Place": true, "Weak link": true}
+
 func (b *book) comparison() {
 	v := b.v
-	s := b.newSheet(SheetComparison)
 	cols := append(v.rankColumns(), "Place", "Weak link", "Verdict", "Decided by", "Focus",
 		"Cost before veh-h/day", "Cost before CI low", "Cost before CI high", "Cost after veh-h/day", "Cost after CI low", "Cost after CI high", "Cost raw change", "Comparison group change", "Cost adjusted change", "Cost adjusted CI low", "Cost adjusted CI high", "Cost adjusted change share", "Cost p adjusted",
 		"Travel time before min", "Travel time after min", "Travel time raw change", "Comparison group travel time change", "Travel time adjusted change", "Travel time adjusted CI low", "Travel time adjusted CI high", "Travel time adjusted change share", "Travel time p adjusted",
 		"Trips per day before", "Trips per day after", "Speed before km/h", "Speed after km/h", "Detour ratio before", "Detour ratio after",
 		"Days at the fixed bar before", "Days with trips before", "Days at the fixed bar after", "Days with trips after", "Comparison pairs",
 		"Skyline days before", "Skyline days after", "Days analysed before", "Days analysed after", "Fisher p adjusted", "Reason")
-	head := s.header(cols...)
+	var rows [][]cell
 	for _, it := range v.items {
 		a := it.Assessment
 		t := totals(a.Finding)
@@ -113,9 +123,7 @@ func (b *book) comparison() {
 			}
 			return numCell(x, b.st.pct)
 		}
-		// The reason wraps in its column; the row is made tall enough.
-		s.tall(wrappedLines(Reason(a), reasonWidth*9/10))
-		s.add(append(b.rankCells(it), b.str(it.Name), b.str(a.Finding.ID), textCell(string(a.Verdict), b.st.verdict[a.Verdict]), b.str(string(a.Basis)), yesNo(a.Focus, b.st.centre),
+		rows = append(rows, append(b.rankCells(it), b.str(it.Name), b.str(a.Finding.ID), textCell(string(a.Verdict), b.st.verdict[a.Verdict]), b.str(string(a.Basis)), yesNo(a.Focus, b.st.centre),
 			g(c.Before, b.st.dec1), g(c.BeforeLow, b.st.dec1), g(c.BeforeHigh, b.st.dec1), g(c.After, b.st.dec1), g(c.AfterLow, b.st.dec1), g(c.AfterHigh, b.st.dec1), g(c.Raw, b.st.signed1), pct(c.Group), g(c.Adjusted.Shift, b.st.signed1), g(c.Adjusted.Low, b.st.signed1), g(c.Adjusted.High, b.st.signed1), pct(c.Relative), b.pval(c.Adjusted.PAdjusted),
 			g(minutes(tt.Before), b.st.dec1), g(minutes(tt.After), b.st.dec1), g(minutes(tt.Raw), b.st.signed1), pct(tt.Group), g(minutes(tt.Adjusted.Shift), b.st.signed1), g(minutes(tt.Adjusted.Low), b.st.signed1), g(minutes(tt.Adjusted.High), b.st.signed1), pct(tt.Relative), b.pval(tt.Adjusted.PAdjusted),
 			g(a.Effects[patterns.Trips].Before, b.st.dec1), g(a.Effects[patterns.Trips].After, b.st.dec1),
@@ -124,10 +132,60 @@ func (b *book) comparison() {
 			b.count(a.BarDays[0]), b.count(a.DaysWithTrips[0]), b.count(a.BarDays[1]), b.count(a.DaysWithTrips[1]), b.count(len(a.Group.Edges)),
 			b.count(a.DaysBefore), b.count(a.DaysAfter), b.count(a.TotalBefore), b.count(a.TotalAfter), b.pval(a.FisherPAdjusted),
 			textCell(Reason(a), b.st.wrap),
-		)...)
+		))
 	}
-	s.filter(head, len(cols))
-	s.widths[len(cols)], s.maxWidth = reasonWidth, reasonWidth
+	// Split the columns: the rank columns lead both sheets; the key
+	// columns in comparisonKey's order, the rest in their own order.
+	nr := len(v.rankColumns())
+	at := map[string]int{}
+	for i, c := range cols {
+		at[c] = i
+	}
+	key, detail := make([]int, 0, nr+len(comparisonKey)), make([]int, 0, len(cols))
+	for i := range nr {
+		key, detail = append(key, i), append(detail, i)
+	}
+	inKey := map[string]bool{}
+	for _, c := range comparisonKey {
+		key = append(key, at[c])
+		inKey[c] = true
+	}
+	for i, c := range cols[nr:] {
+		if !inKey[c] || comparisonKeys[c] {
+			detail = append(detail, nr+i)
+		}
+	}
+	b.comparisonSheet(SheetComparison, cols, rows, key, true)
+	b.comparisonSheet(SheetComparisonDetail, cols, rows, detail, false)
+}
+
+// comparisonSheet writes the columns idx of cols and rows as sheet name;
+// with reason, its last column is the wrapping reason.
+func (b *book) comparisonSheet(name string, cols []string, rows [][]cell, idx []int, reason bool) {
+	s := b.newSheet(name)
+	pick := func(all []string) []string {
+		out := make([]string, len(idx))
+		for i, j := range idx {
+			out[i] = all[j]
+		}
+		return out
+	}
+	head := s.header(pick(cols)...)
+	for _, row := range rows {
+		cells := make([]cell, len(idx))
+		for i, j := range idx {
+			cells[i] = row[j]
+		}
+		if reason {
+			// The reason wraps in its column; the row is made tall enough.
+			s.tall(wrappedLines(cells[len(cells)-1].s, reasonWidth*9/10))
+		}
+		s.add(cells...)
+	}
+	s.filter(head, len(idx))
+	if reason {
+		s.widths[len(idx)], s.maxWidth = reasonWidth, reasonWidth
+	}
 	s.finish()
 }
 

@@ -28,15 +28,7 @@ func (v *view) summaryColumns() []string {
 // them (before-period findings first, by rank, then the after period's)
 // with their verdicts, and how many more there are.
 func (v *view) summaryRows() (rows [][]string, verdicts []patterns.Verdict, more int) {
-	items := append([]item(nil), v.items...)
-	sort.SliceStable(items, func(i, j int) bool {
-		pi, pj := v.periodOf(items[i]) == "after", v.periodOf(items[j]) == "after"
-		if pi != pj {
-			return !pi
-		}
-		return items[i].Finding.Rank < items[j].Finding.Rank
-	})
-	for _, it := range items {
+	for _, it := range v.summaryOrder() {
 		if len(rows) == summaryLimit {
 			more++
 			continue
@@ -92,4 +84,18 @@ func (v *view) schemeLine() string {
 		return "opened on " + opening
 	}
 	return ""
+}
+
+// summaryOrder returns the report's weak links in the summary's order:
+// before-period findings first, by rank, then the after period's.
+func (v *view) summaryOrder() []item {
+	items := append([]item(nil), v.items...)
+	sort.SliceStable(items, func(i, j int) bool {
+		pi, pj := v.periodOf(items[i]) == "after", v.periodOf(items[j]) == "after"
+		if pi != pj {
+			return !pi
+		}
+		return items[i].Finding.Rank < items[j].Finding.Rank
+	})
+	return items
 }

@@ -8,29 +8,32 @@ import (
 	"github.com/xuri/excelize/v2"
 )
 
-// Sheet names of the workbook, in order. SheetComparison is present only
-// with a comparison.
+// Sheet names of the workbook, in order. SheetComparison and
+// SheetComparisonDetail are present only with a comparison.
 const (
-	SheetSummary     = "Summary"
-	SheetFindings    = "Weak links"
-	SheetEdges       = "Edges"
-	SheetComparison  = "Comparison"
-	SheetDaily       = "Daily"
-	SheetTimeline    = "Timeline"
-	SheetScatter     = "Speed v detour"
-	SheetRegions     = "Regions"
-	SheetDataQuality = "Data quality"
-	SheetInputs      = "Inputs"
-	SheetMethod      = "Method"
+	SheetSummary    = "Summary"
+	SheetFindings   = "Weak links"
+	SheetEdges      = "Edges"
+	SheetComparison = "Comparison"
+	// SheetComparisonDetail holds the Comparison sheet's statistics per
+	// measure, so that the Comparison sheet itself prints legibly.
+	SheetComparisonDetail = "Comparison detail"
+	SheetDaily            = "Daily"
+	SheetTimeline         = "Timeline"
+	SheetScatter          = "Speed v detour"
+	SheetRegions          = "Regions"
+	SheetDataQuality      = "Data quality"
+	SheetInputs           = "Inputs"
+	SheetMethod           = "Method"
 )
 
 // Sheets returns the names of the sheets WriteWorkbook writes for in.
 func Sheets(in Input) []string {
 	s := []string{SheetSummary, SheetFindings, SheetEdges}
 	if in.Comparison != nil {
-		s = append(s, SheetComparison)
+		s = append(s, SheetComparison, SheetComparisonDetail)
 	}
-	return append(s, SheetDaily, SheetTimeline, SheetScatter, SheetRegions, SheetDataQuality, SheetInputs, SheetMethod)
+	return append(s, SheetDaily, SheetTimeline, SheetScatter, SheetCostDays, SheetRegions, SheetDataQuality, SheetInputs, SheetMethod)
 }
 
 // WriteWorkbook writes the study workbook (.xlsx; see Sheets for its
@@ -72,6 +75,7 @@ func (v *view) workbook(w io.Writer) error {
 	b.daily()
 	b.timeline()
 	b.scatter()
+	b.costDays()
 	b.regionsSheet()
 	b.quality()
 	b.inputsSheet()

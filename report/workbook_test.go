@@ -64,8 +64,8 @@ func TestWorkbookSheets(t *testing.T) {
 		in   Input
 		want []string
 	}{
-		{"comparison", fxInput(), []string{"Summary", "Weak links", "Edges", "Comparison", "Daily", "Timeline", "Speed v detour", "Regions", "Data quality", "Inputs", "Method"}},
-		{"scan", fxScanInput(), []string{"Summary", "Weak links", "Edges", "Daily", "Timeline", "Speed v detour", "Regions", "Data quality", "Inputs", "Method"}},
+		{"comparison", fxInput(), []string{"Summary", "Weak links", "Edges", "Comparison", "Comparison detail", "Daily", "Timeline", "Speed v detour", "Cost by day", "Regions", "Data quality", "Inputs", "Method"}},
+		{"scan", fxScanInput(), []string{"Summary", "Weak links", "Edges", "Daily", "Timeline", "Speed v detour", "Cost by day", "Regions", "Data quality", "Inputs", "Method"}},
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
@@ -120,6 +120,14 @@ func TestWorkbookValues(t *testing.T) {
 
 	// Comparison figures.
 	cmp := rowsByKey(t, f, SheetComparison, "Weak link")
+	for id, row := range rowsByKey(t, f, SheetComparisonDetail, "Weak link") {
+		for col, v := range row {
+			if got, ok := cmp[id][col]; ok && got != v {
+				t.Errorf("%s and %s disagree on %s %q: %q and %q", SheetComparison, SheetComparisonDetail, id, col, got, v)
+			}
+			cmp[id][col] = v
+		}
+	}
 	for id, cols := range map[string]map[string]string{
 		"1>2": {"Skyline days before": "10", "Days analysed before": "14", "Fisher p adjusted": "0.8100", "Decided by": "time",
 			"Cost before veh-h/day": "3.0", "Cost before CI low": "2.7", "Cost after veh-h/day": "3.4", "Cost after CI high": "3.7", "Cost adjusted change": "+0.4", "Cost adjusted CI low": "+0.1", "Comparison group change": "2.0%",
@@ -367,21 +375,22 @@ func TestWorkbookChartsAndPicture(t *testing.T) {
 			t.Errorf("%s is not a %s", name, kind)
 		}
 	}
-	// Scatter: two series, non-candidates then candidates.
+	// Scatter: one series per period and candidacy (the fixture has both
+	// kinds of edge-day in both periods), with literal names and numeric x
+	// values; TestScatterSeriesByPeriod checks their rows.
 	sc := string(z["xl/charts/chart2.xml"])
-	if n := strings.Count(sc, "<ser>"); n != 2 {
-		t.Errorf("scatter chart has %d series, want 2", n)
+	if n := strings.Count(sc, "<ser>"); n != 4 {
+		t.Errorf("scatter chart has %d series, want 4", n)
 	}
-	// The series names are literal text, not (broken) cell references.
-	for _, name := range []string{scatterOthers, scatterCandidates} {
+	for _, name := range []string{scatterName("before", false), scatterName("before", true), scatterName("after", false), scatterName("after", true)} {
 		if !strings.Contains(sc, "<tx><v>"+name+"</v></tx>") {
 			t.Errorf("scatter chart lacks the literal series name %q", name)
 		}
 	}
 	// The x values (detour) are numbers: as a string reference they would
 	// be plotted as categories 1, 2, 3...
-	if n := strings.Count(sc, "<xVal><numRef>"); n != 2 || strings.Contains(sc, "<xVal><strRef>") {
-		t.Errorf("scatter chart x values: %d numeric references, want 2 and no string reference", n)
+	if n := strings.Count(sc, "<xVal><numRef>"); n != 4 || strings.Contains(sc, "<xVal><strRef>") {
+		t.Errorf("scatter chart x values: %d numeric references, want 4 and no string reference", n)
 	}
 	// Both charts have a title and both axes a title; the timeline names
 	// the periods.
@@ -417,7 +426,7 @@ func TestWorkbookChartsAndPicture(t *testing.T) {
 
 func TestWorkbookFrozenAndFiltered(t *testing.T) {
 	f, _ := writeBook(t, fxInput())
-	for _, sh := range []string{SheetFindings, SheetEdges, SheetComparison, SheetDaily, SheetTimeline, SheetScatter, SheetRegions, SheetDataQuality, SheetMethod} {
+	for _, sh := range []string{SheetFindings, SheetEdges, SheetComparison, SheetComparisonDetail, SheetDaily, SheetTimeline, SheetScatter, SheetRegions, SheetDataQuality, SheetMethod} {
 		p, err := f.GetPanes(sh)
 		if err != nil {
 			t.Fatal(err)
@@ -433,7 +442,7 @@ func TestWorkbookFrozenAndFiltered(t *testing.T) {
 			filtered[dn.Scope] = true
 		}
 	}
-	for _, sh := range []string{SheetFindings, SheetComparison, SheetDaily, SheetRegions} {
+	for _, sh := range []string{SheetFindings, SheetComparison, SheetComparisonDetail, SheetDaily, SheetRegions} {
 		if !filtered[sh] {
 			t.Errorf("%s has no autofilter", sh)
 		}

@@ -200,20 +200,20 @@ func writeFindingsJSON(w io.Writer, scan *patterns.Scan, regions *partition.Part
 		Caution: report.Caution,
 	}
 	for _, f := range scan.Findings {
-		fo := findingOut{Rank: f.Rank, Name: report.PlaceName(f, regions), ID: f.ID, Regions: f.Regions, Days: f.Days, Share: f.Share,
-			ExtraKMPerDay: f.ExtraKMPerDay, ExtraHoursPerDay: f.ExtraHoursPerDay, Groups: []groupOut{}}
+		fo := findingOut{Rank: f.Rank, Name: report.PlaceName(f, regions), ID: f.ID, Regions: f.Regions, Days: f.Days, Share: roundFor(f.Share, ratioDecimals),
+			ExtraKMPerDay: roundFor(f.ExtraKMPerDay, kmDecimals), ExtraHoursPerDay: roundFor(f.ExtraHoursPerDay, hoursDecimals), Groups: []groupOut{}}
 		doc.ExtraKMPerDay += f.ExtraKMPerDay
 		doc.ExtraHoursPerDay += f.ExtraHoursPerDay
 		for _, e := range f.Edges {
 			fo.Edges = append(fo.Edges, edgeOut{From: e.From, To: e.To,
 				FromRoads: roadNames(regions, e.From, 3), ToRoads: roadNames(regions, e.To, 3),
-				Days: e.Days, Share: e.Share,
-				TripsMedian: e.TripsMedian, SpeedKMH: geodesy.KMH(e.SpeedMedian), Detour: e.DetourMedian,
-				ExtraKMPerWeakDay: e.ExtraKMPerWeakDay, ExtraHoursPerWeakDay: e.ExtraHoursPerWeakDay,
-				ExtraKMPerDay: e.ExtraKMPerDay, ExtraHoursPerDay: e.ExtraHoursPerDay})
+				Days: e.Days, Share: roundFor(e.Share, ratioDecimals),
+				TripsMedian: roundFor(e.TripsMedian, tripsDecimals), SpeedKMH: roundFor(geodesy.KMH(e.SpeedMedian), kmhDecimals), Detour: roundFor(e.DetourMedian, ratioDecimals),
+				ExtraKMPerWeakDay: roundFor(e.ExtraKMPerWeakDay, kmDecimals), ExtraHoursPerWeakDay: roundFor(e.ExtraHoursPerWeakDay, hoursDecimals),
+				ExtraKMPerDay: roundFor(e.ExtraKMPerDay, kmDecimals), ExtraHoursPerDay: roundFor(e.ExtraHoursPerDay, hoursDecimals)})
 		}
 		for _, g := range f.Groups {
-			gout := groupOut{Days: g.Days, Share: g.Share}
+			gout := groupOut{Days: g.Days, Share: roundFor(g.Share, ratioDecimals)}
 			for _, e := range g.Edges {
 				gout.Edges = append(gout.Edges, fmt.Sprintf("%d>%d", e.From, e.To))
 			}
@@ -224,6 +224,8 @@ func writeFindingsJSON(w io.Writer, scan *patterns.Scan, regions *partition.Part
 	if doc.Findings == nil {
 		doc.Findings = []findingOut{}
 	}
+	// The totals are summed unrounded, then rounded like their parts.
+	doc.ExtraKMPerDay, doc.ExtraHoursPerDay = roundFor(doc.ExtraKMPerDay, kmDecimals), roundFor(doc.ExtraHoursPerDay, hoursDecimals)
 	enc := json.NewEncoder(w)
 	enc.SetIndent("", "  ")
 	return enc.Encode(doc)
