@@ -30,18 +30,9 @@ func runAppraise(ctx context.Context, env *environment, args []string) error {
 		return nil
 	})
 	env.files.bindForce(fs)
-	if err := parseFlagsWithRest(env, fs, args, func(rest []string) {
-		if file == "" && len(rest) > 0 {
-			file, rest = rest[0], rest[1:]
-		}
-		if len(rest) > 0 {
-			file = "\x00"
-		}
-	}); err != nil {
+	file, err := parseStudyArgs(env, fs, args)
+	if err != nil {
 		return err
-	}
-	if file == "" || file == "\x00" {
-		return usagef("give exactly one study file")
 	}
 	s, err := loadStudy(file)
 	if err != nil {

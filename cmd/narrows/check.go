@@ -27,18 +27,9 @@ type finding struct {
 func runCheck(_ context.Context, env *environment, args []string) error {
 	fs := newFlagSet(env, "check", "study.toml")
 	var file string
-	if err := parseFlagsWithRest(env, fs, args, func(rest []string) {
-		if file == "" && len(rest) > 0 {
-			file, rest = rest[0], rest[1:]
-		}
-		if len(rest) > 0 {
-			file = "\x00"
-		}
-	}); err != nil {
+	file, err := parseStudyArgs(env, fs, args)
+	if err != nil {
 		return err
-	}
-	if file == "" || file == "\x00" {
-		return usagef("give exactly one study file")
 	}
 	var out []finding
 	s, err := loadStudy(file)

@@ -123,7 +123,7 @@ func TestExploreAPI(t *testing.T) {
 		code                    int
 	}{
 		{"no token", "/api/settings", "", settingsJSON(s0.Settings), 403},
-		{"wrong token", "/api/settings", "0" + tok[1:], settingsJSON(s0.Settings), 403},
+		{"wrong token", "/api/settings", otherToken(tok), settingsJSON(s0.Settings), 403},
 		{"malformed JSON", "/api/settings", tok, `{"min_trips":`, 400},
 		{"unknown field", "/api/settings", tok, `{"min_tripz": 3}`, 400},
 		{"malformed date", "/api/settings", tok, strings.Replace(settingsJSON(s0.Settings), `"from":""`, `"from":"2026-13-01"`, 1), 400},
@@ -323,4 +323,13 @@ func checkPageInChromium(t *testing.T, f *exploreFixture, s explore.State) {
 			t.Errorf("screenshot: %v", err)
 		}
 	}
+}
+
+// otherToken returns a token of the same length that differs from tok in
+// its first character.
+func otherToken(tok string) string {
+	if strings.HasPrefix(tok, "0") {
+		return "1" + tok[1:]
+	}
+	return "0" + tok[1:]
 }

@@ -3,6 +3,7 @@ package main
 import (
 	"crypto/sha256"
 	"encoding/hex"
+	"flag"
 	"fmt"
 	"io"
 	"os"
@@ -96,4 +97,17 @@ func stageProgress(env *environment) (update func(stage string, done, total int)
 		_ = bar.Set(done)
 	}
 	return update, finish
+}
+
+// parseStudyArgs parses the flags of a command that takes exactly one study
+// file, before or after its options, and returns the file.
+func parseStudyArgs(env *environment, fs *flag.FlagSet, args []string) (string, error) {
+	var files []string
+	if err := parseFlagsWithRest(env, fs, args, func(rest []string) { files = append(files, rest...) }); err != nil {
+		return "", err
+	}
+	if len(files) != 1 || files[0] == "" {
+		return "", usagef("give exactly one study file")
+	}
+	return files[0], nil
 }

@@ -5,6 +5,8 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
+
+	"narrows/patterns"
 )
 
 // FuzzLoadStudy: any study file either loads or gives an error naming the
@@ -45,8 +47,8 @@ func FuzzParsePeriodAndFocus(f *testing.F) {
 		f.Add(s)
 	}
 	f.Fuzz(func(t *testing.T, s string) {
-		if from, to, err := parsePeriod(s); err == nil && (from > to || len(from) != 10 || len(to) != 10) {
-			t.Errorf("parsePeriod(%q) = %q, %q", s, from, to)
+		if from, to, err := patterns.ParsePeriod(s); err == nil && (from > to || len(from) != 10 || len(to) != 10) {
+			t.Errorf("patterns.ParsePeriod(%q) = %q, %q", s, from, to)
 		}
 		if focus, err := parseFocus(s); err == nil && focus != nil {
 			if focus.Point == nil && len(focus.Regions) == 0 {

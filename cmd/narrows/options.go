@@ -354,7 +354,7 @@ func (v *periodValue) String() string {
 }
 
 func (v *periodValue) Set(s string) (err error) {
-	v.from, v.to, err = parsePeriod(s)
+	v.from, v.to, err = patterns.ParsePeriod(s)
 	return err
 }
 
@@ -370,23 +370,6 @@ func (v *periodValue) UnmarshalText(text []byte) error {
 func (v *periodValue) apply(o patterns.ScanOptions) patterns.ScanOptions {
 	o.From, o.To = v.from, v.to
 	return o
-}
-
-// parsePeriod parses "D1..D2" (inclusive local days).
-func parsePeriod(s string) (from, to string, err error) {
-	a, b, ok := strings.Cut(s, "..")
-	if !ok {
-		return "", "", fmt.Errorf("want FROM..TO such as 2026-03-02..2026-03-29, got %q", s)
-	}
-	for _, d := range []string{a, b} {
-		if _, err := time.Parse(time.DateOnly, d); err != nil {
-			return "", "", fmt.Errorf("%q is not a date YYYY-MM-DD", d)
-		}
-	}
-	if a > b {
-		return "", "", fmt.Errorf("period %q ends before it starts", s)
-	}
-	return a, b, nil
 }
 
 // parseFocus parses --focus: region ids "12,15,18", or a point and radius

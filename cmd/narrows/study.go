@@ -189,18 +189,9 @@ func runStudy(ctx context.Context, env *environment, args []string) error {
 	var file, output string
 	fs.StringVar(&output, "output", "", "folder for the outputs, anywhere (default: the study file's output, inside its folder)")
 	env.files.bindForce(fs)
-	if err := parseFlagsWithRest(env, fs, args, func(rest []string) {
-		if file == "" && len(rest) > 0 {
-			file, rest = rest[0], rest[1:]
-		}
-		if len(rest) > 0 {
-			file = "\x00" // more than one study file
-		}
-	}); err != nil {
+	file, err := parseStudyArgs(env, fs, args)
+	if err != nil {
 		return err
-	}
-	if file == "" || file == "\x00" {
-		return usagef("give exactly one study file")
 	}
 	s, err := loadStudy(file)
 	if err != nil {
@@ -372,7 +363,7 @@ func (s *study) periods() (before, after patterns.ScanOptions, err error) {
 		period *periodValue
 	}{{"before", &s.Compare.Before}, {"after", &s.Compare.After}} {
 		if p.period.from == "" {
-			_, _, err := parsePeriod("")
+			_, _, err := patterns.ParsePeriod("")
 			return before, after, fmt.Errorf("[compare] %s: %v", p.key, err)
 		}
 	}

@@ -112,8 +112,8 @@ func analyse(ctx context.Context, st *Study, c Choices) (*State, error) {
 	if c.Before != "" {
 		s.Mode = "compare"
 		b, a := opts, opts
-		b.From, b.To, _ = ParsePeriod(c.Before)
-		a.From, a.To, _ = ParsePeriod(c.After)
+		b.From, b.To, _ = patterns.ParsePeriod(c.Before)
+		a.From, a.To, _ = patterns.ParsePeriod(c.After)
 		cmp, err := patterns.Compare(ctx, store, st.Regions, b, a, st.Compare)
 		if err != nil {
 			return nil, err

@@ -2,7 +2,6 @@ package explore
 
 import (
 	"fmt"
-	"strings"
 	"time"
 
 	"narrows/partition"
@@ -75,7 +74,7 @@ func (s Settings) apply(c Choices, windows []regiongraph.Window) (Choices, error
 		if p.v == "" {
 			continue
 		}
-		if _, _, err := ParsePeriod(p.v); err != nil {
+		if _, _, err := patterns.ParsePeriod(p.v); err != nil {
 			return c, fmt.Errorf("%s: %v", p.name, err)
 		}
 	}
@@ -110,21 +109,4 @@ func (s Settings) apply(c Choices, windows []regiongraph.Window) (Choices, error
 	}
 	c.Scan, c.Before, c.After = o, s.Before, s.After
 	return c, nil
-}
-
-// ParsePeriod parses "D1..D2", inclusive local days.
-func ParsePeriod(s string) (from, to string, err error) {
-	a, b, ok := strings.Cut(s, "..")
-	if !ok {
-		return "", "", fmt.Errorf("want FROM..TO such as 2026-03-02..2026-03-29, got %q", s)
-	}
-	for _, d := range []string{a, b} {
-		if _, err := time.Parse(time.DateOnly, d); err != nil {
-			return "", "", fmt.Errorf("%q is not a date YYYY-MM-DD", d)
-		}
-	}
-	if a > b {
-		return "", "", fmt.Errorf("period %q ends before it starts", s)
-	}
-	return a, b, nil
 }
