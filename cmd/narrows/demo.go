@@ -53,7 +53,12 @@ func simulateTown(ctx context.Context, env *environment, dir string, size town.S
 		opts.TripsPerDay = tripsPerDay
 	}
 	start := time.Now()
+	update, finish := stageProgress(env)
+	if update != nil {
+		opts.Progress = func(done, total int) { update("simulating days", done, total) }
+	}
 	stats, err := simulateTrips(ctx, env.files, t, opts, files.trips, dir, gpsEvery)
+	finish()
 	if err != nil {
 		return files, nil, plan, err
 	}

@@ -79,6 +79,9 @@ type SimOptions struct {
 	// OnTrace receives the traces in trip order; an error from it stops
 	// the simulation. Write them with a PointsWriter or WriteGPX.
 	OnTrace func(Trace) error
+	// Progress, when not nil, is called after each simulated day with the
+	// days done and the days in all (a city's simulation takes minutes).
+	Progress func(done, total int)
 }
 
 // defaultSimOptions returns the documented defaults.

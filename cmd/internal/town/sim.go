@@ -84,6 +84,9 @@ func (t *Town) Simulate(ctx context.Context, opts SimOptions, trips io.Writer) (
 		if day.incident {
 			st.IncidentDays++
 		}
+		if o.Progress != nil {
+			o.Progress(d+1, o.Days)
+		}
 	}
 	st.Days = o.Days
 	st.assignments = s.built

@@ -455,3 +455,20 @@ func TestHeapTreeMatchesGonum(t *testing.T) {
 		}
 	}
 }
+
+func TestSimulateProgress(t *testing.T) {
+	tw, err := Generate(defaultOptions())
+	if err != nil {
+		t.Fatal(err)
+	}
+	o := defaultSimOptions()
+	o.Days, o.TripsPerDay = 3, 200
+	var calls [][2]int
+	o.Progress = func(done, total int) { calls = append(calls, [2]int{done, total}) }
+	if _, err := tw.Simulate(context.Background(), o, &bytes.Buffer{}); err != nil {
+		t.Fatal(err)
+	}
+	if want := [][2]int{{1, 3}, {2, 3}, {3, 3}}; !slices.Equal(calls, want) {
+		t.Errorf("progress calls %v, want %v", calls, want)
+	}
+}
