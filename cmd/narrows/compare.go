@@ -17,11 +17,13 @@ import (
 )
 
 func runCompare(ctx context.Context, env *environment, args []string) error {
-	fs := newFlagSet(env, "compare", "--graphs G.parquet --before D1..D2 --after D3..D4 [scan options] [--focus IDS|LON,LAT@METRES] --out report.xlsx")
+	fs := newFlagSet(env, "compare", "--graphs G.parquet --before D1..D2 --after D3..D4 [scan options] [--focus IDS|LON,LAT@METRES] [--osm FILE] [--scheme SPEC] --out report.xlsx")
 	var in storeFlags
 	var before, after periodValue
-	var out, title string
+	var out, title, osmPath, schemeText string
 	in.register(fs)
+	fs.StringVar(&osmPath, "osm", "", "OSM extract the regions were built from; its roads, railways and water are drawn on the maps")
+	fs.StringVar(&schemeText, "scheme", "", "scheme highlighted on the maps: `way/N ...` of the --osm extract, a line \"LON,LAT LON,LAT ...\", or an extract with the scheme built")
 	fs.Var(&before, "before", "before period `FROM..TO` (inclusive days YYYY-MM-DD)")
 	fs.Var(&after, "after", "after period `FROM..TO` (inclusive days YYYY-MM-DD)")
 	scanOpts, copts := patterns.DefaultScanOptions(), patterns.DefaultCompareOptions()
@@ -48,7 +50,14 @@ func runCompare(ctx context.Context, env *environment, args []string) error {
 	if !strings.HasSuffix(strings.ToLower(out), ".xlsx") {
 		return usagef("--out: the workbook name must end in .xlsx, got %q", out)
 	}
-	env.files.read(in.graphs, in.regions)
+	spec, err := parseScheme(schemeText)
+	if err != nil {
+		return usagef("--scheme: %v", err)
+	}
+	if osmPath == "" && (len(spec.ways) > 0 || spec.extract != "") {
+		return usagef("--scheme: way ids and an after extract are found against the network of --osm; give --osm")
+	}
+	env.files.read(in.graphs, in.regions, osmPath, spec.extract)
 	if err := env.files.claimAll(reportOutputs(filepath.Dir(out), filepath.Base(stemOf(out)))); err != nil {
 		return err
 	}
@@ -59,16 +68,64 @@ func runCompare(ctx context.Context, env *environment, args []string) error {
 	if err := checkComparison(in.graphs, store, regions, before.apply(scanOpts), after.apply(scanOpts), copts); err != nil {
 		return err
 	}
+	var extra []regiongraph.Source
+	var scheme []partition.NetworkLine
+	if extra, scheme, err = compareNetwork(ctx, regions, osmPath, spec); err != nil {
+		return err
+	}
 	if title == "" {
 		title = "Before and after: " + before.String() + " against " + after.String()
 	}
 	settings := [][2]string{{"day-graph store", in.graphs}, {"before", before.String()}, {"after", after.String()}, {"focus", focus.String()}}
+	if osmPath != "" {
+		settings = append(settings, [2]string{"extract", filepath.Base(osmPath)})
+	}
+	if schemeText != "" {
+		settings = append(settings, [2]string{"scheme", schemeText})
+	}
 	settings = append(settings, scanSettings(scanOpts)...)
 	settings = append(settings, [2]string{"alpha", strconv.FormatFloat(copts.Alpha, 'g', -1, 64)})
 	return compareAndReport(ctx, env, compareJob{
 		store: store, regions: regions, before: before.apply(scanOpts), after: after.apply(scanOpts), opts: copts,
 		out: out, title: title, minPublish: minPublish, settings: settings,
+		extraInputs: extra, scheme: scheme,
 	})
+}
+
+// compareNetwork reads the linework of the extract at osmPath, if given,
+// into regions.Network (the regions GeoJSON carries none) and resolves
+// the scheme against it. It returns the extracts read, with their hashes,
+// for the report's inputs, and the scheme's lines.
+func compareNetwork(ctx context.Context, regions *partition.Partition, osmPath string, spec schemeSpec) ([]regiongraph.Source, []partition.NetworkLine, error) {
+	opts := partition.DefaultOptions()
+	if b := regions.Bound; !b.IsZero() && !b.IsEmpty() {
+		opts.BBox = &b
+	}
+	var paths []string
+	if osmPath != "" {
+		network, err := partition.ReadNetwork(ctx, osmPath, opts)
+		if err != nil {
+			return nil, nil, err
+		}
+		regions.Network = network
+		paths = append(paths, osmPath)
+	}
+	if spec.extract != "" {
+		paths = append(paths, spec.extract)
+	}
+	var sources []regiongraph.Source
+	for _, p := range paths {
+		src, err := sourceOf(p)
+		if err != nil {
+			return nil, nil, err
+		}
+		sources = append(sources, src)
+	}
+	scheme, err := spec.lines(ctx, regions, func(p string) string { return p }, opts)
+	if err != nil {
+		return nil, nil, fmt.Errorf("--scheme: %v", err)
+	}
+	return sources, scheme, nil
 }
 
 // compareJob is one before/after comparison and its report.

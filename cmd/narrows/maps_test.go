@@ -38,7 +38,15 @@ func demoMap(t *testing.T) (dir string, page []byte, els []svgElement) {
 	t.Helper()
 	dir = t.TempDir()
 	mustRunCLI(t, "demo", "--dir", dir)
-	page, err := os.ReadFile(filepath.Join(dir, "out", "report.html"))
+	page, els = pageMap(t, filepath.Join(dir, "out", "report.html"))
+	return dir, page, els
+}
+
+// pageMap reads the HTML page at path and returns it with the elements of
+// its map.
+func pageMap(t *testing.T, path string) (page []byte, els []svgElement) {
+	t.Helper()
+	page, err := os.ReadFile(path)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -72,7 +80,19 @@ func demoMap(t *testing.T) (dir string, page []byte, els []svgElement) {
 			stack = stack[:len(stack)-1]
 		}
 	}
-	return dir, page, els
+	return page, els
+}
+
+// drawnIn counts the elements drawn inside the group id: paths with
+// data, lines and texts.
+func drawnIn(els []svgElement, id string) int {
+	n := 0
+	for _, e := range els {
+		if inGroup(e, id) && (e.name == "path" && len(e.attr["d"]) > 10 || e.name == "line" || e.name == "text") {
+			n++
+		}
+	}
+	return n
 }
 
 func inGroup(e svgElement, id string) bool {
