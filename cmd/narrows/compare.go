@@ -4,6 +4,7 @@ import (
 	"context"
 	"flag"
 	"fmt"
+	"io"
 	"math"
 	"path/filepath"
 	"strconv"
@@ -20,7 +21,7 @@ func runCompare(ctx context.Context, env *environment, args []string) error {
 	fs := newFlagSet(env, "compare", "--graphs G.parquet --before D1..D2 --after D3..D4 [scan options] [--focus IDS|LON,LAT@METRES] [--osm FILE] [--scheme SPEC] --out report.xlsx")
 	var in storeFlags
 	var before, after periodValue
-	var out, title, osmPath, schemeText string
+	var out, title, osmPath, schemeText, mapOut string
 	in.register(fs)
 	fs.StringVar(&osmPath, "osm", "", "OSM extract the regions were built from; its roads, railways and water are drawn on the maps")
 	fs.StringVar(&schemeText, "scheme", "", "scheme highlighted on the maps: `way/N ...` of the --osm extract, a line \"LON,LAT LON,LAT ...\", or an extract with the scheme built")
@@ -32,6 +33,7 @@ func runCompare(ctx context.Context, env *environment, args []string) error {
 	minPublish := report.DefaultPublicationMinTrips
 	fs.IntVar(&minPublish, "min-publish", minPublish, "cells from fewer trips than this are shown suppressed")
 	fs.StringVar(&title, "title", "", "study title for the report")
+	fs.StringVar(&mapOut, "map", "", "also write the report's map alone to `FILE.svg` or FILE.png")
 	fs.StringVar(&out, "out", "", "workbook `STEM.xlsx` to write; STEM-regions.geojson, STEM-findings.geojson and STEM.html are written beside it")
 	env.files.bindForce(fs)
 	scanFlags := bindOptions(fs, func(fs *flag.FlagSet) { bindScan(fs, &scanOpts) })
@@ -50,6 +52,9 @@ func runCompare(ctx context.Context, env *environment, args []string) error {
 	if !strings.HasSuffix(strings.ToLower(out), ".xlsx") {
 		return usagef("--out: the workbook name must end in .xlsx, got %q", out)
 	}
+	if ext := strings.ToLower(filepath.Ext(mapOut)); mapOut != "" && ext != ".svg" && ext != ".png" {
+		return usagef("--map: the picture's name must end in .svg or .png, got %q", mapOut)
+	}
 	spec, err := parseScheme(schemeText)
 	if err != nil {
 		return usagef("--scheme: %v", err)
@@ -58,7 +63,11 @@ func runCompare(ctx context.Context, env *environment, args []string) error {
 		return usagef("--scheme: way ids and an after extract are found against the network of --osm; give --osm")
 	}
 	env.files.read(in.graphs, in.regions, osmPath, spec.extract)
-	if err := env.files.claimAll(reportOutputs(filepath.Dir(out), filepath.Base(stemOf(out)))); err != nil {
+	outs := reportOutputs(filepath.Dir(out), filepath.Base(stemOf(out)))
+	if mapOut != "" {
+		outs = append(outs, output{mapOut, kindMapPicture})
+	}
+	if err := env.files.claimAll(outs); err != nil {
 		return err
 	}
 	store, regions, err := in.open(scanOpts)
@@ -87,7 +96,7 @@ func runCompare(ctx context.Context, env *environment, args []string) error {
 	settings = append(settings, [2]string{"alpha", strconv.FormatFloat(copts.Alpha, 'g', -1, 64)})
 	return compareAndReport(ctx, env, compareJob{
 		store: store, regions: regions, before: before.apply(scanOpts), after: after.apply(scanOpts), opts: copts,
-		out: out, title: title, minPublish: minPublish, settings: settings,
+		out: out, mapOut: mapOut, title: title, minPublish: minPublish, settings: settings,
 		extraInputs: extra, scheme: scheme,
 	})
 }
@@ -139,6 +148,7 @@ type compareJob struct {
 	settings      [][2]string
 	extraInputs   []regiongraph.Source
 	scheme        []partition.NetworkLine // highlighted on the maps
+	mapOut        string                  // the map alone, .svg or .png; "" for none
 }
 
 func compareAndReport(ctx context.Context, env *environment, job compareJob) error {
@@ -175,6 +185,16 @@ func compareAndReport(ctx context.Context, env *environment, job compareJob) err
 	base := strings.TrimSuffix(filepath.Base(job.out), filepath.Ext(job.out))
 	if err := writeReport(env, dir, base, in); err != nil {
 		return err
+	}
+	if job.mapOut != "" {
+		write := report.WriteMapSVG
+		if strings.EqualFold(filepath.Ext(job.mapOut), ".png") {
+			write = report.WriteMapPNG
+		}
+		if err := env.files.write(job.mapOut, kindMapPicture, func(w io.Writer) error { return write(w, in) }); err != nil {
+			return err
+		}
+		fmt.Fprintln(env.stdout, "  wrote", job.mapOut)
 	}
 	fmt.Fprintf(env.stdout, "compared %d + %d days in %.2f s\n", len(cmp.Before.Days), len(cmp.After.Days), time.Since(start).Seconds())
 	return nil

@@ -1,6 +1,10 @@
 package main
 
 import (
+	"bytes"
+	"encoding/xml"
+	"image/png"
+	"os"
 	"path/filepath"
 	"testing"
 )
@@ -54,5 +58,43 @@ func TestCompareMapNetwork(t *testing.T) {
 		"--after", "2026-03-03..2026-03-03", "--scheme", "way/12", "--out", in("x.xlsx"))
 	if code != exitUsage {
 		t.Errorf("--scheme way/12 without --osm: exit %d, want %d (usage)\n%s", code, exitUsage, stderr)
+	}
+
+	// --map exports the map alone: the page's SVG, or the workbook's PNG.
+	base := []string{"compare", "--graphs", in("graphs.parquet"), "--min-trips", "2", "--support", "0.5",
+		"--before", "2026-03-02..2026-03-02", "--after", "2026-03-03..2026-03-03", "--osm", in("town/quillhaven-before.osm")}
+	mustRunCLI(t, append(base, "--out", in("m1.xlsx"), "--map", in("m1-map.svg"))...)
+	svg, err := os.ReadFile(in("m1-map.svg"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	var root struct {
+		XMLName xml.Name
+	}
+	if err := xml.Unmarshal(svg, &root); err != nil || root.XMLName.Local != "svg" {
+		t.Errorf("--map m1-map.svg: root %q, %v; want one svg element", root.XMLName.Local, err)
+	}
+	page, err := os.ReadFile(in("m1.html"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !bytes.Contains(page, bytes.TrimSpace(svg)) {
+		t.Error("the exported SVG is not the map drawn on the page")
+	}
+	mustRunCLI(t, append(base, "--out", in("m2.xlsx"), "--map", in("m2-map.png"))...)
+	f, err := os.Open(in("m2-map.png"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer f.Close()
+	img, err := png.Decode(f)
+	if err != nil {
+		t.Fatalf("--map m2-map.png: %v", err)
+	}
+	if b := img.Bounds(); b.Dx() < 200 || b.Dy() < 200 {
+		t.Errorf("--map PNG is %v, want a map-sized picture", b)
+	}
+	if code, _, stderr := runCLI(t, append(base, "--out", in("m3.xlsx"), "--map", in("m3-map.pdf"))...); code != exitUsage {
+		t.Errorf("--map .pdf: exit %d, want %d (usage)\n%s", code, exitUsage, stderr)
 	}
 }

@@ -27,6 +27,7 @@ const (
 	kindRegionsLayer  outputKind = "regions layer"   // map layer of a report
 	kindWorkbook      outputKind = "workbook"        // .xlsx report
 	kindPage          outputKind = "HTML page"       // .html report
+	kindMapPicture    outputKind = "map picture"     // --map export of a report's map (.svg or .png)
 	kindDaily         outputKind = "daily values"    // -daily.csv beside a workbook whose Daily sheet would be too long
 	kindTown          outputKind = "simulated input" // OSM, trips, GPS files of simulate and demo
 	kindStudy         outputKind = "study file"      // study.toml of simulate and demo
