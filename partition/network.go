@@ -77,17 +77,9 @@ func lineMeets(pts []orb.Point, b orb.Bound) bool {
 // NewWays finds. Lines are kept when they meet opts.BBox, else the file's
 // bounds, else all.
 func ReadNetwork(ctx context.Context, path string, opts Options) ([]NetworkLine, error) {
-	if err := opts.validate(); err != nil {
-		return nil, fmt.Errorf("partition: %s: %v", path, err)
-	}
-	f, err := os.Open(path)
+	ex, err := readExtractFile(ctx, path, &opts)
 	if err != nil {
-		return nil, fmt.Errorf("partition: %w", err)
-	}
-	defer f.Close()
-	ex, err := readOSM(ctx, f, &opts)
-	if err != nil {
-		return nil, fmt.Errorf("partition: %s: %w", path, err)
+		return nil, err
 	}
 	bound := orb.Bound{Min: orb.Point{-180, -90}, Max: orb.Point{180, 90}}
 	switch {
@@ -115,4 +107,22 @@ func NewWays(before, after []NetworkLine) []NetworkLine {
 		}
 	}
 	return out
+}
+
+// readExtractFile checks opts and reads the extract at path, for the
+// readers that keep only part of it (ReadNetwork, ReadRouting).
+func readExtractFile(ctx context.Context, path string, opts *Options) (*extract, error) {
+	if err := opts.validate(); err != nil {
+		return nil, fmt.Errorf("partition: %s: %v", path, err)
+	}
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, fmt.Errorf("partition: %w", err)
+	}
+	defer f.Close()
+	ex, err := readOSM(ctx, f, opts)
+	if err != nil {
+		return nil, fmt.Errorf("partition: %s: %w", path, err)
+	}
+	return ex, nil
 }

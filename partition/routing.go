@@ -2,9 +2,7 @@ package partition
 
 import (
 	"context"
-	"fmt"
 	"math"
-	"os"
 	"strconv"
 	"strings"
 
@@ -96,7 +94,7 @@ func (rd *elementReader) addRouting(w *osm.Way) {
 			return
 		}
 		rec.barrier = true
-		rec.road = RoadWay{WayID: int64(w.ID), Class: kind, Crossing: isCrossing(w.Tags) || w.Tags.Find("tunnel") == "culvert"}
+		rec.road = RoadWay{WayID: int64(w.ID), Class: kind, Crossing: isCrossing(w.Tags)}
 	}
 	rec.nodes = make([]int64, len(w.Nodes))
 	for i, n := range w.Nodes {
@@ -208,17 +206,9 @@ func findNode(nodes []nodeRec, id int64) (int, bool) {
 // ReadRouting reads only the routing ways of the OSM extract at path (an
 // extract with a scheme built, whose new roads are candidates).
 func ReadRouting(ctx context.Context, path string, opts Options) (*Routing, error) {
-	if err := opts.validate(); err != nil {
-		return nil, fmt.Errorf("partition: %s: %v", path, err)
-	}
-	f, err := os.Open(path)
+	ex, err := readExtractFile(ctx, path, &opts)
 	if err != nil {
-		return nil, fmt.Errorf("partition: %w", err)
-	}
-	defer f.Close()
-	ex, err := readOSM(ctx, f, &opts)
-	if err != nil {
-		return nil, fmt.Errorf("partition: %s: %w", path, err)
+		return nil, err
 	}
 	if ex.routing == nil {
 		return &Routing{}, nil

@@ -322,8 +322,7 @@ func assess(ctx context.Context, store *regiongraph.Store, regions *partition.Pa
 			}
 		}
 		for m := range NumMeasures {
-			full := true
-			a.Effects[m] = effect(own[0][m], own[1][m], group[0][m], group[1][m], full)
+			a.Effects[m] = effect(own[0][m], own[1][m], group[0][m], group[1][m], true)
 		}
 		a.Focus = inFocus(u.finding, opts.Focus, regions)
 		assessments[i] = a

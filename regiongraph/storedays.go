@@ -21,7 +21,7 @@ func ReadDayRange(path string) (first, last string, err error) {
 	if err != nil {
 		return "", "", fmt.Errorf("regiongraph: %w", err)
 	}
-	pf, err := openParquet(f, fi.Size())
+	pf, err := openParquetChecked(f, fi.Size())
 	if err != nil {
 		return "", "", fmt.Errorf("regiongraph: %s: not a Parquet day-graph store: %v", path, err)
 	}

@@ -66,7 +66,7 @@ func readFile(path string, opts ReadOptions, stretchRows int64) (*Store, error) 
 	if err != nil {
 		return nil, fmt.Errorf("regiongraph: %w", err)
 	}
-	pf, err := openParquet(f, fi.Size())
+	pf, err := openParquetChecked(f, fi.Size())
 	if err != nil {
 		return nil, fmt.Errorf("regiongraph: %s: not a Parquet day-graph store: %v", path, err)
 	}
@@ -198,14 +198,6 @@ func readStretches(stretches []*stretch, opts ReadOptions) ([]Edge, error) {
 		return nil, err
 	}
 	return edges, nil
-}
-
-// openParquet opens a Parquet file, turning a panic of the Parquet
-// library on a damaged footer into an error.
-func openParquet(f *os.File, size int64) (pf *parquet.File, err error) {
-	// The library allocates the lengths the file gives before reading
-	// them: openParquetChecked checks them against the file's size first.
-	return openParquetChecked(f, size)
 }
 
 // readStoreMeta sets s.Meta and the regions from the file's key-value

@@ -72,24 +72,7 @@ func drawRegionLabel(img *image.RGBA, id int, cx, cy float64, c color.RGBA) {
 	text := strconv.Itoa(id)
 	w := len(text)*(glyphW+glyphGap) - glyphGap
 	b := img.Bounds()
-	x0 := clampInt(cx-float64(w)/2, b.Min.X-w, b.Max.X)
-	y0 := clampInt(cy+4, b.Min.Y-glyphH, b.Max.Y)
-	pts := labelPixels(text, x0, y0)
-	white := color.RGBA{255, 255, 255, 255}
-	for _, p := range pts {
-		for dy := -1; dy <= 1; dy++ {
-			for dx := -1; dx <= 1; dx++ {
-				if q := p.Add(image.Pt(dx, dy)); q.In(b) {
-					img.SetRGBA(q.X, q.Y, white)
-				}
-			}
-		}
-	}
-	for _, p := range pts {
-		if p.In(b) {
-			img.SetRGBA(p.X, p.Y, c)
-		}
-	}
+	drawText(img, text, clampInt(cx-float64(w)/2, b.Min.X-w, b.Max.X), clampInt(cy+4, b.Min.Y-glyphH, b.Max.Y), c)
 }
 
 // labelBox is a label's box in map pixels, top-left corner and size.

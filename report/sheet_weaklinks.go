@@ -1,8 +1,6 @@
 package report
 
 import (
-	"math"
-	"sort"
 	"strconv"
 	"strings"
 
@@ -214,18 +212,4 @@ func (b *book) rankCells(it item) []cell {
 		r = append(r, textCell(p, b.st.centre))
 	}
 	return r
-}
-
-// median of xs (NaN when empty), without changing xs.
-func median(xs []float64) float64 {
-	if len(xs) == 0 {
-		return math.NaN()
-	}
-	s := append([]float64(nil), xs...)
-	sort.Float64s(s)
-	n := len(s)
-	if n%2 == 1 {
-		return s[n/2]
-	}
-	return (s[n/2-1] + s[n/2]) / 2
 }
