@@ -58,7 +58,9 @@ func runAppraise(ctx context.Context, env *environment, args []string) error {
 	if err := env.files.claimAll([]output{{book, kindAppraisal}, {layer, kindCandidatesLayer}}); err != nil {
 		return err
 	}
-	regions, err := partition.ReadFile(ctx, r.rel(s.Regions.OSM), s.Regions.Options)
+	// The regions and the store as run analyses them, so that a finding's
+	// rank here is its rank in the study's report.
+	regions, sum, err := regionsInMemory(ctx, env, r.rel(s.Regions.OSM), s.Regions.Options)
 	if err != nil {
 		return err
 	}
@@ -66,9 +68,12 @@ func runAppraise(ctx context.Context, env *environment, args []string) error {
 	for _, t := range s.Trips.Files {
 		inputs = append(inputs, regiongraph.Input{Path: r.rel(t), Format: s.Trips.Format})
 	}
-	store, err := regiongraph.Ingest(ctx, regions, "", inputs, s.Trips.Options)
+	store, err := regiongraph.Ingest(ctx, regions, sum, inputs, s.Trips.Options)
 	if err != nil {
 		return err
+	}
+	if store, err = s.applyExclusions(store, len(regions.Regions)); err != nil {
+		return fmt.Errorf("study file %s: %v", file, err)
 	}
 	beforeOpts, afterOpts := s.Scan.ScanOptions, patterns.ScanOptions{}
 	hasAfter := s.Compare.Before.from != ""

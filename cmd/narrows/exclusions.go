@@ -7,8 +7,8 @@ import (
 
 // applyExclusions checks the study's exclusions against the regions, adds
 // the excluded days to the scan's days to leave out and returns the store
-// without the excluded pairs and regions. Both run and explore analyse
-// the store this returns, so the page and the run agree.
+// without the excluded pairs and regions. Run and appraise analyse the
+// store this returns; explore applies the same patterns.Exclusions itself.
 func (s *study) applyExclusions(store *regiongraph.Store, regions int) (*regiongraph.Store, error) {
 	x := s.Scan.exclusions()
 	if err := x.Validate(regions); err != nil {

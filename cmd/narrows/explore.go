@@ -125,12 +125,8 @@ func exploreStudy(ctx context.Context, env *environment, file string) (*explore.
 	if err != nil {
 		return nil, err
 	}
-	title := s.Title
-	if title == "" {
-		title = "narrows study " + filepath.Base(file)
-	}
 	return &explore.Study{
-		Title: title, Store: store, Regions: regions, Scheme: scheme,
+		Title: s.titleOr(file), Store: store, Regions: regions, Scheme: scheme,
 		Scan: s.Scan.ScanOptions, Before: s.Compare.Before.String(), After: s.Compare.After.String(),
 		Compare: s.Compare.CompareOptions, Exclusions: s.Scan.exclusions(),
 		Save: func(c explore.Choices) (string, error) { return saveStudy(file, c) },
@@ -154,7 +150,7 @@ func regionsInMemory(ctx context.Context, env *environment, osmPath string, opts
 	if err != nil {
 		return nil, "", err
 	}
-	back.Network = p.Network
+	back.Network, back.Routing = p.Network, p.Routing
 	return back, sum, nil
 }
 

@@ -68,8 +68,9 @@ func buildRegions(ctx context.Context, env *environment, osmPath string, opts pa
 	if err != nil {
 		return nil, "", err
 	}
-	// The GeoJSON holds no linework; the maps take it from this read.
-	back.Network = p.Network
+	// The GeoJSON holds no linework; the maps and the routing take it
+	// from this read.
+	back.Network, back.Routing = p.Network, p.Routing
 	return back, sum, nil
 }
 

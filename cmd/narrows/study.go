@@ -300,12 +300,8 @@ func (r *studyRun) reportInput(store *regiongraph.Store, regions *partition.Part
 		}
 		inputs = append(inputs, src)
 	}
-	title := r.Title
-	if title == "" {
-		title = "narrows study " + filepath.Base(r.file)
-	}
 	return report.Input{
-		Title:               title,
+		Title:               r.title(),
 		Inputs:              inputs,
 		Settings:            append(append([][2]string{{"study file", filepath.Base(r.file)}, {"time zone", r.Trips.TimeZone}}, regionSettings(regions, r.Regions.Options, r.Scheme)...), append(scanSettings(r.Scan.ScanOptions), exclusionSettings(r.Scan.exclusions())...)...),
 		Regions:             regions,
@@ -410,3 +406,13 @@ func regionSettings(p *partition.Partition, o partition.Options, scheme string) 
 	}
 	return out
 }
+
+// title is the study's title, or one made from the study file's name.
+func (s *study) titleOr(file string) string {
+	if s.Title != "" {
+		return s.Title
+	}
+	return "narrows study " + filepath.Base(file)
+}
+
+func (r *studyRun) title() string { return r.titleOr(r.file) }
