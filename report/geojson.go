@@ -7,6 +7,8 @@ import (
 
 	"github.com/paulmach/orb"
 	"github.com/paulmach/orb/geojson"
+
+	"narrows/patterns"
 )
 
 // Coordinates are rounded to 7 decimals (about 1 cm), which keeps the
@@ -27,7 +29,8 @@ func WriteRegionsGeoJSON(w io.Writer, in Input) error {
 // origin region's representative point to the destination's, with
 // properties finding, rank, from, to, trips (median per day), speed_kmh,
 // detour, extra_vehicle_km_per_day, extra_vehicle_hours_per_day, share, colour (the map's
-// colour for the verdict) and, with a comparison, verdict and focus. Values
+// colour for the verdict) and, with a comparison, verdict, focus and the
+// verdict's evidence (see comparisonProperties). Values
 // from fewer trips than the publication threshold are null and the feature
 // has suppressed = true. Nothing is written to w when in is not valid.
 func WriteFindingsGeoJSON(w io.Writer, in Input) error {
@@ -97,11 +100,51 @@ func (v *view) findingsGeoJSON(w io.Writer) error {
 			if a := it.Assessment; a != nil {
 				f.Properties["verdict"] = string(a.Verdict)
 				f.Properties["focus"] = a.Focus
+				v.comparisonProperties(f.Properties, a, hide)
 			}
 			fc.Append(f)
 		}
 	}
 	return encodeGeoJSON(w, fc, "findings")
+}
+
+// comparisonProperties adds to a finding feature its verdict's evidence:
+// the finding's cost (extra vehicle-hours per day) and travel time per trip
+// (minutes) before and after with 95 % confidence intervals, the raw
+// change, the comparison group's relative change, the adjusted change with
+// its confidence interval, and the group's pairs. Figures are null when
+// the finding's trips are under the publication threshold (hide).
+func (v *view) comparisonProperties(p geojson.Properties, a *patterns.Assessment, hide bool) {
+	p["decided_by"] = string(a.Basis)
+	p["comparison_pairs"] = groupLabels(a.Group)
+	p["comparison_band"] = jsonNumber(a.Group.Band, 2)
+	measures := []struct {
+		prefix string
+		e      patterns.Effect
+		scale  float64
+		places int
+	}{
+		{"extra_vehicle_hours_per_day", a.Effects[patterns.Cost], 1, 3},
+		{"travel_time_min", a.Effects[patterns.TravelTime], 1.0 / 60, 3},
+	}
+	for _, m := range measures {
+		e := m.e
+		vals := map[string]float64{
+			"before": e.Before, "before_low": e.BeforeLow, "before_high": e.BeforeHigh,
+			"after": e.After, "after_low": e.AfterLow, "after_high": e.AfterHigh,
+			"raw_change": e.Raw, "adjusted_change": e.Adjusted.Shift,
+			"adjusted_low": e.Adjusted.Low, "adjusted_high": e.Adjusted.High,
+		}
+		for k, x := range vals {
+			if hide {
+				p[m.prefix+"_"+k] = nil
+				continue
+			}
+			p[m.prefix+"_"+k] = jsonNumber(x*m.scale, m.places)
+		}
+		p[m.prefix+"_group_change"] = jsonNumber(e.Group, 4)
+		p[m.prefix+"_p_adjusted"] = jsonNumber(e.Adjusted.PAdjusted, 4)
+	}
 }
 
 // encodeGeoJSON writes fc to w as one line of JSON.

@@ -2,7 +2,9 @@ package report
 
 import (
 	"bytes"
+	"fmt"
 	"io"
+	"math"
 	"testing"
 
 	"github.com/paulmach/orb"
@@ -118,7 +120,27 @@ func TestFindingsGeoJSON(t *testing.T) {
 	if w.Properties.MustString("verdict") != "worse" || w.Properties.MustFloat64("speed_kmh") != 18 || w.Properties.MustFloat64("trips") != 40 || w.Properties.MustInt("rank") != 1 {
 		t.Errorf("1>2 properties = %v", w.Properties)
 	}
+	// The verdict's evidence, as the fixture's assessment of finding 1>2
+	// holds it: cost 3 -> 3.4 veh-h/day with CI ±10 %, adjusted shift
+	// 0.4 (0.1 to 0.7), group +2 %, travel time 10 -> 11.67 min; the
+	// group's two pairs nearest first.
+	for k, want := range map[string]float64{
+		"extra_vehicle_hours_per_day_before": 3, "extra_vehicle_hours_per_day_before_low": 2.7, "extra_vehicle_hours_per_day_after_high": 3.74,
+		"extra_vehicle_hours_per_day_raw_change": 0.4, "extra_vehicle_hours_per_day_adjusted_change": 0.4,
+		"extra_vehicle_hours_per_day_adjusted_low": 0.1, "extra_vehicle_hours_per_day_adjusted_high": 0.7,
+		"extra_vehicle_hours_per_day_group_change": 0.02, "travel_time_min_before": 10, "travel_time_min_after": 11.667,
+	} {
+		if got, ok := w.Properties[k].(float64); !ok || math.Abs(got-want) > 1e-9 {
+			t.Errorf("1>2 %s = %v, want %v", k, w.Properties[k], want)
+		}
+	}
+	if got := fmt.Sprint(w.Properties["comparison_pairs"]); got != "[1>3 3>1]" || w.Properties.MustString("decided_by") != "time" {
+		t.Errorf("1>2 comparison_pairs = %s, decided_by = %v", got, w.Properties["decided_by"])
+	}
 	s := byID["2>5/2>5"]
+	if s != nil && s.Properties["extra_vehicle_hours_per_day_before"] != nil {
+		t.Errorf("suppressed 2>5 shows its cost: %v", s.Properties["extra_vehicle_hours_per_day_before"])
+	}
 	if s == nil || !s.Properties.MustBool("suppressed") || s.Properties["speed_kmh"] != nil || s.Properties["trips"] != nil {
 		t.Errorf("suppressed 2>5 properties = %v", s.Properties)
 	}

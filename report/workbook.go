@@ -31,7 +31,7 @@ const (
 func Sheets(in Input) []string {
 	s := []string{SheetSummary, SheetFindings, SheetEdges}
 	if in.Comparison != nil {
-		s = append(s, SheetComparison, SheetComparisonDetail)
+		s = append(s, SheetComparison, SheetComparisonDetail, SheetComparisonGroups)
 	}
 	return append(s, SheetDaily, SheetTimeline, SheetScatter, SheetCostDays, SheetRegions, SheetDataQuality, SheetInputs, SheetMethod)
 }
@@ -71,6 +71,7 @@ func (v *view) workbook(w io.Writer) error {
 	b.edges()
 	if v.comparing() {
 		b.comparison()
+		b.comparisonGroups()
 	}
 	b.daily()
 	b.timeline()

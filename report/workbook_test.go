@@ -64,7 +64,7 @@ func TestWorkbookSheets(t *testing.T) {
 		in   Input
 		want []string
 	}{
-		{"comparison", fxInput(), []string{"Summary", "Weak links", "Edges", "Comparison", "Comparison detail", "Daily", "Timeline", "Speed v detour", "Cost by day", "Regions", "Data quality", "Inputs", "Method"}},
+		{"comparison", fxInput(), []string{"Summary", "Weak links", "Edges", "Comparison", "Comparison detail", "Comparison groups", "Daily", "Timeline", "Speed v detour", "Cost by day", "Regions", "Data quality", "Inputs", "Method"}},
 		{"scan", fxScanInput(), []string{"Summary", "Weak links", "Edges", "Daily", "Timeline", "Speed v detour", "Cost by day", "Regions", "Data quality", "Inputs", "Method"}},
 	}
 	for _, tc := range tests {
