@@ -52,6 +52,7 @@ func WriteWorkbook(w io.Writer, in Input) error {
 func (v *view) workbook(w io.Writer) error {
 	f := excelize.NewFile()
 	defer f.Close()
+	f.SetZipWriter(newZipWriter)
 	b := &book{f: f, v: v}
 	b.newStyles()
 	created := v.created().Format(time.RFC3339)
