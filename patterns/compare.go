@@ -342,7 +342,7 @@ func findingFeatures(pd *periodData, keys []EdgeKey) (straight, detour, speed fl
 	for _, p := range []int{0, 1} {
 		var s edgeSummary
 		for _, k := range keys {
-			if e := pd.summary[k]; e != nil {
+			if e := pd.summary.get(k); e != nil {
 				s.trips[0] += e.trips[p]
 				s.distanceSum[0] += e.distanceSum[p]
 				s.straightSum[0] += e.straightSum[p]

@@ -35,7 +35,8 @@ func matchPool(pd *periodData, exclude map[EdgeKey]bool, focusRegions map[int]bo
 		need[p] = max(need[p], 1)
 	}
 	var pool []poolEdge
-	for k, s := range pd.summary {
+	for i, k := range pd.summary.keys {
+		s := &pd.summary.rows[i]
 		if exclude[k] || focusRegions[k.From] || focusRegions[k.To] || k.From == k.To {
 			continue
 		}

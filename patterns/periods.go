@@ -13,7 +13,7 @@ import (
 // per day the network's totals, and the before period's fixed speed bar.
 type periodData struct {
 	days    [2][]string
-	summary map[EdgeKey]*edgeSummary
+	summary *edgeTable
 	network [2][]dayTotals
 	// barSpeed is the median over the before days of each day's
 	// trip-weighted median edge speed (m/s): the speed gate of the
@@ -25,6 +25,65 @@ type periodData struct {
 type edgeSummary struct {
 	days                                         [2]int
 	trips, distanceSum, straightSum, durationSum [2]float64
+}
+
+// edgeTable holds the edges' summaries by key. A city's year has millions
+// of edge-days to add up; with region ids below denseLimit the summaries
+// are found through a square table indexed by from and to, which is
+// several times quicker than a map, else through a map.
+type edgeTable struct {
+	side  int     // region ids are below side; 0 when sparse
+	dense []int32 // index of the summary + 1, 0 when none, at from*side+to
+	index map[EdgeKey]int32
+	keys  []EdgeKey // in the order first seen
+	rows  []edgeSummary
+}
+
+// denseLimit bounds the cells of an edgeTable's square table (64 MiB of
+// int32): 4,096 regions.
+const denseLimit = 1 << 24
+
+func newEdgeTable(maxID int) *edgeTable {
+	if side := maxID + 1; maxID >= 0 && side*side <= denseLimit {
+		return &edgeTable{side: side, dense: make([]int32, side*side)}
+	}
+	return &edgeTable{index: map[EdgeKey]int32{}}
+}
+
+// find returns k's summary index + 1, or 0 when k has none.
+func (t *edgeTable) find(k EdgeKey) int32 {
+	if t.side > 0 {
+		if k.From < 0 || k.To < 0 || k.From >= t.side || k.To >= t.side {
+			return 0
+		}
+		return t.dense[k.From*t.side+k.To]
+	}
+	return t.index[k]
+}
+
+// get returns k's summary, or nil.
+func (t *edgeTable) get(k EdgeKey) *edgeSummary {
+	if i := t.find(k); i > 0 {
+		return &t.rows[i-1]
+	}
+	return nil
+}
+
+// add returns k's summary, added empty when k has none yet. The pointer is
+// valid until the next add.
+func (t *edgeTable) add(k EdgeKey) *edgeSummary {
+	if i := t.find(k); i > 0 {
+		return &t.rows[i-1]
+	}
+	t.keys = append(t.keys, k)
+	t.rows = append(t.rows, edgeSummary{})
+	i := int32(len(t.rows))
+	if t.side > 0 {
+		t.dense[k.From*t.side+k.To] = i
+	} else {
+		t.index[k] = i
+	}
+	return &t.rows[i-1]
 }
 
 // straight returns the edge's mean straight-line distance per trip (m),
@@ -75,7 +134,11 @@ func (l *dayLookup) find(day string) (p, i int, ok bool) {
 // network's daily totals over every pair with trips, the summaries and the
 // bar speed over the pairs with at least the scan's minimum trips.
 func readPeriods(store *regiongraph.Store, sb, sa *Scan) *periodData {
-	pd := &periodData{days: [2][]string{sb.Days, sa.Days}, summary: map[EdgeKey]*edgeSummary{}}
+	maxID := -1
+	for i := range store.Edges {
+		maxID = max(maxID, store.Edges[i].From, store.Edges[i].To)
+	}
+	pd := &periodData{days: [2][]string{sb.Days, sa.Days}, summary: newEdgeTable(maxID)}
 	for p := range pd.network {
 		pd.network[p] = make([]dayTotals, len(pd.days[p]))
 	}
@@ -101,12 +164,7 @@ func readPeriods(store *regiongraph.Store, sb, sa *Scan) *periodData {
 		if e.Trips < minTrips {
 			continue
 		}
-		k := EdgeKey{From: e.From, To: e.To}
-		s := pd.summary[k]
-		if s == nil {
-			s = &edgeSummary{}
-			pd.summary[k] = s
-		}
+		s := pd.summary.add(EdgeKey{From: e.From, To: e.To})
 		s.days[p]++
 		s.trips[p] += float64(e.Trips)
 		s.distanceSum[p] += e.DistanceSum
