@@ -100,7 +100,7 @@ func TestDashPattern(t *testing.T) {
 // headLead is the headline's start in the fixture: the costliest weak
 // link of the before period (rank 1, 1>2) with its cost before and after
 // and its adjusted change.
-const headLead = "Across Mill Lane between Ring Road 1 and Ring Road 2, the costliest weak link before, worse: from 3.0 to 3.4 extra vehicle-hours per day (adjusted change +0.4)"
+const headLead = "Across Mill Lane between Ring Road 1 and Ring Road 2, the costliest weak link before, worse: from 3.0 to 3.4 extra vehicle-hours per day (comparison group +2 %; adjusted change +0.4, 95 % CI +0.1 to +0.7)"
 
 func TestHeadline(t *testing.T) {
 	all := fxInput()

@@ -132,7 +132,8 @@ func (v *view) method() []definition {
 // cost before and after, then the verdicts of the others, such as
 // "Across the Orvel between Northbank housing and Southbank works, the
 // costliest weak link before, cleared: from 43.2 to 11.7 extra
-// vehicle-hours per day (adjusted change -31.3); of the 5 others, 1
+// vehicle-hours per day (comparison group -9 %; adjusted change -31.3, 95 %
+// CI -34.5 to -28.5); of the 5 others, 1
 // cleared, 2 eased and 2 unchanged." Each finding's figures are in
 // SummaryRows, the network's change in NetworkChange. It returns a note
 // when the input has neither a scan nor a comparison.
@@ -175,8 +176,8 @@ func comparisonHeadline(c *patterns.Comparison, regions *partition.Partition) st
 		return fmt.Sprintf("No weak link recurred in the before period (%s); of the %d weak links of the after period, %s.", dayRange(c.Before), n, verdictList(others))
 	}
 	cost := lead.Effects[patterns.Cost]
-	s := fmt.Sprintf("%s, the costliest weak link before, %s: from %s to %s extra vehicle-hours per day (adjusted change %s)",
-		upperFirst(PlaceName(lead.Finding, regions)), lead.Verdict, fmtFixed(cost.Before, 1), fmtFixed(cost.After, 1), signed("%+.1f", cost.Adjusted.Shift))
+	s := fmt.Sprintf("%s, the costliest weak link before, %s: from %s to %s extra vehicle-hours per day (%s)",
+		upperFirst(PlaceName(lead.Finding, regions)), lead.Verdict, fmtFixed(cost.Before, 1), fmtFixed(cost.After, 1), adjustedPhrase(lead))
 	if n == 0 {
 		return s + "; no other weak link recurred."
 	}
@@ -184,6 +185,23 @@ func comparisonHeadline(c *patterns.Comparison, regions *partition.Partition) st
 		return s + "; the other is " + verdictList(others)[2:] + "."
 	}
 	return fmt.Sprintf("%s; of the %d others, %s.", s, n, verdictList(others))
+}
+
+// adjustedPhrase gives a finding's cost change beyond the network's: its
+// comparison group's change, then the adjusted change with its 95 %
+// interval, as in "comparison group -9 %; adjusted change -31.3, 95 % CI
+// -34.5 to -28.5".
+func adjustedPhrase(a *patterns.Assessment) string {
+	cost := a.Effects[patterns.Cost]
+	group := "no comparison group"
+	if len(a.Group.Edges) > 0 {
+		group = "comparison group " + formatPercentChange(cost.Group)
+	}
+	s := group + "; adjusted change " + signed("%+.1f", cost.Adjusted.Shift)
+	if finite(cost.Adjusted.Low) && finite(cost.Adjusted.High) {
+		s += ", 95 % CI " + signed("%+.1f", cost.Adjusted.Low) + " to " + signed("%+.1f", cost.Adjusted.High)
+	}
+	return s
 }
 
 // verdictList names the counts of the verdicts present in severity order:
