@@ -165,7 +165,7 @@ func fromExtract(ctx context.Context, ex *extract, o Options) (*Partition, error
 	p.Stats.DanglesDropped, p.Stats.CutEdgesDropped = fs.dangles, fs.cutEdges
 	var water []bool
 	if !o.Exact {
-		c := cleaner{o: &o, st: &p.Stats, ex: ex, pr: pr, rc: rc, polys: waterPolygons(ex, pr)}
+		c := cleaner{o: &o, st: &p.Stats, ex: ex, pr: pr, rc: rc, water: waterTest{waterPolygons(ex, pr), coastlineOf(ex, pr)}}
 		if arr, fs, water, err = c.cleanFaces(ctx, arr, fs, segs); err != nil {
 			return nil, err
 		}
@@ -256,7 +256,7 @@ type cleaner struct {
 	ex    *extract
 	pr    projection
 	rc    rect
-	polys []waterPolygon
+	water waterTest
 }
 
 // cleanFaces marks the water, merges slivers, and splits oversized
@@ -272,7 +272,7 @@ func (c *cleaner) cleanFaces(ctx context.Context, arr *arrangement, fs *faceSet,
 // merge marks the water faces and merges slivers among the land faces.
 func (c *cleaner) merge(ctx context.Context, arr *arrangement, fs *faceSet) (*arrangement, *faceSet, []bool, error) {
 	minWater := c.o.MinWaterAreaKM2 * 1e6
-	water := waterFaces(arr, fs, c.polys, minWater)
+	water := waterFaces(arr, fs, &c.water, minWater)
 	group, merged := mergeSlivers(arr, fs, c.o.MinAreaKM2*1e6, c.o.MinCompactness, c.o.MaxSliverWidthMetres, water)
 	c.st.SliversMerged += merged
 	if merged == 0 {
@@ -283,7 +283,7 @@ func (c *cleaner) merge(ctx context.Context, arr *arrangement, fs *faceSet) (*ar
 	if err != nil {
 		return nil, nil, nil, err
 	}
-	return arr, fs, waterFaces(arr, fs, c.polys, minWater), nil
+	return arr, fs, waterFaces(arr, fs, &c.water, minWater), nil
 }
 
 // clipLines projects the lines, clips them to the study rectangle and

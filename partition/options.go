@@ -22,7 +22,8 @@ type Options struct {
 	Roads []string `toml:"roads"`
 	// Barriers are extra features that bound regions: any of "rail"
 	// (railway=rail), "river" (waterway=river), "canal" (waterway=canal),
-	// "coastline" (natural=coastline) and "water" (water areas:
+	// "coastline" (natural=coastline; the sea on its right, as OSM draws
+	// it, is no region) and "water" (water areas:
 	// natural=water, waterway=riverbank, as closed ways or multipolygon
 	// relations; their banks bound regions and the water itself is no
 	// region). Default: all five, because a district ends at a river or a

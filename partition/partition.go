@@ -51,7 +51,8 @@ type Partition struct {
 	// Regions are ordered by ID (1..n).
 	Regions []Region
 	// WaterKM2 is the area of the water inside the study area that is no
-	// region (rivers and lakes drawn as areas): the regions and the water
+	// region (rivers and lakes drawn as areas, the sea beyond the
+	// coastline): the regions and the water
 	// together tile the study rectangle.
 	WaterKM2 float64
 	// Warnings are notes for the user (for example, study area taken from
