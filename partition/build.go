@@ -263,7 +263,7 @@ type cleaner struct {
 // regions; it returns the final arrangement, its faces and which are water.
 func (c *cleaner) cleanFaces(ctx context.Context, arr *arrangement, fs *faceSet, segs []seg) (*arrangement, *faceSet, []bool, error) {
 	arr, fs, water, err := c.merge(ctx, arr, fs)
-	if err != nil || c.o.MaxRegionKM2 <= 0 || len(c.ex.splitLines) == 0 {
+	if err != nil || c.o.MaxRegionKM2 <= 0 {
 		return arr, fs, water, err
 	}
 	return c.split(ctx, arr, fs, water, segs)

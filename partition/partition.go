@@ -93,9 +93,17 @@ type Stats struct {
 	// the road ends extended to a barrier or road ahead; SliversMerged
 	// the faces merged into a neighbour (all zero in exact mode).
 	GapsClosed, DanglesExtended, SliversMerged int
-	// RegionsSplit counts regions above Options.MaxRegionKM2 that the
-	// split roads cut, SplitInto the regions they became.
-	RegionsSplit, SplitInto int
+	// Oversized counts the regions above Options.MaxRegionKM2 before
+	// splitting; RegionsSplit those of them the split roads cut, and
+	// SplitInto the regions they became. SplitClasses lists the split road
+	// classes that were added, in the order tried. StillOversized counts
+	// the regions above the limit after splitting, StillOversizedNoRoads
+	// those of them with no split road inside (mountain or farm land
+	// without tertiary roads, tracks or streets), the others being crossed
+	// only by roads that end inside them.
+	Oversized, RegionsSplit, SplitInto    int
+	SplitClasses                          []string
+	StillOversized, StillOversizedNoRoads int
 	// Barriers lists the barrier kinds with lines inside the study area,
 	// the ones that bound regions.
 	Barriers []string

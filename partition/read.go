@@ -34,13 +34,14 @@ type extract struct {
 	lines      []rawLine  // their geometry; a way may give several lines
 	incomplete int        // chosen ways that refer to nodes the file lacks
 
-	waters     []waterArea  // water areas, by the lines that bound them
-	splitLines []rawLine    // SplitRoads lines (their ways are in ways too)
-	unused     []unusedLine // lines of barrier kinds not chosen
-	network    []unusedLine // lines of NetworkRoads, for the maps only
-	places     []placeRec   // named place nodes
-	placeAreas []placeArea  // named place outlines (closed ways)
-	routing    *Routing     // RouteRoads ways and barriers
+	waters     []waterArea     // water areas, by the lines that bound them
+	splitLines []rawLine       // SplitRoads lines (their ways are in ways too)
+	splitDrawn map[string]bool // split road classes also in NetworkRoads
+	unused     []unusedLine    // lines of barrier kinds not chosen
+	network    []unusedLine    // lines of NetworkRoads, for the maps only
+	places     []placeRec      // named place nodes
+	placeAreas []placeArea     // named place outlines (closed ways)
+	routing    *Routing        // RouteRoads ways and barriers
 }
 
 // wayInfo describes a chosen way.
