@@ -165,13 +165,14 @@ func fromExtract(ctx context.Context, ex *extract, o Options) (*Partition, error
 	p.Stats.DanglesDropped, p.Stats.CutEdgesDropped = fs.dangles, fs.cutEdges
 	var water []bool
 	if !o.Exact {
-		c := cleaner{o: &o, st: &p.Stats, ex: ex, pr: pr, rc: rc, polys: waterPolygons(ex, pr)}
+		c := cleaner{o: &o, st: &p.Stats, ex: ex, pr: pr, rc: rc, water: waterTest{waterPolygons(ex, pr), coastlineOf(ex, pr)}}
 		if arr, fs, water, err = c.cleanFaces(ctx, arr, fs, segs); err != nil {
 			return nil, err
 		}
 	}
-	p.Regions, p.WaterKM2 = regions(arr, fs, pr, ex.ways, water, o.MinBorderRoadMetres)
-	nameRegions(p.Regions, ex)
+	var tunnels []map[string]bool
+	p.Regions, p.WaterKM2, tunnels = regions(arr, fs, pr, ex.ways, water, o.MinBorderRoadMetres)
+	nameRegions(p.Regions, ex, tunnels)
 	p.Network = networkOf(ex, bound)
 	p.Routing = ex.routing
 	return p, nil
@@ -256,14 +257,14 @@ type cleaner struct {
 	ex    *extract
 	pr    projection
 	rc    rect
-	polys []waterPolygon
+	water waterTest
 }
 
 // cleanFaces marks the water, merges slivers, and splits oversized
 // regions; it returns the final arrangement, its faces and which are water.
 func (c *cleaner) cleanFaces(ctx context.Context, arr *arrangement, fs *faceSet, segs []seg) (*arrangement, *faceSet, []bool, error) {
 	arr, fs, water, err := c.merge(ctx, arr, fs)
-	if err != nil || c.o.MaxRegionKM2 <= 0 || len(c.ex.splitLines) == 0 {
+	if err != nil || c.o.MaxRegionKM2 <= 0 {
 		return arr, fs, water, err
 	}
 	return c.split(ctx, arr, fs, water, segs)
@@ -272,7 +273,7 @@ func (c *cleaner) cleanFaces(ctx context.Context, arr *arrangement, fs *faceSet,
 // merge marks the water faces and merges slivers among the land faces.
 func (c *cleaner) merge(ctx context.Context, arr *arrangement, fs *faceSet) (*arrangement, *faceSet, []bool, error) {
 	minWater := c.o.MinWaterAreaKM2 * 1e6
-	water := waterFaces(arr, fs, c.polys, minWater)
+	water := waterFaces(arr, fs, &c.water, minWater)
 	group, merged := mergeSlivers(arr, fs, c.o.MinAreaKM2*1e6, c.o.MinCompactness, c.o.MaxSliverWidthMetres, water)
 	c.st.SliversMerged += merged
 	if merged == 0 {
@@ -283,7 +284,7 @@ func (c *cleaner) merge(ctx context.Context, arr *arrangement, fs *faceSet) (*ar
 	if err != nil {
 		return nil, nil, nil, err
 	}
-	return arr, fs, waterFaces(arr, fs, c.polys, minWater), nil
+	return arr, fs, waterFaces(arr, fs, &c.water, minWater), nil
 }
 
 // clipLines projects the lines, clips them to the study rectangle and
@@ -326,10 +327,11 @@ func dissolve(a *arrangement, fs *faceSet, group []int32) *arrangement {
 // regions turns the land faces (water[f] false; water may be nil) into
 // Regions, numbered north to south, then west to east, by representative
 // point, and returns them with the area of the water faces in km².
-// Border roads sharing less than minRoad metres are left out.
-func regions(a *arrangement, fs *faceSet, pr projection, ways []wayInfo, water []bool, minRoad float64) ([]Region, float64) {
+// Border roads sharing less than minRoad metres are left out. The third
+// result holds, per region, the border roads that run only in tunnels.
+func regions(a *arrangement, fs *faceSet, pr projection, ways []wayInfo, water []bool, minRoad float64) ([]Region, float64, []map[string]bool) {
 	isWater := func(f int32) bool { return water != nil && water[f] }
-	roads, nbrs := borders(a, fs, ways, isWater)
+	roads, surface, nbrs := borders(a, fs, ways, isWater)
 	type rp struct {
 		face int
 		x, y float64 // grid units
@@ -352,6 +354,7 @@ func regions(a *arrangement, fs *faceSet, pr projection, ways []wayInfo, water [
 		id[o.face] = i + 1
 	}
 	out := make([]Region, len(order))
+	tunnels := make([]map[string]bool, len(order))
 	for i, o := range order {
 		f := &fs.faces[o.face]
 		reg := Region{
@@ -371,6 +374,12 @@ func regions(a *arrangement, fs *faceSet, pr projection, ways []wayInfo, water [
 		for name, l := range roads[o.face] {
 			if l >= minRoad {
 				reg.BorderRoads = append(reg.BorderRoads, BorderRoad{Name: name, LengthKM: l / 1e3})
+				if surface[o.face][name] == 0 {
+					if tunnels[i] == nil {
+						tunnels[i] = map[string]bool{}
+					}
+					tunnels[i][name] = true
+				}
 			}
 		}
 		slices.SortFunc(reg.BorderRoads, func(a, b BorderRoad) int {
@@ -382,15 +391,17 @@ func regions(a *arrangement, fs *faceSet, pr projection, ways []wayInfo, water [
 		slices.SortFunc(reg.Neighbours, func(a, b Neighbour) int { return cmp.Compare(a.ID, b.ID) })
 		out[i] = reg
 	}
-	return out, waterKM2
+	return out, waterKM2, tunnels
 }
 
 // borders sums, per face, the length of each named road or barrier along
-// its border (metres) and the length shared with each land neighbour.
-func borders(a *arrangement, fs *faceSet, ways []wayInfo, isWater func(int32) bool) ([]map[string]float64, []map[int32]float64) {
+// its border (metres), the part of it above ground, and the length shared
+// with each land neighbour.
+func borders(a *arrangement, fs *faceSet, ways []wayInfo, isWater func(int32) bool) (roads, surface []map[string]float64, nbrs []map[int32]float64) {
 	n := len(fs.faces)
-	roads := make([]map[string]float64, n)
-	nbrs := make([]map[int32]float64, n)
+	roads = make([]map[string]float64, n)
+	surface = make([]map[string]float64, n)
+	nbrs = make([]map[int32]float64, n)
 	for e, ed := range a.edges {
 		l, r := fs.left[2*e], fs.left[2*e+1]
 		if l == pruned {
@@ -402,9 +413,13 @@ func borders(a *arrangement, fs *faceSet, ways []wayInfo, isWater func(int32) bo
 				continue
 			}
 			if roads[f] == nil {
-				roads[f] = map[string]float64{}
+				roads[f], surface[f] = map[string]float64{}, map[string]float64{}
 			}
-			roads[f][ways[ed.way].label] += length
+			w := &ways[ed.way]
+			roads[f][w.label] += length
+			if !w.tunnel {
+				surface[f][w.label] += length
+			}
 		}
 		if l >= 0 && r >= 0 && l != r && !isWater(l) && !isWater(r) {
 			for _, pair := range [2][2]int32{{l, r}, {r, l}} {
@@ -415,7 +430,7 @@ func borders(a *arrangement, fs *faceSet, ways []wayInfo, isWater func(int32) bo
 			}
 		}
 	}
-	return roads, nbrs
+	return roads, surface, nbrs
 }
 
 // representativePoint returns a point strictly inside the face given by

@@ -8,7 +8,6 @@ import (
 	"io"
 	"math"
 	"slices"
-	"strings"
 
 	"github.com/paulmach/orb"
 	"github.com/paulmach/osm"
@@ -54,13 +53,14 @@ type placeRec struct {
 
 // placeRanks are the place values that name regions, broadest first: a
 // region holding a suburb's node is called after the suburb rather than
-// after one of its neighbourhoods.
-var placeRanks = [...]string{"suburb", "village", "quarter", "neighbourhood"}
+// after one of its neighbourhoods. A city comes last: its node marks the
+// centre of much more than the region that holds it.
+var placeRanks = [...]string{"suburb", "village", "town", "quarter", "neighbourhood", "hamlet", "locality", "city"}
 
 // placeOf returns the place that tags name, if they name one.
 func placeOf(tags osm.Tags) (placeRec, bool) {
 	kind := tags.Find("place")
-	name := strings.TrimSpace(tags.Find("name"))
+	name := firstValue(tags.Find("name"))
 	if kind == "" || name == "" {
 		return placeRec{}, false
 	}
@@ -233,13 +233,13 @@ func (rd *elementReader) addWay(w *osm.Way) {
 	}
 	lbl := label(w.Tags, class)
 	if role == rolePlace {
-		lbl = strings.TrimSpace(w.Tags.Find("name"))
+		lbl = firstValue(w.Tags.Find("name"))
 		pl, _ := placeOf(w.Tags)
 		rank = pl.rank
 	}
 	closed := len(ids) > 3 && ids[0] == ids[len(ids)-1]
 	rd.ways = append(rd.ways, wayRec{
-		info:  wayInfo{id: w.ID, rank: rank, label: lbl, class: class, major: role == roleBound && rank < len(rd.sel.roads)},
+		info:  wayInfo{id: w.ID, rank: rank, label: lbl, class: class, major: role == roleBound && rank < len(rd.sel.roads), tunnel: isTunnel(w.Tags)},
 		role:  role,
 		area:  class == "water" && closed,
 		nodes: ids,

@@ -7,7 +7,9 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"regexp"
 	"slices"
+	"strings"
 	"testing"
 
 	"github.com/paulmach/orb"
@@ -119,13 +121,41 @@ func TestExtracts(t *testing.T) {
 							r.ID, pp, o.MinCompactness, width, o.MaxSliverWidthMetres)
 					}
 				}
-				if len(p.Regions) >= p.Stats.Faces {
+				checkNames(t, p, o)
+				if slices.Contains(p.Stats.Barriers, "coastline") && p.WaterKM2 == 0 {
+					t.Error("a coastline bounds regions but no sea lies beyond it")
+				}
+				if p.Stats.SliversMerged == 0 {
 					t.Errorf("%d regions from %d faces: cleaning merged nothing", len(p.Regions), p.Stats.Faces)
 				}
 				t.Logf("default mode: %d regions from %d faces (%d gaps closed, %d slivers merged)",
 					len(p.Regions), p.Stats.Faces, p.Stats.GapsClosed, p.Stats.SliversMerged)
 			})
 		})
+	}
+}
+
+// checkNames checks that region names are unique and read as names: no
+// placeholder for an unnamed way, no ";"-joined OSM values, no bare
+// number to tell regions apart, and no border road shorter than the
+// minimum listed.
+func checkNames(t *testing.T, p *Partition, o Options) {
+	t.Helper()
+	numbered := regexp.MustCompile(`\(\d+\)$`)
+	seen := map[string]int{}
+	for _, r := range p.Regions {
+		if id, dup := seen[r.Name]; dup {
+			t.Errorf("regions %d and %d are both called %q", id, r.ID, r.Name)
+		}
+		seen[r.Name] = r.ID
+		if strings.Contains(r.Name, "(unnamed ") || strings.Contains(r.Name, ";") || numbered.MatchString(r.Name) {
+			t.Errorf("region %d is called %q", r.ID, r.Name)
+		}
+		for _, b := range r.BorderRoads {
+			if b.LengthKM*1000 < o.MinBorderRoadMetres {
+				t.Errorf("region %d lists %q along %.0f m of border, under %.0f m", r.ID, b.Name, b.LengthKM*1000, o.MinBorderRoadMetres)
+			}
+		}
 	}
 }
 

@@ -28,8 +28,9 @@ type NetworkLine struct {
 }
 
 // networkOf collects the extract's linework whose extent meets the study
-// area: the bounding roads and barriers, the split roads, the barriers of
-// kinds not chosen and the NetworkRoads, in that order (each in the
+// area: the bounding roads and barriers, the split roads of NetworkRoads
+// classes, the barriers of kinds not chosen and the NetworkRoads, in that
+// order (each in the
 // reader's order of class rank and way id, so the list is deterministic).
 func networkOf(ex *extract, bound orb.Bound) []NetworkLine {
 	var out []NetworkLine
@@ -48,6 +49,9 @@ func networkOf(ex *extract, bound orb.Bound) []NetworkLine {
 	}
 	for _, l := range ex.splitLines {
 		w := ex.ways[l.way]
+		if !ex.splitDrawn[w.class] {
+			continue // a track read only to split regions
+		}
 		add(int64(w.id), w.class, w.label, l.pts)
 	}
 	for _, l := range ex.unused {

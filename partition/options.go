@@ -22,7 +22,8 @@ type Options struct {
 	Roads []string `toml:"roads"`
 	// Barriers are extra features that bound regions: any of "rail"
 	// (railway=rail), "river" (waterway=river), "canal" (waterway=canal),
-	// "coastline" (natural=coastline) and "water" (water areas:
+	// "coastline" (natural=coastline; the sea on its right, as OSM draws
+	// it, is no region) and "water" (water areas:
 	// natural=water, waterway=riverbank, as closed ways or multipolygon
 	// relations; their banks bound regions and the water itself is no
 	// region). Default: all five, because a district ends at a river or a
@@ -86,7 +87,11 @@ type Options struct {
 	// the districts on both sides. 0 turns splitting off.
 	MaxRegionKM2 float64 `toml:"max_region_km2"`
 	// SplitRoads are the highway classes that split regions above
-	// MaxRegionKM2. Default: tertiary, the class below the default Roads.
+	// MaxRegionKM2, tried in turn: the second class only cuts the regions
+	// the first left oversized, and so on. Default: tertiary (the class
+	// below the default Roads), then unclassified, residential and track,
+	// so that a valley or a farm plain without tertiary roads is still cut
+	// by the lanes, streets and tracks that run across it.
 	SplitRoads []string `toml:"split_roads"`
 	// MinBorderRoadMetres leaves roads with a shorter shared border out of
 	// a region's BorderRoads and name: a road that only touches a corner
@@ -127,7 +132,7 @@ func DefaultOptions() Options {
 		ExtendMetres:        150,
 		MinWaterAreaKM2:     0.05,
 		MaxRegionKM2:        4,
-		SplitRoads:          []string{"tertiary"},
+		SplitRoads:          []string{"tertiary", "unclassified", "residential", "track"},
 		MinBorderRoadMetres: 30,
 		NetworkRoads:        []string{"tertiary", "unclassified", "residential", "motorway_link", "trunk_link", "primary_link", "secondary_link", "tertiary_link"},
 		RouteRoads: []string{"motorway", "trunk", "primary", "secondary", "tertiary", "unclassified", "residential", "living_street",

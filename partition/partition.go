@@ -51,7 +51,8 @@ type Partition struct {
 	// Regions are ordered by ID (1..n).
 	Regions []Region
 	// WaterKM2 is the area of the water inside the study area that is no
-	// region (rivers and lakes drawn as areas): the regions and the water
+	// region (rivers and lakes drawn as areas, the sea beyond the
+	// coastline): the regions and the water
 	// together tile the study rectangle.
 	WaterKM2 float64
 	// Warnings are notes for the user (for example, study area taken from
@@ -92,9 +93,17 @@ type Stats struct {
 	// the road ends extended to a barrier or road ahead; SliversMerged
 	// the faces merged into a neighbour (all zero in exact mode).
 	GapsClosed, DanglesExtended, SliversMerged int
-	// RegionsSplit counts regions above Options.MaxRegionKM2 that the
-	// split roads cut, SplitInto the regions they became.
-	RegionsSplit, SplitInto int
+	// Oversized counts the regions above Options.MaxRegionKM2 before
+	// splitting; RegionsSplit those of them the split roads cut, and
+	// SplitInto the regions they became. SplitClasses lists the split road
+	// classes that were added, in the order tried. StillOversized counts
+	// the regions above the limit after splitting, StillOversizedNoRoads
+	// those of them with no split road inside (mountain or farm land
+	// without tertiary roads, tracks or streets), the others being crossed
+	// only by roads that end inside them.
+	Oversized, RegionsSplit, SplitInto    int
+	SplitClasses                          []string
+	StillOversized, StillOversizedNoRoads int
 	// Barriers lists the barrier kinds with lines inside the study area,
 	// the ones that bound regions.
 	Barriers []string

@@ -34,13 +34,14 @@ type extract struct {
 	lines      []rawLine  // their geometry; a way may give several lines
 	incomplete int        // chosen ways that refer to nodes the file lacks
 
-	waters     []waterArea  // water areas, by the lines that bound them
-	splitLines []rawLine    // SplitRoads lines (their ways are in ways too)
-	unused     []unusedLine // lines of barrier kinds not chosen
-	network    []unusedLine // lines of NetworkRoads, for the maps only
-	places     []placeRec   // named place nodes
-	placeAreas []placeArea  // named place outlines (closed ways)
-	routing    *Routing     // RouteRoads ways and barriers
+	waters     []waterArea     // water areas, by the lines that bound them
+	splitLines []rawLine       // SplitRoads lines (their ways are in ways too)
+	splitDrawn map[string]bool // split road classes also in NetworkRoads
+	unused     []unusedLine    // lines of barrier kinds not chosen
+	network    []unusedLine    // lines of NetworkRoads, for the maps only
+	places     []placeRec      // named place nodes
+	placeAreas []placeArea     // named place outlines (closed ways)
+	routing    *Routing        // RouteRoads ways and barriers
 }
 
 // wayInfo describes a chosen way.
@@ -50,6 +51,9 @@ type wayInfo struct {
 	label string // name, else ref, else "(unnamed class)"
 	class string // highway class or barrier kind
 	major bool   // a chosen road class (not a barrier, not a split road)
+	// tunnel marks a way underground: it may bound regions but does not
+	// name them, since nobody names a district after what runs beneath it.
+	tunnel bool
 }
 
 // rawLine is a run of two or more consecutive distinct nodes of a way.
@@ -294,19 +298,40 @@ func scanError(err error, format string, isPBF bool, count int) error {
 // label is how a way is named in border road lists.
 // Motorways and trunks go by their ref ("I 83"), as signed and as
 // locals say, rather than a long official name.
+// A value listing several ("I 95;US 40") gives its first, the one
+// signed first (OSM's ";" separator, common practice).
 func label(tags osm.Tags, class string) string {
 	if class == "motorway" || class == "trunk" {
-		if r := strings.TrimSpace(tags.Find("ref")); r != "" {
+		if r := firstValue(tags.Find("ref")); r != "" {
 			return r
 		}
 	}
-	if n := strings.TrimSpace(tags.Find("name")); n != "" {
+	if n := firstValue(tags.Find("name")); n != "" {
 		return n
 	}
-	if r := strings.TrimSpace(tags.Find("ref")); r != "" {
+	if r := firstValue(tags.Find("ref")); r != "" {
 		return r
 	}
 	return "(unnamed " + class + ")"
+}
+
+// firstValue returns the first of the ";"-separated values of a tag,
+// trimmed.
+func firstValue(v string) string {
+	if i := strings.IndexByte(v, ';'); i >= 0 {
+		v = v[:i]
+	}
+	v = strings.TrimSpace(v)
+	if strings.EqualFold(v, "fixme") { // a mapper's note, not a name
+		return ""
+	}
+	return v
+}
+
+// isTunnel reports whether tags put a way underground.
+func isTunnel(tags osm.Tags) bool {
+	t := tags.Find("tunnel")
+	return t != "" && t != "no"
 }
 
 func osmBound(b *osm.Bounds) orb.Bound {

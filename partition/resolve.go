@@ -35,6 +35,10 @@ type placeArea struct {
 // outlines.
 func (rd *elementReader) resolve(nodes []nodeRec, ex *extract) {
 	ex.places = rd.store.places
+	ex.splitDrawn = map[string]bool{}
+	for c := range rd.sel.split {
+		ex.splitDrawn[c] = rd.sel.network[c]
+	}
 	slices.SortStableFunc(rd.ways, func(a, b wayRec) int {
 		return cmp.Or(cmp.Compare(a.role, b.role), cmp.Compare(a.info.rank, b.info.rank), cmp.Compare(a.info.id, b.info.id))
 	})

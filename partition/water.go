@@ -70,25 +70,42 @@ func (w *waterPolygon) contains(x, y float64) bool {
 	return in
 }
 
+// waterTest tells water from land at a point: inside a water area, or on
+// the water side of the coastline.
+type waterTest struct {
+	polys []waterPolygon
+	coast coastline
+}
+
+func (w *waterTest) none() bool { return len(w.polys) == 0 && len(w.coast.segs) == 0 }
+
+// wet reports whether the grid point (x, y) is water; y must not be a
+// grid value.
+func (w *waterTest) wet(x, y float64) bool {
+	for i := range w.polys {
+		if w.polys[i].contains(x, y) {
+			return true
+		}
+	}
+	sea, _ := w.coast.seaSide(x, y)
+	return sea
+}
+
 // waterFaces marks the faces that are water: their representative point
-// lies inside a water area, and the connected water they are part of
+// lies inside a water area or on the sea side of the coastline, and the
+// connected water they are part of
 // (water faces joined across shared edges, such as the stretches of a
 // river between bridges) covers at least minArea m². Smaller water
 // (ponds, basins) counts as land. It returns nil when no face is water.
-func waterFaces(a *arrangement, fs *faceSet, polys []waterPolygon, minArea float64) []bool {
-	if len(polys) == 0 {
+func waterFaces(a *arrangement, fs *faceSet, wt *waterTest, minArea float64) []bool {
+	if wt.none() {
 		return nil
 	}
 	n := len(fs.faces)
 	in := make([]bool, n)
 	for f := range fs.faces {
 		x, y := representativePoint(a.pts, fs.faces[f].rings)
-		for i := range polys {
-			if polys[i].contains(x, y) {
-				in[f] = true
-				break
-			}
-		}
+		in[f] = wt.wet(x, y)
 	}
 	parent := make([]int32, n)
 	for f := range parent {

@@ -9,10 +9,10 @@ import (
 	"fmt"
 	"io"
 	"os"
-	"strings"
 	"time"
 
 	"narrows/partition"
+	"narrows/report"
 )
 
 func runRegions(ctx context.Context, env *environment, args []string) error {
@@ -77,20 +77,8 @@ func buildRegions(ctx context.Context, env *environment, osmPath string, opts pa
 // printRegionSteps says what bounds the regions and what each cleaning
 // step did.
 func printRegionSteps(w io.Writer, p *partition.Partition, opts partition.Options) {
-	barriers := "no barriers"
-	if len(p.Stats.Barriers) > 0 {
-		barriers = "barriers " + strings.Join(p.Stats.Barriers, ", ")
-	}
-	fmt.Fprintf(w, "  bounded by roads %s and %s\n", strings.Join(opts.Roads, ", "), barriers)
-	if opts.Exact {
-		fmt.Fprintln(w, "  exact: no cleaning")
-	} else {
-		s := p.Stats
-		fmt.Fprintf(w, "  cleaning: %d gaps closed, %d road ends extended, %d slivers merged, %d oversized regions split into %d\n",
-			s.GapsClosed, s.DanglesExtended, s.SliversMerged, s.RegionsSplit, s.SplitInto)
-	}
-	if p.WaterKM2 > 0 {
-		fmt.Fprintf(w, "  water: %.2f km² lies in no region\n", p.WaterKM2)
+	for _, line := range report.RegionSteps(p, opts) {
+		fmt.Fprintf(w, "  %s\n", line)
 	}
 }
 

@@ -1,0 +1,99 @@
+package partition
+
+import (
+	"slices"
+	"testing"
+
+	"github.com/paulmach/orb"
+	"github.com/paulmach/osm"
+)
+
+func TestLabel(t *testing.T) {
+	tests := []struct {
+		tags  osm.Tags
+		class string
+		want  string
+	}{
+		{osm.Tags{{Key: "name", Value: "Veterans Memorial Expressway"}, {Key: "ref", Value: "I 95"}}, "motorway", "I 95"},
+		{osm.Tags{{Key: "ref", Value: "I 95;US 40"}}, "trunk", "I 95"},
+		{osm.Tags{{Key: "name", Value: "Retzer Bundesstraße; Ringstraße"}}, "primary", "Retzer Bundesstraße"},
+		{osm.Tags{{Key: "name", Value: "Mill Lane"}, {Key: "ref", Value: "B 2"}}, "primary", "Mill Lane"},
+		{osm.Tags{{Key: "name", Value: "fixme"}, {Key: "ref", Value: "S 7"}}, "secondary", "S 7"},
+		{osm.Tags{{Key: "name", Value: " ; "}}, "rail", "(unnamed rail)"},
+	}
+	for _, tc := range tests {
+		if got := label(tc.tags, tc.class); got != tc.want {
+			t.Errorf("label(%v, %s) = %q, want %q", tc.tags, tc.class, got, tc.want)
+		}
+	}
+}
+
+// Points about 40°N: 0.01° of latitude is 1.11 km.
+func TestBorderName(t *testing.T) {
+	places := []placeRec{{id: 1, name: "Ashgrove", pt: orb.Point{0, 40}}}
+	road := func(names ...string) []BorderRoad {
+		var out []BorderRoad
+		for i, n := range names {
+			out = append(out, BorderRoad{Name: n, LengthKM: float64(10 - i)})
+		}
+		return out
+	}
+	tests := []struct {
+		name    string
+		borders []BorderRoad
+		tunnels map[string]bool
+		point   orb.Point
+		places  []placeRec
+		want    string
+	}{
+		{"two longest named", road("Mill Lane", "(unnamed rail)", "Ferry Street", "Kiln Road"), nil, orb.Point{0, 40.1}, places, "Mill Lane / Ferry Street"},
+		{"tunnel skipped", road("Harbour Tunnel", "Mill Lane", "Ferry Street"), map[string]bool{"Harbour Tunnel": true}, orb.Point{0, 40.1}, places, "Mill Lane / Ferry Street"},
+		{"unnamed: nearest place", road("(unnamed rail)", "(unnamed coastline)"), nil, orb.Point{0, 40.01}, places, "1.1 km north of Ashgrove"},
+		{"unnamed: at the place", road("(unnamed rail)"), nil, orb.Point{0.001, 40}, places, "near Ashgrove"},
+		{"unnamed, place too far: tunnel", road("(unnamed rail)", "Harbour Tunnel"), map[string]bool{"Harbour Tunnel": true}, orb.Point{0, 40.1}, places, "Harbour Tunnel"},
+		{"unnamed, no place", road("(unnamed rail)", "(unnamed coastline)", "(unnamed rail)"), nil, orb.Point{0, 40.1}, nil, "unnamed railway / unnamed shore"},
+		{"nothing", nil, nil, orb.Point{0, 40.1}, nil, "no named border"},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			r := Region{BorderRoads: tc.borders, Point: tc.point}
+			if got := borderName(&r, tc.tunnels, tc.places); got != tc.want {
+				t.Errorf("got %q, want %q", got, tc.want)
+			}
+		})
+	}
+}
+
+func TestDisambiguate(t *testing.T) {
+	// Four regions along one road pair, each near a different place but
+	// the last two near the same one, which a further border road tells
+	// apart; two more share another name.
+	places := []placeRec{{id: 1, name: "Ashgrove", pt: orb.Point{0, 40}}, {id: 2, name: "Brook End", pt: orb.Point{0.05, 40}}}
+	same := "Mill Lane / Ferry Street"
+	regs := []Region{
+		{ID: 1, Name: same, Point: orb.Point{0, 40.001}},
+		{ID: 2, Name: same, Point: orb.Point{0.05, 40.001}},
+		{ID: 3, Name: same, Point: orb.Point{0.1, 40.001}, BorderRoads: []BorderRoad{{Name: "Mill Lane", LengthKM: 2}, {Name: "Kiln Road", LengthKM: 1}}},
+		{ID: 4, Name: same, Point: orb.Point{0.1, 40.011}, BorderRoads: []BorderRoad{{Name: "Ferry Street", LengthKM: 2}, {Name: "Quay Road", LengthKM: 1}}},
+		{ID: 5, Name: "Kiln Road", Point: orb.Point{0.2, 40.2}},
+		{ID: 6, Name: "Kiln Road", Point: orb.Point{0.2, 40.1}},
+		{ID: 7, Name: "Ashgrove", Point: orb.Point{0, 40}},
+	}
+	disambiguate(regs, places, make([]map[string]bool, len(regs)))
+	want := []string{
+		same + " (near Ashgrove)",
+		same + " (near Brook End)",
+		same + " (by Kiln Road)",
+		same + " (by Quay Road)",
+		"Kiln Road (north)",
+		"Kiln Road (south)",
+		"Ashgrove",
+	}
+	var got []string
+	for _, r := range regs {
+		got = append(got, r.Name)
+	}
+	if !slices.Equal(got, want) {
+		t.Errorf("names\n got  %q\n want %q", got, want)
+	}
+}
