@@ -40,12 +40,43 @@ type Options struct {
 	// the same from the same inputs; listing one here (its text is in the
 	// appraisal's outputs) keeps it when the inputs change.
 	Candidates []string `toml:"candidates"`
+	// Speeds is where the routes' times come from: SpeedsFreeFlow
+	// (default: class speeds or tagged maxspeed, see route.Options) or
+	// SpeedsObserved: every road's free-flow time, and the candidate's,
+	// times the finding's own pace factor, the median over its routed
+	// trips of observed seconds per metre over free-flow seconds per
+	// metre along the routed path. One factor for the whole network
+	// leaves every shortest path, hence the vehicle-km saved and the
+	// share using a link, as at free-flow, and scales every time by it.
+	Speeds string `toml:"speeds"`
+}
+
+// The values of Options.Speeds.
+const (
+	SpeedsFreeFlow = "free-flow"
+	SpeedsObserved = "observed"
+)
+
+// Check reports an option out of range, naming its study-file key.
+func (o Options) Check() error {
+	switch o.Speeds {
+	case "", SpeedsFreeFlow, SpeedsObserved:
+	default:
+		return fmt.Errorf("speeds %q, want %q or %q", o.Speeds, SpeedsFreeFlow, SpeedsObserved)
+	}
+	if !(o.TripSnapMetres > 0) || !(o.AttachMetres > 0) {
+		return fmt.Errorf("trip_snap_metres %v and attach_metres %v must be more than 0", o.TripSnapMetres, o.AttachMetres)
+	}
+	if o.Generate < 0 {
+		return fmt.Errorf("generate %d, want 0 or more", o.Generate)
+	}
+	return nil
 }
 
 // DefaultOptions returns the defaults documented on each field.
 func DefaultOptions() Options {
 	return Options{TripSnapMetres: 500, AttachMetres: 50, Generate: 5, MinClass: "tertiary", LinkClass: "secondary",
-		MaxLinkMetres: 1500, SpacingMetres: 300}
+		MaxLinkMetres: 1500, SpacingMetres: 300, Speeds: SpeedsFreeFlow}
 }
 
 // Candidate is a link to appraise.
@@ -89,6 +120,10 @@ type Appraisal struct {
 	Detour float64
 	// Results are ranked by SecondsSavedPerMetre, then saving, then name.
 	Results []Result
+	// Speeds is Options.Speeds as used; PaceFactor the factor every
+	// free-flow time was multiplied by (1 at free-flow).
+	Speeds     string
+	PaceFactor float64
 }
 
 // od is a routed trip's snapped ends.
@@ -145,6 +180,11 @@ func Appraise(ctx context.Context, net *route.Network, trips []regiongraph.Trip,
 		return nil, errors.New("appraise: no trip of the finding could be routed")
 	}
 	a.Detour = a.RoutedMetres / straight
+	a.Speeds, a.PaceFactor = SpeedsFreeFlow, 1
+	if opts.Speeds == SpeedsObserved {
+		a.Speeds, a.PaceFactor = SpeedsObserved, paceFactor(trips, ods, base)
+		a.RoutedSeconds *= a.PaceFactor
+	}
 	for _, c := range cands {
 		w, err := net.WithLinks([]route.Link{c.Link}, snap, opts.AttachMetres)
 		if err != nil {
@@ -173,6 +213,7 @@ func Appraise(ctx context.Context, net *route.Network, trips []regiongraph.Trip,
 		}
 		res.ShareUsing = float64(used) / float64(a.Routed)
 		res.Detour = metres / straight
+		res.VehicleSecondsSaved *= a.PaceFactor
 		if res.LengthMetres > 0 {
 			res.SecondsSavedPerMetre = res.VehicleSecondsSaved / res.LengthMetres
 		}
@@ -219,4 +260,29 @@ func routeAll(ctx context.Context, net *route.Network, ods []od) []routed {
 		i = j
 	}
 	return out
+}
+
+// paceFactor is the median over the routed trips of their observed
+// seconds per metre over the free-flow seconds per metre of their routed
+// path: how much slower than free-flow the finding's trips moved. Trips
+// with no distance or time either way are left out; with none left it
+// is 1.
+func paceFactor(trips []regiongraph.Trip, ods []od, base []routed) float64 {
+	var r []float64
+	for i, b := range base {
+		t := trips[ods[i].trip]
+		if b.secs <= 0 || b.metres <= 0 || !(t.DistanceMetres > 0) || !(t.DurationSeconds > 0) {
+			continue
+		}
+		r = append(r, (t.DurationSeconds/t.DistanceMetres)/(b.secs/b.metres))
+	}
+	if len(r) == 0 {
+		return 1
+	}
+	slices.Sort(r)
+	n := len(r)
+	if n%2 == 1 {
+		return r[n/2]
+	}
+	return (r[n/2-1] + r[n/2]) / 2
 }
