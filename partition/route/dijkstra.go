@@ -38,14 +38,19 @@ type arc struct {
 
 // NewSearch returns a search over n.
 func NewSearch(n *Network) *Search {
-	arcs := make([]arc, len(n.head))
-	for e := range arcs {
-		arcs[e] = arc{head: n.head[e], link: -1, secs: n.secs[e], metres: n.metres[e]}
+	return &Search{net: n, state: make([]nodeState, n.Nodes())}
+}
+
+// pack builds the packed edges on the first search.
+func (s *Search) pack() {
+	n := s.net
+	s.arcs = make([]arc, len(n.head))
+	for e := range s.arcs {
+		s.arcs[e] = arc{head: n.head[e], link: -1, secs: n.secs[e], metres: n.metres[e]}
 		if n.link != nil {
-			arcs[e].link = n.link[e]
+			s.arcs[e].link = n.link[e]
 		}
 	}
-	return &Search{net: n, state: make([]nodeState, n.Nodes()), arcs: arcs}
 }
 
 // From runs Dijkstra from src until every node of targets is settled (all
@@ -53,6 +58,9 @@ func NewSearch(n *Network) *Search {
 // the path found first, in edge order, and nodes of equal time settle in
 // node order, so results are deterministic.
 func (s *Search) From(src int, targets []int) {
+	if s.arcs == nil {
+		s.pack()
+	}
 	s.gen++
 	if s.gen == 0 { // wrapped: clear once every 4 billion searches
 		clear(s.state)
@@ -104,7 +112,9 @@ func (s *Search) From(src int, targets []int) {
 }
 
 // settled reports whether v was settled by the last search.
-func (s *Search) settled(v int) bool { return s.state[v].stamp == s.gen && s.state[v].pos < 0 }
+func (s *Search) settled(v int) bool {
+	return v < len(s.state) && s.state[v].stamp == s.gen && s.state[v].pos < 0
+}
 
 // Seconds is the shortest time from the last search's origin to v (+Inf
 // when not settled); Metres the length of that path; Link the candidate
@@ -190,3 +200,80 @@ func (s *Search) pop() int32 {
 	s.state[last.node].pos = int32(i)
 	return top
 }
+
+// Repair finds, on a network with links (net, made by WithLinks from the
+// network base searched on), the nodes that the links make strictly
+// quicker to reach from base's last origin than base settled them, with
+// their new times, lengths and links, up to (not including) bound: base's
+// times are exact on the network without links, so only paths leaving
+// through a link edge can improve, and a Dijkstra seeded at the link
+// entries that expands a node only when it improves on base settles just
+// the improved part. A node base did not settle counts as unreached
+// (base settles every node quicker than its stop), which is exact below a
+// bound no greater than the time of the last node base settled. After it,
+// Improved reports the improved nodes, and Seconds, Metres and Link give
+// their values. s keeps its arrays from one repair (or network) to the
+// next.
+func (s *Search) Repair(net *Network, base *Search, bound float64) {
+	if s.net != net {
+		s.net, s.arcs = net, nil
+		if len(s.state) < net.Nodes() {
+			s.state = append(s.state, make([]nodeState, net.Nodes()-len(s.state))...)
+		}
+	}
+	s.gen++
+	if s.gen == 0 {
+		clear(s.state)
+		s.gen = 1
+	}
+	gen, st := s.gen, s.state
+	baseNodes := base.net.Nodes()
+	baseSecs := func(v int32) float64 {
+		if int(v) < baseNodes && base.settled(int(v)) {
+			return base.state[v].secs
+		}
+		return math.Inf(1)
+	}
+	relax := func(v int32, t, m float64, l int32) {
+		if !(t < bound) || !(t < baseSecs(v)) {
+			return
+		}
+		sv := &st[v]
+		switch {
+		case sv.stamp != gen:
+			sv.secs, sv.metres, sv.link, sv.stamp = t, m, l, gen
+			s.push(heapItem{t, v})
+		case sv.pos >= 0 && t < sv.secs:
+			sv.secs, sv.metres, sv.link = t, m, l
+			s.heap[sv.pos].secs = t
+			s.up(int(sv.pos))
+		}
+	}
+	s.heap = s.heap[:0]
+	for _, u := range net.entries() {
+		if u >= baseNodes || !base.settled(u) {
+			continue
+		}
+		bu := base.state[u]
+		for e := net.first[u]; e < net.first[u+1]; e++ {
+			if l := net.link[e]; l >= 0 {
+				relax(net.head[e], bu.secs+net.secs[e], bu.metres+net.metres[e], l)
+			}
+		}
+	}
+	for len(s.heap) > 0 {
+		u := s.pop()
+		su := &st[u]
+		su.pos = -1
+		for e := net.first[u]; e < net.first[u+1]; e++ {
+			l := su.link
+			if net.link != nil && net.link[e] >= 0 {
+				l = net.link[e]
+			}
+			relax(net.head[e], su.secs+net.secs[e], su.metres+net.metres[e], l)
+		}
+	}
+}
+
+// Improved reports whether the last Repair made v quicker to reach.
+func (s *Search) Improved(v int) bool { return s.settled(v) }

@@ -5,6 +5,7 @@ import (
 	"context"
 	"errors"
 	"fmt"
+	"math"
 	"slices"
 
 	"narrows/partition/geodesy"
@@ -157,8 +158,18 @@ func Appraise(ctx context.Context, net *route.Network, trips []regiongraph.Trip,
 	if len(ods) == 0 {
 		return nil, errors.New("appraise: none of the finding's trips has both ends near the road network")
 	}
-	slices.SortStableFunc(ods, func(x, y od) int { return cmp.Compare(x.o, y.o) })
-	base := routeAll(ctx, net, ods)
+	sortByOrigin(ods)
+	// Every candidate's network first: each origin's search on the base
+	// network is followed at once by each candidate's repair of it.
+	nets := make([]*route.Network, len(cands))
+	for i, c := range cands {
+		w, err := net.WithLinks([]route.Link{c.Link}, snap, opts.AttachMetres)
+		if err != nil {
+			return nil, err
+		}
+		nets[i] = w
+	}
+	base, withs := routeAll(ctx, net, nets, ods)
 	if err := ctx.Err(); err != nil {
 		return nil, err
 	}
@@ -185,15 +196,8 @@ func Appraise(ctx context.Context, net *route.Network, trips []regiongraph.Trip,
 		a.Speeds, a.PaceFactor = SpeedsObserved, paceFactor(trips, ods, base)
 		a.RoutedSeconds *= a.PaceFactor
 	}
-	for _, c := range cands {
-		w, err := net.WithLinks([]route.Link{c.Link}, snap, opts.AttachMetres)
-		if err != nil {
-			return nil, err
-		}
-		with := routeAll(ctx, w, ods)
-		if err := ctx.Err(); err != nil {
-			return nil, err
-		}
+	for ci, c := range cands {
+		with := withs[ci]
 		res := Result{Candidate: c, LengthMetres: c.Link.LengthMetres()}
 		var used int
 		var metres float64
@@ -226,20 +230,37 @@ func Appraise(ctx context.Context, net *route.Network, trips []regiongraph.Trip,
 	return a, nil
 }
 
+func sortByOrigin(ods []od) {
+	slices.SortStableFunc(ods, func(x, y od) int { return cmp.Compare(x.o, y.o) })
+}
+
+func sortedUnique(v []int) []int {
+	slices.Sort(v)
+	return slices.Compact(v)
+}
+
 type routed struct {
 	secs, metres float64 // secs < 0: unreachable
 	link         int
 }
 
-// routeAll routes the trips (sorted by origin) with one search per
-// distinct origin node.
-func routeAll(ctx context.Context, net *route.Network, ods []od) []routed {
-	out := make([]routed, len(ods))
-	s := route.NewSearch(net)
+// routeAll routes the trips (sorted by origin) on net, one search per
+// distinct origin node, and on each network of nets (net with a
+// candidate, from WithLinks) by repairing that search: only the nodes the
+// candidate makes strictly quicker are searched again, up to the
+// origin's farthest destination (Search.Repair). A trip keeps its route
+// on net unless the candidate is strictly quicker.
+func routeAll(ctx context.Context, net *route.Network, nets []*route.Network, ods []od) (base []routed, withs [][]routed) {
+	base = make([]routed, len(ods))
+	withs = make([][]routed, len(nets))
+	for c := range withs {
+		withs[c] = make([]routed, len(ods))
+	}
+	s, repair := route.NewSearch(net), route.NewSearch(net)
 	var targets []int
 	for i := 0; i < len(ods); {
 		if ctx.Err() != nil {
-			return out
+			return base, withs
 		}
 		j := i
 		targets = targets[:0]
@@ -248,18 +269,34 @@ func routeAll(ctx context.Context, net *route.Network, ods []od) []routed {
 			j++
 		}
 		s.From(ods[i].o, targets)
+		far := 0.0
 		for k := i; k < j; k++ {
 			d := ods[k].d
 			secs := s.Seconds(d)
 			if secs > 1e300 {
-				out[k] = routed{-1, -1, -1}
+				base[k] = routed{-1, -1, -1}
+				far = math.Inf(1)
 				continue
 			}
-			out[k] = routed{secs, s.Metres(d), s.Link(d)}
+			base[k] = routed{secs, s.Metres(d), s.Link(d)}
+			far = max(far, secs)
+		}
+		// No destination is farther than far: a repair beyond it cannot
+		// make one quicker.
+		for c, w := range nets {
+			repair.Repair(w, s, far)
+			for k := i; k < j; k++ {
+				d := ods[k].d
+				if repair.Improved(d) {
+					withs[c][k] = routed{repair.Seconds(d), repair.Metres(d), repair.Link(d)}
+				} else {
+					withs[c][k] = base[k]
+				}
+			}
 		}
 		i = j
 	}
-	return out
+	return base, withs
 }
 
 // paceFactor is the median over the routed trips of their observed
