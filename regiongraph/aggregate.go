@@ -73,7 +73,8 @@ type tally struct {
 	read       int64
 	used       int64
 	rejected   map[Reason]int64
-	visit      func(tr *trip, from, to int, day int32, window int) // when set, sees each used trip per window (ReadTrips)
+	visit      func(tr *trip, from, to int, day int32, window int) // when set, sees each used trip per window (ReadTrips, Options.KeepTrip)
+	visitOnly  bool                                                // visit instead of aggregating (ReadTrips)
 
 	// Records past budget go to the spill file, bucket by bucket.
 	held     int // records in memory
@@ -198,7 +199,9 @@ func (t *tally) add(tr *trip) Reason {
 		in = true
 		if t.visit != nil {
 			t.visit(tr, from, to, int32(day), wi)
-			continue
+			if t.visitOnly {
+				continue
+			}
 		}
 		key := makeBucketKey(int32(day), t.windowRank[wi])
 		d := t.last[wi]

@@ -135,6 +135,12 @@ func ingest(ctx context.Context, regions *partition.Partition, regionsSHA256 str
 	for i := range tallies {
 		tallies[i] = newTally(st, loc)
 	}
+	if opts.KeepTrip != nil {
+		visit := tripVisitor(st, loc, opts.KeepTrip)
+		for _, t := range tallies {
+			t.visit = visit
+		}
+	}
 	sources, err := ingestFiles(ctx, st, files, tallies, progress)
 	if err != nil {
 		return err

@@ -141,6 +141,12 @@ type Options struct {
 	// Progress, when not nil, is called from one goroutine at a time with the
 	// bytes read so far and the total bytes of all inputs.
 	Progress func(done, total int64) `toml:"-"`
+	// KeepTrip, when not nil, sees every used trip once for each window it
+	// falls in, during the ingest's one pass over the files, from one
+	// goroutine at a time and in no set order (SortTrips orders them): a
+	// later step that re-routes trips keeps those it may need without
+	// reading the files again. Each kept Trip costs about 130 bytes.
+	KeepTrip func(Trip) `toml:"-"`
 
 	// MemoryMB bounds the memory an ingest holds for the trips of days
 	// not yet aggregated and for its duplicate check (default 128 MB):

@@ -59,33 +59,52 @@ func ReadTrips(ctx context.Context, regions *partition.Partition, inputs []Input
 	if err != nil {
 		return nil, err
 	}
-	var mu sync.Mutex
 	var out []Trip
-	visit := func(tr *trip, from, to int, day int32, wi int) {
-		t := Trip{Origin: orb.Point(tr.origin), Dest: orb.Point(tr.dest), From: loc.id(from), To: loc.id(to),
-			Day: time.Unix(int64(day)*86400, 0).UTC().Format(time.DateOnly), Window: st.windows[wi].Name,
-			DistanceMetres: tr.distance, DurationSeconds: float64(tr.endMS-tr.startMS) / 1000, StartUnixMS: tr.startMS}
-		if keep != nil && !keep(&t) {
-			return
-		}
-		mu.Lock()
-		out = append(out, t)
-		mu.Unlock()
-	}
 	parsers := max(1, min(runtime.GOMAXPROCS(0), maxParsers))
 	tallies := make([]*tally, parsers)
+	visit := tripVisitor(st, loc, func(t Trip) {
+		if keep == nil || keep(&t) {
+			out = append(out, t)
+		}
+	})
 	for i := range tallies {
 		tallies[i] = newTally(st, loc)
-		tallies[i].visit = visit
+		tallies[i].visit, tallies[i].visitOnly = visit, true
 	}
 	if _, err := ingestFiles(ctx, st, files, tallies, progressOf(files, opts.Progress)); err != nil {
 		return nil, err
 	}
+	SortTrips(out)
+	return out, nil
+}
+
+// tripVisitor returns the tallies' visit function that hands each used
+// trip, as a Trip, to fn, from one goroutine at a time. Day names are
+// shared between trips of the same day.
+func tripVisitor(st *settings, loc *locator, fn func(Trip)) func(tr *trip, from, to int, day int32, wi int) {
+	var mu sync.Mutex
+	dayNames := map[int32]string{}
+	return func(tr *trip, from, to int, day int32, wi int) {
+		mu.Lock()
+		defer mu.Unlock()
+		name, ok := dayNames[day]
+		if !ok {
+			name = time.Unix(int64(day)*86400, 0).UTC().Format(time.DateOnly)
+			dayNames[day] = name
+		}
+		fn(Trip{Origin: orb.Point(tr.origin), Dest: orb.Point(tr.dest), From: loc.id(from), To: loc.id(to),
+			Day: name, Window: st.windows[wi].Name,
+			DistanceMetres: tr.distance, DurationSeconds: float64(tr.endMS-tr.startMS) / 1000, StartUnixMS: tr.startMS})
+	}
+}
+
+// SortTrips orders trips by day, window, start, origin and destination
+// (then distance and duration), the order ReadTrips returns.
+func SortTrips(out []Trip) {
 	slices.SortFunc(out, func(a, b Trip) int {
 		return cmp.Or(cmp.Compare(a.Day, b.Day), cmp.Compare(a.Window, b.Window), cmp.Compare(a.StartUnixMS, b.StartUnixMS),
 			cmp.Compare(a.Origin[0], b.Origin[0]), cmp.Compare(a.Origin[1], b.Origin[1]),
 			cmp.Compare(a.Dest[0], b.Dest[0]), cmp.Compare(a.Dest[1], b.Dest[1]),
 			cmp.Compare(a.DistanceMetres, b.DistanceMetres), cmp.Compare(a.DurationSeconds, b.DurationSeconds))
 	})
-	return out, nil
 }

@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"math/rand/v2"
+	"reflect"
 	"strings"
 	"testing"
 )
@@ -55,6 +56,22 @@ func TestReadTripsMatchesStore(t *testing.T) {
 		if int(v[0]) != e.Trips || math.Abs(v[1]-e.DistanceSum) > 1e-6*e.DistanceSum+1 {
 			t.Fatalf("%s %s %d>%d: %v trips %.1f m, store %d trips %.1f m", e.Day, e.Window, e.From, e.To, v[0], v[1], e.Trips, e.DistanceSum)
 		}
+	}
+	// The ingest's KeepTrip sees the same trips in the same pass that
+	// builds an identical store.
+	var kept []Trip
+	keepOpts := opts
+	keepOpts.KeepTrip = func(t Trip) { kept = append(kept, t) }
+	store2, err := Ingest(context.Background(), p, "x", []Input{{Path: path}}, keepOpts)
+	if err != nil {
+		t.Fatal(err)
+	}
+	SortTrips(kept)
+	if !reflect.DeepEqual(kept, trips) {
+		t.Fatalf("KeepTrip saw %d trips, ReadTrips returns %d (or they differ)", len(kept), len(trips))
+	}
+	if !reflect.DeepEqual(store2.Edges, store.Edges) {
+		t.Fatal("the store differs when KeepTrip is set")
 	}
 	// keep filters.
 	some, err := ReadTrips(context.Background(), p, []Input{{Path: path}}, opts, func(t *Trip) bool { return t.From == 1 })

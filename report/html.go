@@ -64,6 +64,14 @@ type htmlPage struct {
 	MinTrips                       int
 	Timeline                       template.HTML // inline SVG, built from escaped parts
 	TimelineCaption                string
+	Appraisal                      *htmlAppraisal
+}
+
+// htmlAppraisal is the page's section on candidate links.
+type htmlAppraisal struct {
+	Title, Routed, Observed string
+	Rows                    []htmlCandidate
+	Notes                   []string
 }
 
 var pageTemplate = template.Must(template.New("page").Parse(`<!DOCTYPE html>
@@ -128,7 +136,17 @@ details.reason summary { cursor: pointer; color: #333333; }
 {{range .Rows}}<tr><td class="num">{{.Rank}}{{if $.Comparing}} ({{.Period}}){{end}}</td><td title="Edges {{.Edges}}">{{.Name}} <span class="ci">({{.ID}})</span>{{if .Focus}} (focus){{end}}</td>{{if $.Comparing}}<td><span class="swatch" style="background: {{.Colour}}; color: {{.Text}}">{{.Verdict}}</span></td><td class="num">{{.CostBefore}}</td><td class="num">{{.CostAfter}}</td><td class="num">{{.CostShift}}{{if .CostCI}}<br/><span class="ci">{{.CostCI}}</span>{{end}}</td><td class="num">{{.TimeShift}}{{if .TimeCI}}<br/><span class="ci">{{.TimeCI}}</span>{{end}}</td>{{else}}<td class="num">{{.Share}}</td><td class="num">{{.Trips}}</td><td class="num">{{.Speed}}</td><td class="num">{{.Detour}}</td><td class="num">{{.ExtraKM}}</td><td class="num">{{.ExtraHours}}</td>{{end}}</tr>
 {{if $.Comparing}}<tr class="reason"><td></td><td colspan="6"><details class="reason"><summary>Reason and details</summary><p>{{.Note}}</p><p>Comparison group change {{.GroupChange}}; detour ratio before, after {{.DetourChange}}; days on the skyline before {{.ShareBefore}}, after {{.ShareAfter}}.</p></details></td></tr>
 {{end}}{{end}}</table>{{else}}<p>No weak link recurred.</p>{{end}}
-<h2>What was analysed</h2>
+{{with .Appraisal}}<h2>Candidate links</h2>
+<p>{{.Title}}. {{.Routed}}</p>
+<table id="candidates">
+<tr><th>Rank</th><th>Candidate</th><th>Kind</th><th>Length km</th><th>Vehicle-km saved per day</th><th>Vehicle-hours saved per day</th><th>Share of trips using it</th><th>Detour with it</th><th>Vehicle-hours saved per day per km</th></tr>
+{{range .Rows}}<tr><td class="num">{{.Rank}}</td><td>{{.Name}}{{if .Best}} (on the map){{end}}</td><td>{{.Kind}}</td><td class="num">{{.KM}}</td><td class="num">{{.VehKM}}</td><td class="num">{{.VehH}}</td><td class="num">{{.Using}}</td><td class="num">{{.Detour}}</td><td class="num">{{.PerKM}}</td></tr>
+{{end}}</table>
+{{if .Observed}}<p>{{.Observed}}</p>{{end}}
+<ul id="candidate-notes">
+{{range .Notes}}<li>{{.}}</li>
+{{end}}</ul>
+{{end}}<h2>What was analysed</h2>
 <table id="analysed">
 {{range .Analysed}}<tr><th>{{index . 0}}</th><td>{{index . 1}}</td></tr>
 {{end}}</table>
@@ -230,6 +248,9 @@ func (v *view) html(w io.Writer) error {
 		pg.Inputs = append(pg.Inputs, [2]string{s.Path, s.SHA256})
 	}
 	pg.Analysed = v.analysed()
+	if ap := v.in.Appraisal; ap != nil {
+		pg.Appraisal = &htmlAppraisal{Title: ap.title(), Routed: ap.routedLine(), Observed: ap.observedLine(), Rows: ap.htmlCandidates(), Notes: appraisalNotes(ap.Result)}
+	}
 	pg.clean()
 	if err := pageTemplate.Execute(w, pg); err != nil {
 		return fmt.Errorf("report: HTML page: %w", err)
@@ -294,6 +315,12 @@ func (pg *htmlPage) clean() {
 	for i := range pg.Rows {
 		r := &pg.Rows[i]
 		r.ID, r.Name, r.Edges, r.Verdict, r.Note = cleanText(r.ID), cleanText(r.Name), cleanText(r.Edges), cleanText(r.Verdict), cleanText(r.Note)
+	}
+	if a := pg.Appraisal; a != nil {
+		a.Title, a.Routed, a.Observed = cleanText(a.Title), cleanText(a.Routed), cleanText(a.Observed)
+		for i := range a.Rows {
+			a.Rows[i].Name = cleanText(a.Rows[i].Name)
+		}
 	}
 	for i := range pg.Cautions {
 		pg.Cautions[i] = cleanText(pg.Cautions[i])

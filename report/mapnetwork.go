@@ -33,6 +33,10 @@ const (
 	railColour   = "#4D4D4D"
 	schemeColour = "#F0E442" // Okabe-Ito yellow, cased in black: no verdict uses it
 	schemeCasing = "#000000"
+	// The best candidate link: black, dashed white inside, wider than any
+	// road, so it reads as "not built" beside the yellow scheme.
+	candidateColour = "#000000"
+	candidateDash   = "6 4"
 )
 
 // netLayers lists the layers bottom to top. Classes not listed (a
@@ -175,6 +179,23 @@ func (v *view) networkSVG(b *strings.Builder, p projection) {
 		fmt.Fprintf(b, `<g id="scheme" fill="none" stroke-linecap="round" stroke-linejoin="round"><title>%s</title><path d="%s" stroke="%s" stroke-width="7"/><path d="%s" stroke="%s" stroke-width="4"/></g>`,
 			xmlText(v.schemeName()), d, schemeCasing, d, schemeColour)
 	}
+	if c := v.candidateLine(p); len(c) > 0 {
+		d := linesPath(c)
+		fmt.Fprintf(b, `<g id="best-candidate" fill="none" stroke-linecap="round" stroke-linejoin="round"><title>%s</title><path d="%s" stroke="%s" stroke-width="6"/><path d="%s" stroke="#FFFFFF" stroke-width="2" stroke-dasharray="%s"/></g>`,
+			xmlText(v.in.Appraisal.bestLabel()), d, candidateColour, d, candidateDash)
+	}
+}
+
+// candidateLine is the best candidate link in pixels (nil without one).
+func (v *view) candidateLine(p projection) [][][2]float64 {
+	r, ok := v.in.Appraisal.best()
+	if !ok {
+		return nil
+	}
+	if line := pixelLine(p, partition.NetworkLine{Line: r.Candidate.Link.Line}); len(line) >= 2 {
+		return [][][2]float64{line}
+	}
+	return nil
 }
 
 // networkPNG draws the network layers and the scheme into img, clipped
@@ -202,6 +223,10 @@ func (v *view) networkPNG(img *image.RGBA, p projection) {
 	if s := v.schemeLines(p); len(s) > 0 {
 		draw(s, 7, schemeCasing, nil)
 		draw(s, 4, schemeColour, nil)
+	}
+	if c := v.candidateLine(p); len(c) > 0 {
+		draw(c, 6, candidateColour, nil)
+		draw(c, 2, "#FFFFFF", dashPattern(candidateDash))
 	}
 }
 
@@ -269,6 +294,9 @@ func (v *view) baseLegend(p projection) []baseEntry {
 	var out []baseEntry
 	if len(v.schemeLines(p)) > 0 {
 		out = append(out, baseEntry{Layer: "scheme", Text: v.schemeName(), Hex: schemeColour, Casing: schemeCasing, Width: 4})
+	}
+	if len(v.candidateLine(p)) > 0 {
+		out = append(out, baseEntry{Layer: "best-candidate", Text: v.in.Appraisal.bestLabel(), Hex: candidateColour, Width: 6, Dash: candidateDash})
 	}
 	if has("major-roads-tertiary", "major-roads-secondary", "major-roads-primary", "major-roads-trunk") {
 		out = append(out, baseEntry{Layer: "major-roads", Text: "major road (wider: higher class)", Hex: majorColour, Width: 2.2})

@@ -44,6 +44,10 @@ type Input struct {
 	// highlighted on every map under the findings. The network drawn
 	// beneath comes with the regions (Regions.Network).
 	Scheme []partition.NetworkLine
+	// Appraisal is the appraisal of candidate links for one weak link
+	// (optional): the Candidate links sheet, the best candidate drawn on
+	// the map and a table on the page.
+	Appraisal *Appraisal
 	// FocusRegions are the region ids of the focus area (optional). When
 	// empty, the regions of the assessments marked Focus are taken.
 	FocusRegions []int
@@ -143,6 +147,11 @@ func newView(in Input) (*view, error) {
 	v := &view{in: in, minTrips: in.PublicationMinTrips, regions: map[int]*partition.Region{}, focus: map[int]bool{}, counts: map[patterns.Verdict]int{}, focusCounts: map[patterns.Verdict]int{}}
 	if v.minTrips <= 0 {
 		v.minTrips = DefaultPublicationMinTrips
+	}
+	if in.Appraisal != nil {
+		if err := in.Appraisal.check(); err != nil {
+			return nil, err
+		}
 	}
 	if err := v.indexRegions(); err != nil {
 		return nil, err

@@ -324,6 +324,9 @@ func (v *view) mapCaption() string {
 	if v.comparing() {
 		s += " Arrows are coloured by verdict as in the verdict table; dashed: cleared, dotted: new."
 	}
+	if _, ok := v.in.Appraisal.best(); ok {
+		s += " The black line dashed white is the " + v.in.Appraisal.bestLabel() + " of weak link " + v.in.Appraisal.FindingID + ", not a built road."
+	}
 	return s
 }
 

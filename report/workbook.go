@@ -33,7 +33,11 @@ func Sheets(in Input) []string {
 	if in.Comparison != nil {
 		s = append(s, SheetComparison, SheetComparisonDetail, SheetComparisonGroups)
 	}
-	return append(s, SheetDaily, SheetTimeline, SheetScatter, SheetCostDays, SheetRegions, SheetDataQuality, SheetInputs, SheetMethod)
+	s = append(s, SheetDaily, SheetTimeline, SheetScatter, SheetCostDays)
+	if in.Appraisal != nil {
+		s = append(s, SheetCandidates)
+	}
+	return append(s, SheetRegions, SheetDataQuality, SheetInputs, SheetMethod)
 }
 
 // WriteWorkbook writes the study workbook (.xlsx; see Sheets for its
@@ -78,6 +82,9 @@ func (v *view) workbook(w io.Writer) error {
 	b.timeline()
 	b.scatter()
 	b.costDays()
+	if v.in.Appraisal != nil {
+		b.candidatesSheet(v.in.Appraisal)
+	}
 	b.regionsSheet()
 	b.quality()
 	b.inputsSheet()

@@ -13,6 +13,8 @@ import (
 	"github.com/paulmach/orb"
 	"github.com/paulmach/orb/geojson"
 	"github.com/xuri/excelize/v2"
+
+	"narrows/report"
 )
 
 // appraisalTolerance is the documented tolerance between the estimated
@@ -34,22 +36,7 @@ func TestAppraiseDemoBridge(t *testing.T) {
 	mustRunCLI(t, "demo", "--dir", dir)
 	study := filepath.Join(dir, "study.toml")
 	out := mustRunCLI(t, "appraise", study, "--generate", "10")
-	var rank int
-	var estKM, obsKM float64
-	for _, line := range strings.Split(out, "\n") {
-		if strings.Contains(line, "Lantern Bridge") {
-			var name1, name2, kind string
-			var km, vkm, vh float64
-			if _, err := fmt.Sscan(line, &rank, &name1, &name2, &kind, &km, &vkm, &vh); err != nil {
-				t.Fatalf("%q: %v", line, err)
-			}
-			estKM = vkm
-		}
-		if strings.HasPrefix(line, "Observed after") {
-			i := strings.Index(line, "trips per day: ")
-			fmt.Sscan(line[i+len("trips per day: "):], &obsKM)
-		}
-	}
+	rank, estKM, estH, obsKM, obsH := bridgeFigures(t, out)
 	if rank < 1 || rank > 3 {
 		t.Fatalf("Lantern Bridge ranks %d, want among the best 3:\n%s", rank, out)
 	}
@@ -63,11 +50,51 @@ func TestAppraiseDemoBridge(t *testing.T) {
 			t.Errorf("no caution %q", c)
 		}
 	}
+	// At the observed pace (the finding's own trips' median ratio of
+	// observed to free-flow time), the hours saved come near those
+	// observed after opening, where free-flow times fall far short (the
+	// before trips were slowed on the long detour); the km and the rank
+	// stay as at free-flow.
+	paced := mustRunCLI(t, "appraise", study, "--generate", "10", "--speeds", "observed", "--force")
+	rankP, estKMP, estHP, _, _ := bridgeFigures(t, paced)
+	gapFree, gapPaced := (estH-obsH)/obsH, (estHP-obsH)/obsH
+	t.Logf("vehicle-hours saved per day: free-flow %.2f (%+.1f %%), observed pace %.2f (%+.1f %%), observed %.2f", estH, 100*gapFree, estHP, 100*gapPaced, obsH)
+	if rankP != rank || estKMP != estKM {
+		t.Errorf("observed pace: rank %d, %.1f veh-km; free-flow rank %d, %.1f veh-km", rankP, estKMP, rank, estKM)
+	}
+	if !(math.Abs(gapPaced) <= appraisalTolerance) || !(math.Abs(gapPaced) < math.Abs(gapFree)) {
+		t.Errorf("observed pace %.2f veh-h/day, free-flow %.2f, observed %.2f: want the paced within %.2f and nearer", estHP, estH, obsH, appraisalTolerance)
+	}
+	if !strings.Contains(paced, "observed pace") || !strings.Contains(out, "at free-flow speeds") {
+		t.Error("the appraisal does not say which speeds it used")
+	}
 	// Bad input: a finding that does not exist.
 	code, _, stderr := runCLI(t, "appraise", study, "--finding", "99")
 	if code == exitOK || !strings.Contains(stderr, "no finding of rank 99") {
 		t.Errorf("finding 99: exit %d, %s", code, stderr)
 	}
+}
+
+// bridgeFigures reads, from narrows appraise's table, the Lantern
+// Bridge's rank, vehicle-km and vehicle-hours saved per day, and the
+// observed saving's.
+func bridgeFigures(t *testing.T, out string) (rank int, estKM, estH, obsKM, obsH float64) {
+	t.Helper()
+	for _, line := range strings.Split(out, "\n") {
+		if strings.Contains(line, "Lantern Bridge") {
+			var name1, name2, kind string
+			var km float64
+			if _, err := fmt.Sscan(line, &rank, &name1, &name2, &kind, &km, &estKM, &estH); err != nil {
+				t.Fatalf("%q: %v", line, err)
+			}
+		}
+		if strings.HasPrefix(line, "Observed after") {
+			i := strings.Index(line, "trips per day: ")
+			var words string
+			fmt.Sscan(line[i+len("trips per day: "):], &obsKM, &words, &words, &obsH)
+		}
+	}
+	return rank, estKM, estH, obsKM, obsH
 }
 
 // TestAppraiseCandidatesCLI: narrows appraise writes the candidates sheet
@@ -117,7 +144,7 @@ func TestAppraiseCandidatesCLI(t *testing.T) {
 		t.Fatal(err)
 	}
 	defer wb.Close()
-	rows, err := wb.GetRows("Candidates")
+	rows, err := wb.GetRows(report.SheetCandidates)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -138,6 +165,44 @@ func TestAppraiseCandidatesCLI(t *testing.T) {
 	for _, c := range []string{"not a traffic forecast", "Induced demand", "qualified, licensed engineers"} {
 		if !strings.Contains(all.String(), c) {
 			t.Errorf("sheet: no caution %q", c)
+		}
+	}
+	// With candidates listed, narrows run appraises too, through the same
+	// writers: the report's candidates layer has the same figures, its
+	// workbook the sheet, its page the table and the best candidate on
+	// the map.
+	mustRunCLI(t, "run", study, "--force")
+	inReport := readCandidates(t, filepath.Join(dir, "out", "report-candidates.geojson"))
+	for name, props := range again {
+		for k, v := range props {
+			if inReport[name][k] != v {
+				t.Errorf("report layer %s %s: %v, appraise wrote %v", name, k, inReport[name][k], v)
+			}
+		}
+	}
+	book, err := excelize.OpenFile(filepath.Join(dir, "out", "report.xlsx"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer book.Close()
+	reportRows, err := book.GetRows(report.SheetCandidates)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if fmt.Sprint(reportRows) != fmt.Sprint(rows) {
+		t.Errorf("report sheet differs from appraise's:\n%v\n%v", reportRows, rows)
+	}
+	page, err := os.ReadFile(filepath.Join(dir, "out", "report.html"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	best := "Lantern Bridge"
+	if again["line 1"]["rank"].(float64) == 1 {
+		best = "line 1"
+	}
+	for _, want := range []string{`<table id="candidates">`, `<g id="best-candidate"`, "best candidate link: " + best, "not a traffic forecast"} {
+		if !bytes.Contains(page, []byte(want)) {
+			t.Errorf("report page: no %q", want)
 		}
 	}
 	for _, c := range []struct{ cand, want string }{

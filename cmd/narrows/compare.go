@@ -149,6 +149,7 @@ type compareJob struct {
 	extraInputs   []regiongraph.Source
 	scheme        []partition.NetworkLine // highlighted on the maps
 	mapOut        string                  // the map alone, .svg or .png; "" for none
+	appraisal     *report.Appraisal       // candidate links for a finding (optional)
 }
 
 func compareAndReport(ctx context.Context, env *environment, job compareJob) error {
@@ -169,6 +170,7 @@ func compareAndReport(ctx context.Context, env *environment, job compareJob) err
 		Scan:                cmp.Before,
 		Comparison:          cmp,
 		Scheme:              job.scheme,
+		Appraisal:           job.appraisal,
 		PublicationMinTrips: job.minPublish,
 		Version:             version,
 	}

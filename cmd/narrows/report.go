@@ -41,6 +41,10 @@ func writeReportFiles(files *runFiles, dir, base string, in report.Input) ([]str
 		outs = append([]output{{filepath.Join(dir, in.DailyCSVName), kindDaily}}, outs...)
 		writers = append([]func(io.Writer, report.Input) error{report.WriteDailyCSV}, writers...)
 	}
+	if in.Appraisal != nil {
+		outs = append(outs, candidatesOutput(dir, base))
+		writers = append(writers, report.WriteCandidatesGeoJSON)
+	}
 	outputs := make([]struct {
 		output
 		write func(io.Writer, report.Input) error

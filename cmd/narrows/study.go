@@ -37,8 +37,12 @@ type study struct {
 	Windows []studyWindow `toml:"windows"`
 	Scan    studyScan     `toml:"scan"`
 	Compare studyCompare  `toml:"compare"`
-	// Appraise sets the appraisal of candidate links (narrows appraise).
+	// Appraise sets the appraisal of candidate links (narrows appraise;
+	// narrows run appraises the costliest finding too when the study lists
+	// candidates or run is given --appraise).
 	Appraise appraise.Options `toml:"appraise"`
+	// appraiseAsked is run's --appraise.
+	appraiseAsked bool
 }
 
 type studyRegions struct {
@@ -160,6 +164,7 @@ func loadStudy(path string) (*study, error) {
 		{"[scan]", s.Scan.Validate()},
 		{"[scan]", s.Scan.exclusions().Validate(0)},
 		{"[compare]", s.Compare.Validate()},
+		{"[appraise]", s.Appraise.Check()},
 	} {
 		if v.err != nil {
 			return nil, fmt.Errorf("study file %s: %s: %v", path, v.where, v.err)
@@ -185,9 +190,11 @@ func (s *study) windows() error {
 }
 
 func runStudy(ctx context.Context, env *environment, args []string) error {
-	fs := newFlagSet(env, "run", "[--output DIR] [--force] study.toml")
+	fs := newFlagSet(env, "run", "[--output DIR] [--appraise] [--force] study.toml")
 	var file, output string
+	var appraiseAsked bool
 	fs.StringVar(&output, "output", "", "folder for the outputs, anywhere (default: the study file's output, inside its folder)")
+	fs.BoolVar(&appraiseAsked, "appraise", false, "appraise candidate links for the costliest weak link of the (before) period into the report (always when the study lists [appraise] candidates)")
 	env.files.bindForce(fs)
 	file, err := parseStudyArgs(env, fs, args)
 	if err != nil {
@@ -205,6 +212,7 @@ func runStudy(ctx context.Context, env *environment, args []string) error {
 		}
 		s.Output = abs
 	}
+	s.appraiseAsked = appraiseAsked
 	return s.run(ctx, env, filepath.Dir(file), file)
 }
 
@@ -213,6 +221,11 @@ type studyRun struct {
 	*study
 	file, dir  string // the study file and its folder
 	out, steps string // the output folder and its folder of intermediate files
+	// appraise: the report has an appraisal of candidate links for the
+	// costliest finding of the (before) period; kept are the trips the
+	// ingest kept for it.
+	appraise bool
+	kept     *[]regiongraph.Trip
 }
 
 // rel resolves a path of the study file.
@@ -227,7 +240,7 @@ func (r *studyRun) rel(p string) string {
 // regions, day graphs, then a scan of one period or a comparison of two,
 // each with its report.
 func (s *study) run(ctx context.Context, env *environment, dir, file string) error {
-	r := &studyRun{study: s, file: file, dir: dir}
+	r := &studyRun{study: s, file: file, dir: dir, appraise: s.appraiseAsked || len(s.Appraise.Candidates) > 0}
 	r.out = r.rel(s.Output)
 	r.steps = filepath.Join(r.out, "steps")
 	if err := r.claimOutputs(env.files); err != nil {
@@ -258,6 +271,17 @@ func (s *study) run(ctx context.Context, env *environment, dir, file string) err
 		return err
 	}
 	in.Scheme = scheme
+	if r.appraise {
+		fmt.Fprintln(env.stdout, "   appraising candidate links")
+		ap, _, err := r.appraiseFinding(ctx, regions, store, *r.kept, 1, s.Appraise)
+		if err != nil {
+			return err
+		}
+		if err := report.WriteAppraisalText(env.stdout, *ap); err != nil {
+			return err
+		}
+		in.Appraisal = ap
+	}
 	if s.Compare.Before.from == "" && s.Compare.After.from == "" {
 		fmt.Fprintln(env.stdout, "3/3 scan")
 		return r.scan(ctx, env, store, in)
@@ -276,9 +300,16 @@ func (r *studyRun) dayGraphs(ctx context.Context, env *environment, regions *par
 		names[r.rel(t)] = t
 	}
 	graphs := filepath.Join(r.steps, "graphs.parquet")
+	opts := r.Trips.Options
+	if r.appraise {
+		var err error
+		if opts, r.kept, err = r.keepTrips(); err != nil {
+			return nil, err
+		}
+	}
 	// The store is written as the step's output; the analysis goes on with
 	// the same store in memory, since it applies its own minimum of trips.
-	return ingest(ctx, env, regions, sum, trips, names, r.Trips.Format, r.Trips.Options, nil, graphs)
+	return ingest(ctx, env, regions, sum, trips, names, r.Trips.Format, opts, nil, graphs)
 }
 
 // reportInput returns what the reports of both kinds of study share; the
@@ -348,7 +379,7 @@ func (r *studyRun) compare(ctx context.Context, env *environment, store *regiong
 	return compareAndReport(ctx, env, compareJob{
 		store: store, regions: in.Regions, before: before, after: after, opts: r.Compare.CompareOptions,
 		out: filepath.Join(r.out, r.Name+".xlsx"), title: in.Title, minPublish: in.PublicationMinTrips, settings: settings,
-		extraInputs: in.Inputs, scheme: in.Scheme,
+		extraInputs: in.Inputs, scheme: in.Scheme, appraisal: in.Appraisal,
 	})
 }
 

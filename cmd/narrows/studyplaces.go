@@ -49,5 +49,8 @@ func (r *studyRun) claimOutputs(files *runFiles) error {
 		outs = append(outs, output{r.findingsPath(), kindFindings})
 	}
 	outs = append(outs, reportOutputs(r.out, r.Name)...)
+	if r.appraise {
+		outs = append(outs, candidatesOutput(r.out, r.Name))
+	}
 	return files.claimAll(outs)
 }

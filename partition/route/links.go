@@ -44,6 +44,7 @@ func (n *Network) WithLinks(links []Link, attach *Snapper, attachMetres float64)
 		Points: slices.Clone(n.Points), OSMIDs: slices.Clone(n.OSMIDs), Rank: slices.Clone(n.Rank),
 		Dropped: n.Dropped, index: n.index, barriers: n.barriers, proj: n.proj, opts: n.opts,
 	}
+	out.baseNodes = len(n.Points)
 	edges := n.edgesOut()
 	for li, l := range links {
 		if len(l.Line) < 2 {
@@ -99,6 +100,35 @@ func (n *Network) WithLinks(links []Link, attach *Snapper, attachMetres float64)
 	}
 	out.compress(edges)
 	return out, nil
+}
+
+// LinkEntries lists the nodes of the network WithLinks started from (in
+// order) from which an edge of an added link leaves. A path that uses a
+// link reaches one of them first over that network's roads, so a link
+// cannot shorten a trip whose destination is no farther from its origin
+// than every entry is (Appraise skips those searches).
+func (n *Network) LinkEntries() []int { return slices.Clone(n.entries()) }
+
+// entries computes LinkEntries once.
+func (n *Network) entries() []int {
+	n.entriesOnce.Do(func() { n.linkEntries = n.findEntries() })
+	return n.linkEntries
+}
+
+func (n *Network) findEntries() []int {
+	var out []int
+	if n.link == nil {
+		return nil
+	}
+	for u := 0; u < n.baseNodes; u++ {
+		for e := n.first[u]; e < n.first[u+1]; e++ {
+			if n.link[e] >= 0 {
+				out = append(out, u)
+				break
+			}
+		}
+	}
+	return out
 }
 
 // Crosses reports the first barrier (kind and OSM way) that the line a-b

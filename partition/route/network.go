@@ -6,6 +6,7 @@ import (
 	"errors"
 	"fmt"
 	"slices"
+	"sync"
 
 	"github.com/paulmach/orb"
 
@@ -32,6 +33,12 @@ type Network struct {
 	secs   []float64
 	metres []float64
 	link   []int32 // candidate link index per edge, -1 for the base network; nil when none
+
+	// baseNodes is the number of nodes before WithLinks added any: the
+	// nodes from which LinkEntries are taken.
+	baseNodes   int
+	entriesOnce sync.Once
+	linkEntries []int
 
 	index    map[int64]int32 // OSM id -> node
 	barriers *barrierIndex

@@ -5,6 +5,7 @@ import (
 	"context"
 	"errors"
 	"fmt"
+	"math"
 	"slices"
 
 	"narrows/partition/geodesy"
@@ -40,12 +41,43 @@ type Options struct {
 	// the same from the same inputs; listing one here (its text is in the
 	// appraisal's outputs) keeps it when the inputs change.
 	Candidates []string `toml:"candidates"`
+	// Speeds is where the routes' times come from: SpeedsFreeFlow
+	// (default: class speeds or tagged maxspeed, see route.Options) or
+	// SpeedsObserved: every road's free-flow time, and the candidate's,
+	// times the finding's own pace factor, the median over its routed
+	// trips of observed seconds per metre over free-flow seconds per
+	// metre along the routed path. One factor for the whole network
+	// leaves every shortest path, hence the vehicle-km saved and the
+	// share using a link, as at free-flow, and scales every time by it.
+	Speeds string `toml:"speeds"`
+}
+
+// The values of Options.Speeds.
+const (
+	SpeedsFreeFlow = "free-flow"
+	SpeedsObserved = "observed"
+)
+
+// Check reports an option out of range, naming its study-file key.
+func (o Options) Check() error {
+	switch o.Speeds {
+	case "", SpeedsFreeFlow, SpeedsObserved:
+	default:
+		return fmt.Errorf("speeds %q, want %q or %q", o.Speeds, SpeedsFreeFlow, SpeedsObserved)
+	}
+	if !(o.TripSnapMetres > 0) || !(o.AttachMetres > 0) {
+		return fmt.Errorf("trip_snap_metres %v and attach_metres %v must be more than 0", o.TripSnapMetres, o.AttachMetres)
+	}
+	if o.Generate < 0 {
+		return fmt.Errorf("generate %d, want 0 or more", o.Generate)
+	}
+	return nil
 }
 
 // DefaultOptions returns the defaults documented on each field.
 func DefaultOptions() Options {
 	return Options{TripSnapMetres: 500, AttachMetres: 50, Generate: 5, MinClass: "tertiary", LinkClass: "secondary",
-		MaxLinkMetres: 1500, SpacingMetres: 300}
+		MaxLinkMetres: 1500, SpacingMetres: 300, Speeds: SpeedsFreeFlow}
 }
 
 // Candidate is a link to appraise.
@@ -89,6 +121,10 @@ type Appraisal struct {
 	Detour float64
 	// Results are ranked by SecondsSavedPerMetre, then saving, then name.
 	Results []Result
+	// Speeds is Options.Speeds as used; PaceFactor the factor every
+	// free-flow time was multiplied by (1 at free-flow).
+	Speeds     string
+	PaceFactor float64
 }
 
 // od is a routed trip's snapped ends.
@@ -122,8 +158,18 @@ func Appraise(ctx context.Context, net *route.Network, trips []regiongraph.Trip,
 	if len(ods) == 0 {
 		return nil, errors.New("appraise: none of the finding's trips has both ends near the road network")
 	}
-	slices.SortStableFunc(ods, func(x, y od) int { return cmp.Compare(x.o, y.o) })
-	base := routeAll(ctx, net, ods)
+	sortByOrigin(ods)
+	// Every candidate's network first: each origin's search on the base
+	// network is followed at once by each candidate's repair of it.
+	nets := make([]*route.Network, len(cands))
+	for i, c := range cands {
+		w, err := net.WithLinks([]route.Link{c.Link}, snap, opts.AttachMetres)
+		if err != nil {
+			return nil, err
+		}
+		nets[i] = w
+	}
+	base, withs := routeAll(ctx, net, nets, ods)
 	if err := ctx.Err(); err != nil {
 		return nil, err
 	}
@@ -145,15 +191,13 @@ func Appraise(ctx context.Context, net *route.Network, trips []regiongraph.Trip,
 		return nil, errors.New("appraise: no trip of the finding could be routed")
 	}
 	a.Detour = a.RoutedMetres / straight
-	for _, c := range cands {
-		w, err := net.WithLinks([]route.Link{c.Link}, snap, opts.AttachMetres)
-		if err != nil {
-			return nil, err
-		}
-		with := routeAll(ctx, w, ods)
-		if err := ctx.Err(); err != nil {
-			return nil, err
-		}
+	a.Speeds, a.PaceFactor = SpeedsFreeFlow, 1
+	if opts.Speeds == SpeedsObserved {
+		a.Speeds, a.PaceFactor = SpeedsObserved, paceFactor(trips, ods, base)
+		a.RoutedSeconds *= a.PaceFactor
+	}
+	for ci, c := range cands {
+		with := withs[ci]
 		res := Result{Candidate: c, LengthMetres: c.Link.LengthMetres()}
 		var used int
 		var metres float64
@@ -173,6 +217,7 @@ func Appraise(ctx context.Context, net *route.Network, trips []regiongraph.Trip,
 		}
 		res.ShareUsing = float64(used) / float64(a.Routed)
 		res.Detour = metres / straight
+		res.VehicleSecondsSaved *= a.PaceFactor
 		if res.LengthMetres > 0 {
 			res.SecondsSavedPerMetre = res.VehicleSecondsSaved / res.LengthMetres
 		}
@@ -185,20 +230,37 @@ func Appraise(ctx context.Context, net *route.Network, trips []regiongraph.Trip,
 	return a, nil
 }
 
+func sortByOrigin(ods []od) {
+	slices.SortStableFunc(ods, func(x, y od) int { return cmp.Compare(x.o, y.o) })
+}
+
+func sortedUnique(v []int) []int {
+	slices.Sort(v)
+	return slices.Compact(v)
+}
+
 type routed struct {
 	secs, metres float64 // secs < 0: unreachable
 	link         int
 }
 
-// routeAll routes the trips (sorted by origin) with one search per
-// distinct origin node.
-func routeAll(ctx context.Context, net *route.Network, ods []od) []routed {
-	out := make([]routed, len(ods))
-	s := route.NewSearch(net)
+// routeAll routes the trips (sorted by origin) on net, one search per
+// distinct origin node, and on each network of nets (net with a
+// candidate, from WithLinks) by repairing that search: only the nodes the
+// candidate makes strictly quicker are searched again, up to the
+// origin's farthest destination (Search.Repair). A trip keeps its route
+// on net unless the candidate is strictly quicker.
+func routeAll(ctx context.Context, net *route.Network, nets []*route.Network, ods []od) (base []routed, withs [][]routed) {
+	base = make([]routed, len(ods))
+	withs = make([][]routed, len(nets))
+	for c := range withs {
+		withs[c] = make([]routed, len(ods))
+	}
+	s, repair := route.NewSearch(net), route.NewSearch(net)
 	var targets []int
 	for i := 0; i < len(ods); {
 		if ctx.Err() != nil {
-			return out
+			return base, withs
 		}
 		j := i
 		targets = targets[:0]
@@ -207,16 +269,57 @@ func routeAll(ctx context.Context, net *route.Network, ods []od) []routed {
 			j++
 		}
 		s.From(ods[i].o, targets)
+		far := 0.0
 		for k := i; k < j; k++ {
 			d := ods[k].d
 			secs := s.Seconds(d)
 			if secs > 1e300 {
-				out[k] = routed{-1, -1, -1}
+				base[k] = routed{-1, -1, -1}
+				far = math.Inf(1)
 				continue
 			}
-			out[k] = routed{secs, s.Metres(d), s.Link(d)}
+			base[k] = routed{secs, s.Metres(d), s.Link(d)}
+			far = max(far, secs)
+		}
+		// No destination is farther than far: a repair beyond it cannot
+		// make one quicker.
+		for c, w := range nets {
+			repair.Repair(w, s, far)
+			for k := i; k < j; k++ {
+				d := ods[k].d
+				if repair.Improved(d) {
+					withs[c][k] = routed{repair.Seconds(d), repair.Metres(d), repair.Link(d)}
+				} else {
+					withs[c][k] = base[k]
+				}
+			}
 		}
 		i = j
 	}
-	return out
+	return base, withs
+}
+
+// paceFactor is the median over the routed trips of their observed
+// seconds per metre over the free-flow seconds per metre of their routed
+// path: how much slower than free-flow the finding's trips moved. Trips
+// with no distance or time either way are left out; with none left it
+// is 1.
+func paceFactor(trips []regiongraph.Trip, ods []od, base []routed) float64 {
+	var r []float64
+	for i, b := range base {
+		t := trips[ods[i].trip]
+		if b.secs <= 0 || b.metres <= 0 || !(t.DistanceMetres > 0) || !(t.DurationSeconds > 0) {
+			continue
+		}
+		r = append(r, (t.DurationSeconds/t.DistanceMetres)/(b.secs/b.metres))
+	}
+	if len(r) == 0 {
+		return 1
+	}
+	slices.Sort(r)
+	n := len(r)
+	if n%2 == 1 {
+		return r[n/2]
+	}
+	return (r[n/2-1] + r[n/2]) / 2
 }

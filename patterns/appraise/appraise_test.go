@@ -164,3 +164,52 @@ func TestAppraiseErrors(t *testing.T) {
 		})
 	}
 }
+
+// TestAppraisePaceHand: at the observed pace, every time is the
+// free-flow time times the median over the routed trips of observed
+// seconds per metre over free-flow seconds per metre along the route.
+// On the drawn network every route is residential (1/res s/m at
+// free-flow) and each trip runs 9,000 m, in 600, 1,200, 1,800 and
+// 2,400 s: the ratios are k*res/9000 for those k, whose median is the
+// mean of the middle two, 1,500*res/9000 (about 1.39). Metres, shares
+// and ranks stay as at free-flow.
+func TestAppraisePaceHand(t *testing.T) {
+	net := handNetwork(t)
+	res := geodesy.MPS(30)
+	trips := []regiongraph.Trip{trip(1, 3), trip(1, 3), trip(3, 1), trip(1, 2)}
+	for i, s := range []float64{1800, 600, 2400, 1200} {
+		trips[i].DurationSeconds = s
+	}
+	cands := []appraise.Candidate{
+		{Link: route.Link{Name: "way 1-3", Class: "residential", Nodes: []int64{1, 3}, Line: orb.LineString{handPoints[1], handPoints[3]}, Crossing: true}},
+		{Link: route.Link{Name: "fast 1-3", Class: "primary", Nodes: []int64{1, 3}, Line: orb.LineString{handPoints[1], handPoints[3]}, Crossing: true}},
+	}
+	free, err := appraise.Appraise(context.Background(), net, trips, 2, cands, appraise.DefaultOptions())
+	if err != nil {
+		t.Fatal(err)
+	}
+	opts := appraise.DefaultOptions()
+	opts.Speeds = appraise.SpeedsObserved
+	paced, err := appraise.Appraise(context.Background(), net, trips, 2, cands, opts)
+	if err != nil {
+		t.Fatal(err)
+	}
+	f := 1500 * res / 9000
+	if free.Speeds != appraise.SpeedsFreeFlow || free.PaceFactor != 1 || paced.Speeds != appraise.SpeedsObserved || math.Abs(paced.PaceFactor-f) > 1e-9 {
+		t.Fatalf("speeds %q factor %v and %q factor %v, want free-flow 1 and observed %.6f", free.Speeds, free.PaceFactor, paced.Speeds, paced.PaceFactor, f)
+	}
+	if math.Abs(paced.RoutedSeconds-f*free.RoutedSeconds) > 1e-6 || paced.RoutedMetres != free.RoutedMetres {
+		t.Errorf("routed %.3f s %.3f m, want %.3f s %.3f m", paced.RoutedSeconds, paced.RoutedMetres, f*free.RoutedSeconds, free.RoutedMetres)
+	}
+	for i, r := range paced.Results {
+		w := free.Results[i]
+		if r.Candidate.Link.Name != w.Candidate.Link.Name || r.VehicleMetresSaved != w.VehicleMetresSaved || r.ShareUsing != w.ShareUsing ||
+			math.Abs(r.VehicleSecondsSaved-f*w.VehicleSecondsSaved) > 1e-6 || math.Abs(r.SecondsSavedPerMetre-f*w.SecondsSavedPerMetre) > 1e-9 {
+			t.Errorf("rank %d: paced %+v, free-flow %+v, factor %.6f", i+1, r, w, f)
+		}
+	}
+	opts.Speeds = "posted"
+	if err := opts.Check(); err == nil || !strings.Contains(err.Error(), `speeds "posted"`) {
+		t.Errorf("speeds posted: %v", err)
+	}
+}
