@@ -253,3 +253,10 @@ func httpError(w http.ResponseWriter, code int, msg string) {
 func Listen(port int) (net.Listener, error) {
 	return net.Listen("tcp", fmt.Sprintf("127.0.0.1:%d", port))
 }
+
+// State returns the state the page shows now.
+func (s *Server) State() State {
+	s.mu.Lock()
+	defer s.mu.Unlock()
+	return *s.state
+}

@@ -4,6 +4,7 @@ const token = document.querySelector('meta[name="narrows-token"]').content;
 const $ = (id) => document.getElementById(id);
 let state = null;
 let selected = null;
+let shown = 0; // states shown: body[data-shown] tells a waiting reader a change arrived
 
 function report(msg) {
   const li = document.createElement('li');
@@ -78,6 +79,8 @@ function show(s) {
   $('total').textContent = `(total ${fmt(s.total_cost)} extra vehicle-hours per day)`;
   const again = s.findings.find((f) => f.id === selected);
   showDetail(again || null);
+  if (shown === 0) performance.mark('narrows-list-rendered');
+  document.body.dataset.shown = ++shown;
 }
 
 function showExclusions(x) {
