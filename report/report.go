@@ -44,6 +44,10 @@ type Input struct {
 	// highlighted on every map under the findings. The network drawn
 	// beneath comes with the regions (Regions.Network).
 	Scheme []partition.NetworkLine
+	// Exclusions are the days and region pairs the planner left out, each
+	// with its reason (optional); the Method and Data quality sheets list
+	// them. The analysis given must already leave them out.
+	Exclusions patterns.Exclusions
 	// FocusRegions are the region ids of the focus area (optional). When
 	// empty, the regions of the assessments marked Focus are taken.
 	FocusRegions []int

@@ -149,6 +149,7 @@ type compareJob struct {
 	extraInputs   []regiongraph.Source
 	scheme        []partition.NetworkLine // highlighted on the maps
 	mapOut        string                  // the map alone, .svg or .png; "" for none
+	exclusions    patterns.Exclusions     // already applied; listed in the report
 }
 
 func compareAndReport(ctx context.Context, env *environment, job compareJob) error {
@@ -169,6 +170,7 @@ func compareAndReport(ctx context.Context, env *environment, job compareJob) err
 		Scan:                cmp.Before,
 		Comparison:          cmp,
 		Scheme:              job.scheme,
+		Exclusions:          job.exclusions,
 		PublicationMinTrips: job.minPublish,
 		Version:             version,
 	}

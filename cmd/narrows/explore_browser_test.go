@@ -83,6 +83,7 @@ func browser(t *testing.T) (context.Context, func() []string) {
 type pageView struct {
 	IDs    []string `json:"ids"`
 	Arrows []string `json:"arrows"` // each arrow's verdict and title, sorted
+	Focus  []string `json:"focus"`  // the findings marked in the focus area
 	Errors []string `json:"errors"` // the page's own error list
 	Status string   `json:"status"`
 }
@@ -90,6 +91,7 @@ type pageView struct {
 const readPage = `({
   ids: [...document.querySelectorAll('#ranked tbody tr')].map((r) => r.dataset.id),
   arrows: [...document.querySelectorAll('#mapbox #findings line')].map((l) => l.dataset.verdict + ' ' + l.textContent).sort(),
+  focus: [...document.querySelectorAll('#ranked tbody tr')].filter((r) => r.cells[1].textContent.startsWith('◎')).map((r) => r.dataset.id),
   errors: [...document.querySelectorAll('#errors li')].map((e) => e.textContent),
   status: document.getElementById('status').textContent,
 })`
@@ -180,13 +182,25 @@ func TestExploreInBrowser(t *testing.T) {
 		b, a := opts, opts
 		b.From, b.To, _ = patterns.ParsePeriod(c.Before)
 		a.From, a.To, _ = patterns.ParsePeriod(c.After)
-		cmp, err := patterns.Compare(context.Background(), store, st.Regions, b, a, st.Compare)
+		copts := st.Compare
+		if copts.Focus, err = parseFocus(c.Focus); c.Focus == "" {
+			copts.Focus = nil
+		} else if err != nil {
+			t.Fatal(err)
+		}
+		cmp, err := patterns.Compare(context.Background(), store, st.Regions, b, a, copts)
 		if err != nil {
 			t.Fatal(err)
 		}
-		var want []string
+		var want, focus []string
 		for _, as := range cmp.Assessments {
 			want = append(want, as.Finding.ID)
+			if as.Focus {
+				focus = append(focus, as.Finding.ID)
+			}
+		}
+		if got := slices.Sorted(slices.Values(v.Focus)); !slices.Equal(got, slices.Sorted(slices.Values(focus))) {
+			t.Errorf("%s: page marks %v in the focus area, the library's comparison %v", when, got, focus)
 		}
 		if got := slices.Sorted(slices.Values(v.IDs)); !slices.Equal(got, slices.Sorted(slices.Values(want))) {
 			t.Errorf("%s: page lists %v, the library's comparison %v", when, got, want)
@@ -260,6 +274,17 @@ func TestExploreInBrowser(t *testing.T) {
 			}
 		}
 	}
+	// Focus on the second place of the list, from its detail.
+	place := srv.State().Findings[1]
+	run("focus on a place", chromedp.Click(chromedp.CSS("#ranked tbody tr:nth-child(2)")), chromedp.Click(chromedp.CSS("#focus-here")), waitShown(5))
+	wantFocus := strings.Trim(strings.Join(strings.Fields(fmt.Sprint(place.Regions)), ","), "[]")
+	if got := srv.Choices().Focus; got != wantFocus {
+		t.Fatalf("after focusing on %s the server's focus is %q, want %q", place.ID, got, wantFocus)
+	}
+	v4 := check("focus on a place")
+	if len(v4.Focus) == 0 {
+		t.Errorf("focus on %s (regions %s) marks no finding", place.Name, wantFocus)
+	}
 	text, err := chromedp.Run(step, chromedp.TextContent(chromedp.CSS("#exclusions")))
 	if err != nil {
 		t.Fatal(err)
@@ -281,7 +306,17 @@ func TestExploreInBrowser(t *testing.T) {
 	if !strings.HasPrefix(saved.Status, "Saved") {
 		t.Errorf("after save the status reads %q", saved.Status)
 	}
+	// Write report from the page, then run the saved study: the same files.
+	run("write report", chromedp.Click(chromedp.CSS("#write-report")), chromedp.Poll[chromedp.Void](`document.querySelectorAll('#written li').length > 0`))
+	out := filepath.Join(dir, "out")
+	names := []string{"report.xlsx", "report.html", "report-findings.geojson", "report-regions.geojson"}
+	fromPage := readFiles(t, out, names...)
 	mustRunCLI(t, "run", study)
+	sameFiles(t, "the page's report and run's", fromPage, readFiles(t, out, names...))
+	checkExclusionRows(t, filepath.Join(out, "report.xlsx"), [][2]string{
+		{"Excluded day " + day, "works"},
+		{fmt.Sprintf("Excluded region pair %d-%d (both directions)", a, b), "ferry"},
+	})
 	data, err := os.ReadFile(filepath.Join(dir, "out", "report-findings.geojson"))
 	if err != nil {
 		t.Fatal(err)

@@ -5,6 +5,7 @@ import (
 	"context"
 	"encoding/json"
 	"fmt"
+	"maps"
 	"net/http"
 	"net/http/httptest"
 	"os"
@@ -14,9 +15,12 @@ import (
 	"sync"
 	"testing"
 
+	"github.com/xuri/excelize/v2"
+
 	"narrows/cmd/internal/explore"
 	"narrows/patterns"
 	"narrows/regiongraph"
+	"narrows/report"
 )
 
 // exploreFixture is a scan-only simulated study served by explore.
@@ -29,17 +33,7 @@ type exploreFixture struct {
 
 func newExploreFixture(t *testing.T) *exploreFixture {
 	t.Helper()
-	dir := t.TempDir()
-	mustRunCLI(t, "simulate", "--out", dir, "--days", "14", "--trips-per-day", "4000", "--no-study")
-	text, err := os.ReadFile(filepath.Join("..", "..", "testdata", "study.toml"))
-	if err != nil {
-		t.Fatal(err)
-	}
-	head, _, _ := strings.Cut(string(text), "[compare]")
-	study := filepath.Join(dir, "study.toml")
-	if err := os.WriteFile(study, []byte(head), 0o644); err != nil {
-		t.Fatal(err)
-	}
+	study := exploreStudyFile(t)
 	env := &environment{stdout: &bytes.Buffer{}, stderr: &bytes.Buffer{}}
 	st, err := exploreStudy(context.Background(), env, study)
 	if err != nil {
@@ -53,6 +47,24 @@ func newExploreFixture(t *testing.T) *exploreFixture {
 	t.Cleanup(hs.Close)
 	srv.AllowHost(strings.TrimPrefix(hs.URL, "http://"))
 	return &exploreFixture{study: study, st: st, srv: srv, http: hs}
+}
+
+// exploreStudyFile writes a scan-only study of a simulated 14 days and
+// returns its path.
+func exploreStudyFile(t *testing.T) string {
+	t.Helper()
+	dir := t.TempDir()
+	mustRunCLI(t, "simulate", "--out", dir, "--days", "14", "--trips-per-day", "4000", "--no-study")
+	text, err := os.ReadFile(filepath.Join("..", "..", "testdata", "study.toml"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	head, _, _ := strings.Cut(string(text), "[compare]")
+	study := filepath.Join(dir, "study.toml")
+	if err := os.WriteFile(study, []byte(head), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	return study
 }
 
 // post sends body to path with the token (unless token is "") and returns
@@ -132,6 +144,8 @@ func TestExploreAPI(t *testing.T) {
 		{"range backwards", "/api/exclusions", tok, `{"days":[{"from":"2026-03-05","to":"2026-03-03","reason":"works"}]}`, 400},
 		{"malformed day", "/api/exclusions", tok, `{"days":[{"from":"3 March","reason":"works"}]}`, 400},
 		{"save without token", "/api/save", "", `{}`, 403},
+		{"report without token", "/api/report", "", `{}`, 403},
+		{"report with a body", "/api/report", tok, `{"out":"/etc"}`, 400},
 	} {
 		code, ans := f.post(t, c.path, c.token, c.body)
 		if code != c.code || ans["error"] == "" {
@@ -258,6 +272,115 @@ func TestExploreAPI(t *testing.T) {
 	page, _ := os.ReadFile(filepath.Join(filepath.Dir(f.study), "out", "report.html"))
 	if !strings.Contains(string(page), "bridge works") || !strings.Contains(string(page), "ferry") {
 		t.Errorf("the report does not give the exclusions' reasons")
+	}
+	out := filepath.Join(filepath.Dir(f.study), "out")
+	checkExclusionRows(t, filepath.Join(out, "report.xlsx"), [][2]string{
+		{"Excluded day " + day, "bridge works"},
+		{fmt.Sprintf("Excluded region pair %d-%d (both directions)", a, b), "ferry"},
+	})
+
+	// "Write report" with the choices saved: the files run wrote, byte for byte.
+	ran := readFiles(t, out, "report.xlsx", "report.html", "report-findings.geojson", "report-regions.geojson", "report-findings.json")
+	var rep explore.ReportAnswer
+	if code := f.postInto(t, "/api/report", tok, `{}`, &rep); code != 200 {
+		t.Fatalf("write report: %d", code)
+	}
+	if rep.Saved != "" || len(rep.Written) != len(ran) {
+		t.Errorf("write report with nothing changed: saved %q, wrote %v", rep.Saved, rep.Written)
+	}
+	sameFiles(t, "write report, then run", ran, readFiles(t, out, slices.Sorted(maps.Keys(ran))...))
+
+	// Changed choices: saved first (a new version kept), then written;
+	// run on the saved file into another folder gives the same files.
+	set.MinTrips = 7
+	if code, ans := f.post(t, "/api/settings", tok, settingsJSON(set)); code != 200 {
+		t.Fatalf("settings: %d %v", code, ans)
+	}
+	rep = explore.ReportAnswer{}
+	if code := f.postInto(t, "/api/report", tok, `{}`, &rep); code != 200 {
+		t.Fatalf("write report: %d", code)
+	}
+	if _, err := os.Stat(strings.TrimSuffix(f.study, ".toml") + ".2.toml"); rep.Saved == "" || err != nil {
+		t.Errorf("write report after a change did not save first: %q, %v", rep.Saved, err)
+	}
+	for _, p := range rep.Written {
+		if filepath.Dir(p) != out {
+			t.Errorf("write report wrote %s outside the study's output folder %s", p, out)
+		}
+	}
+	written := readFiles(t, out, slices.Sorted(maps.Keys(ran))...)
+	other := t.TempDir()
+	mustRunCLI(t, "run", "--output", other, f.study)
+	sameFiles(t, "write report after a change, then run --output", written, readFiles(t, other, slices.Sorted(maps.Keys(ran))...))
+	if bytes.Equal(written["report-findings.json"], ran["report-findings.json"]) {
+		t.Errorf("min trips 7 left the findings as they were")
+	}
+}
+
+// postInto posts body and decodes a 200 answer into v.
+func (f *exploreFixture) postInto(t *testing.T, path, token, body string, v any) int {
+	t.Helper()
+	req, _ := http.NewRequest("POST", f.http.URL+path, strings.NewReader(body))
+	req.Header.Set("Content-Type", "application/json")
+	req.Header.Set(explore.TokenHeader, token)
+	res, err := http.DefaultClient.Do(req)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer res.Body.Close()
+	if res.StatusCode == 200 {
+		if err := json.NewDecoder(res.Body).Decode(v); err != nil {
+			t.Fatal(err)
+		}
+	}
+	return res.StatusCode
+}
+
+func readFiles(t *testing.T, dir string, names ...string) map[string][]byte {
+	t.Helper()
+	out := map[string][]byte{}
+	for _, n := range names {
+		b, err := os.ReadFile(filepath.Join(dir, n))
+		if err != nil {
+			t.Fatal(err)
+		}
+		out[n] = b
+	}
+	return out
+}
+
+func sameFiles(t *testing.T, what string, a, b map[string][]byte) {
+	t.Helper()
+	for n, data := range a {
+		if !bytes.Equal(data, b[n]) {
+			t.Errorf("%s: %s differs (%d and %d bytes)", what, n, len(data), len(b[n]))
+		}
+	}
+}
+
+// checkExclusionRows checks that the workbook's Method and Data quality
+// sheets each list the exclusions with their reasons, in order.
+func checkExclusionRows(t *testing.T, workbook string, want [][2]string) {
+	t.Helper()
+	f, err := excelize.OpenFile(workbook)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer f.Close()
+	for _, sheet := range []string{report.SheetMethod, report.SheetDataQuality} {
+		rows, err := f.GetRows(sheet)
+		if err != nil {
+			t.Fatal(err)
+		}
+		var got [][2]string
+		for _, r := range rows {
+			if len(r) >= 2 && strings.HasPrefix(r[0], "Excluded ") {
+				got = append(got, [2]string{r[0], r[1]})
+			}
+		}
+		if !slices.Equal(got, want) {
+			t.Errorf("%s: %s lists %q, want %q", workbook, sheet, got, want)
+		}
 	}
 }
 
