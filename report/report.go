@@ -48,6 +48,10 @@ type Input struct {
 	// (optional): the Candidate links sheet, the best candidate drawn on
 	// the map and a table on the page.
 	Appraisal *Appraisal
+	// Exclusions are the days and region pairs the planner left out, each
+	// with its reason (optional); the Method and Data quality sheets list
+	// them. The analysis given must already leave them out.
+	Exclusions patterns.Exclusions
 	// FocusRegions are the region ids of the focus area (optional). When
 	// empty, the regions of the assessments marked Focus are taken.
 	FocusRegions []int

@@ -80,6 +80,9 @@ func (b *book) quality() {
 			s.add(b.str("Regions warning"), b.str(w), cell{})
 		}
 	}
+	for _, r := range exclusionRows(v.in.Exclusions) {
+		s.add(b.str(r[0]), b.str(r[1]), b.str(r[2]))
+	}
 	s.filter(head, 3)
 	s.widths[1] = min(s.widths[1], 40)
 	s.widths[2] = min(s.widths[2], 40)

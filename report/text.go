@@ -116,6 +116,7 @@ func (v *view) method() []definition {
 			d = append(d, definition{"Verdict: " + string(vd), verdictMeaning(vd) + "."})
 		}
 	}
+	d = append(d, v.exclusionMethod()...)
 	d = append(d,
 		definition{"Suppression", fmt.Sprintf("Cells from fewer than %d trips are shown as %q (counts) or %q (values) in grey. Charts skip them.", v.minTrips, v.countMark(), v.valueMark())},
 		definition{"Units", "Speeds in km/h, distances in km, times in hours or minutes, areas in km²; days are local calendar days of the study's time zone."},

@@ -150,6 +150,7 @@ type compareJob struct {
 	scheme        []partition.NetworkLine // highlighted on the maps
 	mapOut        string                  // the map alone, .svg or .png; "" for none
 	appraisal     *report.Appraisal       // candidate links for a finding (optional)
+	exclusions    patterns.Exclusions     // already applied; listed in the report
 }
 
 func compareAndReport(ctx context.Context, env *environment, job compareJob) error {
@@ -171,6 +172,7 @@ func compareAndReport(ctx context.Context, env *environment, job compareJob) err
 		Comparison:          cmp,
 		Scheme:              job.scheme,
 		Appraisal:           job.appraisal,
+		Exclusions:          job.exclusions,
 		PublicationMinTrips: job.minPublish,
 		Version:             version,
 	}

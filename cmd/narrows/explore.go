@@ -6,6 +6,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"net"
 	"net/http"
 	"os"
 	"path/filepath"
@@ -23,12 +24,13 @@ import (
 )
 
 func runExplore(ctx context.Context, env *environment, args []string) error {
-	fs := newFlagSet(env, "explore", "[--port N] study.toml | --graphs G.parquet [--regions R.geojson]")
+	fs := newFlagSet(env, "explore", "[--port N | --listen HOST:PORT] study.toml | --graphs G.parquet [--regions R.geojson]")
 	var in storeFlags
 	var port int
-	var file string
+	var file, listen string
 	in.register(fs)
 	fs.IntVar(&port, "port", 0, "port on 127.0.0.1 to serve on (default: a free one)")
+	fs.StringVar(&listen, "listen", "", "serve on `HOST:PORT` instead; an address other machines can reach needs the printed access token")
 	if err := parseFlagsWithRest(env, fs, args, func(rest []string) {
 		if file == "" && len(rest) > 0 {
 			file, rest = rest[0], rest[1:]
@@ -45,6 +47,16 @@ func runExplore(ctx context.Context, env *environment, args []string) error {
 	if port < 0 || port > 65535 {
 		return usagef("--port: %d is not a port", port)
 	}
+	loopback := true
+	if listen != "" {
+		if port != 0 {
+			return usagef("give --port or --listen, not both")
+		}
+		var err error
+		if loopback, err = explore.IsLoopback(listen); err != nil {
+			return usagef("--listen %q: want HOST:PORT, such as 127.0.0.1:8080 or 0.0.0.0:8080 (%v)", listen, err)
+		}
+	}
 	var st *explore.Study
 	var err error
 	if file != "" {
@@ -59,15 +71,32 @@ func runExplore(ctx context.Context, env *environment, args []string) error {
 	if err != nil {
 		return err
 	}
-	ln, err := explore.Listen(port)
+	var ln net.Listener
+	if listen == "" {
+		ln, err = explore.Listen(port)
+	} else {
+		ln, err = net.Listen("tcp", listen)
+	}
 	if err != nil {
 		return err
 	}
 	addr := ln.Addr().String()
-	srv.AllowHost(addr)
-	srv.AllowHost(strings.Replace(addr, "127.0.0.1", "localhost", 1))
 	hs := &http.Server{Handler: srv.Handler(), ReadHeaderTimeout: 10 * time.Second}
-	fmt.Fprintf(env.stdout, "narrows explore: open http://%s/ (this machine only; Ctrl-C to stop)\n", addr)
+	if loopback {
+		srv.AllowHost(addr)
+		srv.AllowHost(strings.Replace(addr, "127.0.0.1", "localhost", 1))
+		fmt.Fprintf(env.stdout, "narrows explore: open http://%s/ (this machine only; Ctrl-C to stop)\n", addr)
+	} else {
+		// Other machines name this one as they will: the host is not
+		// checked, the access token stands in for it.
+		access, err := srv.RequireAccess()
+		if err != nil {
+			ln.Close()
+			return err
+		}
+		fmt.Fprintf(env.stdout, "narrows explore: open http://%s/?%s=%s\n", addr, explore.AccessParam, access)
+		fmt.Fprintln(env.stdout, "  reachable from other machines: whoever has this address with its token can read the study and save into its file; plain HTTP, so use a trusted network; Ctrl-C to stop")
+	}
 	done := make(chan error, 1)
 	go func() { done <- hs.Serve(ln) }()
 	select {
@@ -114,8 +143,10 @@ func exploreStudy(ctx context.Context, env *environment, file string) (*explore.
 		return nil, err
 	}
 	var inputs []regiongraph.Input
+	names := map[string]string{}
 	for _, t := range s.Trips.Files {
 		inputs = append(inputs, regiongraph.Input{Path: r.rel(t), Format: s.Trips.Format})
+		names[r.rel(t)] = t
 	}
 	update, finish := progress(env, "ingest")
 	opts := s.Trips.Options
@@ -125,12 +156,50 @@ func exploreStudy(ctx context.Context, env *environment, file string) (*explore.
 	if err != nil {
 		return nil, err
 	}
+	// The trip files are named as run's store names them: relative to
+	// the study file.
+	for i, src := range store.Meta.Sources {
+		if name, ok := names[src.Path]; ok {
+			store.Meta.Sources[i].Path = name
+		}
+	}
 	return &explore.Study{
 		Title: s.titleOr(file), Store: store, Regions: regions, Scheme: scheme,
 		Scan: s.Scan.ScanOptions, Before: s.Compare.Before.String(), After: s.Compare.After.String(),
 		Compare: s.Compare.CompareOptions, Exclusions: s.Scan.exclusions(),
+		Focus: s.Compare.Focus.String(), ParseFocus: parseFocus,
 		Save: func(c explore.Choices) (string, error) { return saveStudy(file, c) },
+		Report: func(ctx context.Context) ([]string, error) {
+			return writeStudyReport(ctx, file, regions, scheme, store)
+		},
 	}, nil
+}
+
+// writeStudyReport writes the findings and report of the study file as
+// run does, into the study's output folder under its name, from regions
+// and day graphs already built (those run would build from the study's
+// files), and returns the files written.
+func writeStudyReport(ctx context.Context, file string, regions *partition.Partition, scheme []partition.NetworkLine, store *regiongraph.Store) ([]string, error) {
+	s, err := loadStudy(file)
+	if err != nil {
+		return nil, err
+	}
+	r := &studyRun{study: s, file: file, dir: filepath.Dir(file)}
+	r.out = r.rel(s.Output)
+	r.steps = filepath.Join(r.out, "steps")
+	var log bytes.Buffer
+	env := &environment{stdout: &log, stderr: &log, files: newRunFiles(&log)}
+	env.files.ctx = ctx
+	if err := r.claimOutputs(env.files); err != nil {
+		return nil, err
+	}
+	if err := os.MkdirAll(r.out, 0o755); err != nil {
+		return nil, err
+	}
+	if err := r.analyse(ctx, env, regions, scheme, store); err != nil {
+		return nil, err
+	}
+	return env.files.written, nil
 }
 
 // regionsInMemory partitions an extract as buildRegions does, reading the
@@ -239,6 +308,11 @@ func setStudyChoices(doc map[string]any, c explore.Choices) {
 		delete(cmp, "after")
 	} else {
 		cmp["before"], cmp["after"] = c.Before, c.After
+	}
+	if c.Focus == "" {
+		delete(cmp, "focus")
+	} else {
+		cmp["focus"] = c.Focus
 	}
 	if len(cmp) == 0 {
 		delete(doc, "compare")

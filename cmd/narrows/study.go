@@ -263,17 +263,28 @@ func (s *study) run(ctx context.Context, env *environment, dir, file string) err
 	if err != nil {
 		return err
 	}
-	if store, err = s.applyExclusions(store, len(regions.Regions)); err != nil {
-		return fmt.Errorf("study file %s: %v", file, err)
+	return r.analyse(ctx, env, regions, scheme, store)
+}
+
+// analyse applies the study's exclusions to its day graphs, then scans its
+// period or compares its two, and writes the findings and the report.
+// run calls it after building the regions and day graphs; explore's
+// "Write report" calls it with those it holds in memory.
+func (r *studyRun) analyse(ctx context.Context, env *environment, regions *partition.Partition, scheme []partition.NetworkLine, store *regiongraph.Store) error {
+	store, err := r.applyExclusions(store, len(regions.Regions))
+	if err != nil {
+		return fmt.Errorf("study file %s: %v", r.file, err)
 	}
 	in, err := r.reportInput(store, regions)
 	if err != nil {
 		return err
 	}
 	in.Scheme = scheme
-	if r.appraise {
+	// explore's "Write report" holds no trips for an appraisal (r.kept is
+	// nil there): its report leaves the appraisal to run.
+	if r.appraise && r.kept != nil {
 		fmt.Fprintln(env.stdout, "   appraising candidate links")
-		ap, _, err := r.appraiseFinding(ctx, regions, store, *r.kept, 1, s.Appraise)
+		ap, _, err := r.appraiseFinding(ctx, regions, store, *r.kept, 1, r.Appraise)
 		if err != nil {
 			return err
 		}
@@ -282,7 +293,7 @@ func (s *study) run(ctx context.Context, env *environment, dir, file string) err
 		}
 		in.Appraisal = ap
 	}
-	if s.Compare.Before.from == "" && s.Compare.After.from == "" {
+	if r.Compare.Before.from == "" && r.Compare.After.from == "" {
 		fmt.Fprintln(env.stdout, "3/3 scan")
 		return r.scan(ctx, env, store, in)
 	}
@@ -337,6 +348,7 @@ func (r *studyRun) reportInput(store *regiongraph.Store, regions *partition.Part
 		Settings:            append(append([][2]string{{"study file", filepath.Base(r.file)}, {"time zone", r.Trips.TimeZone}}, regionSettings(regions, r.Regions.Options, r.Scheme)...), append(scanSettings(r.Scan.ScanOptions), exclusionSettings(r.Scan.exclusions())...)...),
 		Regions:             regions,
 		Store:               &store.Meta,
+		Exclusions:          r.Scan.exclusions(),
 		PublicationMinTrips: r.Compare.MinPublish,
 		Version:             version,
 	}, nil
@@ -379,7 +391,7 @@ func (r *studyRun) compare(ctx context.Context, env *environment, store *regiong
 	return compareAndReport(ctx, env, compareJob{
 		store: store, regions: in.Regions, before: before, after: after, opts: r.Compare.CompareOptions,
 		out: filepath.Join(r.out, r.Name+".xlsx"), title: in.Title, minPublish: in.PublicationMinTrips, settings: settings,
-		extraInputs: in.Inputs, scheme: in.Scheme, appraisal: in.Appraisal,
+		extraInputs: in.Inputs, scheme: in.Scheme, appraisal: in.Appraisal, exclusions: in.Exclusions,
 	})
 }
 

@@ -51,6 +51,9 @@ type FindingState struct {
 	KM      float64 `json:"km"`   // extra vehicle-km per day
 	Share   float64 `json:"share"`
 	Period  string  `json:"period"` // "study", "before" or "after" (after-only)
+	// Focus marks a finding in the focus area: a comparison's own mark;
+	// in a scan, a finding touching one of the focus's regions.
+	Focus bool `json:"focus,omitempty"`
 	// Compare mode: the verdict, the cost before and after (daily
 	// medians) and the evidence in words.
 	Verdict    string      `json:"verdict,omitempty"`
@@ -109,12 +112,18 @@ func analyse(ctx context.Context, st *Study, c Choices) (*State, error) {
 	in := report.Input{Title: st.Title, Regions: st.Regions, Store: &store.Meta, Scheme: st.Scheme}
 	s := &State{Title: st.Title, Settings: settingsOf(c), Exclusions: c.Exclusions, Caution: report.Caution, CanSave: st.Save != nil}
 	periods := map[string]string{}
+	focus, err := focusOf(st, c)
+	if err != nil {
+		return nil, err
+	}
 	if c.Before != "" {
 		s.Mode = "compare"
 		b, a := opts, opts
 		b.From, b.To, _ = patterns.ParsePeriod(c.Before)
 		a.From, a.To, _ = patterns.ParsePeriod(c.After)
-		cmp, err := patterns.Compare(ctx, store, st.Regions, b, a, st.Compare)
+		copts := st.Compare
+		copts.Focus = focus
+		cmp, err := patterns.Compare(ctx, store, st.Regions, b, a, copts)
 		if err != nil {
 			return nil, err
 		}
@@ -140,7 +149,9 @@ func analyse(ctx context.Context, st *Study, c Choices) (*State, error) {
 			periods[d] = "study"
 		}
 		for _, f := range scan.Findings {
-			s.Findings = append(s.Findings, findingState(st, f, "study", scan))
+			fs := findingState(st, f, "study", scan)
+			fs.Focus = focus != nil && slices.ContainsFunc(f.Regions, func(id int) bool { return slices.Contains(focus.Regions, id) })
+			s.Findings = append(s.Findings, fs)
 		}
 		s.Note = report.GroupBoundNote(scan)
 	}
@@ -169,6 +180,14 @@ func analyse(ctx context.Context, st *Study, c Choices) (*State, error) {
 	return s, nil
 }
 
+// focusOf reads the choices' focus area (nil for none).
+func focusOf(st *Study, c Choices) (*patterns.Focus, error) {
+	if c.Focus == "" || st.ParseFocus == nil {
+		return nil, nil
+	}
+	return st.ParseFocus(c.Focus)
+}
+
 // compareFindings lists the assessments in rank order: the before
 // period's findings by rank, then the after-only ones by rank.
 func compareFindings(st *Study, cmp *patterns.Comparison) []FindingState {
@@ -191,6 +210,7 @@ func compareFindings(st *Study, cmp *patterns.Comparison) []FindingState {
 		}
 		f := findingState(st, a.Finding, period, scan)
 		f.Verdict = string(a.Verdict)
+		f.Focus = a.Focus
 		f.CostBefore = a.Effects[patterns.Cost].Before
 		f.CostAfter = a.Effects[patterns.Cost].After
 		f.Reason = report.Reason(a)

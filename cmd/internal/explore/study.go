@@ -1,6 +1,7 @@
 package explore
 
 import (
+	"context"
 	"fmt"
 	"time"
 
@@ -22,9 +23,18 @@ type Study struct {
 	Before, After string
 	Compare       patterns.CompareOptions
 	Exclusions    patterns.Exclusions
+	// Focus is the study's focus area as written in a study file (region
+	// ids "12,15" or "LON,LAT@METRES"; "" for none); ParseFocus reads that
+	// text (nil: the page cannot set a focus). It replaces Compare.Focus.
+	Focus      string
+	ParseFocus func(string) (*patterns.Focus, error)
 	// Save writes the choices into the study file and returns what it
 	// wrote (nil: nothing to save into, as for a bare store).
 	Save func(Choices) (string, error)
+	// Report writes the report of the study file as saved, from the
+	// regions and day graphs held here, and returns the files written
+	// (nil: no report, as for a bare store).
+	Report func(context.Context) ([]string, error)
 }
 
 // Choices are the planner's choices as they go into the study file: the
@@ -34,6 +44,8 @@ type Choices struct {
 	Scan          patterns.ScanOptions
 	Before, After string
 	Exclusions    patterns.Exclusions
+	// Focus is the focus area's text (see Study.Focus).
+	Focus string
 }
 
 // Settings are the page's controls.
@@ -52,6 +64,9 @@ type Settings struct {
 	K           int     `json:"k"`
 	DetourFloor float64 `json:"detour_floor"`
 	SpeedGate   bool    `json:"speed_gate"`
+	// Focus is the focus area: region ids "12,15" or "LON,LAT@METRES";
+	// a comparison marks the findings there and matches them first.
+	Focus string `json:"focus"`
 }
 
 // settingsOf returns the page's settings for the choices.
@@ -61,12 +76,21 @@ func settingsOf(c Choices) Settings {
 		Window: c.Scan.Window, Days: string(c.Scan.Days),
 		MinTrips: c.Scan.Skyline.MinTrips, Support: c.Scan.Support, K: c.Scan.Skyline.K,
 		DetourFloor: c.Scan.Skyline.DetourFloor, SpeedGate: !c.Scan.Skyline.NoSpeedGate,
+		Focus: c.Focus,
 	}
 }
 
 // apply returns the choices with the settings applied, or an error
 // saying which setting is out of range.
-func (s Settings) apply(c Choices, windows []regiongraph.Window) (Choices, error) {
+func (s Settings) apply(c Choices, windows []regiongraph.Window, parseFocus func(string) (*patterns.Focus, error)) (Choices, error) {
+	if s.Focus != "" {
+		if parseFocus == nil {
+			return c, fmt.Errorf("focus: this study cannot take a focus area")
+		}
+		if _, err := parseFocus(s.Focus); err != nil {
+			return c, fmt.Errorf("focus: %v", err)
+		}
+	}
 	if (s.Before == "") != (s.After == "") {
 		return c, fmt.Errorf("give both periods to compare, or neither")
 	}
@@ -107,6 +131,6 @@ func (s Settings) apply(c Choices, windows []regiongraph.Window) (Choices, error
 	if err := o.Validate(); err != nil {
 		return c, err
 	}
-	c.Scan, c.Before, c.After = o, s.Before, s.After
+	c.Scan, c.Before, c.After, c.Focus = o, s.Before, s.After, s.Focus
 	return c, nil
 }

@@ -4,6 +4,7 @@ const token = document.querySelector('meta[name="narrows-token"]').content;
 const $ = (id) => document.getElementById(id);
 let state = null;
 let selected = null;
+let shown = 0; // states shown: body[data-shown] tells a waiting reader a change arrived
 
 function report(msg) {
   const li = document.createElement('li');
@@ -27,12 +28,18 @@ async function call(method, path, body) {
 }
 
 async function send(path, body) {
-  $('status').textContent = 'Re-scanning…';
+  $('status').textContent = path === '/api/report' ? 'Writing the report…' : path === '/api/save' ? 'Saving…' : 'Re-scanning…';
   try {
     const data = await call('POST', path, body);
     if (path === '/api/save') {
       $('saved').textContent = 'Saved: ' + data.saved;
       $('status').textContent = 'Saved.';
+      return;
+    }
+    if (path === '/api/report') {
+      if (data.saved) $('saved').textContent = 'Saved: ' + data.saved;
+      $('written').replaceChildren(...data.written.map((p) => el('li', { textContent: p })));
+      $('status').textContent = `Report written: ${data.written.length} files.`;
       return;
     }
     show(data);
@@ -57,8 +64,9 @@ function show(s) {
   $('caution').textContent = s.caution;
   $('status').textContent = `${s.findings.length} findings, window ${s.window}, re-scanned in ${fmt(s.millis, 0)} ms` + (s.note ? ' — ' + s.note : '');
   $('save').disabled = !s.can_save;
+  $('write-report').disabled = !s.can_save;
   const set = s.settings;
-  for (const k of ['before', 'after', 'from', 'to', 'min_trips', 'support', 'k', 'detour_floor']) $(k).value = set[k] ?? '';
+  for (const k of ['before', 'after', 'from', 'to', 'focus', 'min_trips', 'support', 'k', 'detour_floor']) $(k).value = set[k] ?? '';
   $('speed_gate').checked = set.speed_gate;
   $('days').value = set.days;
   const win = $('window');
@@ -78,6 +86,8 @@ function show(s) {
   $('total').textContent = `(total ${fmt(s.total_cost)} extra vehicle-hours per day)`;
   const again = s.findings.find((f) => f.id === selected);
   showDetail(again || null);
+  if (shown === 0) performance.mark('narrows-list-rendered');
+  document.body.dataset.shown = ++shown;
 }
 
 function showExclusions(x) {
@@ -108,7 +118,7 @@ function showFindings(fs) {
   $('ranked').tBodies[0].replaceChildren(...fs.map((f) => {
     const tr = el('tr', { className: 'finding' + (f.id === selected ? ' selected' : '') },
       el('td', { textContent: f.rank + (f.period === 'after' ? ' (after)' : '') }),
-      el('td', { textContent: f.name }),
+      el('td', { textContent: (f.focus ? '◎ ' : '') + f.name, title: f.focus ? 'in the focus area' : '' }),
       el('td', { className: 'num', textContent: fmt(f.cost) }),
       el('td', { className: 'num', textContent: fmt(100 * f.share, 0) + ' %' }),
       el('td', { className: 'verdict-' + (f.verdict || 'none'), textContent: f.verdict || '' }));
@@ -126,7 +136,9 @@ function showDetail(f) {
     el('td', { className: 'num', textContent: fmt(e.trips, 0) }), el('td', { className: 'num', textContent: fmt(e.speed_kmh) }),
     el('td', { className: 'num', textContent: fmt(e.detour, 2) }), el('td', { className: 'num', textContent: fmt(e.cost) })));
   const table = el('table', {}, el('thead', {}, el('tr', {}, ...['edge', 'days weak', 'trips/day', 'km/h', 'detour', 'extra veh-h/day'].map((h) => el('th', { textContent: h })))), el('tbody', {}, ...rows));
-  const parts = [el('h2', { textContent: `${f.rank}. ${f.name} (${f.id})` })];
+  const parts = [el('h2', { textContent: `${f.rank}. ${f.name} (${f.id})` }),
+    el('button', { type: 'button', id: 'focus-here', textContent: `Focus on this place (regions ${f.regions.join(', ')})`,
+      onclick: () => send('/api/settings', { ...state.settings, focus: f.regions.join(',') }) })];
   if (f.verdict) parts.push(el('p', { textContent: `Verdict: ${f.verdict}. ${f.reason}` }));
   parts.push(table, el('h2', { textContent: 'Daily: extra vehicle-hours (bars; red: excluded day)' }), timeline(f.daily));
   d.replaceChildren(...parts);
@@ -163,7 +175,7 @@ $('settings').addEventListener('submit', (e) => {
   e.preventDefault();
   const num = (id) => Number($(id).value);
   send('/api/settings', {
-    before: $('before').value.trim(), after: $('after').value.trim(), from: $('from').value, to: $('to').value,
+    before: $('before').value.trim(), after: $('after').value.trim(), from: $('from').value, to: $('to').value, focus: $('focus').value.trim(),
     window: $('window').value, days: $('days').value, min_trips: num('min_trips'), support: num('support'),
     k: num('k'), detour_floor: num('detour_floor'), speed_gate: $('speed_gate').checked,
   });
@@ -183,5 +195,6 @@ $('exclude-pair').addEventListener('submit', (e) => {
   send('/api/exclusions', { days: x.days || [], pairs: [...(x.pairs || []), p] });
 });
 $('save').addEventListener('click', () => send('/api/save', {}));
+$('write-report').addEventListener('click', () => send('/api/report', {}));
 
 call('GET', '/api/state').then(show).catch((err) => report('could not load the state: ' + err.message));
