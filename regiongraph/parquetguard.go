@@ -4,7 +4,7 @@ import (
 	"encoding/binary"
 	"errors"
 	"fmt"
-	"os"
+	"io"
 
 	"github.com/parquet-go/parquet-go"
 )
@@ -24,7 +24,7 @@ const maxThriftDepth = 64
 // openParquetChecked opens a Parquet file of the given size after
 // checking its footer (see above). Errors do not name the file; the
 // callers do.
-func openParquetChecked(f *os.File, size int64) (pf *parquet.File, err error) {
+func openParquetChecked(f io.ReaderAt, size int64) (pf *parquet.File, err error) {
 	var tail [8]byte
 	if size < 12 {
 		return nil, fmt.Errorf("%d bytes is too short", size)

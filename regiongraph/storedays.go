@@ -8,10 +8,14 @@ import (
 )
 
 // ReadDayRange returns the first and last day of the store at path, over
-// every edge, reading only the day column. A reader that keeps only some
+// every edge, reading only the day column (of a dataset, only the
+// manifest). A reader that keeps only some
 // edges (ReadOptions.MinTrips) does not see the days whose edges it drops;
 // checks of a period against the data need the days of the whole file.
 func ReadDayRange(path string) (first, last string, err error) {
+	if IsDataset(path) {
+		return datasetDayRange(path)
+	}
 	f, err := os.Open(path)
 	if err != nil {
 		return "", "", fmt.Errorf("regiongraph: %w", err)

@@ -31,13 +31,19 @@ type ReadOptions struct {
 	// From and To keep only the edges of the local days from From to To,
 	// both included, as YYYY-MM-DD ("" leaves that end open).
 	From, To string
+
+	// counter, when set (by tests), counts the files opened and bytes read.
+	counter *readCounter
 }
 
-// ReadFile reads a store written by WriteParquet, every edge.
+// ReadFile reads a store, a single file written by WriteParquet or a
+// dataset directory written by a DatasetWriter, every edge.
 func ReadFile(path string) (*Store, error) { return ReadFileOptions(path, ReadOptions{}) }
 
-// ReadFileOptions reads a store written by WriteParquet, keeping the edges
-// that opts selects. The quality accounting and metadata are the file's
+// ReadFileOptions reads a store, keeping the edges that opts selects. path
+// is either layout of SCHEMA.md: a directory is a dataset, of which only
+// the day files in [opts.From, opts.To] are opened; a file is a store
+// written by WriteParquet. The quality accounting and metadata are the file's
 // whatever is dropped.
 //
 // The file is read column by column rather than row by row: the columns
@@ -57,6 +63,9 @@ func readFile(path string, opts ReadOptions, stretchRows int64) (*Store, error) 
 	if err := checkDays(path, opts); err != nil {
 		return nil, err
 	}
+	if IsDataset(path) {
+		return readDataset(path, opts, stretchRows)
+	}
 	f, err := os.Open(path)
 	if err != nil {
 		return nil, fmt.Errorf("regiongraph: %w", err)
@@ -66,7 +75,7 @@ func readFile(path string, opts ReadOptions, stretchRows int64) (*Store, error) 
 	if err != nil {
 		return nil, fmt.Errorf("regiongraph: %w", err)
 	}
-	pf, err := openParquetChecked(f, fi.Size())
+	pf, err := openParquetChecked(readerOf(f, opts), fi.Size())
 	if err != nil {
 		return nil, fmt.Errorf("regiongraph: %s: not a Parquet day-graph store: %v", path, err)
 	}
@@ -166,7 +175,7 @@ func cutStretches(path string, pf *parquet.File, leaf [numStoreColumns]int, stre
 			}
 		}
 		for a := int64(0); a < n; a += stretchRows {
-			stretches = append(stretches, &stretch{path: path, group: g, cols: cols, first: a, end: min(a+stretchRows, n)})
+			stretches = append(stretches, &stretch{path: path, group: g, cols: cols, first: a, end: min(a+stretchRows, n), groupRows: n})
 		}
 	}
 	if total != pf.NumRows() {
@@ -287,6 +296,7 @@ type stretch struct {
 	group      int
 	cols       [numStoreColumns]parquet.ColumnChunk
 	first, end int64
+	groupRows  int64   // rows of the row group
 	all        bool    // every row is kept
 	rows       []int32 // else the kept rows, ascending, as indexes in the row group
 	offset     int     // of the stretch's first kept edge in the store
@@ -323,41 +333,51 @@ func (st *stretch) selectRows(opts ReadOptions) error {
 		st.all = true
 		return nil
 	}
+	// Only the rows of pages of trips that may hold a kept edge are
+	// looked at; the others are dropped unread.
+	ranges := [][2]int64{{st.first, st.end}}
+	if opts.MinTrips > 0 {
+		ranges = st.tripsRanges(opts.MinTrips)
+	}
 	keep := make([]bool, st.end-st.first)
-	for i := range keep {
-		keep[i] = true
+	for _, r := range ranges {
+		for i := r[0]; i < r[1]; i++ {
+			keep[i-st.first] = true
+		}
 	}
 	var ints [readBlock]int64
 	var strs [readBlock]string
 	for _, col := range filters {
 		c := newColumnCursor(st, col)
-		for a := st.first; a < st.end; a += readBlock {
-			b := min(a+readBlock, st.end)
-			k := keep[a-st.first : b-st.first]
-			var err error
-			switch col {
-			case storeTrips:
-				if err = c.int64s(a, b, nil, ints[:b-a]); err == nil {
-					for i, v := range ints[:b-a] {
-						k[i] = k[i] && v >= int64(opts.MinTrips)
+		for _, r := range ranges {
+			for a := r[0]; a < r[1]; a += readBlock {
+				b := min(a+readBlock, r[1])
+				k := keep[a-st.first : b-st.first]
+				var err error
+				switch col {
+				case storeTrips:
+					if err = c.int64s(a, b, nil, ints[:b-a]); err == nil {
+						for i, v := range ints[:b-a] {
+							k[i] = k[i] && v >= int64(opts.MinTrips)
+						}
+					}
+				case storeWindow:
+					if err = c.strings(a, b, nil, strs[:b-a]); err == nil {
+						for i, v := range strs[:b-a] {
+							k[i] = k[i] && v == opts.Window
+						}
+					}
+				case storeDay:
+					if err = c.strings(a, b, nil, strs[:b-a]); err == nil {
+						for i, v := range strs[:b-a] {
+							k[i] = k[i] && (opts.From == "" || v >= opts.From) && (opts.To == "" || v <= opts.To)
+						}
 					}
 				}
-			case storeWindow:
-				if err = c.strings(a, b, nil, strs[:b-a]); err == nil {
-					for i, v := range strs[:b-a] {
-						k[i] = k[i] && v == opts.Window
-					}
+				if err != nil {
+					c.close()
+					return err
 				}
-			case storeDay:
-				if err = c.strings(a, b, nil, strs[:b-a]); err == nil {
-					for i, v := range strs[:b-a] {
-						k[i] = k[i] && (opts.From == "" || v >= opts.From) && (opts.To == "" || v <= opts.To)
-					}
-				}
-			}
-			if err != nil {
-				c.close()
-				return err
 			}
 		}
 		c.close()
@@ -447,4 +467,45 @@ func setColumn(dst []Edge, col *storeColumn, c *columnCursor, a, b int64, rows [
 		}
 	}
 	return nil
+}
+
+// tripsRanges returns the row ranges of the stretch, ascending and
+// disjoint, outside of which the trips column's page statistics (the
+// column index) say that no row has minTrips trips; the whole stretch when
+// the file has no usable index.
+func (st *stretch) tripsRanges(minTrips int) [][2]int64 {
+	all := [][2]int64{{st.first, st.end}}
+	cc := st.cols[storeTrips]
+	ci, err := cc.ColumnIndex()
+	if err != nil || ci == nil {
+		return all
+	}
+	oi, err := cc.OffsetIndex()
+	if err != nil || oi == nil || oi.NumPages() != ci.NumPages() {
+		return all
+	}
+	var out [][2]int64
+	n := oi.NumPages()
+	for p := range n {
+		a, b := oi.FirstRowIndex(p), st.groupRows
+		if p+1 < n {
+			b = oi.FirstRowIndex(p + 1)
+		}
+		if a < 0 || b < a || b > st.groupRows || (p == 0 && a != 0) {
+			return all // an index that does not cover the rows: not used
+		}
+		if mx := ci.MaxValue(p); !ci.NullPage(p) && mx.Kind() == parquet.Int64 && mx.Int64() < int64(minTrips) {
+			continue
+		}
+		a, b = max(a, st.first), min(b, st.end)
+		if a >= b {
+			continue
+		}
+		if k := len(out); k > 0 && out[k-1][1] == a {
+			out[k-1][1] = b
+		} else {
+			out = append(out, [2]int64{a, b})
+		}
+	}
+	return out
 }

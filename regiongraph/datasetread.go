@@ -1,0 +1,195 @@
+package regiongraph
+
+import (
+	"fmt"
+	"io"
+	"os"
+	"path/filepath"
+	"slices"
+	"strings"
+	"sync/atomic"
+)
+
+// readCounter counts what a read opened and read; tests set it through
+// ReadOptions.counter to check what a read touches.
+type readCounter struct {
+	files atomic.Int64 // Parquet files opened
+	bytes atomic.Int64 // bytes read from them
+}
+
+// countingReaderAt counts the bytes read through it.
+type countingReaderAt struct {
+	r io.ReaderAt
+	c *readCounter
+}
+
+func (r countingReaderAt) ReadAt(p []byte, off int64) (int, error) {
+	n, err := r.r.ReadAt(p, off)
+	r.c.bytes.Add(int64(n))
+	return n, err
+}
+
+// readerOf returns f, counted when opts asks for it.
+func readerOf(f *os.File, opts ReadOptions) io.ReaderAt {
+	if opts.counter == nil {
+		return f
+	}
+	opts.counter.files.Add(1)
+	return countingReaderAt{f, opts.counter}
+}
+
+// datasetOpenFiles is the number of day files a dataset read holds open
+// at once.
+const datasetOpenFiles = 32
+
+// readManifest reads and checks the manifest of the dataset at dir.
+func readManifest(dir string) (*manifest, Meta, error) {
+	path := filepath.Join(dir, ManifestName)
+	f, err := os.Open(path)
+	if err != nil {
+		if os.IsNotExist(err) {
+			return nil, Meta{}, fmt.Errorf("regiongraph: %s: a directory without %s: not a day-graph dataset, or one whose writing did not finish", dir, ManifestName)
+		}
+		return nil, Meta{}, fmt.Errorf("regiongraph: %w", err)
+	}
+	defer f.Close()
+	data, err := io.ReadAll(io.LimitReader(f, maxManifestBytes+1))
+	if err != nil {
+		return nil, Meta{}, fmt.Errorf("regiongraph: %s: %v", path, err)
+	}
+	if len(data) > maxManifestBytes {
+		return nil, Meta{}, fmt.Errorf("regiongraph: %s: more than %d bytes, not a dataset manifest", path, maxManifestBytes)
+	}
+	return parseManifest(path, data)
+}
+
+// readDataset is ReadFileOptions of a dataset directory: it opens the
+// manifest, then only the day files of the days opts keeps.
+func readDataset(dir string, opts ReadOptions, stretchRows int64) (*Store, error) {
+	m, meta, err := readManifest(dir)
+	if err != nil {
+		return nil, err
+	}
+	s := &Store{Meta: meta}
+	if m.Regions != "" {
+		path := filepath.Join(dir, m.Regions)
+		b, err := os.ReadFile(path)
+		if err != nil {
+			return nil, fmt.Errorf("regiongraph: dataset %s: %v", dir, err)
+		}
+		if int64(len(b)) != m.RegionsBytes {
+			return nil, fmt.Errorf("regiongraph: %s: %d bytes, the manifest says %d", path, len(b), m.RegionsBytes)
+		}
+		s.regionsGeoJSON = b
+	}
+	if opts.Window != "" && !slices.Contains(s.WindowNames(), opts.Window) {
+		return nil, fmt.Errorf("regiongraph: %s: no window %q in the store (it has %s)", dir, opts.Window, strings.Join(s.WindowNames(), ", "))
+	}
+	var days []dayJSON
+	for _, d := range m.Days {
+		if (opts.From == "" || d.Day >= opts.From) && (opts.To == "" || d.Day <= opts.To) {
+			days = append(days, d)
+		}
+	}
+	// A day file holds one day: the period was applied by choosing files.
+	fileOpts := opts
+	fileOpts.From, fileOpts.To = "", ""
+	for len(days) > 0 {
+		n := min(len(days), datasetOpenFiles)
+		edges, err := readDays(dir, meta, days[:n], fileOpts, stretchRows)
+		if err != nil {
+			return nil, err
+		}
+		s.Edges = append(s.Edges, edges...)
+		days = days[n:]
+	}
+	if err := checkStore(dir, s); err != nil {
+		return nil, err
+	}
+	if !slices.IsSortedFunc(s.Edges, compareEdges) {
+		slices.SortStableFunc(s.Edges, compareEdges)
+	}
+	return s, nil
+}
+
+// readDays reads the edges opts keeps of the given day files, in store
+// order.
+func readDays(dir string, meta Meta, days []dayJSON, opts ReadOptions, stretchRows int64) ([]Edge, error) {
+	var stretches []*stretch
+	var day []string // of each stretch
+	for _, d := range days {
+		path := filepath.Join(dir, filepath.FromSlash(d.File))
+		f, err := os.Open(path)
+		if err != nil {
+			if os.IsNotExist(err) {
+				return nil, fmt.Errorf("regiongraph: dataset %s: day %s: %s is missing", dir, d.Day, path)
+			}
+			return nil, fmt.Errorf("regiongraph: dataset %s: %w", dir, err)
+		}
+		defer f.Close()
+		fi, err := f.Stat()
+		if err != nil {
+			return nil, fmt.Errorf("regiongraph: %w", err)
+		}
+		if fi.Size() != d.Bytes {
+			return nil, fmt.Errorf("regiongraph: %s: %d bytes, the manifest says %d: the file was changed or cut short", path, fi.Size(), d.Bytes)
+		}
+		pf, err := openParquetChecked(readerOf(f, opts), fi.Size())
+		if err != nil {
+			return nil, fmt.Errorf("regiongraph: %s: not a Parquet day file: %v", path, err)
+		}
+		if pf.NumRows() != d.Edges {
+			return nil, fmt.Errorf("regiongraph: %s: %d rows, the manifest says %d", path, pf.NumRows(), d.Edges)
+		}
+		leaf, err := storeLeaves(path, pf)
+		if err != nil {
+			return nil, err
+		}
+		for _, kv := range [...]struct{ key, want string }{{metaRegions, meta.RegionsSHA256}, {metaTimeZone, meta.TimeZone}} {
+			if got, _ := pf.Lookup(kv.key); got != kv.want {
+				return nil, fmt.Errorf("regiongraph: %s: %s %q, the manifest says %q", path, kv.key, got, kv.want)
+			}
+		}
+		sts, err := cutStretches(path, pf, leaf, stretchRows)
+		if err != nil {
+			return nil, err
+		}
+		stretches = append(stretches, sts...)
+		for range sts {
+			day = append(day, d.Day)
+		}
+	}
+	edges, err := readStretches(stretches, opts)
+	if err != nil {
+		return nil, err
+	}
+	// Each stretch's edges are in the day file's order (window, trips
+	// descending): check their day and put them in store order.
+	err = forEach(len(stretches), func(i int) error {
+		st := stretches[i]
+		mine := edges[st.offset : st.offset+st.kept()]
+		for j := range mine {
+			if mine[j].Day != day[i] {
+				return fmt.Errorf("regiongraph: %s: holds an edge of day %s, the manifest lists it as day %s", st.path, mine[j].Day, day[i])
+			}
+		}
+		slices.SortFunc(mine, compareEdges)
+		return nil
+	})
+	if err != nil {
+		return nil, err
+	}
+	return edges, nil
+}
+
+// datasetDayRange returns the first and last day of the dataset at dir.
+func datasetDayRange(dir string) (first, last string, err error) {
+	m, _, err := readManifest(dir)
+	if err != nil {
+		return "", "", err
+	}
+	if len(m.Days) == 0 {
+		return "", "", nil
+	}
+	return m.Days[0].Day, m.Days[len(m.Days)-1].Day, nil
+}
