@@ -278,3 +278,53 @@ func (a *Aggregator) AddFile(path string) error {
 func (o Options) CheckYield(q Quality, sources []Source) error {
 	return checkYield(&settings{opts: o}, q, sources)
 }
+
+// WriteDataset is Finish writing the store as a dataset at dir (see
+// CreateDataset), a day at a time as the days are aggregated; edit, when
+// not nil, may change the metadata first. Nothing is left at dir on an
+// error. The returned store has the metadata and no edges.
+func (a *Aggregator) WriteDataset(ctx context.Context, dir string, edit func(*Meta)) (*Store, Written, error) {
+	var store *Store
+	var dw *DatasetWriter
+	err := a.Finish(ctx, func(s *Store) (func([]Edge) error, func() error, error) {
+		store = s
+		if edit != nil {
+			edit(&s.Meta)
+		}
+		var err error
+		if dw, err = CreateDataset(dir, s.Meta, s.regionsGeoJSON); err != nil {
+			return nil, nil, err
+		}
+		var day []Edge // the edges of the day being aggregated, every window
+		add := func(es []Edge) error {
+			if len(es) == 0 {
+				return nil
+			}
+			if len(day) > 0 && day[0].Day != es[0].Day {
+				if err := dw.WriteDay(day[0].Day, day); err != nil {
+					return err
+				}
+				day = day[:0]
+			}
+			day = append(day, es...)
+			return nil
+		}
+		return add, func() error {
+			if len(day) > 0 {
+				if err := dw.WriteDay(day[0].Day, day); err != nil {
+					return err
+				}
+			}
+			return dw.Close()
+		}, nil
+	})
+	if err != nil {
+		if dw != nil {
+			dw.Abort()
+		}
+		return nil, Written{}, err
+	}
+	w := dw.Written()
+	w.Spilled = store.spilled
+	return store, w, nil
+}
