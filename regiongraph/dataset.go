@@ -9,6 +9,7 @@ import (
 	"path/filepath"
 	"slices"
 	"strconv"
+	"strings"
 	"time"
 
 	"github.com/parquet-go/parquet-go"
@@ -327,4 +328,31 @@ func (s *Store) writeDataset(dir string, pageBytes int) error {
 		edges = edges[n:]
 	}
 	return dw.Close()
+}
+
+// StaleDatasetDirs returns the temporary directories that a writer of the
+// dataset at dir killed before Close left beside it; an old dataset set
+// aside for the rename is listed only when the new one is in place.
+func StaleDatasetDirs(dir string) ([]string, error) {
+	clean := filepath.Clean(dir)
+	parent, base := filepath.Dir(clean), filepath.Base(clean)
+	entries, err := os.ReadDir(parent)
+	if err != nil {
+		if os.IsNotExist(err) {
+			return nil, nil
+		}
+		return nil, err
+	}
+	_, statErr := os.Stat(filepath.Join(clean, ManifestName))
+	var stale []string
+	for _, e := range entries {
+		name := e.Name()
+		if !e.IsDir() {
+			continue
+		}
+		if strings.HasPrefix(name, "."+base+".tmp-") || (statErr == nil && strings.HasPrefix(name, "."+base+".old-")) {
+			stale = append(stale, filepath.Join(parent, name))
+		}
+	}
+	return stale, nil
 }

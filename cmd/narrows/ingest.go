@@ -12,13 +12,13 @@ import (
 )
 
 func runIngest(ctx context.Context, env *environment, args []string) error {
-	fs := newFlagSet(env, "ingest", "--regions R.geojson --trips FILE... [--format trips|points|gpx] [--columns ...] [--tz ZONE] [--window NAME=HH:MM-HH:MM] [--strict] --out graphs.parquet")
+	fs := newFlagSet(env, "ingest", "--regions R.geojson --trips FILE... [--format trips|points|gpx] [--columns ...] [--tz ZONE] [--window NAME=HH:MM-HH:MM] [--strict] --out graphs|graphs.parquet")
 	var regionsPath, out string
 	var trips, merge listFlag
 	fs.StringVar(&regionsPath, "regions", "", "regions GeoJSON written by 'narrows regions'")
 	fs.Var(&trips, "trips", "trip or GPS file, or a folder of GPX files (repeatable; more files may follow the options)")
 	fs.Var(&merge, "merge", "existing day-graph store to merge into the output (repeatable)")
-	fs.StringVar(&out, "out", "", "day-graph store (Parquet) to write")
+	fs.StringVar(&out, "out", "", "day-graph store to write: a dataset folder (a Parquet file per day), or one Parquet file if the name ends in .parquet")
 	env.files.bindForce(fs)
 	opts, format := regiongraph.DefaultOptions(), regiongraph.FormatTrips
 	optFlags := bindOptions(fs, func(fs *flag.FlagSet) { bindIngest(fs, &opts, &format) })
@@ -42,11 +42,60 @@ func runIngest(ctx context.Context, env *environment, args []string) error {
 	if err != nil {
 		return err
 	}
+	if storeIsDataset(out) {
+		return ingestDataset(ctx, env, regions, sum, trips, format, opts, merge, out)
+	}
 	if len(merge) == 0 {
 		return ingestTo(ctx, env, regions, sum, trips, format, opts, out)
 	}
 	_, err = ingest(ctx, env, regions, sum, trips, nil, format, opts, merge, out)
 	return err
+}
+
+// ingestDataset builds the day-graph store as a dataset folder, written
+// a day at a time. With stores to merge, the new trips' store is built in
+// memory and the stores are merged into the dataset day by day (a dataset
+// among them is read a day file at a time).
+func ingestDataset(ctx context.Context, env *environment, regions *partition.Partition, sum string, trips []string, format regiongraph.Format, opts regiongraph.Options, merge []string, out string) error {
+	start := time.Now()
+	var inputs []regiongraph.Input
+	for _, t := range trips {
+		inputs = append(inputs, regiongraph.Input{Path: t, Format: format})
+	}
+	update, finish := progress(env, "ingest")
+	opts.Progress = update
+	var meta regiongraph.Meta
+	var written regiongraph.Written
+	err := env.files.writeDataset(out, kindStore, func() error {
+		if len(merge) == 0 {
+			s, n, err := regiongraph.IngestDataset(ctx, regions, sum, inputs, opts, out, nil)
+			if err != nil {
+				return err
+			}
+			meta, written = s.Meta, n
+			return nil
+		}
+		s, err := regiongraph.Ingest(ctx, regions, sum, inputs, opts)
+		if err != nil {
+			return err
+		}
+		m, n, err := regiongraph.MergeDataset(out, []*regiongraph.Store{s}, merge)
+		if err != nil {
+			return err
+		}
+		meta, written = m.Meta, n
+		return nil
+	})
+	finish()
+	if err != nil {
+		return err
+	}
+	printQuality(env, meta.Quality)
+	if q := meta.Quality; q.OffsetMismatch > 0 {
+		fmt.Fprintf(env.stderr, "warning: %v (--tz, time_zone in a study file; --strict makes this an error)\n", regiongraph.OffsetMismatchError(q, meta.TimeZone))
+	}
+	fmt.Fprintf(env.stdout, "%d edges on %d days in %.2f s -> %s\n", written.Edges, written.Days, time.Since(start).Seconds(), out)
+	return nil
 }
 
 // ingestTo builds the day-graph store and writes it as it is built,

@@ -12,6 +12,7 @@ import (
 	"strings"
 
 	"narrows/cmd/internal/atomicfile"
+	"narrows/regiongraph"
 )
 
 // outputKind says what a file written by narrows is. A step replaces a
@@ -106,10 +107,13 @@ func (r *runFiles) claim(path string, kind outputKind) error {
 		}
 	}
 	if statErr == nil {
-		if info.IsDir() {
+		if info.IsDir() && (kind != kindStore || !storeIsDataset(path)) {
 			return fmt.Errorf("cannot write %s: it is a folder", path)
 		}
 		was := readManifest(filepath.Dir(path))[filepath.Base(path)]
+		if info.IsDir() && was == "" && emptyDir(path) {
+			was = kind // an empty folder made for the dataset
+		}
 		switch {
 		case r.force:
 		case was == "":
@@ -122,6 +126,17 @@ func (r *runFiles) claim(path string, kind outputKind) error {
 	stale, err := atomicfile.Stale(path)
 	if err != nil {
 		return err
+	}
+	if kind == kindStore {
+		dirs, err := regiongraph.StaleDatasetDirs(path)
+		if err != nil {
+			return err
+		}
+		for _, d := range dirs {
+			if err := os.RemoveAll(d); err == nil && r.stderr != nil {
+				fmt.Fprintf(r.stderr, "removed %s, left by an interrupted run\n", d)
+			}
+		}
 	}
 	for _, s := range stale {
 		if err := os.Remove(s); err == nil && r.stderr != nil {
@@ -174,6 +189,45 @@ func (r *runFiles) write(path string, kind outputKind, write func(io.Writer) err
 	}
 	r.written = append(r.written, path)
 	return recordOutput(path, kind)
+}
+
+// writeDataset writes a dataset output (a folder) with write, which
+// writes it atomically itself (regiongraph.DatasetWriter), and records its
+// kind as write does for a file.
+func (r *runFiles) writeDataset(path string, kind outputKind, write func() error) error {
+	abs, err := filepath.Abs(path)
+	if err != nil {
+		return err
+	}
+	if _, ok := r.claimed[abs]; !ok {
+		if err := r.claim(path, kind); err != nil {
+			return err
+		}
+	}
+	if r.ctx != nil && r.ctx.Err() != nil {
+		return r.ctx.Err()
+	}
+	if _, err := outputDir(path); err != nil {
+		return err
+	}
+	if err := write(); err != nil {
+		return err
+	}
+	r.written = append(r.written, path)
+	return recordOutput(path, kind)
+}
+
+// storeIsDataset tells whether a day-graph store output at path is a
+// dataset folder: any name but one ending in .parquet, the single-file
+// layout.
+func storeIsDataset(path string) bool {
+	return !strings.EqualFold(filepath.Ext(path), ".parquet")
+}
+
+// emptyDir tells whether path is a folder with nothing in it.
+func emptyDir(path string) bool {
+	entries, err := os.ReadDir(path)
+	return err == nil && len(entries) == 0
 }
 
 // readManifest returns the kinds of the outputs recorded in dir by name.

@@ -34,7 +34,22 @@ func (f *storeFlags) register(fs *flag.FlagSet) {
 // open reads the store for an analysis with the given thresholds and the
 // regions it was built on (see readStore and regionsFor).
 func (f *storeFlags) open(opts patterns.ScanOptions) (*regiongraph.Store, *partition.Partition, error) {
-	store, err := readStore(f.graphs, opts)
+	return f.openRead(opts, regiongraph.ReadOptions{MinTrips: opts.Skyline.MinTrips})
+}
+
+// openPeriod is open reading only the days of opts' period: of a dataset
+// only those days' files are opened. When the period holds no edge the
+// store is read whole, so that the scan's message lists the store's days.
+func (f *storeFlags) openPeriod(opts patterns.ScanOptions) (*regiongraph.Store, *partition.Partition, error) {
+	store, regions, err := f.openRead(opts, regiongraph.ReadOptions{MinTrips: opts.Skyline.MinTrips, From: opts.From, To: opts.To})
+	if err != nil || len(store.Edges) > 0 || opts.From == "" && opts.To == "" {
+		return store, regions, err
+	}
+	return f.open(opts)
+}
+
+func (f *storeFlags) openRead(opts patterns.ScanOptions, ropts regiongraph.ReadOptions) (*regiongraph.Store, *partition.Partition, error) {
+	store, err := readStore(f.graphs, ropts)
 	if err != nil {
 		return nil, nil, err
 	}
@@ -75,7 +90,7 @@ func runScan(ctx context.Context, env *environment, args []string) error {
 	if err := env.files.claimAll([]output{{out, kindFindings}, {layer, kindFindingsLayer}}); err != nil {
 		return err
 	}
-	store, regions, err := in.open(opts)
+	store, regions, err := in.openPeriod(opts)
 	if err != nil {
 		return err
 	}
@@ -111,8 +126,8 @@ func runScan(ctx context.Context, env *environment, args []string) error {
 // with a trip or two a day, and holding them would cost gigabytes. The
 // daily series of a comparison then also count only days on which an edge
 // had at least that many trips.
-func readStore(path string, opts patterns.ScanOptions) (*regiongraph.Store, error) {
-	return regiongraph.ReadFileOptions(path, regiongraph.ReadOptions{MinTrips: opts.Skyline.MinTrips})
+func readStore(path string, opts regiongraph.ReadOptions) (*regiongraph.Store, error) {
+	return regiongraph.ReadFileOptions(path, opts)
 }
 
 // regionsFor returns the regions a store was built on: from the given file
