@@ -76,6 +76,17 @@ type tally struct {
 	visit      func(tr *trip, from, to int, day int32, window int) // when set, sees each used trip per window (ReadTrips, Options.KeepTrip)
 	visitOnly  bool                                                // visit instead of aggregating (ReadTrips)
 
+	// place, when set (Place), receives each row that passed the trip
+	// checks, and each row that was given a duplicate-check key, instead
+	// of the buckets and the row counts; placed is the used trip of the
+	// row being counted (set by add), key the row's duplicate-check key
+	// when keyed. placedRows counts the rows handed to place.
+	place      func(*PlacedTrip)
+	placed     PlacedTrip
+	key        rowKey
+	keyed      bool
+	placedRows int64
+
 	// Records past budget go to the spill file, bucket by bucket.
 	held     int // records in memory
 	budget   int
@@ -131,6 +142,24 @@ func windowRanks(windows []Window) []uint8 {
 
 // count books n rows under r.
 func (t *tally) count(r Reason, n int64) {
+	if t.place != nil {
+		keyed := t.keyed
+		t.keyed = false
+		if r == reasonUsed || keyed {
+			p := &t.placed
+			if r != reasonUsed {
+				*p = PlacedTrip{Day: t.key.day}
+			}
+			p.Rows, p.Outcome, p.Keyed = int32(n), r, keyed
+			p.KeyID, p.KeyRow = 0, 0
+			if keyed {
+				p.KeyID, p.KeyRow = t.key.id, t.key.content
+			}
+			t.placedRows += n
+			t.place(p)
+			return
+		}
+	}
 	t.read += n
 	if r == reasonUsed {
 		t.used += n
@@ -189,6 +218,20 @@ func (t *tally) add(tr *trip) Reason {
 	if day < math.MinInt32 || day > math.MaxInt32 {
 		return ReasonUnparseable
 	}
+	if t.place != nil {
+		var mask uint64
+		for wi, w := range st.windows {
+			if w.contains(minute) {
+				mask |= 1 << wi
+			}
+		}
+		if mask == 0 {
+			return ReasonOutsideTimes
+		}
+		t.placed = PlacedTrip{Day: int32(day), Windows: mask, From: int32(t.loc.id(from)), To: int32(t.loc.id(to)),
+			Distance: float32(tr.distance), Duration: float32(duration), Straight: float32(straight)}
+		return reasonUsed
+	}
 	in := false
 	rec := record{pair: uint32(from)<<16 | uint32(to),
 		distance: float32(tr.distance), duration: float32(duration), straight: float32(straight)}
@@ -203,18 +246,7 @@ func (t *tally) add(tr *trip) Reason {
 				continue
 			}
 		}
-		key := makeBucketKey(int32(day), t.windowRank[wi])
-		d := t.last[wi]
-		if d == nil || d.key != key {
-			d = t.buckets[key]
-			if d == nil {
-				d = &dayRecords{key: key}
-				t.buckets[key] = d
-			}
-			t.last[wi] = d
-		}
-		d.add(rec)
-		t.held++
+		t.hold(int32(day), wi, rec)
 	}
 	if !in {
 		return ReasonOutsideTimes
@@ -223,6 +255,22 @@ func (t *tally) add(tr *trip) Reason {
 		t.spillAll()
 	}
 	return reasonUsed
+}
+
+// hold keeps rec in the bucket of day and window wi.
+func (t *tally) hold(day int32, wi int, rec record) {
+	key := makeBucketKey(day, t.windowRank[wi])
+	d := t.last[wi]
+	if d == nil || d.key != key {
+		d = t.buckets[key]
+		if d == nil {
+			d = &dayRecords{key: key}
+			t.buckets[key] = d
+		}
+		t.last[wi] = d
+	}
+	d.add(rec)
+	t.held++
 }
 
 // quantile returns the p-quantile of sorted values by linear interpolation

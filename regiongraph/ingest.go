@@ -210,7 +210,7 @@ func ingestFiles(ctx context.Context, st *settings, files []inputFile, tallies [
 	rowsRead := func() int64 {
 		var n int64
 		for _, t := range tallies {
-			n += t.read
+			n += t.read + t.placedRows
 		}
 		return n
 	}

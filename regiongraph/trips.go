@@ -272,6 +272,9 @@ func (r *tripReader) chunk(t *tally, w *tripWorker, ch chunk, wanted bool) *RowE
 		r.parse(t, w, ch)
 	}
 	r.order.pass(ch.seq, func() {
+		if st.seen == nil {
+			return // placing: the duplicate check is the aggregation's (see Place)
+		}
 		for i := range w.rows {
 			if p := &w.rows[i]; p.reason == reasonUsed {
 				p.reason = st.seen.check(p.key)
@@ -281,6 +284,7 @@ func (r *tripReader) chunk(t *tally, w *tripWorker, ch chunk, wanted bool) *RowE
 	for i := range w.rows {
 		p := &w.rows[i]
 		if p.reason == reasonUsed {
+			t.key, t.keyed = p.key, t.place != nil
 			p.reason = t.add(&p.tr)
 			if p.reason != reasonUsed && p.reason.isDataError() && st.opts.Strict {
 				p.fault = fault{reason: p.reason, detail: explain(st, &p.tr, p.reason)}.at(r.file, p.line, 0)

@@ -7,6 +7,8 @@
 //
 //	narrows regions  --osm FILE --out regions.geojson
 //	narrows ingest   --regions regions.geojson --trips FILE... --out graphs.parquet
+//	narrows place    --regions regions.geojson --trips SHARD --out placed/
+//	narrows aggregate --regions regions.geojson --placed placed/ --out graphs.parquet
 //	narrows scan     --graphs graphs.parquet --out findings.json
 //	narrows compare  --graphs graphs.parquet --before D1..D2 --after D3..D4 --out report.xlsx
 //	narrows run      study.toml
@@ -69,6 +71,8 @@ func commands() []command {
 	return []command{
 		{"regions", "split an OpenStreetMap extract into regions bounded by major roads", runRegions},
 		{"ingest", "project trips or GPS traces onto per-day region graphs", runIngest},
+		{"place", "place one shard of trips in regions, local days and windows (ingest's first half, for parallel runs)", runPlace},
+		{"aggregate", "aggregate placed trips into per-day region graphs (ingest's second half)", runAggregate},
 		{"scan", "find the weak links that recur in one period", runScan},
 		{"compare", "compare two periods and write the workbook, map layers and HTML page", runCompare},
 		{"run", "run a whole study from a study file (TOML)", runStudy},
