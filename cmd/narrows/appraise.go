@@ -209,7 +209,7 @@ func (r *studyRun) appraiseFinding(ctx context.Context, regions *partition.Parti
 	cands = append(cands, gen...)
 	a, err := appraise.Appraise(ctx, net, before, len(scan.Days), cands, opts)
 	if err != nil {
-		return nil, time.Time{}, fmt.Errorf("finding %s: %w", f.ID, err)
+		return nil, time.Time{}, fmt.Errorf("study file %s: appraising weak link %s: %w", file, f.ID, err)
 	}
 	ap := &report.Appraisal{FindingID: f.ID, Place: report.PlaceName(f, regions), Result: a}
 	if hasAfter && scheme.extract != "" {

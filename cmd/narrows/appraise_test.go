@@ -205,6 +205,25 @@ func TestAppraiseCandidatesCLI(t *testing.T) {
 			t.Errorf("report page: no %q", want)
 		}
 	}
+	// A study listing a candidate outside the area: run stops with the
+	// study file and the candidate named, before any report is written.
+	good, err := os.ReadFile(study)
+	if err != nil {
+		t.Fatal(err)
+	}
+	bad := strings.Replace(string(good), fmt.Sprintf("candidates = [%q]", text), fmt.Sprintf("candidates = [%q, %q]", text, "secondary 5,5 5.01,5"), 1)
+	badStudy := filepath.Join(dir, "bad.toml")
+	if err := os.WriteFile(badStudy, []byte(bad), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	badOut := filepath.Join(dir, "bad-out")
+	code, _, stderr := runCLI(t, "run", badStudy, "--output", badOut)
+	if code == exitOK || !strings.Contains(stderr, "study file "+badStudy) || !strings.Contains(stderr, "is not within 50 m of a road") {
+		t.Errorf("run with a candidate outside the area: exit %d, %s", code, stderr)
+	}
+	if _, err := os.Stat(filepath.Join(badOut, "report.xlsx")); err == nil {
+		t.Error("run wrote a report despite the bad candidate")
+	}
 	for _, c := range []struct{ cand, want string }{
 		{"footway 1,2 3,4", `"footway" is not a road class`},
 		{"secondary 5,5 5.01,5", "is not within 50 m of a road of the network"},
