@@ -6,6 +6,7 @@ import (
 	"encoding/json"
 	"fmt"
 	"maps"
+	"math"
 	"net/http"
 	"net/http/httptest"
 	"os"
@@ -139,6 +140,8 @@ func TestExploreAPI(t *testing.T) {
 		{"unknown window", "/api/settings", tok, strings.Replace(settingsJSON(s0.Settings), `"window":""`, `"window":"nightly"`, 1), 400},
 		{"one period only", "/api/settings", tok, strings.Replace(settingsJSON(s0.Settings), `"before":""`, `"before":"2026-03-02..2026-03-08"`, 1), 400},
 		{"huge body", "/api/settings", tok, huge, 413},
+		{"malformed focus", "/api/settings", tok, strings.Replace(settingsJSON(s0.Settings), `"focus":""`, `"focus":"north of the river"`, 1), 400},
+		{"focus on an unknown region", "/api/settings", tok, strings.Replace(settingsJSON(s0.Settings), `"focus":""`, `"focus":"3,9999"`, 1), 400},
 		{"unknown region", "/api/exclusions", tok, `{"pairs":[{"a":9999,"b":1,"reason":"ferry"}]}`, 400},
 		{"no reason", "/api/exclusions", tok, `{"days":[{"from":"2026-03-03"}]}`, 400},
 		{"range backwards", "/api/exclusions", tok, `{"days":[{"from":"2026-03-05","to":"2026-03-03","reason":"works"}]}`, 400},
@@ -231,6 +234,20 @@ func TestExploreAPI(t *testing.T) {
 	}
 	if slices.Equal(findingIDs(s1.Findings), findingIDs(s0.Findings)) {
 		t.Errorf("the changes left the findings as they were: %v", findingIDs(s0.Findings))
+	}
+	checkUncached(t, f.st, f.srv)
+	// The day strip, summed edge by edge (brute force): every pair of the
+	// window with at least the minimum of trips, the excluded pair left out.
+	strip := map[string]float64{}
+	for _, e := range kept.Edges {
+		if e.Window == s1.Window && e.Trips >= 6 {
+			strip[e.Day] += max(0, e.DurationSum-e.StraightSum/opts.ReferenceSpeed) / 3600
+		}
+	}
+	for _, d := range s1.Days {
+		if w := math.Round(strip[d.Day]*10) / 10; d.Cost != w {
+			t.Errorf("strip day %s: %.1f extra veh-h, summed edge by edge %.1f", d.Day, d.Cost, w)
+		}
 	}
 
 	// Save, then run the saved study: the same findings and costs.
@@ -407,4 +424,26 @@ func otherToken(tok string) string {
 		return "1" + tok[1:]
 	}
 	return "0" + tok[1:]
+}
+
+// checkUncached checks that the server's state, derived through its cache
+// over several requests, is the state of a server that derives everything
+// afresh from the same choices.
+func checkUncached(t *testing.T, st *explore.Study, srv *explore.Server) {
+	t.Helper()
+	c := srv.Choices()
+	fresh := *st
+	fresh.NoCache = true
+	fresh.Scan, fresh.Before, fresh.After, fresh.Exclusions, fresh.Focus = c.Scan, c.Before, c.After, c.Exclusions, c.Focus
+	ref, err := explore.New(context.Background(), &fresh)
+	if err != nil {
+		t.Fatal(err)
+	}
+	got, want := srv.State(), ref.State()
+	got.Millis, want.Millis, got.Saved, want.Saved = 0, 0, "", ""
+	a, _ := json.Marshal(got)
+	b, _ := json.Marshal(want)
+	if !bytes.Equal(a, b) {
+		t.Errorf("the cached state differs from the state derived afresh (%d and %d bytes of JSON)", len(a), len(b))
+	}
 }

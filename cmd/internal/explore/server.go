@@ -54,6 +54,9 @@ type Server struct {
 	state   *State
 	// dirty says the choices differ from those of the study file.
 	dirty bool
+	// cache keeps what the analysis derives from the day graphs across
+	// requests (nil when the study asks for none).
+	cache *cache
 }
 
 // New analyses the study once and returns its server. The token, which
@@ -71,7 +74,10 @@ func New(ctx context.Context, st *Study) (*Server, error) {
 	if err := c.Exclusions.Validate(len(st.Regions.Regions)); err != nil {
 		return nil, err
 	}
-	state, err := analyse(ctx, st, c)
+	if !st.NoCache {
+		s.cache = newCache(st.Store)
+	}
+	state, err := analyse(ctx, st, c, s.cache)
 	if err != nil {
 		return nil, err
 	}
@@ -217,7 +223,7 @@ func (s *Server) postSettings(w http.ResponseWriter, r *http.Request) {
 	}
 	s.mu.Lock()
 	defer s.mu.Unlock()
-	c, err := set.apply(s.choices, s.study.Store.Meta.Windows, s.study.ParseFocus)
+	c, err := set.apply(s.choices, s.study.Store.Meta.Windows, s.study.ParseFocus, len(s.study.Regions.Regions))
 	if err != nil {
 		httpError(w, http.StatusBadRequest, "settings: "+err.Error())
 		return
@@ -248,7 +254,7 @@ func (s *Server) postExclusions(w http.ResponseWriter, r *http.Request) {
 // update analyses the choices and, when that works, makes them current.
 // The caller holds s.mu.
 func (s *Server) update(w http.ResponseWriter, r *http.Request, c Choices) {
-	state, err := analyse(r.Context(), s.study, c)
+	state, err := analyse(r.Context(), s.study, c, s.cache)
 	if err != nil {
 		// A choice the analysis refuses (a period with no data, say) is the
 		// request's fault; the current state stays.

@@ -10,7 +10,6 @@ import (
 
 	"narrows/partition/geodesy"
 	"narrows/patterns"
-	"narrows/regiongraph"
 	"narrows/report"
 )
 
@@ -103,9 +102,14 @@ type Region struct {
 }
 
 // analyse runs the analysis of the choices and returns the page's state.
-func analyse(ctx context.Context, st *Study, c Choices) (*State, error) {
+// The cache holds what earlier calls derived from the study (nil: a new
+// one, derived afresh).
+func analyse(ctx context.Context, st *Study, c Choices, cache *cache) (*State, error) {
 	start := time.Now()
-	store, opts, err := c.Exclusions.Apply(st.Store, c.Scan)
+	if cache == nil {
+		cache = newCache(st.Store)
+	}
+	store, opts, err := cache.without(st, c.Exclusions, c.Scan)
 	if err != nil {
 		return nil, err
 	}
@@ -139,7 +143,9 @@ func analyse(ctx context.Context, st *Study, c Choices) (*State, error) {
 		s.Note = report.GroupBoundNote(cmp.Before) + report.GroupBoundNote(cmp.After)
 	} else {
 		s.Mode = "scan"
-		scan, err := patterns.ScanStore(ctx, store, opts)
+		// The scan reads only the edges with the minimum of trips; a
+		// comparison reads every edge for the network's totals.
+		scan, err := patterns.ScanStore(ctx, cache.atLeastTrips(opts.Skyline.MinTrips), opts)
 		if err != nil {
 			return nil, err
 		}
@@ -166,7 +172,7 @@ func analyse(ctx context.Context, st *Study, c Choices) (*State, error) {
 	}
 	s.Map = svg.String()
 	s.Headline = report.Headline(in)
-	s.Days = dayStrip(st.Store, store, opts, s.Window, periods, c.Exclusions)
+	s.Days = dayStrip(cache.days, cache.strip[s.Window], opts.Skyline.MinTrips, periods, c.Exclusions)
 	for _, w := range store.Meta.Windows {
 		s.Windows = append(s.Windows, w.Name)
 	}
@@ -281,33 +287,25 @@ func dailyCosts(f patterns.Finding, scans []*patterns.Scan) []DailyCost {
 
 // dayStrip lists every day of the store with the network's extra
 // vehicle-hours in the window (pairs with at least the minimum trips,
-// excluded pairs left out), the period it was analysed in, and the reason
-// it was excluded.
-func dayStrip(all, kept *regiongraph.Store, opts patterns.ScanOptions, window string, periods map[string]string, x patterns.Exclusions) []DayState {
-	ref := opts.ReferenceSpeed
-	cost := map[string]float64{}
-	for _, e := range all.Edges {
-		cost[e.Day] += 0 // every day of the store, even one with no edge kept
-	}
-	for i := range kept.Edges {
-		e := &kept.Edges[i]
-		if e.Window != window || e.Trips < opts.Skyline.MinTrips {
-			continue
-		}
-		cost[e.Day] += max(0, e.DurationSum-e.StraightSum/ref) / 3600
-	}
+// excluded pairs left out: costs are the window's, see stripCosts), the
+// period it was analysed in, and the reason it was excluded.
+func dayStrip(days []string, costs map[string]*tripCosts, minTrips int, periods map[string]string, x patterns.Exclusions) []DayState {
 	reasons := map[string]string{}
 	for _, r := range x.Days {
-		days, _ := r.List()
-		for _, d := range days {
+		list, _ := r.List()
+		for _, d := range list {
 			if _, ok := reasons[d]; !ok {
 				reasons[d] = r.Reason
 			}
 		}
 	}
-	out := make([]DayState, 0, len(cost))
-	for _, d := range slices.Sorted(maps.Keys(cost)) {
-		ds := DayState{Day: d, Cost: math.Round(cost[d]*10) / 10, Period: periods[d], Excluded: reasons[d]}
+	out := make([]DayState, 0, len(days))
+	for _, d := range days {
+		cost := 0.0
+		if t := costs[d]; t != nil {
+			cost = t.over(minTrips)
+		}
+		ds := DayState{Day: d, Cost: math.Round(cost*10) / 10, Period: periods[d], Excluded: reasons[d]}
 		if t, err := time.Parse(time.DateOnly, d); err == nil {
 			ds.Weekday = int(t.Weekday())
 		}

@@ -35,6 +35,9 @@ type Study struct {
 	// regions and day graphs held here, and returns the files written
 	// (nil: no report, as for a bare store).
 	Report func(context.Context) ([]string, error)
+	// NoCache derives everything afresh on every request: the reference
+	// that the server's cache is measured and checked against.
+	NoCache bool
 }
 
 // Choices are the planner's choices as they go into the study file: the
@@ -82,13 +85,19 @@ func settingsOf(c Choices) Settings {
 
 // apply returns the choices with the settings applied, or an error
 // saying which setting is out of range.
-func (s Settings) apply(c Choices, windows []regiongraph.Window, parseFocus func(string) (*patterns.Focus, error)) (Choices, error) {
+func (s Settings) apply(c Choices, windows []regiongraph.Window, parseFocus func(string) (*patterns.Focus, error), regions int) (Choices, error) {
 	if s.Focus != "" {
 		if parseFocus == nil {
 			return c, fmt.Errorf("focus: this study cannot take a focus area")
 		}
-		if _, err := parseFocus(s.Focus); err != nil {
+		f, err := parseFocus(s.Focus)
+		if err != nil {
 			return c, fmt.Errorf("focus: %v", err)
+		}
+		for _, id := range f.Regions {
+			if id < 1 || id > regions {
+				return c, fmt.Errorf("focus: there is no region %d (regions are 1 to %d)", id, regions)
+			}
 		}
 	}
 	if (s.Before == "") != (s.After == "") {
