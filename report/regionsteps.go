@@ -2,6 +2,7 @@ package report
 
 import (
 	"fmt"
+	"slices"
 	"strconv"
 	"strings"
 
@@ -28,7 +29,11 @@ func RegionSteps(p *partition.Partition, o partition.Options) []string {
 		}
 	}
 	if p.WaterKM2 > 0 {
-		out = append(out, fmt.Sprintf("water: %.2f km² (water areas and sea) lies in no region", p.WaterKM2))
+		what := "water areas"
+		if slices.Contains(p.Stats.Barriers, "coastline") {
+			what = "water areas and the sea beyond the coastline"
+		}
+		out = append(out, fmt.Sprintf("water: %.2f km² (%s) lies in no region", p.WaterKM2, what))
 	}
 	return out
 }
