@@ -64,7 +64,8 @@ func oversizeLine(s partition.Stats, o partition.Options, largestKM2 float64) st
 		why = append(why, fmt.Sprintf("%d with no %s road inside", n, orList(o.SplitRoads)))
 	}
 	if n := s.StillOversized - s.StillOversizedNoRoads; n > 0 {
-		why = append(why, fmt.Sprintf("%d crossed only by roads that end inside", n))
+		piece := strconv.FormatFloat(o.MaxRegionKM2/4, 'g', 3, 64) + " km²"
+		why = append(why, fmt.Sprintf("%d whose split roads end inside or cut off only pieces under %s", n, piece))
 	}
 	return line + ", " + strings.Join(why, ", ") + ")"
 }
