@@ -147,3 +147,40 @@ func TestPlaceRelationNamesRegion(t *testing.T) {
 		})
 	}
 }
+
+func FuzzJoinRings(f *testing.F) {
+	f.Add([]byte{1, 2, 3, 0, 3, 4, 1, 0})
+	f.Add([]byte{1, 2, 0, 2, 3, 0, 1, 3, 0})
+	f.Add([]byte{5, 5, 0, 1})
+	f.Fuzz(func(t *testing.T, data []byte) {
+		// Zero bytes separate ways; other bytes are node ids.
+		var parts [][]int64
+		var cur []int64
+		for _, b := range append(data, 0) {
+			if b != 0 {
+				cur = append(cur, int64(b))
+				continue
+			}
+			if len(cur) >= 2 {
+				parts = append(parts, cur)
+			}
+			cur = nil
+		}
+		total := 0
+		for _, p := range parts {
+			total += len(p)
+		}
+		used := 0
+		for _, r := range joinRings(parts) {
+			if len(r) < 4 || r[0] != r[len(r)-1] {
+				t.Fatalf("ring %v is not closed or too short", r)
+			}
+			used += len(r)
+		}
+		// Each way is used at most once: a ring of k ways has their nodes
+		// less the k-1 joins.
+		if used > total {
+			t.Fatalf("rings hold %d nodes, the ways only %d", used, total)
+		}
+	})
+}
