@@ -67,7 +67,8 @@
 // then west to east. The representative point is the middle of the widest
 // interior interval on one of several horizontal lines across the region,
 // so it lies inside the region and outside its holes. Border roads are
-// named by the way's name tag, else its ref, else "(unnamed class)";
+// named by the way's name tag, else its ref, else "(unnamed class)"
+// (motorways and trunks by ref first; of a ";"-list, the first value);
 // where ways overlap the edge is credited to the higher class. Areas and
 // lengths are measured in the projection.
 package partition

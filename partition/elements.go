@@ -22,7 +22,7 @@ const (
 	roleSplit                  // a SplitRoads way: splits oversized regions only
 	roleUnused                 // a barrier of a kind not chosen: only warned about
 	rolePlace                  // a closed way tagged place: names regions
-	roleMember                 // untagged: kept in case a water relation uses it
+	roleMember                 // untagged or a boundary: kept in case a water or place relation uses it
 	roleNetwork                // a NetworkRoads way: drawn on maps only
 	roleRoute                  // a RouteRoads way: routing only
 )
@@ -40,6 +40,13 @@ type wayRec struct {
 type waterRel struct {
 	id      osm.RelationID
 	label   string
+	members []osm.WayID
+}
+
+// placeRel is a place drawn as a relation: its outer member ways
+// together enclose it.
+type placeRel struct {
+	placeRec
 	members []osm.WayID
 }
 
@@ -80,6 +87,7 @@ type selector struct {
 	route    map[string]bool // RouteRoads
 	barriers []string        // chosen barrier kinds, in Options order
 	water    bool            // water areas chosen
+	places   bool            // place relations read (to name regions)
 }
 
 func newSelector(o *Options) *selector {
@@ -102,6 +110,7 @@ func newSelector(o *Options) *selector {
 	}
 	s.barriers = o.Barriers
 	s.water = slices.Contains(o.Barriers, "water")
+	s.places = !o.Exact
 	return s
 }
 
@@ -134,15 +143,25 @@ func (s *selector) classify(tags osm.Tags) (class string, rank int, role wayRole
 	if s.route[hw] && hw != "" {
 		return hw, 0, roleRoute, true
 	}
-	if s.water && len(tags) == 0 {
+	if (s.water || s.places) && len(tags) == 0 || s.places && tags.Find("boundary") != "" {
 		return "", 0, roleMember, true
 	}
 	return "", 0, 0, false
 }
 
-// keepRelation reports whether a relation is a water multipolygon.
+// keepRelation reports whether a relation is a water multipolygon or a
+// named place drawn as a multipolygon or boundary relation.
 func (s *selector) keepRelation(r *osm.Relation) bool {
-	return s.water && r.Tags.Find("type") == "multipolygon" && isWaterArea(r.Tags)
+	return s.water && r.Tags.Find("type") == "multipolygon" && isWaterArea(r.Tags) || s.isPlaceRelation(r)
+}
+
+func (s *selector) isPlaceRelation(r *osm.Relation) bool {
+	if !s.places {
+		return false
+	}
+	typ := r.Tags.Find("type")
+	_, ok := placeOf(r.Tags)
+	return ok && (typ == "multipolygon" || typ == "boundary")
 }
 
 // elementReader collects what readOSM keeps of each element.
@@ -151,6 +170,7 @@ type elementReader struct {
 	store  *nodeStore
 	ways   []wayRec
 	waters []waterRel
+	places []placeRel
 	routes []routeRec // RouteRoads ways and barriers, for routing
 }
 
@@ -170,7 +190,7 @@ func (rd *elementReader) preparePBF(pbf *osmpbf.Scanner, ex *extract) error {
 		_, _, _, ok := rd.sel.classify(w.Tags)
 		return ok
 	}
-	pbf.SkipRelations = !rd.sel.water
+	pbf.SkipRelations = !rd.sel.water && !rd.sel.places
 	pbf.FilterRelation = rd.sel.keepRelation
 	h, err := pbf.Header()
 	if errors.Is(err, io.ErrUnexpectedEOF) {
@@ -248,6 +268,18 @@ func (rd *elementReader) addWay(w *osm.Way) {
 
 func (rd *elementReader) addRelation(r *osm.Relation) {
 	if !rd.sel.keepRelation(r) {
+		return
+	}
+	if rd.sel.isPlaceRelation(r) {
+		pl, _ := placeOf(r.Tags)
+		pl.id = int64(r.ID)
+		pr := placeRel{placeRec: pl}
+		for _, m := range r.Members {
+			if m.Type == osm.TypeWay && (m.Role == "outer" || m.Role == "") {
+				pr.members = append(pr.members, osm.WayID(m.Ref))
+			}
+		}
+		rd.places = append(rd.places, pr)
 		return
 	}
 	wr := waterRel{id: r.ID, label: label(r.Tags, "water")}

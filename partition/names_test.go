@@ -1,6 +1,7 @@
 package partition
 
 import (
+	"fmt"
 	"slices"
 	"testing"
 
@@ -96,4 +97,90 @@ func TestDisambiguate(t *testing.T) {
 	if !slices.Equal(got, want) {
 		t.Errorf("names\n got  %q\n want %q", got, want)
 	}
+}
+
+func TestPlaceRelationNamesRegion(t *testing.T) {
+	// A secondary road at x = 1500 m splits the study area in two. A
+	// suburb is drawn as a multipolygon of two ways (one untagged, one an
+	// administrative boundary) around the west half's point; the east
+	// half has no place and keeps its road name. Drawn as a boundary
+	// relation, the suburb names the west half just the same; with a
+	// member missing, its ring is open and names nothing.
+	tests := []struct {
+		name     string
+		relType  string
+		drop     bool
+		wantWest string
+	}{
+		{"multipolygon", "multipolygon", false, "Ashgrove"},
+		{"boundary", "boundary", false, "Ashgrove"},
+		{"open ring", "multipolygon", true, "Mid Road (west)"},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			rt := newRiverTown()
+			rt.way([][2]float64{{1500, -50}, {1500, 2050}}, "highway=secondary", "name=Mid Road")
+			corner := func(x, y float64) int {
+				rt.nextID++
+				q := rt.at(x, y)
+				fmt.Fprintf(&rt.b, "<node id=\"%d\" lat=\"%.7f\" lon=\"%.7f\"/>\n", rt.nextID, q[1], q[0])
+				return rt.nextID
+			}
+			sw, se, ne, nw := corner(100, 100), corner(1400, 100), corner(1400, 1900), corner(100, 1900)
+			rt.b.WriteString(fmt.Sprintf("<way id=\"901\"><nd ref=\"%d\"/><nd ref=\"%d\"/><nd ref=\"%d\"/></way>\n", sw, se, ne))
+			rt.b.WriteString(fmt.Sprintf("<way id=\"902\"><nd ref=\"%d\"/><nd ref=\"%d\"/><nd ref=\"%d\"/><tag k=\"boundary\" v=\"administrative\"/></way>\n", sw, nw, ne))
+			rt.b.WriteString("<relation id=\"7\"><member type=\"way\" ref=\"901\" role=\"outer\"/>")
+			if !tc.drop {
+				rt.b.WriteString("<member type=\"way\" ref=\"902\" role=\"outer\"/>")
+			}
+			fmt.Fprintf(&rt.b, "<tag k=\"type\" v=%q/><tag k=\"place\" v=\"suburb\"/><tag k=\"name\" v=\"Ashgrove\"/></relation>\n", tc.relType)
+			o := DefaultOptions()
+			p := rt.build(t, o)
+			if len(p.Regions) != 2 {
+				t.Fatalf("%d regions, want 2", len(p.Regions))
+			}
+			west := regionAt(t, p, rt.at(700, 1000))
+			east := regionAt(t, p, rt.at(2200, 1000))
+			if west.Name != tc.wantWest || east.Name == "Ashgrove" {
+				t.Errorf("west %q, east %q; want west %q", west.Name, east.Name, tc.wantWest)
+			}
+		})
+	}
+}
+
+func FuzzJoinRings(f *testing.F) {
+	f.Add([]byte{1, 2, 3, 0, 3, 4, 1, 0})
+	f.Add([]byte{1, 2, 0, 2, 3, 0, 1, 3, 0})
+	f.Add([]byte{5, 5, 0, 1})
+	f.Fuzz(func(t *testing.T, data []byte) {
+		// Zero bytes separate ways; other bytes are node ids.
+		var parts [][]int64
+		var cur []int64
+		for _, b := range append(data, 0) {
+			if b != 0 {
+				cur = append(cur, int64(b))
+				continue
+			}
+			if len(cur) >= 2 {
+				parts = append(parts, cur)
+			}
+			cur = nil
+		}
+		total := 0
+		for _, p := range parts {
+			total += len(p)
+		}
+		used := 0
+		for _, r := range joinRings(parts) {
+			if len(r) < 4 || r[0] != r[len(r)-1] {
+				t.Fatalf("ring %v is not closed or too short", r)
+			}
+			used += len(r)
+		}
+		// Each way is used at most once: a ring of k ways has their nodes
+		// less the k-1 joins.
+		if used > total {
+			t.Fatalf("rings hold %d nodes, the ways only %d", used, total)
+		}
+	})
 }

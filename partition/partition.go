@@ -8,12 +8,15 @@ type Region struct {
 	// from 1 in a deterministic order.
 	ID int
 	// Name is what a local would call the region, unique within the
-	// partition: the OSM place (suburb, village, quarter, neighbourhood,
-	// as a node inside the region or an outline around its point) if there
-	// is one, else its two longest border roads or barriers joined by
-	// " / " (motorways and trunks by their ref). Where two regions would
-	// share a name, each gets a suffix: a compass word for two, a number
-	// for more.
+	// partition: the OSM place (suburb, village, town, quarter,
+	// neighbourhood, hamlet, locality, city, as a node inside the region,
+	// or an outline or place relation around its point) if there is one,
+	// else its two longest border roads or barriers above ground joined by
+	// " / " (motorways and trunks by their ref), else where it lies from
+	// the nearest place ("0.8 km north of P"). Where regions would share a
+	// name, each gets a suffix: a compass word for two; for more, the
+	// nearest place, a further border road or a compass word where these
+	// tell them apart, a number only where nothing does.
 	Name string
 	// Polygon is in WGS84 longitude/latitude; the exterior ring is
 	// counter-clockwise, holes clockwise (RFC 7946).
@@ -99,8 +102,9 @@ type Stats struct {
 	// classes that were added, in the order tried. StillOversized counts
 	// the regions above the limit after splitting, StillOversizedNoRoads
 	// those of them with no split road inside (mountain or farm land
-	// without tertiary roads, tracks or streets), the others being crossed
-	// only by roads that end inside them.
+	// without tertiary roads, tracks or streets), the others holding only
+	// split roads that end inside them or that cut off pieces too small to
+	// keep (under a quarter of the limit, which rejoin).
 	Oversized, RegionsSplit, SplitInto    int
 	SplitClasses                          []string
 	StillOversized, StillOversizedNoRoads int

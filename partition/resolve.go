@@ -62,6 +62,71 @@ func (rd *elementReader) resolve(nodes []nodeRec, ex *extract) {
 		}
 	}
 	rd.resolveWaterRelations(ex, nodes, byID, lineRange)
+	rd.resolvePlaceRelations(ex, nodes, byID)
+}
+
+// resolvePlaceRelations turns each place relation's outer member ways
+// into closed outlines, joined end to end, and adds them to the place
+// outlines. A member missing from the file leaves its ring open, and an
+// open ring is no outline.
+func (rd *elementReader) resolvePlaceRelations(ex *extract, nodes []nodeRec, byID map[osm.WayID]int) {
+	slices.SortFunc(rd.places, func(a, b placeRel) int { return cmp.Compare(a.id, b.id) })
+	for _, rel := range rd.places {
+		var parts [][]int64
+		for _, m := range rel.members {
+			if i, ok := byID[m]; ok && len(rd.ways[i].nodes) >= 2 {
+				parts = append(parts, rd.ways[i].nodes)
+			}
+		}
+		for _, ring := range joinRings(parts) {
+			runs, missing := resolveRuns(ring, nodes)
+			if !missing && len(runs) == 1 && len(runs[0]) >= 4 && runs[0][0] == runs[0][len(runs[0])-1] {
+				ex.placeAreas = append(ex.placeAreas, placeArea{rel.placeRec, runs[0]})
+			}
+		}
+	}
+}
+
+// joinRings joins ways (node id lists) end to end into closed rings, in
+// the order found; ways that close no ring are dropped.
+func joinRings(parts [][]int64) [][]int64 {
+	used := make([]bool, len(parts))
+	var rings [][]int64
+	for i := range parts {
+		if used[i] {
+			continue
+		}
+		used[i] = true
+		ring := slices.Clone(parts[i])
+		for ring[0] != ring[len(ring)-1] {
+			end, grown := ring[len(ring)-1], false
+			for j := range parts {
+				if used[j] {
+					continue
+				}
+				p := parts[j]
+				switch end {
+				case p[0]:
+					ring = append(ring, p[1:]...)
+				case p[len(p)-1]:
+					for k := len(p) - 2; k >= 0; k-- {
+						ring = append(ring, p[k])
+					}
+				default:
+					continue
+				}
+				used[j], grown = true, true
+				break
+			}
+			if !grown {
+				break
+			}
+		}
+		if len(ring) >= 4 && ring[0] == ring[len(ring)-1] {
+			rings = append(rings, ring)
+		}
+	}
+	return rings
 }
 
 // addLines appends a way's runs to ex.lines under a new way index and

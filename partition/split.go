@@ -36,7 +36,9 @@ func (c *cleaner) split(ctx context.Context, arr *arrangement, fs *faceSet, wate
 		if len(cut) == 0 {
 			continue
 		}
-		segs = slices.Concat(segs, cut)
+		// Start from the current regions' borders, so that what earlier
+		// classes merged stays merged.
+		segs = slices.Concat(segsOf(arr, fs), cut)
 		if arr, err = node(ctx, segs); err != nil {
 			return nil, nil, nil, err
 		}
@@ -57,7 +59,7 @@ func (c *cleaner) split(ctx context.Context, arr *arrangement, fs *faceSet, wate
 		if arr, fs, water, err = c.merge(ctx, arr, fs); err != nil {
 			return nil, nil, nil, err
 		}
-		if arr, fs, water, err = c.coarsen(ctx, arr, fs, water, cur, limit*splitPieceShare); err != nil {
+		if arr, fs, water, err = c.coarsen(ctx, arr, fs, water, cur, limit*splitPieceShare, limit); err != nil {
 			return nil, nil, nil, err
 		}
 		c.st.SplitClasses = append(c.st.SplitClasses, class)
@@ -75,6 +77,17 @@ func (c *cleaner) split(ctx context.Context, arr *arrangement, fs *faceSet, wate
 		}
 	}
 	return arr, fs, water, nil
+}
+
+// segsOf returns the edges of arr that bound a face, as segments.
+func segsOf(arr *arrangement, fs *faceSet) []seg {
+	out := make([]seg, 0, len(arr.edges))
+	for e, ed := range arr.edges {
+		if fs.left[2*e] != pruned {
+			out = append(out, seg{arr.pts[ed.u], arr.pts[ed.v], ed.way})
+		}
+	}
+	return out
 }
 
 // oversized returns the land faces larger than limit m² as polygons.
@@ -153,9 +166,10 @@ const splitPieceShare = 1.0 / 4
 
 // coarsen merges the land faces that lie in one of the polygons parts and
 // are smaller than minArea m² into the neighbouring face of the same part
-// with the longest shared border, smallest first, until every face of a
-// part is large enough or the part is one face.
-func (c *cleaner) coarsen(ctx context.Context, arr *arrangement, fs *faceSet, water []bool, parts []waterPolygon, minArea float64) (*arrangement, *faceSet, []bool, error) {
+// with the longest shared border (preferring one that stays within limit
+// m²), smallest first, until every face of a part is large enough or the
+// part is one face.
+func (c *cleaner) coarsen(ctx context.Context, arr *arrangement, fs *faceSet, water []bool, parts []waterPolygon, minArea, limit float64) (*arrangement, *faceSet, []bool, error) {
 	n := len(fs.faces)
 	part := make([]int32, n)
 	area := make([]float64, n)
@@ -199,10 +213,13 @@ func (c *cleaner) coarsen(ctx context.Context, arr *arrangement, fs *faceSet, wa
 		if parent[g] != g || it.area != area[g] || area[g] >= minArea {
 			continue
 		}
-		t, best := int32(-1), -1.0
+		// The neighbour with the longest shared border, among those that
+		// stay within the limit if any does.
+		t, best, fits := int32(-1), -1.0, false
 		for nb, l := range adj[g] {
-			if l > best || (l == best && nb < t) {
-				t, best = nb, l
+			f := area[nb]+area[g] <= limit
+			if (f && !fits) || (f == fits && (l > best || (l == best && nb < t))) {
+				t, best, fits = nb, l, f
 			}
 		}
 		if t < 0 {

@@ -2,6 +2,7 @@ package report
 
 import (
 	"fmt"
+	"slices"
 	"strconv"
 	"strings"
 
@@ -28,7 +29,11 @@ func RegionSteps(p *partition.Partition, o partition.Options) []string {
 		}
 	}
 	if p.WaterKM2 > 0 {
-		out = append(out, fmt.Sprintf("water: %.2f km² (water areas and sea) lies in no region", p.WaterKM2))
+		what := "water areas"
+		if slices.Contains(p.Stats.Barriers, "coastline") {
+			what = "water areas and the sea beyond the coastline"
+		}
+		out = append(out, fmt.Sprintf("water: %.2f km² (%s) lies in no region", p.WaterKM2, what))
 	}
 	return out
 }
@@ -59,7 +64,8 @@ func oversizeLine(s partition.Stats, o partition.Options, largestKM2 float64) st
 		why = append(why, fmt.Sprintf("%d with no %s road inside", n, orList(o.SplitRoads)))
 	}
 	if n := s.StillOversized - s.StillOversizedNoRoads; n > 0 {
-		why = append(why, fmt.Sprintf("%d crossed only by roads that end inside", n))
+		piece := strconv.FormatFloat(o.MaxRegionKM2/4, 'g', 3, 64) + " km²"
+		why = append(why, fmt.Sprintf("%d whose split roads end inside or cut off only pieces under %s", n, piece))
 	}
 	return line + ", " + strings.Join(why, ", ") + ")"
 }

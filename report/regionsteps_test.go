@@ -21,7 +21,7 @@ func TestOversizeLine(t *testing.T) {
 		{"none could be split", partition.Stats{Oversized: 2, StillOversized: 2, StillOversizedNoRoads: 2}, 4,
 			"2 regions over 4 km²: none split; 2 regions still over 4 km² (the largest 620 km², 2 with no tertiary or track road inside)"},
 		{"some left", partition.Stats{Oversized: 3, RegionsSplit: 2, SplitInto: 5, SplitClasses: []string{"tertiary", "track"}, StillOversized: 2, StillOversizedNoRoads: 1}, 4,
-			"3 regions over 4 km²: 2 regions split into 5 by tertiary and track roads; 2 regions still over 4 km² (the largest 620 km², 1 with no tertiary or track road inside, 1 crossed only by roads that end inside)"},
+			"3 regions over 4 km²: 2 regions split into 5 by tertiary and track roads; 2 regions still over 4 km² (the largest 620 km², 1 with no tertiary or track road inside, 1 whose split roads end inside or cut off only pieces under 1 km²)"},
 		{"splitting off", partition.Stats{}, 0, ""},
 	}
 	for _, tc := range tests {

@@ -36,7 +36,7 @@ func bindRegions(fs *flag.FlagSet, o *partition.Options) {
 	fs.Float64Var(&o.ExtendMetres, "extend", o.ExtendMetres, "extend a major road that ends within this many `metres` of a barrier or major road ahead (0: off)")
 	fs.Float64Var(&o.MinWaterAreaKM2, "min-water-area", o.MinWaterAreaKM2, "water areas smaller than this (`km2`) count as land")
 	fs.Float64Var(&o.MaxRegionKM2, "max-region-area", o.MaxRegionKM2, "split regions larger than this (`km2`) by the --split-roads inside them (0: off)")
-	fs.Var(&listValue{&o.SplitRoads}, "split-roads", "highway classes that split oversized regions, comma-separated `list`")
+	fs.Var(&listValue{&o.SplitRoads}, "split-roads", "highway classes that split oversized regions, tried in turn, comma-separated `list`")
 	fs.Float64Var(&o.MinBorderRoadMetres, "min-border-road", o.MinBorderRoadMetres, "leave roads sharing less than this many `metres` out of a region's border roads and name")
 	fs.BoolVar(&o.Exact, "exact", o.Exact, "no cleaning: the plain faces of the noded linework plus the study-area rectangle")
 }
