@@ -37,6 +37,7 @@ func TestDatasetMatchesSingleFile(t *testing.T) {
 		{}, {MinTrips: 2}, {MinTrips: 3, Window: "am"},
 		{From: days[1], To: days[2]}, {MinTrips: 2, From: days[1]}, {To: days[0], Window: "all"},
 		{From: "2030-01-01"}, {MinTrips: 1 << 20},
+		{MinTrips: 2, Columns: []string{"speed_median_mps", "duration_sum_s"}}, {Columns: []string{}},
 	} {
 		a, err := ReadFileOptions(file, opts)
 		if err != nil {
@@ -47,6 +48,20 @@ func TestDatasetMatchesSingleFile(t *testing.T) {
 			t.Fatal(err)
 		}
 		want := keptEdges(s, opts)
+		if opts.Columns != nil {
+			// The columns not named stay zero.
+			for i := range want {
+				e := &want[i]
+				for c := storeTrips + 1; c < numStoreColumns; c++ {
+					if !slices.Contains(opts.Columns, storeColumns[c].name) {
+						*storeColumns[c].double(e) = 0
+					}
+				}
+			}
+			if len(want) == 0 || want[0].SpeedP25 != 0 || want[0].Trips == 0 {
+				t.Fatalf("%+v: the test selects no columns", opts)
+			}
+		}
 		if !slices.Equal(a.Edges, want) || !slices.Equal(b.Edges, want) {
 			t.Errorf("%+v: file %d edges, dataset %d, filter %d", opts, len(a.Edges), len(b.Edges), len(want))
 		}

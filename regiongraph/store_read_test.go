@@ -126,7 +126,7 @@ func TestReadFileOptionsMatchesFilter(t *testing.T) {
 		}
 		for _, opts := range options {
 			want := keptEdges(s, opts)
-			if opts == (ReadOptions{MinTrips: 4}) && (len(want) == 0 || len(want) == len(s.Edges)) {
+			if reflect.DeepEqual(opts, ReadOptions{MinTrips: 4}) && (len(want) == 0 || len(want) == len(s.Edges)) {
 				t.Fatalf("MinTrips 4 keeps %d of %d edges: the test store does not test the filter", len(want), len(s.Edges))
 			}
 			for _, stretch := range []int64{stretchRows, 333, 37, 1} {

@@ -32,6 +32,12 @@ type ReadOptions struct {
 	// both included, as YYYY-MM-DD ("" leaves that end open).
 	From, To string
 
+	// Columns, when not nil, names the measure columns (SCHEMA.md) to
+	// decode; day, window, from_region, to_region and trips are always
+	// decoded, and the fields of the other columns stay zero. An analysis
+	// that uses a few measures need not decode the rest.
+	Columns []string
+
 	// counter, when set (by tests), counts the files opened and bytes read.
 	counter *readCounter
 }
@@ -62,6 +68,11 @@ const stretchRows = 1 << 18
 func readFile(path string, opts ReadOptions, stretchRows int64) (*Store, error) {
 	if err := checkDays(path, opts); err != nil {
 		return nil, err
+	}
+	for _, c := range opts.Columns {
+		if storeColumnIndex(c) < 0 {
+			return nil, fmt.Errorf("regiongraph: read %s: no store column %q", path, c)
+		}
 	}
 	if IsDataset(path) {
 		return readDataset(path, opts, stretchRows)
@@ -200,9 +211,13 @@ func readStretches(stretches []*stretch, opts ReadOptions) ([]Edge, error) {
 		return nil, nil
 	}
 	edges := make([]Edge, kept)
+	cols := make([]bool, numStoreColumns)
+	for i := range cols {
+		cols[i] = opts.Columns == nil || i <= storeTrips || slices.Contains(opts.Columns, storeColumns[i].name)
+	}
 	if err := forEach(len(stretches), func(i int) error {
 		st := stretches[i]
-		return st.fill(edges[st.offset : st.offset+st.kept()])
+		return st.fill(edges[st.offset:st.offset+st.kept()], cols)
 	}); err != nil {
 		return nil, err
 	}
@@ -394,15 +409,21 @@ func (st *stretch) selectRows(opts ReadOptions) error {
 	return nil
 }
 
-// fill sets the stretch's kept edges, len(edges) == st.kept().
-func (st *stretch) fill(edges []Edge) error {
+// fill sets the columns cols of the stretch's kept edges, len(edges) ==
+// st.kept().
+func (st *stretch) fill(edges []Edge, cols []bool) error {
 	if len(edges) == 0 {
 		return nil
 	}
-	var cursors [numStoreColumns]*columnCursor
-	for col := range cursors {
-		cursors[col] = newColumnCursor(st, col)
-		defer cursors[col].close()
+	var cursors []*columnCursor
+	var which []int
+	for col := range numStoreColumns {
+		if !cols[col] {
+			continue
+		}
+		c := newColumnCursor(st, col)
+		defer c.close()
+		cursors, which = append(cursors, c), append(which, col)
 	}
 	scratch := new(readScratch)
 	for k := 0; k < len(edges); k += readBlock {
@@ -415,8 +436,8 @@ func (st *stretch) fill(edges []Edge) error {
 			rows = st.rows[k : k+n]
 			a, b = int64(rows[0]), int64(rows[n-1])+1
 		}
-		for col, c := range cursors {
-			if err := setColumn(dst, &storeColumns[col], c, a, b, rows, scratch); err != nil {
+		for i, c := range cursors {
+			if err := setColumn(dst, &storeColumns[which[i]], c, a, b, rows, scratch); err != nil {
 				return err
 			}
 		}

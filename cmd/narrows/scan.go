@@ -34,14 +34,14 @@ func (f *storeFlags) register(fs *flag.FlagSet) {
 // open reads the store for an analysis with the given thresholds and the
 // regions it was built on (see readStore and regionsFor).
 func (f *storeFlags) open(opts patterns.ScanOptions) (*regiongraph.Store, *partition.Partition, error) {
-	return f.openRead(opts, regiongraph.ReadOptions{MinTrips: opts.Skyline.MinTrips})
+	return f.openRead(opts, regiongraph.ReadOptions{MinTrips: opts.Skyline.MinTrips, Columns: patterns.StoreColumns()})
 }
 
 // openPeriod is open reading only the days of opts' period: of a dataset
 // only those days' files are opened. When the period holds no edge the
 // store is read whole, so that the scan's message lists the store's days.
 func (f *storeFlags) openPeriod(opts patterns.ScanOptions) (*regiongraph.Store, *partition.Partition, error) {
-	store, regions, err := f.openRead(opts, regiongraph.ReadOptions{MinTrips: opts.Skyline.MinTrips, From: opts.From, To: opts.To})
+	store, regions, err := f.openRead(opts, regiongraph.ReadOptions{MinTrips: opts.Skyline.MinTrips, From: opts.From, To: opts.To, Columns: patterns.StoreColumns()})
 	if err != nil || len(store.Edges) > 0 || opts.From == "" && opts.To == "" {
 		return store, regions, err
 	}
@@ -121,7 +121,7 @@ func runScan(ctx context.Context, env *environment, args []string) error {
 }
 
 // readStore reads a day-graph store for an analysis with the given
-// thresholds. Edges under the analysis's minimum trips can never be
+// thresholds, decoding only the columns the analysis uses. Edges under the analysis's minimum trips can never be
 // candidates and are dropped while reading: a city's store is mostly pairs
 // with a trip or two a day, and holding them would cost gigabytes. The
 // daily series of a comparison then also count only days on which an edge
