@@ -8,6 +8,7 @@ import (
 	"fmt"
 	"io"
 	"slices"
+	"strings"
 
 	"narrows/partition"
 )
@@ -55,18 +56,25 @@ func NewAggregator(regions *partition.Partition, regionsSHA256 string, opts Opti
 // shard must have been placed on the same regions with the same time
 // zone, windows and placement options.
 func (a *Aggregator) AddMeta(m PlacedMeta) error {
+	if err := a.addMeta(m); err != nil {
+		return fmt.Errorf("regiongraph: aggregate: %w", err)
+	}
+	return nil
+}
+
+func (a *Aggregator) addMeta(m PlacedMeta) error {
 	if m.RegionsSHA256 != a.sha {
-		return fmt.Errorf("regiongraph: aggregate: placed on other regions (sha256 %s; these regions have %s)", m.RegionsSHA256, a.sha)
+		return fmt.Errorf("placed on other regions (sha256 %s; these regions have %s)", m.RegionsSHA256, a.sha)
 	}
 	if a.st == nil {
 		o := a.opts
 		o.TimeZone, o.Windows = m.TimeZone, m.Windows
 		st, err := o.settings()
 		if err != nil {
-			return fmt.Errorf("regiongraph: aggregate: %w", err)
+			return err
 		}
 		if len(st.windows) > MaxPlacedWindows {
-			return fmt.Errorf("regiongraph: aggregate: %d windows; at most %d", len(st.windows), MaxPlacedWindows)
+			return fmt.Errorf("%d windows; at most %d", len(st.windows), MaxPlacedWindows)
 		}
 		memory := int64(o.MemoryMB) << 20
 		if o.MemoryMB <= 0 {
@@ -79,11 +87,11 @@ func (a *Aggregator) AddMeta(m PlacedMeta) error {
 	} else {
 		switch {
 		case m.TimeZone != a.first.TimeZone:
-			return fmt.Errorf("regiongraph: aggregate: time zone %q; the first shard has %q", m.TimeZone, a.first.TimeZone)
+			return fmt.Errorf("time zone %q; the first shard has %q", m.TimeZone, a.first.TimeZone)
 		case !slices.Equal(m.Windows, a.first.Windows):
-			return fmt.Errorf("regiongraph: aggregate: windows %v; the first shard has %v", m.Windows, a.first.Windows)
+			return fmt.Errorf("windows %v; the first shard has %v", m.Windows, a.first.Windows)
 		case m.Settings != a.first.Settings:
-			return fmt.Errorf("regiongraph: aggregate: placed with options %s; the first shard with %s", m.Settings, a.first.Settings)
+			return fmt.Errorf("placed with options %s; the first shard with %s", m.Settings, a.first.Settings)
 		}
 	}
 	addQuality(&a.quality, m.Quality)
@@ -258,14 +266,16 @@ func (a *Aggregator) WriteTo(ctx context.Context, w io.Writer, edit func(*Meta))
 // AddFile adds a placed-trip file (ReadPlaced): its metadata, then its
 // trips. Errors name the file.
 func (a *Aggregator) AddFile(path string) error {
+	row := int64(0)
 	_, err := ReadPlaced(path, func(m PlacedMeta) error {
-		if err := a.AddMeta(m); err != nil {
-			return fmt.Errorf("%s: %w", path, err)
+		if err := a.addMeta(m); err != nil {
+			return fmt.Errorf("regiongraph: aggregate: %s: %w", path, err)
 		}
 		return nil
 	}, func(p *PlacedTrip) error {
+		row++
 		if err := a.Add(p); err != nil {
-			return fmt.Errorf("%s: %w", path, err)
+			return fmt.Errorf("regiongraph: aggregate: %s:row %d: %s", path, row, strings.TrimPrefix(err.Error(), "regiongraph: aggregate: "))
 		}
 		return nil
 	})

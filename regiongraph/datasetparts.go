@@ -42,19 +42,37 @@ func NewDatasetStaging(dir string) (string, error) {
 
 // WriteDayFile writes the edges of one day (every window, any order) into
 // the staging directory of a dataset with metadata meta (its regions hash
-// and time zone go into the file). A day file already there is an error:
-// each day is written once.
+// and time zone go into the file). The file is written beside and renamed
+// into place, so that writing a day again (an engine's retry) replaces it
+// whole.
 func WriteDayFile(staging string, meta Meta, day string, edges []Edge) (DayFile, error) {
 	if len(edges) == 0 {
 		return DayFile{}, fmt.Errorf("regiongraph: dataset: day %s has no edges", day)
 	}
-	dw := &DatasetWriter{dir: staging, tmp: staging, meta: meta, pageBytes: datasetPageBytes}
+	tmp, err := os.MkdirTemp(staging, attemptPrefix)
+	if err != nil {
+		return DayFile{}, fmt.Errorf("regiongraph: dataset: %w", err)
+	}
+	defer os.RemoveAll(tmp)
+	dw := &DatasetWriter{dir: staging, tmp: tmp, meta: meta, pageBytes: datasetPageBytes}
 	if err := dw.WriteDay(day, edges); err != nil {
 		return DayFile{}, err
+	}
+	name := filepath.FromSlash(dayFileName(day))
+	final := filepath.Join(staging, name)
+	if err := os.MkdirAll(filepath.Dir(final), 0o755); err != nil {
+		return DayFile{}, fmt.Errorf("regiongraph: dataset: %w", err)
+	}
+	if err := os.Rename(filepath.Join(tmp, name), final); err != nil {
+		return DayFile{}, fmt.Errorf("regiongraph: dataset: %w", err)
 	}
 	d := dw.days[0]
 	return DayFile{Day: d.Day, Edges: d.Edges, Bytes: d.Bytes}, nil
 }
+
+// attemptPrefix begins the folders WriteDayFile writes a day in before
+// renaming it into the staging directory.
+const attemptPrefix = ".day-"
 
 // FinishDataset writes the regions and the manifest of the day files
 // into staging and puts it in place of the dataset at dir, as
@@ -62,6 +80,12 @@ func WriteDayFile(staging string, meta Meta, day string, edges []Edge) (DayFile,
 func FinishDataset(staging, dir string, meta Meta, regionsGeoJSON []byte, days []DayFile) error {
 	days = slices.Clone(days)
 	slices.SortFunc(days, func(a, b DayFile) int { return cmp.Compare(a.Day, b.Day) })
+	// Left by day writers that were stopped half-way.
+	if left, err := filepath.Glob(filepath.Join(staging, attemptPrefix+"*")); err == nil {
+		for _, l := range left {
+			os.RemoveAll(l)
+		}
+	}
 	dw := &DatasetWriter{dir: filepath.Clean(dir), tmp: staging, meta: meta, regions: regionsGeoJSON, pageBytes: datasetPageBytes}
 	for i, d := range days {
 		if i > 0 && d.Day == days[i-1].Day {

@@ -1,6 +1,7 @@
 package regiongraph
 
 import (
+	"cmp"
 	"fmt"
 	"io"
 	"os"
@@ -173,7 +174,7 @@ func readDays(dir string, meta Meta, days []dayJSON, opts ReadOptions, stretchRo
 				return fmt.Errorf("regiongraph: %s: holds an edge of day %s, the manifest lists it as day %s", st.path, mine[j].Day, day[i])
 			}
 		}
-		slices.SortFunc(mine, compareEdges)
+		sortDayFileEdges(mine)
 		return nil
 	})
 	if err != nil {
@@ -192,4 +193,39 @@ func datasetDayRange(dir string) (first, last string, err error) {
 		return "", "", nil
 	}
 	return m.Days[0].Day, m.Days[len(m.Days)-1].Day, nil
+}
+
+// sortDayFileEdges puts the edges of one day, in the order of its file
+// (window, then trips descending), in store order (window, from, to): each
+// window's run is sorted by a key of its region pair, and the edges are
+// moved once, rather than swapped about while sorting.
+func sortDayFileEdges(edges []Edge) {
+	type keyed struct {
+		pair  uint64
+		index int32
+	}
+	var keys []keyed
+	var moved []Edge
+	for a := 0; a < len(edges); {
+		b := a + 1
+		for b < len(edges) && edges[b].Window == edges[a].Window {
+			b++
+		}
+		run := edges[a:b]
+		keys = keys[:0]
+		sorted := true
+		for i := range run {
+			k := uint64(uint32(run[i].From))<<32 | uint64(uint32(run[i].To))
+			sorted = sorted && (i == 0 || keys[i-1].pair < k)
+			keys = append(keys, keyed{k, int32(i)})
+		}
+		if !sorted {
+			slices.SortFunc(keys, func(x, y keyed) int { return cmp.Compare(x.pair, y.pair) })
+			moved = append(moved[:0], run...)
+			for i, k := range keys {
+				run[i] = moved[k.index]
+			}
+		}
+		a = b
+	}
 }

@@ -403,3 +403,61 @@ func FuzzPlacedFile(f *testing.F) {
 		}
 	})
 }
+
+// Days written in parts, one of them twice (a retried worker), make the
+// dataset the store's WriteDataset makes.
+func TestDatasetInParts(t *testing.T) {
+	header, rows := tripsWithRepeats(71, 3000)
+	path := writeTemp(t, "trips.csv", header+strings.Join(rows, "\n")+"\n")
+	p := gridPartition(gNX, gNY, gLon0, gLat0, gStep)
+	s, err := Ingest(context.Background(), p, "x", []Input{{Path: path}}, berlinOptions())
+	if err != nil {
+		t.Fatal(err)
+	}
+	dir := t.TempDir()
+	whole := filepath.Join(dir, "whole")
+	if err := s.WriteDataset(whole); err != nil {
+		t.Fatal(err)
+	}
+	parts := filepath.Join(dir, "parts")
+	staging, err := NewDatasetStaging(parts)
+	if err != nil {
+		t.Fatal(err)
+	}
+	byDay := map[string][]Edge{}
+	for _, e := range s.Edges {
+		byDay[e.Day] = append(byDay[e.Day], e)
+	}
+	if len(byDay) < 3 {
+		t.Fatalf("%d days", len(byDay))
+	}
+	var files []DayFile
+	for day, es := range byDay { // any order
+		df, err := WriteDayFile(staging, s.Meta, day, es)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if _, err := WriteDayFile(staging, s.Meta, day, es); err != nil {
+			t.Fatalf("writing day %s again: %v", day, err)
+		}
+		files = append(files, df)
+	}
+	if err := FinishDataset(staging, parts, s.Meta, s.RegionsGeoJSON(), files); err != nil {
+		t.Fatal(err)
+	}
+	for _, name := range []string{ManifestName, "regions.geojson"} {
+		a, _ := os.ReadFile(filepath.Join(whole, name))
+		b, _ := os.ReadFile(filepath.Join(parts, name))
+		if len(a) == 0 || !bytes.Equal(a, b) {
+			t.Errorf("%s differs from the one WriteDataset writes", name)
+		}
+	}
+	got, err := ReadFile(parts)
+	if err != nil {
+		t.Fatal(err)
+	}
+	sameStore(t, "parts", got, s)
+	if _, err := os.Stat(staging); !os.IsNotExist(err) {
+		t.Errorf("staging left behind: %v", err)
+	}
+}

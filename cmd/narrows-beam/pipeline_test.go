@@ -167,6 +167,42 @@ func TestPipelineEqualsIngestOnTheTown(t *testing.T) {
 	}
 }
 
+// The same on a day of the simulated city, cut into shards of random
+// rows, when -city-trips is given (the city's network takes a while to
+// simulate).
+func TestPipelineEqualsIngestOnACityDay(t *testing.T) {
+	if *citySample <= 0 {
+		t.Skip("give -city-trips N to run the pipeline on a simulated city day of N trips")
+	}
+	bin := narrowsCLI(t)
+	dir := t.TempDir()
+	runNarrows(t, bin, "simulate", "--size", "city", "--out", dir, "--days", "1", "--trips-per-day", fmt.Sprint(*citySample), "--no-study")
+	regions := filepath.Join(dir, "regions.geojson")
+	runNarrows(t, bin, "regions", "--osm", filepath.Join(dir, "town", "ostravel-before.osm"), "--out", regions)
+	shards := splitRows(t, filepath.Join(dir, "town", "trips.csv"), t.TempDir(), 4, 9)
+	whole := filepath.Join(dir, "ingest.parquet")
+	runNarrows(t, bin, append([]string{"ingest", "--regions", regions, "--tz", "Etc/GMT-1", "--window", "am=07:00-10:00",
+		"--window", "pm=16:00-19:00", "--out", whole, "--trips"}, shards...)...)
+	want, err := regiongraph.ReadFile(whole)
+	if err != nil {
+		t.Fatal(err)
+	}
+	out := filepath.Join(t.TempDir(), "graphs")
+	cfg := Config{Regions: regions, TimeZone: "Etc/GMT-1", Windows: []string{"am=07:00-10:00", "pm=16:00-19:00"},
+		MinUsedShare: 0.01, Out: out}
+	if err := runPipeline(cfg, shards); err != nil {
+		t.Fatal(err)
+	}
+	got, err := regiongraph.ReadFile(out)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if want.Meta.Quality.Used < int64(*citySample)/2 {
+		t.Fatalf("city day too thin: %+v", want.Meta.Quality)
+	}
+	sameStore(t, "city day", got, want)
+}
+
 func TestUnquoteWorkerID(t *testing.T) {
 	for _, tc := range []struct{ in, want string }{
 		{`--id="job-1_go"`, `--id=job-1_go`},
