@@ -41,11 +41,11 @@ func BenchmarkReadCityLayouts(b *testing.B) {
 		for _, layout := range []struct{ name, path string }{{"file", file}, {"dataset", *cityDataset}} {
 			b.Run(bc.name+"/"+layout.name, func(b *testing.B) {
 				var kept int
-				var c readCounter
+				var c *readCounter
 				for b.Loop() {
 					opts := bc.opts
-					c = readCounter{}
-					opts.counter = &c
+					c = new(readCounter)
+					opts.counter = c
 					got, err := ReadFileOptions(layout.path, opts)
 					if err != nil {
 						b.Fatal(err)

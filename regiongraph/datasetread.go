@@ -8,14 +8,17 @@ import (
 	"path/filepath"
 	"slices"
 	"strings"
+	"sync"
 	"sync/atomic"
 )
 
 // readCounter counts what a read opened and read; tests set it through
 // ReadOptions.counter to check what a read touches.
 type readCounter struct {
-	files atomic.Int64 // Parquet files opened
+	files atomic.Int64 // Parquet files opened, each counted once
 	bytes atomic.Int64 // bytes read from them
+	mu    sync.Mutex
+	seen  map[string]bool
 }
 
 // countingReaderAt counts the bytes read through it.
@@ -32,11 +35,20 @@ func (r countingReaderAt) ReadAt(p []byte, off int64) (int, error) {
 
 // readerOf returns f, counted when opts asks for it.
 func readerOf(f *os.File, opts ReadOptions) io.ReaderAt {
-	if opts.counter == nil {
+	c := opts.counter
+	if c == nil {
 		return f
 	}
-	opts.counter.files.Add(1)
-	return countingReaderAt{f, opts.counter}
+	c.mu.Lock()
+	if !c.seen[f.Name()] {
+		if c.seen == nil {
+			c.seen = map[string]bool{}
+		}
+		c.seen[f.Name()] = true
+		c.files.Add(1)
+	}
+	c.mu.Unlock()
+	return countingReaderAt{f, c}
 }
 
 // datasetOpenFiles is the number of day files a dataset read holds open
@@ -95,14 +107,51 @@ func readDataset(dir string, opts ReadOptions, stretchRows int64) (*Store, error
 	// A day file holds one day: the period was applied by choosing files.
 	fileOpts := opts
 	fileOpts.From, fileOpts.To = "", ""
-	for len(days) > 0 {
-		n := min(len(days), datasetOpenFiles)
-		edges, err := readDays(dir, meta, days[:n], fileOpts, stretchRows)
+	// Two passes over the files, a batch of them open at a time: the
+	// first finds the rows kept, so that the edges are allocated once at
+	// their number, the second fills them.
+	type selection struct {
+		all  bool
+		rows []int32
+	}
+	var kept []selection
+	total := 0
+	for a := 0; a < len(days); a += datasetOpenFiles {
+		sts, _, closeAll, err := openDays(dir, meta, days[a:min(a+datasetOpenFiles, len(days))], fileOpts, stretchRows)
+		if err == nil {
+			err = forEach(len(sts), func(i int) error { return sts[i].selectRows(fileOpts) })
+		}
+		closeAll()
 		if err != nil {
 			return nil, err
 		}
-		s.Edges = append(s.Edges, edges...)
-		days = days[n:]
+		for _, st := range sts {
+			kept = append(kept, selection{st.all, st.rows})
+			total += st.kept()
+		}
+	}
+	if total > 0 {
+		s.Edges = make([]Edge, total)
+	}
+	k, offset := 0, 0
+	for a := 0; a < len(days) && total > 0; a += datasetOpenFiles {
+		sts, dayOf, closeAll, err := openDays(dir, meta, days[a:min(a+datasetOpenFiles, len(days))], fileOpts, stretchRows)
+		if err == nil && k+len(sts) > len(kept) {
+			err = fmt.Errorf("regiongraph: dataset %s: its files changed while read", dir)
+		}
+		if err == nil {
+			for _, st := range sts {
+				st.all, st.rows = kept[k].all, kept[k].rows
+				st.offset = offset
+				offset += st.kept()
+				k++
+			}
+			err = fillDays(sts, dayOf, s.Edges, fileOpts)
+		}
+		closeAll()
+		if err != nil {
+			return nil, err
+		}
 	}
 	if err := checkStore(dir, s); err != nil {
 		return nil, err
@@ -116,57 +165,93 @@ func readDataset(dir string, opts ReadOptions, stretchRows int64) (*Store, error
 // readDays reads the edges opts keeps of the given day files, in store
 // order.
 func readDays(dir string, meta Meta, days []dayJSON, opts ReadOptions, stretchRows int64) ([]Edge, error) {
-	var stretches []*stretch
-	var day []string // of each stretch
+	stretches, dayOf, closeAll, err := openDays(dir, meta, days, opts, stretchRows)
+	defer closeAll()
+	if err != nil {
+		return nil, err
+	}
+	edges, err := readStretches(stretches, opts)
+	if err != nil {
+		return nil, err
+	}
+	if err := checkDayEdges(stretches, dayOf, edges); err != nil {
+		return nil, err
+	}
+	return edges, nil
+}
+
+// openDays opens the given day files and cuts them into stretches; day
+// holds each stretch's day. closeAll closes the files, also on an error.
+func openDays(dir string, meta Meta, days []dayJSON, opts ReadOptions, stretchRows int64) (stretches []*stretch, day []string, closeAll func(), err error) {
+	var files []*os.File
+	closeAll = func() {
+		for _, f := range files {
+			f.Close()
+		}
+	}
 	for _, d := range days {
 		path := filepath.Join(dir, filepath.FromSlash(d.File))
 		f, err := os.Open(path)
 		if err != nil {
 			if os.IsNotExist(err) {
-				return nil, fmt.Errorf("regiongraph: dataset %s: day %s: %s is missing", dir, d.Day, path)
+				return nil, nil, closeAll, fmt.Errorf("regiongraph: dataset %s: day %s: %s is missing", dir, d.Day, path)
 			}
-			return nil, fmt.Errorf("regiongraph: dataset %s: %w", dir, err)
+			return nil, nil, closeAll, fmt.Errorf("regiongraph: dataset %s: %w", dir, err)
 		}
-		defer f.Close()
+		files = append(files, f)
 		fi, err := f.Stat()
 		if err != nil {
-			return nil, fmt.Errorf("regiongraph: %w", err)
+			return nil, nil, closeAll, fmt.Errorf("regiongraph: %w", err)
 		}
 		if fi.Size() != d.Bytes {
-			return nil, fmt.Errorf("regiongraph: %s: %d bytes, the manifest says %d: the file was changed or cut short", path, fi.Size(), d.Bytes)
+			return nil, nil, closeAll, fmt.Errorf("regiongraph: %s: %d bytes, the manifest says %d: the file was changed or cut short", path, fi.Size(), d.Bytes)
 		}
 		pf, err := openParquetChecked(readerOf(f, opts), fi.Size())
 		if err != nil {
-			return nil, fmt.Errorf("regiongraph: %s: not a Parquet day file: %v", path, err)
+			return nil, nil, closeAll, fmt.Errorf("regiongraph: %s: not a Parquet day file: %v", path, err)
 		}
 		if pf.NumRows() != d.Edges {
-			return nil, fmt.Errorf("regiongraph: %s: %d rows, the manifest says %d", path, pf.NumRows(), d.Edges)
+			return nil, nil, closeAll, fmt.Errorf("regiongraph: %s: %d rows, the manifest says %d", path, pf.NumRows(), d.Edges)
 		}
 		leaf, err := storeLeaves(path, pf)
 		if err != nil {
-			return nil, err
+			return nil, nil, closeAll, err
 		}
 		for _, kv := range [...]struct{ key, want string }{{metaRegions, meta.RegionsSHA256}, {metaTimeZone, meta.TimeZone}} {
 			if got, _ := pf.Lookup(kv.key); got != kv.want {
-				return nil, fmt.Errorf("regiongraph: %s: %s %q, the manifest says %q", path, kv.key, got, kv.want)
+				return nil, nil, closeAll, fmt.Errorf("regiongraph: %s: %s %q, the manifest says %q", path, kv.key, got, kv.want)
 			}
 		}
 		sts, err := cutStretches(path, pf, leaf, stretchRows)
 		if err != nil {
-			return nil, err
+			return nil, nil, closeAll, err
 		}
 		stretches = append(stretches, sts...)
 		for range sts {
 			day = append(day, d.Day)
 		}
 	}
-	edges, err := readStretches(stretches, opts)
-	if err != nil {
-		return nil, err
+	return stretches, day, closeAll, nil
+}
+
+// fillDays fills the stretches' kept edges at their offsets in edges and
+// puts each day in store order (see checkDayEdges).
+func fillDays(stretches []*stretch, day []string, edges []Edge, opts ReadOptions) error {
+	cols := readColumns(opts)
+	if err := forEach(len(stretches), func(i int) error {
+		st := stretches[i]
+		return st.fill(edges[st.offset:st.offset+st.kept()], cols)
+	}); err != nil {
+		return err
 	}
-	// Each stretch's edges are in the day file's order (window, trips
-	// descending): check their day and put them in store order.
-	err = forEach(len(stretches), func(i int) error {
+	return checkDayEdges(stretches, day, edges)
+}
+
+// checkDayEdges checks that each stretch's edges, in the day file's order
+// (window, trips descending), are of its day, and puts them in store
+// order.
+func checkDayEdges(stretches []*stretch, day []string, edges []Edge) error {
+	return forEach(len(stretches), func(i int) error {
 		st := stretches[i]
 		mine := edges[st.offset : st.offset+st.kept()]
 		for j := range mine {
@@ -177,10 +262,6 @@ func readDays(dir string, meta Meta, days []dayJSON, opts ReadOptions, stretchRo
 		sortDayFileEdges(mine)
 		return nil
 	})
-	if err != nil {
-		return nil, err
-	}
-	return edges, nil
 }
 
 // datasetDayRange returns the first and last day of the dataset at dir.

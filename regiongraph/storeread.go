@@ -211,10 +211,7 @@ func readStretches(stretches []*stretch, opts ReadOptions) ([]Edge, error) {
 		return nil, nil
 	}
 	edges := make([]Edge, kept)
-	cols := make([]bool, numStoreColumns)
-	for i := range cols {
-		cols[i] = opts.Columns == nil || i <= storeTrips || slices.Contains(opts.Columns, storeColumns[i].name)
-	}
+	cols := readColumns(opts)
 	if err := forEach(len(stretches), func(i int) error {
 		st := stretches[i]
 		return st.fill(edges[st.offset:st.offset+st.kept()], cols)
@@ -222,6 +219,15 @@ func readStretches(stretches []*stretch, opts ReadOptions) ([]Edge, error) {
 		return nil, err
 	}
 	return edges, nil
+}
+
+// readColumns returns which store columns opts has decoded.
+func readColumns(opts ReadOptions) []bool {
+	cols := make([]bool, numStoreColumns)
+	for i := range cols {
+		cols[i] = opts.Columns == nil || i <= storeTrips || slices.Contains(opts.Columns, storeColumns[i].name)
+	}
+	return cols
 }
 
 // readStoreMeta sets s.Meta and the regions from the file's key-value
