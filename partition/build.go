@@ -267,7 +267,7 @@ func (c *cleaner) cleanFaces(ctx context.Context, arr *arrangement, fs *faceSet,
 	if err != nil || c.o.MaxRegionKM2 <= 0 {
 		return arr, fs, water, err
 	}
-	return c.split(ctx, arr, fs, water, segs)
+	return c.split(ctx, arr, fs, water)
 }
 
 // merge marks the water faces and merges slivers among the land faces.

@@ -13,7 +13,7 @@ import (
 // roads of the class that end short of a border are extended to it, and
 // the pieces are cleaned like the rest; the next class is tried only on
 // the regions still oversized. Regions of normal size are not touched.
-func (c *cleaner) split(ctx context.Context, arr *arrangement, fs *faceSet, water []bool, segs []seg) (*arrangement, *faceSet, []bool, error) {
+func (c *cleaner) split(ctx context.Context, arr *arrangement, fs *faceSet, water []bool) (*arrangement, *faceSet, []bool, error) {
 	limit := c.o.MaxRegionKM2 * 1e6
 	big := oversized(arr, fs, water, limit)
 	c.st.Oversized = len(big)
@@ -38,7 +38,7 @@ func (c *cleaner) split(ctx context.Context, arr *arrangement, fs *faceSet, wate
 		}
 		// Start from the current regions' borders, so that what earlier
 		// classes merged stays merged.
-		segs = slices.Concat(segsOf(arr, fs), cut)
+		segs := slices.Concat(segsOf(arr, fs), cut)
 		if arr, err = node(ctx, segs); err != nil {
 			return nil, nil, nil, err
 		}

@@ -114,20 +114,6 @@ func joinPhrases(p []string) string {
 	return strings.Join(p[:len(p)-1], ", ") + " and " + p[len(p)-1]
 }
 
-// describeShift writes the shift of one measure with its interval and
-// p-values; unit converts the values from the unit of s to the one shown.
-func describeShift(name string, s patterns.Shift, unit func(float64) float64, format, unitName string) string {
-	if math.IsNaN(s.P) {
-		return fmt.Sprintf("%s not tested (%d days with trips before, %d after)", name, len(s.Before), len(s.After))
-	}
-	ci := "too few days for a 95 % interval"
-	if !math.IsInf(s.Low, 0) && !math.IsInf(s.High, 0) {
-		ci = "95 % CI " + signed(format, unit(s.Low)) + " to " + signed(format, unit(s.High)) + unitName
-	}
-	return fmt.Sprintf("%s changed by %s%s (%s; Mann-Whitney p %s, adjusted %s)",
-		name, signed(format, unit(s.Shift)), unitName, ci, formatP(s.P), formatP(s.PAdjusted))
-}
-
 // signed formats v with a sign format such as "%+.1f", but writes a value
 // that rounds to zero without a sign: "0.0", never "-0.0" or "+0.0".
 func signed(format string, v float64) string {

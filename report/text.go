@@ -291,13 +291,6 @@ func plural(n int, one, many string) string {
 	return many
 }
 
-func numberWord(n int) string {
-	if n == 0 {
-		return "none"
-	}
-	return strconv.Itoa(n)
-}
-
 func formatPercent(share float64) string {
 	return strconv.FormatFloat(roundTo(share*100, 1), 'f', -1, 64) + " %"
 }

@@ -297,7 +297,7 @@ func checkScanCommand(t *testing.T, dir string, before patterns.ScanOptions, hou
 	}
 
 	// --maximal-only lists fewer groups within the places, not fewer places.
-	stdout = mustRunCLI(t, "scan", "--graphs", filepath.Join(dir, "out", "steps", "graphs.parquet"),
+	mustRunCLI(t, "scan", "--graphs", filepath.Join(dir, "out", "steps", "graphs.parquet"),
 		"--from", before.From, "--to", before.To, "--days", string(before.Days),
 		"--support", fmt.Sprint(before.Support), "--maximal-only", "--out", out)
 	all, allGroups := len(doc.Findings), 0

@@ -234,11 +234,6 @@ func sortByOrigin(ods []od) {
 	slices.SortStableFunc(ods, func(x, y od) int { return cmp.Compare(x.o, y.o) })
 }
 
-func sortedUnique(v []int) []int {
-	slices.Sort(v)
-	return slices.Compact(v)
-}
-
 type routed struct {
 	secs, metres float64 // secs < 0: unreachable
 	link         int

@@ -38,10 +38,9 @@ func newDifferences(x, y []float64) (differences, bool) {
 
 // countAtMost counts the pairs with x_i − y_j ≤ t.
 func (d differences) countAtMost(t float64) int {
-	n, count, j := len(d.y), 0, len(d.y)
+	n, count, j := len(d.y), 0, 0
 	// For each x_i, ascending, the pairs with y_j large enough; the first
-	// such j only moves up as x_i grows, and j runs from the top down.
-	j = 0
+	// such j only moves up as x_i grows.
 	for _, a := range d.x {
 		for j < n && a-d.y[j] > t {
 			j++

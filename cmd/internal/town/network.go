@@ -336,9 +336,6 @@ func (it *outNodes) Node() graph.Node {
 	return it.nw.nodes[it.nw.links[it.out[it.pos]].to]
 }
 
-// count returns the number of nodes and links.
-func (nw *network) count() (nodes, links int) { return len(nw.pos), len(nw.links) }
-
 // tree is one shortest-path tree: per node its distance (the weight), its
 // parent link (-1 for the root and unreachable nodes), and the reachable
 // nodes in ascending (distance, index) order.
