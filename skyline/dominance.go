@@ -95,6 +95,31 @@ func analyse(points []Point) analysis {
 	return res
 }
 
+// lexOrder returns the point indices sorted by trips rank, then speed rank,
+// then detour rank, all ascending (best first), as analyse orders them.
+// keys is scratch space of the points' length.
+func lexOrder(tripsRank, speedRank, detourRank []int32, keys []uint64, srt *sorter) []int32 {
+	order := make([]int32, len(tripsRank))
+	for i := range order {
+		order[i] = int32(i)
+	}
+	tb, sb, db := bitLen(tripsRank), bitLen(speedRank), bitLen(detourRank)
+	if tb+sb+db <= 64 {
+		for i := range keys {
+			keys[i] = uint64(tripsRank[i])<<(sb+db) | uint64(speedRank[i])<<db | uint64(detourRank[i])
+		}
+		srt.sortIndices(order, keys)
+		return order
+	}
+	for _, rank := range [][]int32{detourRank, speedRank, tripsRank} {
+		for i, r := range rank {
+			keys[i] = uint64(r)
+		}
+		srt.sortIndices(order, keys)
+	}
+	return order
+}
+
 // bitLen returns the number of bits needed for the largest rank.
 func bitLen(ranks []int32) uint {
 	m := int32(0)

@@ -1,6 +1,7 @@
 package skyline
 
 import (
+	"cmp"
 	"math"
 	"slices"
 
@@ -8,7 +9,7 @@ import (
 )
 
 // selectMaxK is the largest skyband depth Select answers with its own
-// sweep. Its Fenwick tree keeps K detour ranks per node, so memory and time
+// sweep. Its Fenwick tree keeps K detour keys per node, so memory and time
 // grow with K; deeper skybands go to the full analysis, whose cost does not
 // depend on K.
 const selectMaxK = 16
@@ -69,23 +70,48 @@ func Select(edges []regiongraph.Edge, opts Options) Selection {
 		return sel
 	}
 
+	// Order by trips descending, speed ascending and detour descending. The
+	// detours are not ranked (that would be a third full sort): one radix
+	// sort on trips and speed ranks, then each run of equal trips and speed,
+	// usually short, is sorted on its detour keys.
+	detour := make([]uint64, n) // lower is longer
 	for i, p := range points {
-		keys[i] = floatKey(-p.Detour)
-	}
-	detourRank, _ := denseRanks(keys, &srt)
-	for i, p := range points {
+		detour[i] = floatKey(-p.Detour)
 		keys[i] = ^intKey(p.Trips)
 	}
 	tripsRank, _ := denseRanks(keys, &srt)
-	order := lexOrder(tripsRank, speedRank, detourRank, keys, &srt)
+	sb := bitLen(speedRank)
+	order := make([]int32, n)
+	for i := range order {
+		order[i] = int32(i)
+		keys[i] = uint64(tripsRank[i])<<sb | uint64(speedRank[i])
+	}
+	srt.sortIndices(order, keys)
+	// Gather the points in that order so that the rest reads memory in
+	// sequence.
+	sorted := make([]sweepPoint, n)
+	for pos, i := range order {
+		sorted[pos] = sweepPoint{key: keys[i], detour: detour[i], speed: speedRank[i], index: i}
+	}
+	byDetour := func(a, b sweepPoint) int { return cmp.Compare(a.detour, b.detour) }
+	for lo := 0; lo < n; {
+		hi := lo + 1
+		for hi < n && sorted[hi].key == sorted[lo].key {
+			hi++
+		}
+		if hi-lo > 1 {
+			slices.SortFunc(sorted[lo:hi], byDetour)
+		}
+		lo = hi
+	}
 
-	// Sweep in lexicographic order. A point's dominators are exactly the
-	// earlier points, other than its identical copies, that are no worse on
-	// speed and detour: they have at least as many trips, and a point that
-	// ties on all three ranks is identical. So each run of identical points
-	// first asks the tree how many inserted points lie at a speed rank <= its
-	// own with a detour rank <= its own, then is inserted. Gated-out points
-	// are inserted too: they can dominate.
+	// Sweep in that order. A point's dominators are exactly the earlier
+	// points, other than its identical copies, that are no worse on speed
+	// and detour: they have at least as many trips, and a point that ties on
+	// all three is identical. So each run of identical points first asks the
+	// tree how many inserted points lie at a speed rank <= its own with a
+	// detour key <= its own, then is inserted. Gated-out points are inserted
+	// too: they can dominate.
 	speeds := int(speedRank[speedOrder[n-1]]) + 1
 	var tree staircase
 	if k == 1 {
@@ -94,72 +120,54 @@ func Select(edges []regiongraph.Edge, opts Options) Selection {
 		tree = newBandTree(speeds, k)
 	}
 	for lo := 0; lo < n; {
-		p := order[lo]
+		p := sorted[lo]
 		hi := lo + 1
-		for hi < n && samePoint(order[hi], p, tripsRank, speedRank, detourRank) {
+		for hi < n && sorted[hi].key == p.key && sorted[hi].detour == p.detour {
 			hi++
 		}
-		s, d := speedRank[p], detourRank[p]
-		if pass[p] && tree.below(s, d) {
-			for _, q := range order[lo:hi] {
-				sel.Indices = append(sel.Indices, eligible[q])
+		if pass[p.index] && tree.below(p.speed, p.detour) {
+			for _, q := range sorted[lo:hi] {
+				sel.Indices = append(sel.Indices, eligible[q.index])
 			}
 		}
-		tree.insert(s, d, hi-lo)
+		tree.insert(p.speed, p.detour, hi-lo)
 		lo = hi
 	}
 	slices.Sort(sel.Indices)
 	return sel
 }
 
-// lexOrder returns the point indices sorted by trips rank, then speed rank,
-// then detour rank, all ascending (best first), as analyse orders them.
-// keys is scratch space of the points' length.
-func lexOrder(tripsRank, speedRank, detourRank []int32, keys []uint64, srt *sorter) []int32 {
-	order := make([]int32, len(tripsRank))
-	for i := range order {
-		order[i] = int32(i)
-	}
-	tb, sb, db := bitLen(tripsRank), bitLen(speedRank), bitLen(detourRank)
-	if tb+sb+db <= 64 {
-		for i := range keys {
-			keys[i] = uint64(tripsRank[i])<<(sb+db) | uint64(speedRank[i])<<db | uint64(detourRank[i])
-		}
-		srt.sortIndices(order, keys)
-		return order
-	}
-	for _, rank := range [][]int32{detourRank, speedRank, tripsRank} {
-		for i, r := range rank {
-			keys[i] = uint64(r)
-		}
-		srt.sortIndices(order, keys)
-	}
-	return order
+// sweepPoint is one eligible point in the sweep's order.
+type sweepPoint struct {
+	key    uint64 // trips and speed ranks
+	detour uint64 // detour key, lower is longer
+	speed  int32  // speed rank
+	index  int32  // into the eligible points
 }
 
 // staircase is the sweep's record of the points inserted so far.
 type staircase interface {
 	// below reports whether fewer than k inserted points have a speed rank
-	// <= s and a detour rank <= d.
-	below(s, d int32) bool
-	// insert adds mult identical points at speed rank s, detour rank d.
-	insert(s, d int32, mult int)
+	// <= s and a detour key <= d.
+	below(s int32, d uint64) bool
+	// insert adds mult identical points at speed rank s, detour key d.
+	insert(s int32, d uint64, mult int)
 }
 
 // minTree is a Fenwick tree over speed ranks holding the best (lowest)
-// detour rank inserted at or below each prefix: the staircase of the plain
+// detour key inserted at or below each prefix: the staircase of the plain
 // skyline (k = 1).
-type minTree []int32
+type minTree []uint64
 
 func newMinTree(speeds int) minTree {
 	t := make(minTree, speeds+1)
 	for i := range t {
-		t[i] = math.MaxInt32
+		t[i] = math.MaxUint64
 	}
 	return t
 }
 
-func (t minTree) below(s, d int32) bool {
+func (t minTree) below(s int32, d uint64) bool {
 	for x := int(s) + 1; x > 0; x -= x & -x {
 		if t[x] <= d {
 			return false
@@ -168,36 +176,36 @@ func (t minTree) below(s, d int32) bool {
 	return true
 }
 
-func (t minTree) insert(s, d int32, _ int) {
+func (t minTree) insert(s int32, d uint64, _ int) {
 	// A node covers a superset of its child's range, so once a node already
-	// holds a detour rank <= d, every node above it does too.
+	// holds a detour key <= d, every node above it does too.
 	for x := int(s) + 1; x < len(t) && t[x] > d; x += x & -x {
 		t[x] = d
 	}
 }
 
 // bandTree is a Fenwick tree over speed ranks whose nodes each hold the k
-// lowest detour ranks (with multiplicity, ascending) inserted in their
+// lowest detour keys (with multiplicity, ascending) inserted in their
 // range: enough to tell whether a point has fewer than k dominators.
 type bandTree struct {
-	k     int
-	ranks []int32 // node x holds ranks[x*k : x*k+k]
+	k    int
+	keys []uint64 // node x holds keys[x*k : x*k+k]
 }
 
 func newBandTree(speeds, k int) *bandTree {
-	t := &bandTree{k: k, ranks: make([]int32, (speeds+1)*k)}
-	for i := range t.ranks {
-		t.ranks[i] = math.MaxInt32
+	t := &bandTree{k: k, keys: make([]uint64, (speeds+1)*k)}
+	for i := range t.keys {
+		t.keys[i] = math.MaxUint64
 	}
 	return t
 }
 
-func (t *bandTree) below(s, d int32) bool {
+func (t *bandTree) below(s int32, d uint64) bool {
 	found := 0
 	for x := int(s) + 1; x > 0; x -= x & -x {
-		// A node keeps its k lowest ranks: if all are <= d the count is
-		// reached; otherwise it keeps every rank <= d it has.
-		for _, r := range t.ranks[x*t.k : x*t.k+t.k] {
+		// A node keeps its k lowest keys: if all are <= d the count is
+		// reached; otherwise it keeps every key <= d it has.
+		for _, r := range t.keys[x*t.k : x*t.k+t.k] {
 			if r > d {
 				break
 			}
@@ -209,10 +217,10 @@ func (t *bandTree) below(s, d int32) bool {
 	return true
 }
 
-func (t *bandTree) insert(s, d int32, mult int) {
+func (t *bandTree) insert(s int32, d uint64, mult int) {
 	mult = min(mult, t.k)
-	for x := int(s) + 1; x*t.k < len(t.ranks); x += x & -x {
-		node := t.ranks[x*t.k : x*t.k+t.k]
+	for x := int(s) + 1; x*t.k < len(t.keys); x += x & -x {
+		node := t.keys[x*t.k : x*t.k+t.k]
 		if node[t.k-1] <= d {
 			break // as in minTree: the nodes above are full at or below d
 		}
@@ -220,7 +228,7 @@ func (t *bandTree) insert(s, d int32, mult int) {
 			if node[t.k-1] <= d {
 				break // the node is full at or below d
 			}
-			// Insert d into the sorted node, dropping the highest rank.
+			// Insert d into the sorted node, dropping the highest key.
 			j := t.k - 1
 			for j > 0 && node[j-1] > d {
 				node[j] = node[j-1]

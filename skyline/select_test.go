@@ -211,6 +211,7 @@ func BenchmarkDay(b *testing.B) {
 		name  string
 		edges []regiongraph.Edge
 	}{
+		{"edges=3k", benchEdges(3_000, 4)}, // a city day at --min-trips 3
 		{"edges=100k", benchEdges(100_000, 2)},
 		{"edges=1M", benchEdges(1_000_000, 1)},
 	} {
