@@ -29,7 +29,7 @@ func dayCandidates(ctx context.Context, graphs [][]regiongraph.Edge, opts skylin
 		go func() {
 			defer wg.Done()
 			for d := range next {
-				indices[d] = skyline.Candidates(graphs[d], opts).Indices
+				indices[d] = skyline.Select(graphs[d], opts).Indices
 				close(done[d])
 			}
 		}()

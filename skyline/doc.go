@@ -6,8 +6,9 @@
 // Out: a Result: the candidate edges (those dominated by fewer than k other
 // edges on more trips, lower speed and longer detour, that pass the gates),
 // each edge's dominator count and skyline layer, and the day's trip-weighted
-// median speed. Skyband, Layers and Dominators apply the same dominance to
-// plain Points.
+// median speed. Select returns only the candidates and the median speed,
+// the same as Candidates', at a third to a fifth of the cost. Skyband, Layers
+// and Dominators apply the same dominance to plain Points.
 //
 // # Dominance
 //
@@ -37,6 +38,22 @@
 // blocks are finished by direct comparison; the sorts are radix sorts on
 // order-preserving integer keys. A day of a million edges takes about half
 // a second to a second on one core.
+//
+// # Select
+//
+// Select needs no counts or layers, only whether a gate-passing point has
+// fewer than K dominators, and one sweep answers that in O(n log n). Points
+// are ordered as above (trips by rank, speed by rank, detour by its float
+// key within each run of equal trips and speed, saving the third full
+// sort), so a point's dominators are the earlier points, other than its
+// identical copies, no worse on speed and detour. The sweep keeps a Fenwick
+// tree over speed ranks whose nodes hold the lowest detour key in their
+// range (for K = 1: the staircase of the points seen so far), or the K
+// lowest with multiplicity for K up to 16; each run of identical points is
+// first tested, if it passes the gates, then inserted, gated out or not
+// (it can still dominate). A node covers its child's range, so an insertion
+// stops at the first node that already holds K keys no higher than its
+// own. Deeper skybands (K > 16) go to the full analysis.
 //
 // # Gates
 //

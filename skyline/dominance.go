@@ -41,26 +41,7 @@ func analyse(points []Point) analysis {
 
 	// Merge identical points; order by trips descending, then speed and
 	// detour from best to worst, so that every dominator comes first.
-	order := make([]int32, n)
-	for i := range order {
-		order[i] = int32(i)
-	}
-	// One radix sort on the three ranks packed into one key when they fit
-	// (always below two million points), else one stable sort per rank.
-	tb, sb, db := bitLen(tripsRank), bitLen(speedRank), bitLen(detourRank)
-	if tb+sb+db <= 64 {
-		for i := range keys {
-			keys[i] = uint64(tripsRank[i])<<(sb+db) | uint64(speedRank[i])<<db | uint64(detourRank[i])
-		}
-		srt.sortIndices(order, keys)
-	} else {
-		for _, rank := range [][]int32{detourRank, speedRank, tripsRank} {
-			for i, r := range rank {
-				keys[i] = uint64(r)
-			}
-			srt.sortIndices(order, keys)
-		}
-	}
+	order := lexOrder(tripsRank, speedRank, detourRank, keys, &srt)
 	unique := make([]int32, n) // point -> unique id
 	d := &divideConquer{
 		speed:  make([]int32, 0, n),
@@ -112,6 +93,31 @@ func analyse(points []Point) analysis {
 		res.layers[i] = int(d.layer[u])
 	}
 	return res
+}
+
+// lexOrder returns the point indices sorted by trips rank, then speed rank,
+// then detour rank, all ascending (best first), as analyse orders them.
+// keys is scratch space of the points' length.
+func lexOrder(tripsRank, speedRank, detourRank []int32, keys []uint64, srt *sorter) []int32 {
+	order := make([]int32, len(tripsRank))
+	for i := range order {
+		order[i] = int32(i)
+	}
+	tb, sb, db := bitLen(tripsRank), bitLen(speedRank), bitLen(detourRank)
+	if tb+sb+db <= 64 {
+		for i := range keys {
+			keys[i] = uint64(tripsRank[i])<<(sb+db) | uint64(speedRank[i])<<db | uint64(detourRank[i])
+		}
+		srt.sortIndices(order, keys)
+		return order
+	}
+	for _, rank := range [][]int32{detourRank, speedRank, tripsRank} {
+		for i, r := range rank {
+			keys[i] = uint64(r)
+		}
+		srt.sortIndices(order, keys)
+	}
+	return order
 }
 
 // bitLen returns the number of bits needed for the largest rank.
