@@ -2,6 +2,7 @@ package report
 
 import (
 	"strconv"
+	"strings"
 
 	"github.com/xuri/excelize/v2"
 
@@ -92,7 +93,11 @@ type scatterBlock struct {
 // sheet, one series per block of rows below the header row head: each
 // period's non-candidate and candidate edge-days. Suppressed edge-days
 // stay out of the chart.
-func (b *book) scatterChart(head int, blocks []scatterBlock) {
+//
+// notes, when the sheet lists only a sample of the non-candidate
+// edge-days, go under the title ("before every 5th of 46829 non-candidate
+// edge-days"); every candidate edge-day is always listed.
+func (b *book) scatterChart(head int, blocks []scatterBlock, notes []string) {
 	var series []excelize.ChartSeries
 	for _, bl := range blocks {
 		r := func(col string) string { return columnRange(SheetScatter, col, head+1+bl.from, head+bl.to) }
@@ -107,11 +112,15 @@ func (b *book) scatterChart(head int, blocks []scatterBlock) {
 	if len(series) == 0 {
 		return
 	}
+	title := []excelize.RichTextRun{{Text: "Edge-days: speed against detour"}}
+	if len(notes) > 0 {
+		title = append(title, excelize.RichTextRun{Text: "\nlisted: all candidates; " + strings.Join(notes, "; "), Font: &excelize.Font{Size: 9}})
+	}
 	detourAxisMin := 1.0
 	b.fail(b.f.AddChart(SheetScatter, "J2", &excelize.Chart{
 		Type:   excelize.Scatter,
 		Series: series,
-		Title:  excelize.ChartTitle{Paragraph: []excelize.RichTextRun{{Text: "Edge-days: speed against detour"}}},
+		Title:  excelize.ChartTitle{Paragraph: title},
 		Legend: excelize.ChartLegend{Position: "bottom"},
 		// Detour is at least 1 (a straight line): the axis starts there.
 		XAxis:     excelize.ChartAxis{Title: excelize.ChartTitle{Paragraph: []excelize.RichTextRun{{Text: "Detour ratio (travel / straight-line distance)"}}}, Minimum: &detourAxisMin, Font: axisFont()},

@@ -1,7 +1,9 @@
 package report
 
 import (
+	"fmt"
 	"sort"
+	"strconv"
 
 	"github.com/xuri/excelize/v2"
 
@@ -183,6 +185,7 @@ func (b *book) scatter() {
 		return k
 	}
 	sort.SliceStable(pts, func(i, j int) bool { return block(pts[i]) < block(pts[j]) })
+	pts, thinned := thinContext(pts, len(v.periods))
 	var blocks []scatterBlock
 	rows := make([][]cell, len(pts))
 	for i, pt := range pts {
@@ -196,10 +199,86 @@ func (b *book) scatter() {
 		rows[i] = []cell{yesNo(pt.d.Candidate, b.st.centre), b.str(v.periods[pt.period].Label), b.str(pt.d.Day), b.count(pt.key.From), b.count(pt.key.To),
 			b.trips(tr), b.gated(tr, kmh(pt.d.Speed), b.st.dec1), b.gated(tr, pt.d.Detour, b.st.dec2)}
 	}
+	var notes []string
+	for _, t := range thinned {
+		notes = append(notes, v.periods[t.period].Label+" "+t.String())
+	}
 	b.streamTable(SheetScatter, cols, rows, func(head int) {
 		if len(pts) == 0 || head+len(pts) > excelize.TotalRows {
 			return
 		}
-		b.scatterChart(head, blocks)
+		b.scatterChart(head, blocks, notes)
 	})
+}
+
+// maxContextEdgeDays bounds the edge-days of one period that were not
+// candidates on the Speed v detour sheet. A city's year has about 10⁵ of
+// them: listed whole they took most of the workbook's writing time, and
+// a chart of that many points opens slowly and shows no more than a
+// regular sample of them does.
+const maxContextEdgeDays = 10000
+
+// thinning says how one period's non-candidate edge-days were thinned.
+type thinning struct {
+	period          int
+	every, of, kept int
+}
+
+// String says what was thinned, for the chart's title.
+func (t thinning) String() string {
+	return fmt.Sprintf("every %s of %d non-candidate edge-days", ordinal(t.every), t.of)
+}
+
+// ordinal writes 2 as "2nd", 3 as "3rd", 11 as "11th".
+func ordinal(n int) string {
+	suffix := "th"
+	switch {
+	case n%100 >= 11 && n%100 <= 13:
+	case n%10 == 1:
+		suffix = "st"
+	case n%10 == 2:
+		suffix = "nd"
+	case n%10 == 3:
+		suffix = "rd"
+	}
+	return strconv.Itoa(n) + suffix
+}
+
+// thinContext keeps, of each period's edge-days that were not candidates
+// (shown or suppressed), every k-th in their order when there are more
+// than maxContextEdgeDays, with k the smallest that brings them under it;
+// candidate edge-days are all kept. pts are in block order, which thinning
+// keeps.
+func thinContext(pts []edgeDay, periods int) ([]edgeDay, []thinning) {
+	context := make([]int, periods)
+	for _, pt := range pts {
+		if !pt.d.Candidate {
+			context[pt.period]++
+		}
+	}
+	every := make([]int, periods)
+	var out []thinning
+	for p, n := range context {
+		every[p] = 1
+		if n > maxContextEdgeDays {
+			every[p] = (n + maxContextEdgeDays - 1) / maxContextEdgeDays
+			out = append(out, thinning{period: p, every: every[p], of: n, kept: (n + every[p] - 1) / every[p]})
+		}
+	}
+	if len(out) == 0 {
+		return pts, nil
+	}
+	seen := make([]int, periods)
+	kept := pts[:0:0]
+	for _, pt := range pts {
+		if !pt.d.Candidate {
+			i := seen[pt.period]
+			seen[pt.period]++
+			if i%every[pt.period] != 0 {
+				continue
+			}
+		}
+		kept = append(kept, pt)
+	}
+	return kept, out
 }
