@@ -202,6 +202,9 @@ func CheckPairs(store *regiongraph.Store, opts ScanOptions) error {
 		}
 		if keep {
 			largest = e.Trips
+			if largest >= max(opts.Skyline.MinTrips, 1) {
+				return nil // one pair is enough; Largest is only needed for the error
+			}
 		}
 	}
 	if largest > 0 && largest >= opts.Skyline.MinTrips {
