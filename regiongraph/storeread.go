@@ -1,6 +1,7 @@
 package regiongraph
 
 import (
+	"cmp"
 	"encoding/json"
 	"fmt"
 	"math"
@@ -321,6 +322,10 @@ type stretch struct {
 	all        bool    // every row is kept
 	rows       []int32 // else the kept rows, ascending, as indexes in the row group
 	offset     int     // of the stretch's first kept edge in the store
+	// dayOrder: the rows are in a day file's order (window, then trips
+	// descending) and fill puts the kept edges in store order (window,
+	// from, to) as it sets them.
+	dayOrder bool
 }
 
 func (st *stretch) kept() int {
@@ -416,16 +421,25 @@ func (st *stretch) selectRows(opts ReadOptions) error {
 }
 
 // fill sets the columns cols of the stretch's kept edges, len(edges) ==
-// st.kept().
+// st.kept(). Of a stretch in day order each edge is written once, at its
+// place in store order: moving the 144-byte edges after filling them
+// cost more than the decoding.
 func (st *stretch) fill(edges []Edge, cols []bool) error {
 	if len(edges) == 0 {
 		return nil
 	}
+	var place []int32 // the index in edges of each kept row, nil for in order
+	if st.dayOrder {
+		var err error
+		if place, err = st.storeOrder(edges); err != nil {
+			return err
+		}
+	}
 	var cursors []*columnCursor
 	var which []int
 	for col := range numStoreColumns {
-		if !cols[col] {
-			continue
+		if !cols[col] || st.dayOrder && col != storeDay && col < storeTrips {
+			continue // storeOrder set the window and region ids
 		}
 		c := newColumnCursor(st, col)
 		defer c.close()
@@ -433,22 +447,125 @@ func (st *stretch) fill(edges []Edge, cols []bool) error {
 	}
 	scratch := new(readScratch)
 	for k := 0; k < len(edges); k += readBlock {
-		dst := edges[k:min(k+readBlock, len(edges))]
-		n := len(dst)
-		// The block is rows [a, b) of the row group, or the listed rows.
-		a, b := st.first+int64(k), st.first+int64(k+n)
-		var rows []int32
-		if !st.all {
-			rows = st.rows[k : k+n]
-			a, b = int64(rows[0]), int64(rows[n-1])+1
+		n := min(readBlock, len(edges)-k)
+		a, b, rows := st.block(k, n)
+		var to []int32
+		if place != nil {
+			to = place[k : k+n]
 		}
 		for i, c := range cursors {
-			if err := setColumn(dst, &storeColumns[which[i]], c, a, b, rows, scratch); err != nil {
+			if err := setColumn(edges, k, to, n, &storeColumns[which[i]], c, a, b, rows, scratch); err != nil {
 				return err
 			}
 		}
 	}
 	return nil
+}
+
+// block returns the rows of the n kept rows from the k-th: rows [a, b) of
+// the row group, or the listed rows.
+func (st *stretch) block(k, n int) (a, b int64, rows []int32) {
+	if st.all {
+		return st.first + int64(k), st.first + int64(k+n), nil
+	}
+	rows = st.rows[k : k+n]
+	return int64(rows[0]), int64(rows[n-1]) + 1, rows
+}
+
+// storeOrder reads the window and region ids of the stretch's kept rows,
+// which are in a day file's order, and returns the index of each in store
+// order (nil when that is their order), setting those fields of edges at
+// their places. Each window's run is sorted by its (from, to) pairs, ties
+// (a damaged file) kept in file order.
+func (st *stretch) storeOrder(edges []Edge) ([]int32, error) {
+	n := len(edges)
+	windows := make([]string, n)
+	ids := [2][]int32{make([]int32, n), make([]int32, n)}
+	for i, col := range [...]int{storeWindow, storeWindow + 1, storeWindow + 2} {
+		c := newColumnCursor(st, col)
+		for k := 0; k < n; k += readBlock {
+			m := min(readBlock, n-k)
+			a, b, rows := st.block(k, m)
+			var err error
+			if i == 0 {
+				err = c.strings(a, b, rows, windows[k:k+m])
+			} else {
+				err = c.int32s(a, b, rows, ids[i-1][k:k+m])
+			}
+			if err != nil {
+				c.close()
+				return nil, err
+			}
+		}
+		c.close()
+	}
+	var place []int32
+	var keys []uint64
+	for a := 0; a < n; {
+		b := a + 1
+		for b < n && windows[b] == windows[a] {
+			b++
+		}
+		if place == nil && !pairsAscending(ids[0][a:b], ids[1][a:b]) {
+			place = make([]int32, n)
+			for i := range a {
+				place[i] = int32(i)
+			}
+		}
+		if place != nil {
+			keys = sortPairs(ids[0][a:b], ids[1][a:b], keys[:0])
+			for j, k := range keys {
+				place[a+int(uint32(k))] = int32(a + j)
+			}
+		}
+		a = b
+	}
+	for i := range edges {
+		j := i
+		if place != nil {
+			j = int(place[i])
+		}
+		e := &edges[j]
+		e.Window, e.From, e.To = windows[i], int(ids[0][i]), int(ids[1][i])
+	}
+	return place, nil
+}
+
+// pairsAscending reports whether the pairs (from[i], to[i]) ascend
+// strictly.
+func pairsAscending(from, to []int32) bool {
+	for i := 1; i < len(from); i++ {
+		if from[i-1] > from[i] || from[i-1] == from[i] && to[i-1] >= to[i] {
+			return false
+		}
+	}
+	return true
+}
+
+// sortPairs returns, in keys, the indexes of the pairs (from[i], to[i]) in
+// ascending order of the pairs, ties by index, each as the low 32 bits of
+// a key. Ids below 2^16 are packed beside the index and sorted as plain
+// integers, the common case; others are sorted by a comparison.
+func sortPairs(from, to []int32, keys []uint64) []uint64 {
+	small := true
+	for i := range from {
+		small = small && uint32(from[i]) < 1<<16 && uint32(to[i]) < 1<<16
+	}
+	if small {
+		for i := range from {
+			keys = append(keys, uint64(uint32(from[i]))<<48|uint64(uint32(to[i]))<<32|uint64(i))
+		}
+		slices.Sort(keys)
+		return keys
+	}
+	for i := range from {
+		keys = append(keys, uint64(i))
+	}
+	slices.SortFunc(keys, func(x, y uint64) int {
+		i, j := int(x), int(y)
+		return cmp.Or(cmp.Compare(from[i], from[j]), cmp.Compare(to[i], to[j]), cmp.Compare(i, j))
+	})
+	return keys
 }
 
 // readScratch holds a block of decoded values of each kind.
@@ -459,38 +576,44 @@ type readScratch struct {
 	strs [readBlock]string
 }
 
-// setColumn decodes column col of the wanted rows (rows, or [a, b) if rows
-// is nil) and sets its field of the edges dst.
-func setColumn(dst []Edge, col *storeColumn, c *columnCursor, a, b int64, rows []int32, scratch *readScratch) error {
-	n := len(dst)
+// setColumn decodes column col of the n wanted rows from the k-th (rows,
+// or [a, b) if rows is nil) and sets its field of edges[k:k+n], or of
+// edges[to[i]] for the i-th row when to is not nil.
+func setColumn(edges []Edge, k int, to []int32, n int, col *storeColumn, c *columnCursor, a, b int64, rows []int32, scratch *readScratch) error {
+	at := func(i int) *Edge {
+		if to != nil {
+			return &edges[to[i]]
+		}
+		return &edges[k+i]
+	}
 	switch col.kind() {
 	case parquet.ByteArray:
 		if err := c.strings(a, b, rows, scratch.strs[:n]); err != nil {
 			return err
 		}
-		for i := range dst {
-			*col.str(&dst[i]) = scratch.strs[i]
+		for i, v := range scratch.strs[:n] {
+			*col.str(at(i)) = v
 		}
 	case parquet.Int32:
 		if err := c.int32s(a, b, rows, scratch.i32[:n]); err != nil {
 			return err
 		}
-		for i := range dst {
-			*col.int(&dst[i]) = int(scratch.i32[i])
+		for i, v := range scratch.i32[:n] {
+			*col.int(at(i)) = int(v)
 		}
 	case parquet.Int64:
 		if err := c.int64s(a, b, rows, scratch.i64[:n]); err != nil {
 			return err
 		}
-		for i := range dst {
-			*col.int(&dst[i]) = int(scratch.i64[i])
+		for i, v := range scratch.i64[:n] {
+			*col.int(at(i)) = int(v)
 		}
 	default:
 		if err := c.float64s(a, b, rows, scratch.f64[:n]); err != nil {
 			return err
 		}
-		for i := range dst {
-			*col.double(&dst[i]) = scratch.f64[i]
+		for i, v := range scratch.f64[:n] {
+			*col.double(at(i)) = v
 		}
 	}
 	return nil
