@@ -421,25 +421,19 @@ func (st *stretch) selectRows(opts ReadOptions) error {
 }
 
 // fill sets the columns cols of the stretch's kept edges, len(edges) ==
-// st.kept(). Of a stretch in day order each edge is written once, at its
-// place in store order: moving the 144-byte edges after filling them
-// cost more than the decoding.
+// st.kept().
 func (st *stretch) fill(edges []Edge, cols []bool) error {
 	if len(edges) == 0 {
 		return nil
 	}
-	var place []int32 // the index in edges of each kept row, nil for in order
 	if st.dayOrder {
-		var err error
-		if place, err = st.storeOrder(edges); err != nil {
-			return err
-		}
+		return st.fillInOrder(edges, cols)
 	}
 	var cursors []*columnCursor
 	var which []int
 	for col := range numStoreColumns {
-		if !cols[col] || st.dayOrder && col != storeDay && col < storeTrips {
-			continue // storeOrder set the window and region ids
+		if !cols[col] {
+			continue
 		}
 		c := newColumnCursor(st, col)
 		defer c.close()
@@ -449,13 +443,68 @@ func (st *stretch) fill(edges []Edge, cols []bool) error {
 	for k := 0; k < len(edges); k += readBlock {
 		n := min(readBlock, len(edges)-k)
 		a, b, rows := st.block(k, n)
-		var to []int32
-		if place != nil {
-			to = place[k : k+n]
-		}
 		for i, c := range cursors {
-			if err := setColumn(edges, k, to, n, &storeColumns[which[i]], c, a, b, rows, scratch); err != nil {
+			if err := setColumn(edges[k:k+n], &storeColumns[which[i]], c, a, b, rows, scratch); err != nil {
 				return err
+			}
+		}
+	}
+	return nil
+}
+
+// fillInOrder is fill of a stretch in a day file's order: each column of
+// the kept rows is decoded whole, then gathered into the edges in store
+// order, so that every edge is written in sequence and once, rather than
+// filled in file order and moved (the 144-byte moves cost more than the
+// decoding) or written at scattered places.
+func (st *stretch) fillInOrder(edges []Edge, cols []bool) error {
+	src, err := st.storeOrder(edges)
+	if err != nil {
+		return err
+	}
+	n := len(edges)
+	var strs []string
+	var ints []int64
+	var f64 []float64
+	for col := range numStoreColumns {
+		if !cols[col] || col != storeDay && col < storeTrips {
+			continue // storeOrder set the window and region ids
+		}
+		sc := &storeColumns[col]
+		c := newColumnCursor(st, col)
+		for k := 0; k < n && err == nil; k += readBlock {
+			m := min(readBlock, n-k)
+			a, b, rows := st.block(k, m)
+			switch sc.kind() {
+			case parquet.ByteArray:
+				strs = slices.Grow(strs[:0], n)[:n]
+				err = c.strings(a, b, rows, strs[k:k+m])
+			case parquet.Int64:
+				ints = slices.Grow(ints[:0], n)[:n]
+				err = c.int64s(a, b, rows, ints[k:k+m])
+			case parquet.Double:
+				f64 = slices.Grow(f64[:0], n)[:n]
+				err = c.float64s(a, b, rows, f64[k:k+m])
+			default:
+				err = st.errorf(col, "no reader of %v values in store order", sc.kind())
+			}
+		}
+		c.close()
+		if err != nil {
+			return err
+		}
+		for j := range edges {
+			i := j
+			if src != nil {
+				i = int(src[j])
+			}
+			switch sc.kind() {
+			case parquet.ByteArray:
+				*sc.str(&edges[j]) = strs[i]
+			case parquet.Int64:
+				*sc.int(&edges[j]) = int(ints[i])
+			default:
+				*sc.double(&edges[j]) = f64[i]
 			}
 		}
 	}
@@ -473,10 +522,10 @@ func (st *stretch) block(k, n int) (a, b int64, rows []int32) {
 }
 
 // storeOrder reads the window and region ids of the stretch's kept rows,
-// which are in a day file's order, and returns the index of each in store
-// order (nil when that is their order), setting those fields of edges at
-// their places. Each window's run is sorted by its (from, to) pairs, ties
-// (a damaged file) kept in file order.
+// which are in a day file's order, and returns, for each edge in store
+// order, the index of its kept row (nil when that is their order), setting
+// those fields of edges. Each window's run is sorted by its (from, to)
+// pairs, ties (a damaged file) kept in file order.
 func (st *stretch) storeOrder(edges []Edge) ([]int32, error) {
 	n := len(edges)
 	windows := make([]string, n)
@@ -499,36 +548,36 @@ func (st *stretch) storeOrder(edges []Edge) ([]int32, error) {
 		}
 		c.close()
 	}
-	var place []int32
-	var keys []uint64
+	var src []int32
+	var sorter pairSorter
 	for a := 0; a < n; {
 		b := a + 1
 		for b < n && windows[b] == windows[a] {
 			b++
 		}
-		if place == nil && !pairsAscending(ids[0][a:b], ids[1][a:b]) {
-			place = make([]int32, n)
+		if src == nil && !pairsAscending(ids[0][a:b], ids[1][a:b]) {
+			src = make([]int32, n)
 			for i := range a {
-				place[i] = int32(i)
+				src[i] = int32(i)
 			}
 		}
-		if place != nil {
-			keys = sortPairs(ids[0][a:b], ids[1][a:b], keys[:0])
-			for j, k := range keys {
-				place[a+int(uint32(k))] = int32(a + j)
+		if src != nil {
+			sorter.sort(ids[0][a:b], ids[1][a:b], src[a:b])
+			for j := a; j < b; j++ {
+				src[j] += int32(a)
 			}
 		}
 		a = b
 	}
-	for i := range edges {
-		j := i
-		if place != nil {
-			j = int(place[i])
+	for j := range edges {
+		i := j
+		if src != nil {
+			i = int(src[j])
 		}
 		e := &edges[j]
 		e.Window, e.From, e.To = windows[i], int(ids[0][i]), int(ids[1][i])
 	}
-	return place, nil
+	return src, nil
 }
 
 // pairsAscending reports whether the pairs (from[i], to[i]) ascend
@@ -542,30 +591,61 @@ func pairsAscending(from, to []int32) bool {
 	return true
 }
 
-// sortPairs returns, in keys, the indexes of the pairs (from[i], to[i]) in
-// ascending order of the pairs, ties by index, each as the low 32 bits of
-// a key. Ids below 2^16 are packed beside the index and sorted as plain
-// integers, the common case; others are sorted by a comparison.
-func sortPairs(from, to []int32, keys []uint64) []uint64 {
+// A pairSorter orders region pairs, reusing its memory from call to call.
+type pairSorter struct {
+	count    []int32
+	tmp, key []int32
+}
+
+// sort sets order to the indexes of the pairs (from[i], to[i]) in
+// ascending order of the pairs, ties by index. Ids of up to radixBits bits
+// (a city's few thousand regions) are sorted by two counting passes, to
+// then from, each stable; others by a comparison sort.
+func (p *pairSorter) sort(from, to []int32, order []int32) {
+	const radixBits = 14
+	n := len(from)
 	small := true
-	for i := range from {
-		small = small && uint32(from[i]) < 1<<16 && uint32(to[i]) < 1<<16
+	for i := range n {
+		small = small && uint32(from[i]) < 1<<radixBits && uint32(to[i]) < 1<<radixBits
 	}
-	if small {
-		for i := range from {
-			keys = append(keys, uint64(uint32(from[i]))<<48|uint64(uint32(to[i]))<<32|uint64(i))
+	if !small {
+		for i := range order {
+			order[i] = int32(i)
 		}
-		slices.Sort(keys)
-		return keys
+		slices.SortStableFunc(order, func(x, y int32) int {
+			return cmp.Or(cmp.Compare(from[x], from[y]), cmp.Compare(to[x], to[y]))
+		})
+		return
 	}
-	for i := range from {
-		keys = append(keys, uint64(i))
+	p.tmp = slices.Grow(p.tmp[:0], n)[:n]
+	for i := range p.tmp {
+		p.tmp[i] = int32(i)
 	}
-	slices.SortFunc(keys, func(x, y uint64) int {
-		i, j := int(x), int(y)
-		return cmp.Or(cmp.Compare(from[i], from[j]), cmp.Compare(to[i], to[j]), cmp.Compare(i, j))
-	})
-	return keys
+	// by to into order, then by from back from order into order via tmp
+	p.countingPass(to, p.tmp, order)
+	p.countingPass(from, order, p.tmp)
+	copy(order, p.tmp)
+}
+
+// countingPass writes the indexes in, stably ordered by key[index], to out.
+func (p *pairSorter) countingPass(key, in, out []int32) {
+	hi := int32(0)
+	for _, i := range in {
+		hi = max(hi, key[i])
+	}
+	p.count = slices.Grow(p.count[:0], int(hi)+2)[:hi+2]
+	clear(p.count)
+	for _, i := range in {
+		p.count[key[i]+1]++
+	}
+	for k := 1; k < len(p.count); k++ {
+		p.count[k] += p.count[k-1]
+	}
+	for _, i := range in {
+		k := key[i]
+		out[p.count[k]] = i
+		p.count[k]++
+	}
 }
 
 // readScratch holds a block of decoded values of each kind.
@@ -576,44 +656,38 @@ type readScratch struct {
 	strs [readBlock]string
 }
 
-// setColumn decodes column col of the n wanted rows from the k-th (rows,
-// or [a, b) if rows is nil) and sets its field of edges[k:k+n], or of
-// edges[to[i]] for the i-th row when to is not nil.
-func setColumn(edges []Edge, k int, to []int32, n int, col *storeColumn, c *columnCursor, a, b int64, rows []int32, scratch *readScratch) error {
-	at := func(i int) *Edge {
-		if to != nil {
-			return &edges[to[i]]
-		}
-		return &edges[k+i]
-	}
+// setColumn decodes column col of the wanted rows (rows, or [a, b) if rows
+// is nil) and sets its field of the edges dst.
+func setColumn(dst []Edge, col *storeColumn, c *columnCursor, a, b int64, rows []int32, scratch *readScratch) error {
+	n := len(dst)
 	switch col.kind() {
 	case parquet.ByteArray:
 		if err := c.strings(a, b, rows, scratch.strs[:n]); err != nil {
 			return err
 		}
-		for i, v := range scratch.strs[:n] {
-			*col.str(at(i)) = v
+		for i := range dst {
+			*col.str(&dst[i]) = scratch.strs[i]
 		}
 	case parquet.Int32:
 		if err := c.int32s(a, b, rows, scratch.i32[:n]); err != nil {
 			return err
 		}
-		for i, v := range scratch.i32[:n] {
-			*col.int(at(i)) = int(v)
+		for i := range dst {
+			*col.int(&dst[i]) = int(scratch.i32[i])
 		}
 	case parquet.Int64:
 		if err := c.int64s(a, b, rows, scratch.i64[:n]); err != nil {
 			return err
 		}
-		for i, v := range scratch.i64[:n] {
-			*col.int(at(i)) = int(v)
+		for i := range dst {
+			*col.int(&dst[i]) = int(scratch.i64[i])
 		}
 	default:
 		if err := c.float64s(a, b, rows, scratch.f64[:n]); err != nil {
 			return err
 		}
-		for i, v := range scratch.f64[:n] {
-			*col.double(at(i)) = v
+		for i := range dst {
+			*col.double(&dst[i]) = scratch.f64[i]
 		}
 	}
 	return nil
