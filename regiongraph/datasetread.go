@@ -115,10 +115,11 @@ func readDataset(dir string, opts ReadOptions, stretchRows int64) (*Store, error
 	}
 	var kept []selection
 	total := 0
+	bufs := make([]readBuffers, readWorkers())
 	for a := 0; a < len(days); a += datasetOpenFiles {
 		sts, _, closeAll, err := openDays(dir, meta, days[a:min(a+datasetOpenFiles, len(days))], fileOpts, stretchRows)
 		if err == nil {
-			err = forEach(len(sts), func(i int) error { return sts[i].selectRows(fileOpts) })
+			err = forEachWorker(len(sts), func(w, i int) error { return sts[i].selectRows(fileOpts, &bufs[w]) })
 		}
 		closeAll()
 		if err != nil {
@@ -145,7 +146,7 @@ func readDataset(dir string, opts ReadOptions, stretchRows int64) (*Store, error
 				offset += st.kept()
 				k++
 			}
-			err = fillDays(sts, dayOf, s.Edges, fileOpts)
+			err = fillDays(sts, dayOf, s.Edges, fileOpts, bufs)
 		}
 		closeAll()
 		if err != nil {
@@ -238,11 +239,11 @@ func openDays(dir string, meta Meta, days []dayJSON, opts ReadOptions, stretchRo
 
 // fillDays fills the stretches' kept edges at their offsets in edges, each
 // day in store order (see stretch.dayOrder), and checks their days.
-func fillDays(stretches []*stretch, day []string, edges []Edge, opts ReadOptions) error {
+func fillDays(stretches []*stretch, day []string, edges []Edge, opts ReadOptions, bufs []readBuffers) error {
 	cols := readColumns(opts)
-	if err := forEach(len(stretches), func(i int) error {
+	if err := forEachWorker(len(stretches), func(w, i int) error {
 		st := stretches[i]
-		return st.fill(edges[st.offset:st.offset+st.kept()], cols)
+		return st.fill(edges[st.offset:st.offset+st.kept()], cols, &bufs[w])
 	}); err != nil {
 		return err
 	}

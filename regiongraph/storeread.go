@@ -200,7 +200,8 @@ func cutStretches(path string, pf *parquet.File, leaf [numStoreColumns]int, stre
 // file order. Each stretch first finds the rows it keeps, then, once the
 // stretches' offsets in the edges are known, fills them.
 func readStretches(stretches []*stretch, opts ReadOptions) ([]Edge, error) {
-	if err := forEach(len(stretches), func(i int) error { return stretches[i].selectRows(opts) }); err != nil {
+	bufs := make([]readBuffers, readWorkers())
+	if err := forEachWorker(len(stretches), func(w, i int) error { return stretches[i].selectRows(opts, &bufs[w]) }); err != nil {
 		return nil, err
 	}
 	kept := 0
@@ -213,9 +214,9 @@ func readStretches(stretches []*stretch, opts ReadOptions) ([]Edge, error) {
 	}
 	edges := make([]Edge, kept)
 	cols := readColumns(opts)
-	if err := forEach(len(stretches), func(i int) error {
+	if err := forEachWorker(len(stretches), func(w, i int) error {
 		st := stretches[i]
-		return st.fill(edges[st.offset:st.offset+st.kept()], cols)
+		return st.fill(edges[st.offset:st.offset+st.kept()], cols, &bufs[w])
 	}); err != nil {
 		return nil, err
 	}
@@ -277,10 +278,20 @@ func readStoreMeta(path string, pf *parquet.File, s *Store) error {
 // decoder on a damaged file becomes an error rather than ending the
 // program.
 func forEach(n int, work func(i int) error) error {
+	return forEachWorker(n, func(_, i int) error { return work(i) })
+}
+
+// readWorkers is the number of goroutines of forEach.
+func readWorkers() int { return runtime.GOMAXPROCS(0) }
+
+// forEachWorker is forEach that also passes work the number w, below
+// readWorkers(), of the goroutine calling it, so that each goroutine can
+// reuse its own buffers.
+func forEachWorker(n int, work func(w, i int) error) error {
 	errs := make([]error, n)
 	var next atomic.Int64
 	var wg sync.WaitGroup
-	for range min(n, runtime.GOMAXPROCS(0)) {
+	for w := range min(n, readWorkers()) {
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
@@ -295,7 +306,7 @@ func forEach(n int, work func(i int) error) error {
 							errs[i] = fmt.Errorf("regiongraph: damaged store: %v", r)
 						}
 					}()
-					errs[i] = work(i)
+					errs[i] = work(w, i)
 				}()
 				if errs[i] != nil {
 					next.Store(int64(n)) // stop handing out work
@@ -343,8 +354,29 @@ func (st *stretch) errorf(col int, format string, args ...any) error {
 // stay in the processor's cache while every column fills its field.
 const readBlock = 4096
 
+// readBuffers are the buffers a reading goroutine reuses from stretch to
+// stretch: a year of day files would otherwise leave hundreds of
+// megabytes of garbage.
+type readBuffers struct {
+	keep    []bool
+	windows []string
+	ids     [2][]int32
+	src     []int32
+	strs    []string
+	ints    []int64
+	f64     []float64
+	sorter  pairSorter
+}
+
+// sized returns *s with length n, reusing its memory; the values are
+// left over from before.
+func sized[T any](s *[]T, n int) []T {
+	*s = slices.Grow((*s)[:0], n)[:n]
+	return *s
+}
+
 // selectRows finds the rows of the stretch that opts keeps.
-func (st *stretch) selectRows(opts ReadOptions) error {
+func (st *stretch) selectRows(opts ReadOptions, buf *readBuffers) error {
 	var filters []int
 	if opts.MinTrips > 0 {
 		filters = append(filters, storeTrips)
@@ -365,7 +397,8 @@ func (st *stretch) selectRows(opts ReadOptions) error {
 	if opts.MinTrips > 0 {
 		ranges = st.tripsRanges(opts.MinTrips)
 	}
-	keep := make([]bool, st.end-st.first)
+	keep := sized(&buf.keep, int(st.end-st.first))
+	clear(keep)
 	for _, r := range ranges {
 		for i := r[0]; i < r[1]; i++ {
 			keep[i-st.first] = true
@@ -408,26 +441,33 @@ func (st *stretch) selectRows(opts ReadOptions) error {
 		}
 		c.close()
 	}
-	for i, k := range keep {
+	n := 0
+	for _, k := range keep {
 		if k {
-			st.rows = append(st.rows, int32(st.first+int64(i)))
+			n++
 		}
 	}
-	st.all = len(st.rows) == len(keep)
-	if st.all {
-		st.rows = nil
+	st.all = n == len(keep)
+	st.rows = nil
+	if !st.all {
+		st.rows = make([]int32, 0, n)
+		for i, k := range keep {
+			if k {
+				st.rows = append(st.rows, int32(st.first+int64(i)))
+			}
+		}
 	}
 	return nil
 }
 
 // fill sets the columns cols of the stretch's kept edges, len(edges) ==
 // st.kept().
-func (st *stretch) fill(edges []Edge, cols []bool) error {
+func (st *stretch) fill(edges []Edge, cols []bool, buf *readBuffers) error {
 	if len(edges) == 0 {
 		return nil
 	}
 	if st.dayOrder {
-		return st.fillInOrder(edges, cols)
+		return st.fillInOrder(edges, cols, buf)
 	}
 	var cursors []*columnCursor
 	var which []int
@@ -457,15 +497,12 @@ func (st *stretch) fill(edges []Edge, cols []bool) error {
 // order, so that every edge is written in sequence and once, rather than
 // filled in file order and moved (the 144-byte moves cost more than the
 // decoding) or written at scattered places.
-func (st *stretch) fillInOrder(edges []Edge, cols []bool) error {
-	src, err := st.storeOrder(edges)
+func (st *stretch) fillInOrder(edges []Edge, cols []bool, buf *readBuffers) error {
+	src, err := st.storeOrder(edges, buf)
 	if err != nil {
 		return err
 	}
 	n := len(edges)
-	var strs []string
-	var ints []int64
-	var f64 []float64
 	for col := range numStoreColumns {
 		if !cols[col] || col != storeDay && col < storeTrips {
 			continue // storeOrder set the window and region ids
@@ -477,14 +514,11 @@ func (st *stretch) fillInOrder(edges []Edge, cols []bool) error {
 			a, b, rows := st.block(k, m)
 			switch sc.kind() {
 			case parquet.ByteArray:
-				strs = slices.Grow(strs[:0], n)[:n]
-				err = c.strings(a, b, rows, strs[k:k+m])
+				err = c.strings(a, b, rows, sized(&buf.strs, n)[k:k+m])
 			case parquet.Int64:
-				ints = slices.Grow(ints[:0], n)[:n]
-				err = c.int64s(a, b, rows, ints[k:k+m])
+				err = c.int64s(a, b, rows, sized(&buf.ints, n)[k:k+m])
 			case parquet.Double:
-				f64 = slices.Grow(f64[:0], n)[:n]
-				err = c.float64s(a, b, rows, f64[k:k+m])
+				err = c.float64s(a, b, rows, sized(&buf.f64, n)[k:k+m])
 			default:
 				err = st.errorf(col, "no reader of %v values in store order", sc.kind())
 			}
@@ -493,6 +527,7 @@ func (st *stretch) fillInOrder(edges []Edge, cols []bool) error {
 		if err != nil {
 			return err
 		}
+		strs, ints, f64 := buf.strs, buf.ints, buf.f64
 		for j := range edges {
 			i := j
 			if src != nil {
@@ -526,10 +561,10 @@ func (st *stretch) block(k, n int) (a, b int64, rows []int32) {
 // order, the index of its kept row (nil when that is their order), setting
 // those fields of edges. Each window's run is sorted by its (from, to)
 // pairs, ties (a damaged file) kept in file order.
-func (st *stretch) storeOrder(edges []Edge) ([]int32, error) {
+func (st *stretch) storeOrder(edges []Edge, buf *readBuffers) ([]int32, error) {
 	n := len(edges)
-	windows := make([]string, n)
-	ids := [2][]int32{make([]int32, n), make([]int32, n)}
+	windows := sized(&buf.windows, n)
+	ids := [2][]int32{sized(&buf.ids[0], n), sized(&buf.ids[1], n)}
 	for i, col := range [...]int{storeWindow, storeWindow + 1, storeWindow + 2} {
 		c := newColumnCursor(st, col)
 		for k := 0; k < n; k += readBlock {
@@ -549,20 +584,19 @@ func (st *stretch) storeOrder(edges []Edge) ([]int32, error) {
 		c.close()
 	}
 	var src []int32
-	var sorter pairSorter
 	for a := 0; a < n; {
 		b := a + 1
 		for b < n && windows[b] == windows[a] {
 			b++
 		}
 		if src == nil && !pairsAscending(ids[0][a:b], ids[1][a:b]) {
-			src = make([]int32, n)
+			src = sized(&buf.src, n)
 			for i := range a {
 				src[i] = int32(i)
 			}
 		}
 		if src != nil {
-			sorter.sort(ids[0][a:b], ids[1][a:b], src[a:b])
+			buf.sorter.sort(ids[0][a:b], ids[1][a:b], src[a:b])
 			for j := a; j < b; j++ {
 				src[j] += int32(a)
 			}
