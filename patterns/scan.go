@@ -125,26 +125,36 @@ func findCandidates(ctx context.Context, scan *Scan, graphs [][]regiongraph.Edge
 		return err
 	}
 	candidate := make([][]bool, len(graphs)) // per day, per edge of its graph
+	var all []EdgeKey                        // every day's candidates
 	for d, graph := range graphs {
 		keys := make([]EdgeKey, len(indices[d]))
 		candidate[d] = make([]bool, len(graph))
 		for j, i := range indices[d] {
 			keys[j] = EdgeKey{From: graph[i].From, To: graph[i].To}
 			candidate[d][i] = true
-			scan.EdgeDaily[keys[j]] = nil
 		}
 		scan.CandidatesPerDay[d] = len(keys)
 		scan.DayCandidates[d] = keys // graphs are sorted by From, To
+		all = append(all, keys...)
 	}
+	slices.SortFunc(all, groups.CompareEdges)
+	all = slices.Compact(all)
+	// Each day's graph and the candidates are both sorted by pair: one
+	// merge per day finds the candidates' edges of the day, rather than a
+	// lookup per edge of every day.
+	daily := make([][]DailyValue, len(all))
 	for d, graph := range graphs {
-		for i := range graph {
+		j := 0
+		for i := 0; i < len(graph) && j < len(all); i++ {
 			e := &graph[i]
 			key := EdgeKey{From: e.From, To: e.To}
-			daily, ok := scan.EdgeDaily[key]
-			if !ok {
+			for j < len(all) && groups.CompareEdges(all[j], key) < 0 {
+				j++
+			}
+			if j == len(all) || all[j] != key {
 				continue
 			}
-			scan.EdgeDaily[key] = append(daily, DailyValue{
+			daily[j] = append(daily[j], DailyValue{
 				Day:         scan.Days[d],
 				Trips:       e.Trips,
 				Speed:       e.SpeedMedian,
@@ -155,6 +165,9 @@ func findCandidates(ctx context.Context, scan *Scan, graphs [][]regiongraph.Edge
 				DurationSum: e.DurationSum,
 			})
 		}
+	}
+	for j, key := range all {
+		scan.EdgeDaily[key] = daily[j]
 	}
 	return nil
 }
@@ -365,13 +378,13 @@ func dayGraphs(edges []regiongraph.Edge, window string, dayIndex map[string]int)
 				g = append(g, edges[r.start:r.end]...)
 			}
 		}
-		if !slices.IsSortedFunc(g, compareEdgePairs) {
+		if !pairsAscend(g) {
 			g = slices.Clone(g)
 			slices.SortStableFunc(g, compareEdgePairs)
-		}
-		for i := 1; i < len(g); i++ {
-			if compareEdgePairs(g[i-1], g[i]) == 0 {
-				return nil, fmt.Errorf("patterns: scan: the store has two edges %d>%d on %s in window %s", g[i].From, g[i].To, g[i].Day, window)
+			for i := 1; i < len(g); i++ {
+				if compareEdgePairs(g[i-1], g[i]) == 0 {
+					return nil, fmt.Errorf("patterns: scan: the store has two edges %d>%d on %s in window %s", g[i].From, g[i].To, g[i].Day, window)
+				}
 			}
 		}
 		graphs[d] = g
@@ -381,4 +394,15 @@ func dayGraphs(edges []regiongraph.Edge, window string, dayIndex map[string]int)
 
 func compareEdgePairs(a, b regiongraph.Edge) int {
 	return groups.CompareEdges(EdgeKey{From: a.From, To: a.To}, EdgeKey{From: b.From, To: b.To})
+}
+
+// pairsAscend reports whether the edges' (from, to) pairs ascend strictly:
+// sorted, and no pair twice.
+func pairsAscend(g []regiongraph.Edge) bool {
+	for i := 1; i < len(g); i++ {
+		if a, b := &g[i-1], &g[i]; a.From > b.From || a.From == b.From && a.To >= b.To {
+			return false
+		}
+	}
+	return true
 }

@@ -1,7 +1,6 @@
 package regiongraph
 
 import (
-	"cmp"
 	"fmt"
 	"io"
 	"os"
@@ -116,10 +115,11 @@ func readDataset(dir string, opts ReadOptions, stretchRows int64) (*Store, error
 	}
 	var kept []selection
 	total := 0
+	bufs := make([]readBuffers, readWorkers())
 	for a := 0; a < len(days); a += datasetOpenFiles {
 		sts, _, closeAll, err := openDays(dir, meta, days[a:min(a+datasetOpenFiles, len(days))], fileOpts, stretchRows)
 		if err == nil {
-			err = forEach(len(sts), func(i int) error { return sts[i].selectRows(fileOpts) })
+			err = forEachWorker(len(sts), func(w, i int) error { return sts[i].selectRows(fileOpts, &bufs[w]) })
 		}
 		closeAll()
 		if err != nil {
@@ -146,7 +146,7 @@ func readDataset(dir string, opts ReadOptions, stretchRows int64) (*Store, error
 				offset += st.kept()
 				k++
 			}
-			err = fillDays(sts, dayOf, s.Edges, fileOpts)
+			err = fillDays(sts, dayOf, s.Edges, fileOpts, bufs)
 		}
 		closeAll()
 		if err != nil {
@@ -226,6 +226,9 @@ func openDays(dir string, meta Meta, days []dayJSON, opts ReadOptions, stretchRo
 		if err != nil {
 			return nil, nil, closeAll, err
 		}
+		for _, st := range sts {
+			st.dayOrder = true
+		}
 		stretches = append(stretches, sts...)
 		for range sts {
 			day = append(day, d.Day)
@@ -234,22 +237,20 @@ func openDays(dir string, meta Meta, days []dayJSON, opts ReadOptions, stretchRo
 	return stretches, day, closeAll, nil
 }
 
-// fillDays fills the stretches' kept edges at their offsets in edges and
-// puts each day in store order (see checkDayEdges).
-func fillDays(stretches []*stretch, day []string, edges []Edge, opts ReadOptions) error {
+// fillDays fills the stretches' kept edges at their offsets in edges, each
+// day in store order (see stretch.dayOrder), and checks their days.
+func fillDays(stretches []*stretch, day []string, edges []Edge, opts ReadOptions, bufs []readBuffers) error {
 	cols := readColumns(opts)
-	if err := forEach(len(stretches), func(i int) error {
+	if err := forEachWorker(len(stretches), func(w, i int) error {
 		st := stretches[i]
-		return st.fill(edges[st.offset:st.offset+st.kept()], cols)
+		return st.fill(edges[st.offset:st.offset+st.kept()], cols, &bufs[w])
 	}); err != nil {
 		return err
 	}
 	return checkDayEdges(stretches, day, edges)
 }
 
-// checkDayEdges checks that each stretch's edges, in the day file's order
-// (window, trips descending), are of its day, and puts them in store
-// order.
+// checkDayEdges checks that each stretch's edges are of its day.
 func checkDayEdges(stretches []*stretch, day []string, edges []Edge) error {
 	return forEach(len(stretches), func(i int) error {
 		st := stretches[i]
@@ -259,7 +260,6 @@ func checkDayEdges(stretches []*stretch, day []string, edges []Edge) error {
 				return fmt.Errorf("regiongraph: %s: holds an edge of day %s, the manifest lists it as day %s", st.path, mine[j].Day, day[i])
 			}
 		}
-		sortDayFileEdges(mine)
 		return nil
 	})
 }
@@ -274,39 +274,4 @@ func datasetDayRange(dir string) (first, last string, err error) {
 		return "", "", nil
 	}
 	return m.Days[0].Day, m.Days[len(m.Days)-1].Day, nil
-}
-
-// sortDayFileEdges puts the edges of one day, in the order of its file
-// (window, then trips descending), in store order (window, from, to): each
-// window's run is sorted by a key of its region pair, and the edges are
-// moved once, rather than swapped about while sorting.
-func sortDayFileEdges(edges []Edge) {
-	type keyed struct {
-		pair  uint64
-		index int32
-	}
-	var keys []keyed
-	var moved []Edge
-	for a := 0; a < len(edges); {
-		b := a + 1
-		for b < len(edges) && edges[b].Window == edges[a].Window {
-			b++
-		}
-		run := edges[a:b]
-		keys = keys[:0]
-		sorted := true
-		for i := range run {
-			k := uint64(uint32(run[i].From))<<32 | uint64(uint32(run[i].To))
-			sorted = sorted && (i == 0 || keys[i-1].pair < k)
-			keys = append(keys, keyed{k, int32(i)})
-		}
-		if !sorted {
-			slices.SortFunc(keys, func(x, y keyed) int { return cmp.Compare(x.pair, y.pair) })
-			moved = append(moved[:0], run...)
-			for i, k := range keys {
-				run[i] = moved[k.index]
-			}
-		}
-		a = b
-	}
 }

@@ -1,6 +1,7 @@
 package regiongraph
 
 import (
+	"cmp"
 	"encoding/json"
 	"fmt"
 	"math"
@@ -199,7 +200,8 @@ func cutStretches(path string, pf *parquet.File, leaf [numStoreColumns]int, stre
 // file order. Each stretch first finds the rows it keeps, then, once the
 // stretches' offsets in the edges are known, fills them.
 func readStretches(stretches []*stretch, opts ReadOptions) ([]Edge, error) {
-	if err := forEach(len(stretches), func(i int) error { return stretches[i].selectRows(opts) }); err != nil {
+	bufs := make([]readBuffers, readWorkers())
+	if err := forEachWorker(len(stretches), func(w, i int) error { return stretches[i].selectRows(opts, &bufs[w]) }); err != nil {
 		return nil, err
 	}
 	kept := 0
@@ -212,9 +214,9 @@ func readStretches(stretches []*stretch, opts ReadOptions) ([]Edge, error) {
 	}
 	edges := make([]Edge, kept)
 	cols := readColumns(opts)
-	if err := forEach(len(stretches), func(i int) error {
+	if err := forEachWorker(len(stretches), func(w, i int) error {
 		st := stretches[i]
-		return st.fill(edges[st.offset:st.offset+st.kept()], cols)
+		return st.fill(edges[st.offset:st.offset+st.kept()], cols, &bufs[w])
 	}); err != nil {
 		return nil, err
 	}
@@ -276,10 +278,20 @@ func readStoreMeta(path string, pf *parquet.File, s *Store) error {
 // decoder on a damaged file becomes an error rather than ending the
 // program.
 func forEach(n int, work func(i int) error) error {
+	return forEachWorker(n, func(_, i int) error { return work(i) })
+}
+
+// readWorkers is the number of goroutines of forEach.
+func readWorkers() int { return runtime.GOMAXPROCS(0) }
+
+// forEachWorker is forEach that also passes work the number w, below
+// readWorkers(), of the goroutine calling it, so that each goroutine can
+// reuse its own buffers.
+func forEachWorker(n int, work func(w, i int) error) error {
 	errs := make([]error, n)
 	var next atomic.Int64
 	var wg sync.WaitGroup
-	for range min(n, runtime.GOMAXPROCS(0)) {
+	for w := range min(n, readWorkers()) {
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
@@ -294,7 +306,7 @@ func forEach(n int, work func(i int) error) error {
 							errs[i] = fmt.Errorf("regiongraph: damaged store: %v", r)
 						}
 					}()
-					errs[i] = work(i)
+					errs[i] = work(w, i)
 				}()
 				if errs[i] != nil {
 					next.Store(int64(n)) // stop handing out work
@@ -321,6 +333,10 @@ type stretch struct {
 	all        bool    // every row is kept
 	rows       []int32 // else the kept rows, ascending, as indexes in the row group
 	offset     int     // of the stretch's first kept edge in the store
+	// dayOrder: the rows are in a day file's order (window, then trips
+	// descending) and fill puts the kept edges in store order (window,
+	// from, to) as it sets them.
+	dayOrder bool
 }
 
 func (st *stretch) kept() int {
@@ -338,8 +354,29 @@ func (st *stretch) errorf(col int, format string, args ...any) error {
 // stay in the processor's cache while every column fills its field.
 const readBlock = 4096
 
+// readBuffers are the buffers a reading goroutine reuses from stretch to
+// stretch: a year of day files would otherwise leave hundreds of
+// megabytes of garbage.
+type readBuffers struct {
+	keep    []bool
+	windows []string
+	ids     [2][]int32
+	src     []int32
+	strs    []string
+	ints    []int64
+	f64     []float64
+	sorter  pairSorter
+}
+
+// sized returns *s with length n, reusing its memory; the values are
+// left over from before.
+func sized[T any](s *[]T, n int) []T {
+	*s = slices.Grow((*s)[:0], n)[:n]
+	return *s
+}
+
 // selectRows finds the rows of the stretch that opts keeps.
-func (st *stretch) selectRows(opts ReadOptions) error {
+func (st *stretch) selectRows(opts ReadOptions, buf *readBuffers) error {
 	var filters []int
 	if opts.MinTrips > 0 {
 		filters = append(filters, storeTrips)
@@ -360,7 +397,8 @@ func (st *stretch) selectRows(opts ReadOptions) error {
 	if opts.MinTrips > 0 {
 		ranges = st.tripsRanges(opts.MinTrips)
 	}
-	keep := make([]bool, st.end-st.first)
+	keep := sized(&buf.keep, int(st.end-st.first))
+	clear(keep)
 	for _, r := range ranges {
 		for i := r[0]; i < r[1]; i++ {
 			keep[i-st.first] = true
@@ -403,23 +441,33 @@ func (st *stretch) selectRows(opts ReadOptions) error {
 		}
 		c.close()
 	}
-	for i, k := range keep {
+	n := 0
+	for _, k := range keep {
 		if k {
-			st.rows = append(st.rows, int32(st.first+int64(i)))
+			n++
 		}
 	}
-	st.all = len(st.rows) == len(keep)
-	if st.all {
-		st.rows = nil
+	st.all = n == len(keep)
+	st.rows = nil
+	if !st.all {
+		st.rows = make([]int32, 0, n)
+		for i, k := range keep {
+			if k {
+				st.rows = append(st.rows, int32(st.first+int64(i)))
+			}
+		}
 	}
 	return nil
 }
 
 // fill sets the columns cols of the stretch's kept edges, len(edges) ==
 // st.kept().
-func (st *stretch) fill(edges []Edge, cols []bool) error {
+func (st *stretch) fill(edges []Edge, cols []bool, buf *readBuffers) error {
 	if len(edges) == 0 {
 		return nil
+	}
+	if st.dayOrder {
+		return st.fillInOrder(edges, cols, buf)
 	}
 	var cursors []*columnCursor
 	var which []int
@@ -433,22 +481,205 @@ func (st *stretch) fill(edges []Edge, cols []bool) error {
 	}
 	scratch := new(readScratch)
 	for k := 0; k < len(edges); k += readBlock {
-		dst := edges[k:min(k+readBlock, len(edges))]
-		n := len(dst)
-		// The block is rows [a, b) of the row group, or the listed rows.
-		a, b := st.first+int64(k), st.first+int64(k+n)
-		var rows []int32
-		if !st.all {
-			rows = st.rows[k : k+n]
-			a, b = int64(rows[0]), int64(rows[n-1])+1
-		}
+		n := min(readBlock, len(edges)-k)
+		a, b, rows := st.block(k, n)
 		for i, c := range cursors {
-			if err := setColumn(dst, &storeColumns[which[i]], c, a, b, rows, scratch); err != nil {
+			if err := setColumn(edges[k:k+n], &storeColumns[which[i]], c, a, b, rows, scratch); err != nil {
 				return err
 			}
 		}
 	}
 	return nil
+}
+
+// fillInOrder is fill of a stretch in a day file's order: each column of
+// the kept rows is decoded whole, then gathered into the edges in store
+// order, so that every edge is written in sequence and once, rather than
+// filled in file order and moved (the 144-byte moves cost more than the
+// decoding) or written at scattered places.
+func (st *stretch) fillInOrder(edges []Edge, cols []bool, buf *readBuffers) error {
+	src, err := st.storeOrder(edges, buf)
+	if err != nil {
+		return err
+	}
+	n := len(edges)
+	for col := range numStoreColumns {
+		if !cols[col] || col != storeDay && col < storeTrips {
+			continue // storeOrder set the window and region ids
+		}
+		sc := &storeColumns[col]
+		c := newColumnCursor(st, col)
+		for k := 0; k < n && err == nil; k += readBlock {
+			m := min(readBlock, n-k)
+			a, b, rows := st.block(k, m)
+			switch sc.kind() {
+			case parquet.ByteArray:
+				err = c.strings(a, b, rows, sized(&buf.strs, n)[k:k+m])
+			case parquet.Int64:
+				err = c.int64s(a, b, rows, sized(&buf.ints, n)[k:k+m])
+			case parquet.Double:
+				err = c.float64s(a, b, rows, sized(&buf.f64, n)[k:k+m])
+			default:
+				err = st.errorf(col, "no reader of %v values in store order", sc.kind())
+			}
+		}
+		c.close()
+		if err != nil {
+			return err
+		}
+		strs, ints, f64 := buf.strs, buf.ints, buf.f64
+		for j := range edges {
+			i := j
+			if src != nil {
+				i = int(src[j])
+			}
+			switch sc.kind() {
+			case parquet.ByteArray:
+				*sc.str(&edges[j]) = strs[i]
+			case parquet.Int64:
+				*sc.int(&edges[j]) = int(ints[i])
+			default:
+				*sc.double(&edges[j]) = f64[i]
+			}
+		}
+	}
+	return nil
+}
+
+// block returns the rows of the n kept rows from the k-th: rows [a, b) of
+// the row group, or the listed rows.
+func (st *stretch) block(k, n int) (a, b int64, rows []int32) {
+	if st.all {
+		return st.first + int64(k), st.first + int64(k+n), nil
+	}
+	rows = st.rows[k : k+n]
+	return int64(rows[0]), int64(rows[n-1]) + 1, rows
+}
+
+// storeOrder reads the window and region ids of the stretch's kept rows,
+// which are in a day file's order, and returns, for each edge in store
+// order, the index of its kept row (nil when that is their order), setting
+// those fields of edges. Each window's run is sorted by its (from, to)
+// pairs, ties (a damaged file) kept in file order.
+func (st *stretch) storeOrder(edges []Edge, buf *readBuffers) ([]int32, error) {
+	n := len(edges)
+	windows := sized(&buf.windows, n)
+	ids := [2][]int32{sized(&buf.ids[0], n), sized(&buf.ids[1], n)}
+	for i, col := range [...]int{storeWindow, storeWindow + 1, storeWindow + 2} {
+		c := newColumnCursor(st, col)
+		for k := 0; k < n; k += readBlock {
+			m := min(readBlock, n-k)
+			a, b, rows := st.block(k, m)
+			var err error
+			if i == 0 {
+				err = c.strings(a, b, rows, windows[k:k+m])
+			} else {
+				err = c.int32s(a, b, rows, ids[i-1][k:k+m])
+			}
+			if err != nil {
+				c.close()
+				return nil, err
+			}
+		}
+		c.close()
+	}
+	var src []int32
+	for a := 0; a < n; {
+		b := a + 1
+		for b < n && windows[b] == windows[a] {
+			b++
+		}
+		if src == nil && !pairsAscending(ids[0][a:b], ids[1][a:b]) {
+			src = sized(&buf.src, n)
+			for i := range a {
+				src[i] = int32(i)
+			}
+		}
+		if src != nil {
+			buf.sorter.sort(ids[0][a:b], ids[1][a:b], src[a:b])
+			for j := a; j < b; j++ {
+				src[j] += int32(a)
+			}
+		}
+		a = b
+	}
+	for j := range edges {
+		i := j
+		if src != nil {
+			i = int(src[j])
+		}
+		e := &edges[j]
+		e.Window, e.From, e.To = windows[i], int(ids[0][i]), int(ids[1][i])
+	}
+	return src, nil
+}
+
+// pairsAscending reports whether the pairs (from[i], to[i]) ascend
+// strictly.
+func pairsAscending(from, to []int32) bool {
+	for i := 1; i < len(from); i++ {
+		if from[i-1] > from[i] || from[i-1] == from[i] && to[i-1] >= to[i] {
+			return false
+		}
+	}
+	return true
+}
+
+// A pairSorter orders region pairs, reusing its memory from call to call.
+type pairSorter struct {
+	count    []int32
+	tmp, key []int32
+}
+
+// sort sets order to the indexes of the pairs (from[i], to[i]) in
+// ascending order of the pairs, ties by index. Ids of up to radixBits bits
+// (a city's few thousand regions) are sorted by two counting passes, to
+// then from, each stable; others by a comparison sort.
+func (p *pairSorter) sort(from, to []int32, order []int32) {
+	const radixBits = 14
+	n := len(from)
+	small := true
+	for i := range n {
+		small = small && uint32(from[i]) < 1<<radixBits && uint32(to[i]) < 1<<radixBits
+	}
+	if !small {
+		for i := range order {
+			order[i] = int32(i)
+		}
+		slices.SortStableFunc(order, func(x, y int32) int {
+			return cmp.Or(cmp.Compare(from[x], from[y]), cmp.Compare(to[x], to[y]))
+		})
+		return
+	}
+	p.tmp = slices.Grow(p.tmp[:0], n)[:n]
+	for i := range p.tmp {
+		p.tmp[i] = int32(i)
+	}
+	// by to into order, then by from back from order into order via tmp
+	p.countingPass(to, p.tmp, order)
+	p.countingPass(from, order, p.tmp)
+	copy(order, p.tmp)
+}
+
+// countingPass writes the indexes in, stably ordered by key[index], to out.
+func (p *pairSorter) countingPass(key, in, out []int32) {
+	hi := int32(0)
+	for _, i := range in {
+		hi = max(hi, key[i])
+	}
+	p.count = slices.Grow(p.count[:0], int(hi)+2)[:hi+2]
+	clear(p.count)
+	for _, i := range in {
+		p.count[key[i]+1]++
+	}
+	for k := 1; k < len(p.count); k++ {
+		p.count[k] += p.count[k-1]
+	}
+	for _, i := range in {
+		k := key[i]
+		out[p.count[k]] = i
+		p.count[k]++
+	}
 }
 
 // readScratch holds a block of decoded values of each kind.
