@@ -220,47 +220,20 @@ func (a *Aggregator) Finish(ctx context.Context, begin func(*Store) (add func([]
 
 // Store is Finish collecting the store in memory.
 func (a *Aggregator) Store(ctx context.Context) (*Store, error) {
-	var store *Store
-	err := a.Finish(ctx, func(s *Store) (func([]Edge) error, func() error, error) {
-		store = s
-		return func(es []Edge) error { s.Edges = append(s.Edges, es...); return nil }, func() error { return nil }, nil
-	})
-	return store, err
+	var k memorySink
+	err := a.Finish(ctx, k.begin)
+	return k.store, err
 }
 
 // WriteTo is Finish writing the store to w as one Parquet file, the bytes
 // IngestTo writes of the same trips; edit, when not nil, may change the
 // metadata first. The returned store has the metadata and no edges.
 func (a *Aggregator) WriteTo(ctx context.Context, w io.Writer, edit func(*Meta)) (*Store, Written, error) {
-	var store *Store
-	var ew *edgeWriter
-	err := a.Finish(ctx, func(s *Store) (func([]Edge) error, func() error, error) {
-		store = s
-		if edit != nil {
-			edit(&s.Meta)
-		}
-		wopts, err := storeMetadata(s)
-		if err != nil {
-			return nil, nil, fmt.Errorf("regiongraph: write: %v", err)
-		}
-		ew = newEdgeWriter(w, rowGroupRows, wopts)
-		add := func(es []Edge) error {
-			if err := ew.add(es); err != nil {
-				return fmt.Errorf("regiongraph: write: %w", err)
-			}
-			return nil
-		}
-		return add, func() error {
-			if err := ew.close(); err != nil {
-				return fmt.Errorf("regiongraph: write: %w", err)
-			}
-			return nil
-		}, nil
-	})
-	if err != nil {
+	k := fileSink{w: w, edit: edit}
+	if err := a.Finish(ctx, k.begin); err != nil {
 		return nil, Written{}, err
 	}
-	return store, Written{Edges: ew.n, Days: ew.days, Spilled: store.spilled}, nil
+	return k.store, k.written(), nil
 }
 
 // AddFile adds a placed-trip file (ReadPlaced): its metadata, then its
@@ -294,47 +267,6 @@ func (o Options) CheckYield(q Quality, sources []Source) error {
 // not nil, may change the metadata first. Nothing is left at dir on an
 // error. The returned store has the metadata and no edges.
 func (a *Aggregator) WriteDataset(ctx context.Context, dir string, edit func(*Meta)) (*Store, Written, error) {
-	var store *Store
-	var dw *DatasetWriter
-	err := a.Finish(ctx, func(s *Store) (func([]Edge) error, func() error, error) {
-		store = s
-		if edit != nil {
-			edit(&s.Meta)
-		}
-		var err error
-		if dw, err = CreateDataset(dir, s.Meta, s.regionsGeoJSON); err != nil {
-			return nil, nil, err
-		}
-		var day []Edge // the edges of the day being aggregated, every window
-		add := func(es []Edge) error {
-			if len(es) == 0 {
-				return nil
-			}
-			if len(day) > 0 && day[0].Day != es[0].Day {
-				if err := dw.WriteDay(day[0].Day, day); err != nil {
-					return err
-				}
-				day = day[:0]
-			}
-			day = append(day, es...)
-			return nil
-		}
-		return add, func() error {
-			if len(day) > 0 {
-				if err := dw.WriteDay(day[0].Day, day); err != nil {
-					return err
-				}
-			}
-			return dw.Close()
-		}, nil
-	})
-	if err != nil {
-		if dw != nil {
-			dw.Abort()
-		}
-		return nil, Written{}, err
-	}
-	w := dw.Written()
-	w.Spilled = store.spilled
-	return store, w, nil
+	k := datasetSink{dir: dir, edit: edit}
+	return k.finish(a.Finish(ctx, k.begin))
 }

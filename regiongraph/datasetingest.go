@@ -25,36 +25,8 @@ func IngestDataset(ctx context.Context, regions *partition.Partition, regionsSHA
 	if err := replaceable(dir); err != nil {
 		return nil, Written{}, err
 	}
-	var store *Store
-	var dw *DatasetWriter
-	var days *dayPipe
-	err := ingest(ctx, regions, regionsSHA256, inputs, opts, func(s *Store) (func([]Edge) error, func() error, error) {
-		store = s
-		if edit != nil {
-			edit(&s.Meta)
-		}
-		var err error
-		if dw, err = CreateDataset(dir, s.Meta, s.regionsGeoJSON); err != nil {
-			return nil, nil, err
-		}
-		days = newDayPipe(dw)
-		return days.add, days.close, nil
-	})
-	if err != nil {
-		if days != nil {
-			days.close()
-		}
-		if dw != nil {
-			dw.Abort()
-		}
-		return nil, Written{}, err
-	}
-	if err := dw.Close(); err != nil {
-		return nil, Written{}, err
-	}
-	n := dw.Written()
-	n.Spilled = store.spilled
-	return store, n, nil
+	k := datasetSink{dir: dir, edit: edit}
+	return k.finish(ingest(ctx, regions, regionsSHA256, inputs, opts, k.begin))
 }
 
 // dayPipe collects edges given in store order into days and writes each

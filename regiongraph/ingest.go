@@ -37,16 +37,11 @@ type inputFile struct {
 //
 // Ingest holds every edge in memory; IngestTo writes them as they come.
 func Ingest(ctx context.Context, regions *partition.Partition, regionsSHA256 string, inputs []Input, opts Options) (*Store, error) {
-	var store *Store
-	err := ingest(ctx, regions, regionsSHA256, inputs, opts, func(s *Store) (func([]Edge) error, func() error, error) {
-		store = s
-		add := func(es []Edge) error { s.Edges = append(s.Edges, es...); return nil }
-		return add, func() error { return nil }, nil
-	})
-	if err != nil {
+	var k memorySink
+	if err := ingest(ctx, regions, regionsSHA256, inputs, opts, k.begin); err != nil {
 		return nil, err
 	}
-	return store, nil
+	return k.store, nil
 }
 
 // IngestTo is Ingest writing the store to w as one Parquet file, the bytes
@@ -56,37 +51,11 @@ func Ingest(ctx context.Context, regions *partition.Partition, regionsSHA256 str
 // has the metadata and no edges. edit, when not nil, may change the
 // metadata (the sources' names) before it is written.
 func IngestTo(ctx context.Context, regions *partition.Partition, regionsSHA256 string, inputs []Input, opts Options, w io.Writer, edit func(*Meta)) (*Store, Written, error) {
-	var store *Store
-	var ew *edgeWriter
-	var spilled int64
-	err := ingest(ctx, regions, regionsSHA256, inputs, opts, func(s *Store) (func([]Edge) error, func() error, error) {
-		store = s
-		if edit != nil {
-			edit(&s.Meta)
-		}
-		wopts, err := storeMetadata(s)
-		if err != nil {
-			return nil, nil, fmt.Errorf("regiongraph: write: %v", err)
-		}
-		ew = newEdgeWriter(w, rowGroupRows, wopts)
-		spilled = s.spilled
-		add := func(es []Edge) error {
-			if err := ew.add(es); err != nil {
-				return fmt.Errorf("regiongraph: write: %w", err)
-			}
-			return nil
-		}
-		return add, func() error {
-			if err := ew.close(); err != nil {
-				return fmt.Errorf("regiongraph: write: %w", err)
-			}
-			return nil
-		}, nil
-	})
-	if err != nil {
+	k := fileSink{w: w, edit: edit}
+	if err := ingest(ctx, regions, regionsSHA256, inputs, opts, k.begin); err != nil {
 		return nil, Written{}, err
 	}
-	return store, Written{Edges: ew.n, Days: ew.days, Spilled: spilled}, nil
+	return k.store, k.written(), nil
 }
 
 // Written counts what IngestTo wrote.
@@ -101,7 +70,7 @@ type Written struct {
 // hands the edges in store order to the first function begin returns, and
 // calls the second at the end.
 func ingest(ctx context.Context, regions *partition.Partition, regionsSHA256 string, inputs []Input, opts Options,
-	begin func(*Store) (add func([]Edge) error, end func() error, err error)) error {
+	begin sinkBegin) error {
 	if regions == nil || len(regions.Regions) == 0 {
 		return errors.New("regiongraph: no regions")
 	}
