@@ -66,10 +66,8 @@ func runAppraise(ctx context.Context, env *environment, args []string) error {
 	if err != nil {
 		return err
 	}
-	var inputs []regiongraph.Input
-	for _, t := range s.Trips.Files {
-		inputs = append(inputs, regiongraph.Input{Path: r.rel(t), Format: s.Trips.Format})
-	}
+	trips, _ := r.tripFiles()
+	inputs := tripInputs(trips, s.Trips.Format)
 	trOpts, kept, err := r.keepTrips()
 	if err != nil {
 		return err

@@ -142,26 +142,12 @@ func exploreStudy(ctx context.Context, env *environment, file string) (*explore.
 	if err != nil {
 		return nil, err
 	}
-	var inputs []regiongraph.Input
-	names := map[string]string{}
-	for _, t := range s.Trips.Files {
-		inputs = append(inputs, regiongraph.Input{Path: r.rel(t), Format: s.Trips.Format})
-		names[r.rel(t)] = t
-	}
-	update, finish := progress(env, "ingest")
-	opts := s.Trips.Options
-	opts.Progress = update
-	store, err := regiongraph.Ingest(ctx, regions, sum, inputs, opts)
-	finish()
-	if err != nil {
-		return nil, err
-	}
 	// The trip files are named as run's store names them: relative to
 	// the study file.
-	for i, src := range store.Meta.Sources {
-		if name, ok := names[src.Path]; ok {
-			store.Meta.Sources[i].Path = name
-		}
+	trips, names := r.tripFiles()
+	store, err := ingestInMemory(ctx, env, regions, sum, tripInputs(trips, s.Trips.Format), names, s.Trips.Options)
+	if err != nil {
+		return nil, err
 	}
 	return &explore.Study{
 		Title: s.titleOr(file), Store: store, Regions: regions, Scheme: scheme,

@@ -58,10 +58,7 @@ func runIngest(ctx context.Context, env *environment, args []string) error {
 // among them is read a day file at a time).
 func ingestDataset(ctx context.Context, env *environment, regions *partition.Partition, sum string, trips []string, format regiongraph.Format, opts regiongraph.Options, merge []string, out string) error {
 	start := time.Now()
-	var inputs []regiongraph.Input
-	for _, t := range trips {
-		inputs = append(inputs, regiongraph.Input{Path: t, Format: format})
-	}
+	inputs := tripInputs(trips, format)
 	update, finish := progress(env, "ingest")
 	opts.Progress = update
 	var meta regiongraph.Meta
@@ -90,11 +87,7 @@ func ingestDataset(ctx context.Context, env *environment, regions *partition.Par
 	if err != nil {
 		return err
 	}
-	printQuality(env, meta.Quality)
-	if q := meta.Quality; q.OffsetMismatch > 0 {
-		fmt.Fprintf(env.stderr, "warning: %v (--tz, time_zone in a study file; --strict makes this an error)\n", regiongraph.OffsetMismatchError(q, meta.TimeZone))
-	}
-	fmt.Fprintf(env.stdout, "%d edges on %d days in %.2f s -> %s\n", written.Edges, written.Days, time.Since(start).Seconds(), out)
+	printIngest(env, meta, written.Edges, written.Days, start, out)
 	return nil
 }
 
@@ -102,10 +95,7 @@ func ingestDataset(ctx context.Context, env *environment, regions *partition.Par
 // holding a day's trips at a time rather than the store.
 func ingestTo(ctx context.Context, env *environment, regions *partition.Partition, sum string, trips []string, format regiongraph.Format, opts regiongraph.Options, out string) error {
 	start := time.Now()
-	var inputs []regiongraph.Input
-	for _, t := range trips {
-		inputs = append(inputs, regiongraph.Input{Path: t, Format: format})
-	}
+	inputs := tripInputs(trips, format)
 	update, finish := progress(env, "ingest")
 	opts.Progress = update
 	var meta regiongraph.Meta
@@ -122,8 +112,7 @@ func ingestTo(ctx context.Context, env *environment, regions *partition.Partitio
 	if err != nil {
 		return err
 	}
-	printQuality(env, meta.Quality)
-	fmt.Fprintf(env.stdout, "%d edges on %d days in %.2f s -> %s\n", written.Edges, written.Days, time.Since(start).Seconds(), out)
+	printIngest(env, meta, written.Edges, written.Days, start, out)
 	return nil
 }
 
@@ -134,21 +123,10 @@ func ingestTo(ctx context.Context, env *environment, regions *partition.Partitio
 // the study folder sits).
 func ingest(ctx context.Context, env *environment, regions *partition.Partition, sum string, trips []string, names map[string]string, format regiongraph.Format, opts regiongraph.Options, merge []string, out string) (*regiongraph.Store, error) {
 	start := time.Now()
-	var inputs []regiongraph.Input
-	for _, t := range trips {
-		inputs = append(inputs, regiongraph.Input{Path: t, Format: format})
-	}
-	update, finish := progress(env, "ingest")
-	opts.Progress = update
-	store, err := regiongraph.Ingest(ctx, regions, sum, inputs, opts)
-	finish()
+	inputs := tripInputs(trips, format)
+	store, err := ingestInMemory(ctx, env, regions, sum, inputs, names, opts)
 	if err != nil {
 		return nil, err
-	}
-	for i, src := range store.Meta.Sources {
-		if name, ok := names[src.Path]; ok {
-			store.Meta.Sources[i].Path = name
-		}
 	}
 	if len(merge) > 0 {
 		stores := []*regiongraph.Store{store}
@@ -166,12 +144,47 @@ func ingest(ctx context.Context, env *environment, regions *partition.Partition,
 	if err := env.files.write(out, kindStore, store.WriteParquet); err != nil {
 		return nil, err
 	}
-	printQuality(env, store.Meta.Quality)
-	if q := store.Meta.Quality; q.OffsetMismatch > 0 {
-		fmt.Fprintf(env.stderr, "warning: %v (--tz, time_zone in a study file; --strict makes this an error)\n", regiongraph.OffsetMismatchError(q, store.Meta.TimeZone))
-	}
-	fmt.Fprintf(env.stdout, "%d edges on %d days in %.2f s -> %s\n", len(store.Edges), countDays(store), time.Since(start).Seconds(), out)
+	printIngest(env, store.Meta, len(store.Edges), countDays(store), start, out)
 	return store, nil
+}
+
+// tripInputs returns the trip files as ingest inputs of one format.
+func tripInputs(trips []string, format regiongraph.Format) []regiongraph.Input {
+	inputs := make([]regiongraph.Input, len(trips))
+	for i, t := range trips {
+		inputs[i] = regiongraph.Input{Path: t, Format: format}
+	}
+	return inputs
+}
+
+// ingestInMemory builds the day-graph store in memory, with progress on a
+// terminal. names, when given, maps a trip file's path to the name
+// recorded in the store.
+func ingestInMemory(ctx context.Context, env *environment, regions *partition.Partition, sum string, inputs []regiongraph.Input, names map[string]string, opts regiongraph.Options) (*regiongraph.Store, error) {
+	update, finish := progress(env, "ingest")
+	opts.Progress = update
+	store, err := regiongraph.Ingest(ctx, regions, sum, inputs, opts)
+	finish()
+	if err != nil {
+		return nil, err
+	}
+	for i, src := range store.Meta.Sources {
+		if name, ok := names[src.Path]; ok {
+			store.Meta.Sources[i].Path = name
+		}
+	}
+	return store, nil
+}
+
+// printIngest prints what an ingest read and wrote: the accounting of
+// every row, a warning when the times' offsets disagree with the time
+// zone, and the edges and days written to out.
+func printIngest(env *environment, meta regiongraph.Meta, edges, days int, start time.Time, out string) {
+	printQuality(env, meta.Quality)
+	if q := meta.Quality; q.OffsetMismatch > 0 {
+		fmt.Fprintf(env.stderr, "warning: %v (--tz, time_zone in a study file; --strict makes this an error)\n", regiongraph.OffsetMismatchError(q, meta.TimeZone))
+	}
+	fmt.Fprintf(env.stdout, "%d edges on %d days in %.2f s -> %s\n", edges, days, time.Since(start).Seconds(), out)
 }
 
 func countDays(s *regiongraph.Store) int {

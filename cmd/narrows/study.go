@@ -301,15 +301,22 @@ func (r *studyRun) analyse(ctx context.Context, env *environment, regions *parti
 	return r.compare(ctx, env, store, in)
 }
 
-// dayGraphs ingests the study's trips onto the regions, whose GeoJSON has
-// the SHA-256 sum, writes the store and returns it.
-func (r *studyRun) dayGraphs(ctx context.Context, env *environment, regions *partition.Partition, sum string) (*regiongraph.Store, error) {
-	var trips []string
-	names := map[string]string{}
+// tripFiles returns the study's trip files resolved against its folder,
+// and the names the store records for them: as the study file gives them,
+// so that the store does not depend on where the study folder sits.
+func (r *studyRun) tripFiles() (trips []string, names map[string]string) {
+	names = map[string]string{}
 	for _, t := range r.Trips.Files {
 		trips = append(trips, r.rel(t))
 		names[r.rel(t)] = t
 	}
+	return trips, names
+}
+
+// dayGraphs ingests the study's trips onto the regions, whose GeoJSON has
+// the SHA-256 sum, writes the store and returns it.
+func (r *studyRun) dayGraphs(ctx context.Context, env *environment, regions *partition.Partition, sum string) (*regiongraph.Store, error) {
+	trips, names := r.tripFiles()
 	graphs := filepath.Join(r.steps, "graphs.parquet")
 	opts := r.Trips.Options
 	if r.appraise {
