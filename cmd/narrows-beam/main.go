@@ -48,15 +48,16 @@ func main() {
 	// A worker started by a runner runs the steps and never gets here
 	// with shards; beam.Init hands it over.
 	beam.Init()
-	if err := run(context.Background(), cfg, flag.Args()); err != nil {
+	if err := run(context.Background(), cfg, flag.Args(), beamx.Run); err != nil {
 		fmt.Fprintln(os.Stderr, "narrows-beam:", err)
 		os.Exit(1)
 	}
 }
 
-// run builds and runs the pipeline; a failed run leaves no dataset and
-// removes its staging folder.
-func run(ctx context.Context, cfg Config, shards []string) error {
+// run builds the pipeline and has execute run it (beamx.Run: the runner
+// of Beam's flags); a failed run leaves no dataset and removes its staging
+// folder.
+func run(ctx context.Context, cfg Config, shards []string, execute func(context.Context, *beam.Pipeline) error) error {
 	if cfg.Regions == "" || cfg.Out == "" || len(shards) == 0 {
 		return fmt.Errorf("--regions, --out and shard files are required")
 	}
@@ -70,7 +71,7 @@ func run(ctx context.Context, cfg Config, shards []string) error {
 		os.RemoveAll(staging)
 		return err
 	}
-	if err := beamx.Run(ctx, p); err != nil {
+	if err := execute(ctx, p); err != nil {
 		os.RemoveAll(staging)
 		return err
 	}

@@ -76,21 +76,10 @@ func splitRows(t *testing.T, path, dir string, n int, seed uint64) []string {
 
 // runPipeline runs the pipeline on prism in this process.
 func runPipeline(cfg Config, shards []string) error {
-	staging, err := regiongraph.NewDatasetStaging(cfg.Out)
-	if err != nil {
+	return run(context.Background(), cfg, shards, func(ctx context.Context, p *beam.Pipeline) error {
+		_, err := prism.Execute(ctx, p)
 		return err
-	}
-	cfg.Staging = staging
-	p, s := beam.NewPipelineWithRoot()
-	if err := Build(s, cfg, shards); err != nil {
-		os.RemoveAll(staging)
-		return err
-	}
-	if _, err := prism.Execute(context.Background(), p); err != nil {
-		os.RemoveAll(staging)
-		return err
-	}
-	return nil
+	})
 }
 
 // sameStore fails unless the stores hold the same metadata and edges.
