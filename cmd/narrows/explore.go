@@ -192,21 +192,11 @@ func writeStudyReport(ctx context.Context, file string, regions *partition.Parti
 // regions back from their GeoJSON bytes so that they are the regions run
 // analyses, without writing them.
 func regionsInMemory(ctx context.Context, env *environment, osmPath string, opts partition.Options) (*partition.Partition, string, error) {
-	opts.Warn = func(msg string) { fmt.Fprintf(env.stderr, "warning: %s: %s\n", osmPath, msg) }
-	p, err := partition.ReadFile(ctx, osmPath, opts)
+	p, geojson, err := partitionExtract(ctx, env, osmPath, opts)
 	if err != nil {
 		return nil, "", err
 	}
-	var geojson bytes.Buffer
-	if err := p.WriteGeoJSON(&geojson); err != nil {
-		return nil, "", err
-	}
-	back, sum, err := decodeRegions(geojson.Bytes(), osmPath)
-	if err != nil {
-		return nil, "", err
-	}
-	back.Network, back.Routing = p.Network, p.Routing
-	return back, sum, nil
+	return regionsAsWritten(p, geojson, osmPath)
 }
 
 // saveStudy writes the choices into the study file: the previous version

@@ -46,16 +46,11 @@ func runRegions(ctx context.Context, env *environment, args []string) error {
 // the SHA-256 of those bytes, which ties a day-graph store to its regions.
 func buildRegions(ctx context.Context, env *environment, osmPath string, opts partition.Options, out string) (*partition.Partition, string, error) {
 	start := time.Now()
-	opts.Warn = func(msg string) { fmt.Fprintf(env.stderr, "warning: %s: %s\n", osmPath, msg) }
-	p, err := partition.ReadFile(ctx, osmPath, opts)
+	p, geojson, err := partitionExtract(ctx, env, osmPath, opts)
 	if err != nil {
 		return nil, "", err
 	}
-	var geojson bytes.Buffer
-	if err := p.WriteGeoJSON(&geojson); err != nil {
-		return nil, "", err
-	}
-	if err := env.files.write(out, kindRegions, func(w io.Writer) error { _, err := w.Write(geojson.Bytes()); return err }); err != nil {
+	if err := env.files.write(out, kindRegions, func(w io.Writer) error { _, err := w.Write(geojson); return err }); err != nil {
 		return nil, "", err
 	}
 	var area float64
@@ -64,12 +59,33 @@ func buildRegions(ctx context.Context, env *environment, osmPath string, opts pa
 	}
 	fmt.Fprintf(env.stdout, "%d regions covering %.2f km² in %.2f s -> %s\n", len(p.Regions), area, time.Since(start).Seconds(), out)
 	printRegionSteps(env.stdout, p, opts)
-	back, sum, err := decodeRegions(geojson.Bytes(), out)
+	return regionsAsWritten(p, geojson, out)
+}
+
+// partitionExtract partitions the extract at osmPath, warnings to stderr,
+// and returns the regions with their GeoJSON.
+func partitionExtract(ctx context.Context, env *environment, osmPath string, opts partition.Options) (*partition.Partition, []byte, error) {
+	opts.Warn = func(msg string) { fmt.Fprintf(env.stderr, "warning: %s: %s\n", osmPath, msg) }
+	p, err := partition.ReadFile(ctx, osmPath, opts)
+	if err != nil {
+		return nil, nil, err
+	}
+	var geojson bytes.Buffer
+	if err := p.WriteGeoJSON(&geojson); err != nil {
+		return nil, nil, err
+	}
+	return p, geojson.Bytes(), nil
+}
+
+// regionsAsWritten returns the regions as read back from their GeoJSON
+// (what a later step reading the file gets, so that a run in memory equals
+// one from files) with its SHA-256, keeping p's linework: the GeoJSON
+// holds none, and the maps and the routing take it from the extract's read.
+func regionsAsWritten(p *partition.Partition, geojson []byte, name string) (*partition.Partition, string, error) {
+	back, sum, err := decodeRegions(geojson, name)
 	if err != nil {
 		return nil, "", err
 	}
-	// The GeoJSON holds no linework; the maps and the routing take it
-	// from this read.
 	back.Network, back.Routing = p.Network, p.Routing
 	return back, sum, nil
 }
