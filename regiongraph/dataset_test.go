@@ -1,6 +1,7 @@
 package regiongraph
 
 import (
+	"context"
 	"os"
 	"path/filepath"
 	"reflect"
@@ -175,6 +176,14 @@ func TestDatasetDamage(t *testing.T) {
 			_, err := ReadFile(ds)
 			if err == nil || !strings.Contains(err.Error(), c.want) || !strings.Contains(err.Error(), ds) {
 				t.Fatalf("got %v, want an error naming %s with %q", err, ds, c.want)
+			}
+			// Read a day at a time: refused when opened or when the day is reached.
+			r, err := OpenDays(ds, ReadOptions{})
+			if err == nil {
+				err = r.Each(context.Background(), func(string, []Edge) error { return nil })
+			}
+			if err == nil || !strings.Contains(err.Error(), c.want) || !strings.Contains(err.Error(), ds) {
+				t.Fatalf("a day at a time: got %v, want an error naming %s with %q", err, ds, c.want)
 			}
 		})
 	}

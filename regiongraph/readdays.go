@@ -23,6 +23,9 @@ type DayReader struct {
 	// regions, when set by CheckRegions, are the region ids an edge may
 	// name.
 	regions *regionIDs
+	// stretchRows cuts a day file into pieces (see readFile); tests
+	// make it small.
+	stretchRows int64
 }
 
 // OpenDays opens the store at path for reading a day at a time the edges
@@ -61,7 +64,7 @@ func OpenDays(path string, opts ReadOptions) (*DayReader, error) {
 	if err := checkStoreMeta(path, s); err != nil {
 		return nil, err
 	}
-	r := &DayReader{store: s, dir: path, opts: opts}
+	r := &DayReader{store: s, dir: path, opts: opts, stretchRows: stretchRows}
 	for _, d := range m.Days {
 		if (opts.From == "" || d.Day >= opts.From) && (opts.To == "" || d.Day <= opts.To) {
 			r.days = append(r.days, d)
@@ -155,7 +158,7 @@ func (r *DayReader) Each(ctx context.Context, visit func(day string, edges []Edg
 // readDay reads the kept edges of one day file into *edges, reusing its
 // memory, and checks them, adding each window's trips to trips.
 func (r *DayReader) readDay(d dayJSON, buf *readBuffers, edges *[]Edge, trips []int64) ([]Edge, error) {
-	stretches, dayOf, closeAll, err := openDays(r.dir, r.store.Meta, []dayJSON{d}, r.opts, stretchRows)
+	stretches, dayOf, closeAll, err := openDays(r.dir, r.store.Meta, []dayJSON{d}, r.opts, r.stretchRows)
 	defer closeAll()
 	if err != nil {
 		return nil, err
