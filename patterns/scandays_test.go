@@ -49,7 +49,7 @@ func TestScanDaysEqualsScanStore(t *testing.T) {
 				if err != nil {
 					t.Fatal(err)
 				}
-				days, err := regiongraph.OpenDays(ds, regiongraph.ReadOptions{MinTrips: opts.Skyline.MinTrips, From: opts.From, To: opts.To, Columns: StoreColumns()})
+				days, err := regiongraph.OpenDays(ds, regiongraph.ReadOptions{MinTrips: opts.Skyline.MinTrips, From: opts.From, To: opts.To, Columns: ScanColumns()})
 				if err != nil {
 					t.Fatal(err)
 				}

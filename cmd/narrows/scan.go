@@ -50,10 +50,11 @@ func (f *storeFlags) openPeriod(opts patterns.ScanOptions) (*regiongraph.Store, 
 }
 
 // openDays opens the store for reading a day at a time the days of opts'
-// period, with the thresholds of open, and the regions it was built on;
+// period, with the minimum trips of open and only the columns a scan
+// uses (patterns.ScanColumns), and the regions it was built on;
 // the edges' region ids are checked as they are read.
 func (f *storeFlags) openDays(opts patterns.ScanOptions) (*regiongraph.DayReader, *partition.Partition, error) {
-	days, err := regiongraph.OpenDays(f.graphs, regiongraph.ReadOptions{MinTrips: opts.Skyline.MinTrips, From: opts.From, To: opts.To, Columns: patterns.StoreColumns()})
+	days, err := regiongraph.OpenDays(f.graphs, regiongraph.ReadOptions{MinTrips: opts.Skyline.MinTrips, From: opts.From, To: opts.To, Columns: patterns.ScanColumns()})
 	if err != nil {
 		return nil, nil, err
 	}
