@@ -171,7 +171,7 @@ func CheckPairs(store *regiongraph.Store, opts ScanOptions) error {
 	if err := checkScanDays(&opts); err != nil {
 		return nil // ScanStore says what is wrong with the days
 	}
-	window, err := resolveWindow(store.Meta.Windows, store.Edges, opts.Window)
+	window, err := resolveWindow(storeWindows(store, 0), opts.Window)
 	if err != nil {
 		return nil // ScanStore names the windows
 	}

@@ -10,7 +10,6 @@ import (
 	"time"
 
 	"narrows/partition/geodesy"
-	"narrows/patterns/groups"
 	"narrows/regiongraph"
 	"narrows/skyline"
 )
@@ -74,122 +73,7 @@ func ScanStore(ctx context.Context, store *regiongraph.Store, opts ScanOptions) 
 	if err := checkScanOptions(&opts); err != nil {
 		return nil, err
 	}
-	edges := keptEdges(store.Edges, opts.Skyline.MinTrips)
-	window, err := resolveWindow(store.Meta.Windows, edges, opts.Window)
-	if err != nil {
-		return nil, err
-	}
-	opts.Window = window
-	storeDays, err := distinctDays(edges)
-	if err != nil {
-		return nil, err
-	}
-	days, err := analysedDays(storeDays, &opts)
-	if err != nil {
-		return nil, err
-	}
-	dayIndex := make(map[string]int, len(days))
-	for i, d := range days {
-		dayIndex[d] = i
-	}
-	graphs, err := dayGraphs(edges, window, dayIndex)
-	if err != nil {
-		return nil, err
-	}
-
-	scan := &Scan{
-		Options:          opts,
-		Window:           window,
-		Days:             days,
-		CandidatesPerDay: make([]int, len(days)),
-		DayCandidates:    make([][]EdgeKey, len(days)),
-		EdgeDaily:        make(map[EdgeKey][]DailyValue),
-	}
-	if err := findCandidates(ctx, scan, graphs); err != nil {
-		return nil, err
-	}
-	minSupport := MinSupport(opts.Support, len(days))
-	scan.Findings, err = findings(ctx, scan, places(scan.DayCandidates, minSupport, opts.JoinCorrelation), minSupport)
-	if err != nil {
-		return nil, err
-	}
-	return scan, nil
-}
-
-// findCandidates finds the skyline candidates of each day's graph and
-// records them in scan, with the daily values of every edge that was a
-// candidate on at least one day.
-func findCandidates(ctx context.Context, scan *Scan, graphs [][]regiongraph.Edge) error {
-	indices, err := dayCandidates(ctx, graphs, scan.Options.Skyline, scan.Options.Progress)
-	if err != nil {
-		return err
-	}
-	candidate := make([][]bool, len(graphs)) // per day, per edge of its graph
-	var all []EdgeKey                        // every day's candidates
-	for d, graph := range graphs {
-		keys := make([]EdgeKey, len(indices[d]))
-		candidate[d] = make([]bool, len(graph))
-		for j, i := range indices[d] {
-			keys[j] = EdgeKey{From: graph[i].From, To: graph[i].To}
-			candidate[d][i] = true
-		}
-		scan.CandidatesPerDay[d] = len(keys)
-		scan.DayCandidates[d] = keys // graphs are sorted by From, To
-		all = append(all, keys...)
-	}
-	slices.SortFunc(all, groups.CompareEdges)
-	all = slices.Compact(all)
-	// Each day's graph and the candidates are both sorted by pair: one
-	// merge per day finds the candidates' edges of the day, rather than a
-	// lookup per edge of every day.
-	daily := make([][]DailyValue, len(all))
-	for d, graph := range graphs {
-		j := 0
-		for i := 0; i < len(graph) && j < len(all); i++ {
-			e := &graph[i]
-			key := EdgeKey{From: e.From, To: e.To}
-			for j < len(all) && groups.CompareEdges(all[j], key) < 0 {
-				j++
-			}
-			if j == len(all) || all[j] != key {
-				continue
-			}
-			daily[j] = append(daily[j], DailyValue{
-				Day:         scan.Days[d],
-				Trips:       e.Trips,
-				Speed:       e.SpeedMedian,
-				Detour:      e.DetourMedian,
-				Candidate:   candidate[d][i],
-				DistanceSum: e.DistanceSum,
-				StraightSum: e.StraightSum,
-				DurationSum: e.DurationSum,
-			})
-		}
-	}
-	for j, key := range all {
-		scan.EdgeDaily[key] = daily[j]
-	}
-	return nil
-}
-
-// keptEdges returns the edges with at least minTrips trips (every edge when
-// minTrips is 0 or less), the rule of regiongraph.ReadOptions.MinTrips. A
-// store read with that minimum has no edge to drop and is used as it is.
-func keptEdges(edges []regiongraph.Edge, minTrips int) []regiongraph.Edge {
-	if minTrips <= 0 {
-		return edges
-	}
-	first := slices.IndexFunc(edges, func(e regiongraph.Edge) bool { return e.Trips < minTrips })
-	if first < 0 {
-		return edges
-	}
-	kept := slices.Clone(edges[:first])
-	for _, e := range edges[first+1:] {
-		if e.Trips >= minTrips {
-			kept = append(kept, e)
-		}
-	}
-	return kept
+	return scanDays(ctx, store.ByDay(), storeWindows(store, opts.Skyline.MinTrips), opts)
 }
 
 // MinSupport returns the number of days a group must recur on out of
@@ -234,24 +118,28 @@ func checkScanOptions(opts *ScanOptions) error {
 	return checkScanDays(opts)
 }
 
-// resolveWindow returns the window to scan: name, or the store's first
-// window when name is empty. A store whose Meta lists no windows offers the
-// window names of its (kept) edges, in sorted order.
-func resolveWindow(windows []regiongraph.Window, edges []regiongraph.Edge, name string) (string, error) {
-	var names []string
-	for _, w := range windows {
-		names = append(names, w.Name)
+// storeWindows returns the names of the store's windows in the order
+// given at ingest. A store whose Meta lists no windows offers the window
+// names of its edges with at least minTrips trips, in sorted order.
+func storeWindows(store *regiongraph.Store, minTrips int) []string {
+	names := store.WindowNames()
+	if len(names) > 0 {
+		return names
 	}
-	if len(names) == 0 {
-		seen := map[string]bool{}
-		for i := range edges {
-			if w := edges[i].Window; !seen[w] {
-				seen[w] = true
-				names = append(names, w)
-			}
+	seen := map[string]bool{}
+	for i := range store.Edges {
+		if e := &store.Edges[i]; e.Trips >= minTrips && !seen[e.Window] {
+			seen[e.Window] = true
+			names = append(names, e.Window)
 		}
-		slices.Sort(names)
 	}
+	slices.Sort(names)
+	return names
+}
+
+// resolveWindow returns the window to scan among the store's windows
+// names: name, or the first window when name is empty.
+func resolveWindow(names []string, name string) (string, error) {
 	if len(names) == 0 {
 		return "", errors.New("patterns: scan: the store has no time windows and no edges")
 	}
@@ -262,31 +150,6 @@ func resolveWindow(windows []regiongraph.Window, edges []regiongraph.Edge, name 
 		return "", fmt.Errorf("patterns: scan: window %q is not in the store (windows: %s)", name, strings.Join(names, ", "))
 	}
 	return name, nil
-}
-
-// distinctDays returns the days the store has edges for, ascending, and
-// checks that each is a calendar day.
-func distinctDays(edges []regiongraph.Edge) ([]string, error) {
-	seen := map[string]bool{}
-	var days []string
-	last := ""
-	for i := range edges {
-		day := edges[i].Day
-		if day == last && i > 0 {
-			continue
-		}
-		last = day
-		if seen[day] {
-			continue
-		}
-		if _, err := time.Parse(dayLayout, day); err != nil {
-			return nil, fmt.Errorf("patterns: scan: store edge %d (%d>%d): day %q is not a date YYYY-MM-DD", i, edges[i].From, edges[i].To, day)
-		}
-		seen[day] = true
-		days = append(days, day)
-	}
-	slices.Sort(days)
-	return days, nil
 }
 
 // analysedDays applies the period, the weekday filter and the exclusions
@@ -322,7 +185,7 @@ func analysedDays(storeDays []string, opts *ScanOptions) ([]string, error) {
 	}
 	var days []string
 	for _, d := range storeDays {
-		t, _ := time.Parse(dayLayout, d) // checked by distinctDays
+		t, _ := time.Parse(dayLayout, d) // checked by scanDay
 		if t.Before(from) || t.After(to) || excluded[d] {
 			continue
 		}
@@ -337,72 +200,4 @@ func analysedDays(storeDays []string, opts *ScanOptions) ([]string, error) {
 			opts.From, opts.To, opts.Days, len(opts.Exclude), len(storeDays), storeDays[0], storeDays[len(storeDays)-1])
 	}
 	return days, nil
-}
-
-// dayGraphs returns, per analysed day, its edges in window sorted by From,
-// To. A store sorted as documented gives sub-slices of edges without
-// copying; otherwise the edges are gathered and sorted. Two edges for the
-// same pair, day and window are an error.
-func dayGraphs(edges []regiongraph.Edge, window string, dayIndex map[string]int) ([][]regiongraph.Edge, error) {
-	type run struct{ start, end int }
-	runs := make([][]run, len(dayIndex))
-	lastDay, lastIdx := "", -1
-	for i := 0; i < len(edges); {
-		e := &edges[i]
-		j := i + 1
-		for j < len(edges) && edges[j].Day == e.Day && edges[j].Window == e.Window {
-			j++
-		}
-		if e.Window == window {
-			idx := lastIdx
-			if e.Day != lastDay || i == 0 {
-				var ok bool
-				if idx, ok = dayIndex[e.Day]; !ok {
-					idx = -1
-				}
-				lastDay, lastIdx = e.Day, idx
-			}
-			if idx >= 0 {
-				runs[idx] = append(runs[idx], run{i, j})
-			}
-		}
-		i = j
-	}
-	graphs := make([][]regiongraph.Edge, len(runs))
-	for d, rs := range runs {
-		var g []regiongraph.Edge
-		if len(rs) == 1 {
-			g = edges[rs[0].start:rs[0].end:rs[0].end]
-		} else {
-			for _, r := range rs {
-				g = append(g, edges[r.start:r.end]...)
-			}
-		}
-		if !pairsAscend(g) {
-			g = slices.Clone(g)
-			slices.SortStableFunc(g, compareEdgePairs)
-			for i := 1; i < len(g); i++ {
-				if compareEdgePairs(g[i-1], g[i]) == 0 {
-					return nil, fmt.Errorf("patterns: scan: the store has two edges %d>%d on %s in window %s", g[i].From, g[i].To, g[i].Day, window)
-				}
-			}
-		}
-		graphs[d] = g
-	}
-	return graphs, nil
-}
-
-func compareEdgePairs(a, b regiongraph.Edge) int {
-	return groups.CompareEdges(EdgeKey{From: a.From, To: a.To}, EdgeKey{From: b.From, To: b.To})
-}
-
-// pairsAscend reports whether the edges' (from, to) pairs ascend strictly:
-// sorted, and no pair twice.
-func pairsAscend(g []regiongraph.Edge) bool {
-	for i := 1; i < len(g); i++ {
-		if a, b := &g[i-1], &g[i]; a.From > b.From || a.From == b.From && a.To >= b.To {
-			return false
-		}
-	}
-	return true
 }

@@ -264,7 +264,7 @@ func TestScanStoreErrors(t *testing.T) {
 		{"support above 1", store, func(o *ScanOptions) { o.Support = 1.5 }, "support 1.5"},
 		{"negative group cap", store, func(o *ScanOptions) { o.MaxGroupEdges = -1 }, "max group edges -1"},
 		{"no reference speed", store, func(o *ScanOptions) { o.ReferenceSpeed = 0 }, "reference speed"},
-		{"bad day in store", &bad, func(*ScanOptions) {}, `store edge 0 (1>2): day "2025-1-6"`},
+		{"bad day in store", &bad, func(*ScanOptions) {}, `store day "2025-1-6" is not a date`},
 		{"duplicate edge", &dup, func(*ScanOptions) {}, "two edges"},
 	}
 	for _, c := range cases {

@@ -1,6 +1,7 @@
 package regiongraph
 
 import (
+	"context"
 	"os"
 	"path/filepath"
 	"reflect"
@@ -122,6 +123,19 @@ func TestDatasetReadsOnlyItsDays(t *testing.T) {
 	if b := month.bytes.Load(); b > total*30/365*2 || b > year.bytes.Load()/6 {
 		t.Errorf("30 days read %d bytes of %d", b, total)
 	}
+	// A day at a time (the scan's read), the month opens its 30 files
+	// once each and reads at most the whole read's bytes of them.
+	byDay := ReadOptions{From: "2024-03-01", To: "2024-03-30", counter: new(readCounter)}
+	r, err := OpenDays(ds, byDay)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if _, edges := eachDay(t, r); !slices.Equal(edges, keptEdges(s, byDay)) {
+		t.Errorf("the month a day at a time: %d edges, want %d", len(edges), len(keptEdges(s, byDay)))
+	}
+	if n, b := byDay.counter.files.Load(), byDay.counter.bytes.Load(); n != 30 || b > month.bytes.Load() {
+		t.Errorf("the month a day at a time opened %d files, read %d bytes (the whole read %d)", n, b, month.bytes.Load())
+	}
 	// With a minimum of trips, pages of the trips column under it are
 	// skipped and the other columns read only where an edge is kept: days
 	// of 10,000 edges in pages of about 500 values.
@@ -175,6 +189,14 @@ func TestDatasetDamage(t *testing.T) {
 			_, err := ReadFile(ds)
 			if err == nil || !strings.Contains(err.Error(), c.want) || !strings.Contains(err.Error(), ds) {
 				t.Fatalf("got %v, want an error naming %s with %q", err, ds, c.want)
+			}
+			// Read a day at a time: refused when opened or when the day is reached.
+			r, err := OpenDays(ds, ReadOptions{})
+			if err == nil {
+				err = r.Each(context.Background(), func(string, []Edge) error { return nil })
+			}
+			if err == nil || !strings.Contains(err.Error(), c.want) || !strings.Contains(err.Error(), ds) {
+				t.Fatalf("a day at a time: got %v, want an error naming %s with %q", err, ds, c.want)
 			}
 		})
 	}

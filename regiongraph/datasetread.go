@@ -75,6 +75,20 @@ func readManifest(dir string) (*manifest, Meta, error) {
 	return parseManifest(path, data)
 }
 
+// readDatasetRegions reads the regions GeoJSON the manifest m of the
+// dataset at dir names.
+func readDatasetRegions(dir string, m *manifest) ([]byte, error) {
+	path := filepath.Join(dir, m.Regions)
+	b, err := os.ReadFile(path)
+	if err != nil {
+		return nil, fmt.Errorf("regiongraph: dataset %s: %v", dir, err)
+	}
+	if int64(len(b)) != m.RegionsBytes {
+		return nil, fmt.Errorf("regiongraph: %s: %d bytes, the manifest says %d", path, len(b), m.RegionsBytes)
+	}
+	return b, nil
+}
+
 // readDataset is ReadFileOptions of a dataset directory: it opens the
 // manifest, then only the day files of the days opts keeps.
 func readDataset(dir string, opts ReadOptions, stretchRows int64) (*Store, error) {
@@ -84,15 +98,9 @@ func readDataset(dir string, opts ReadOptions, stretchRows int64) (*Store, error
 	}
 	s := &Store{Meta: meta}
 	if m.Regions != "" {
-		path := filepath.Join(dir, m.Regions)
-		b, err := os.ReadFile(path)
-		if err != nil {
-			return nil, fmt.Errorf("regiongraph: dataset %s: %v", dir, err)
+		if s.regionsGeoJSON, err = readDatasetRegions(dir, m); err != nil {
+			return nil, err
 		}
-		if int64(len(b)) != m.RegionsBytes {
-			return nil, fmt.Errorf("regiongraph: %s: %d bytes, the manifest says %d", path, len(b), m.RegionsBytes)
-		}
-		s.regionsGeoJSON = b
 	}
 	if opts.Window != "" && !slices.Contains(s.WindowNames(), opts.Window) {
 		return nil, fmt.Errorf("regiongraph: %s: no window %q in the store (it has %s)", dir, opts.Window, strings.Join(s.WindowNames(), ", "))

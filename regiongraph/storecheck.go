@@ -19,6 +19,19 @@ import (
 // read (made by hand) is held to 2^31 trips an edge instead. A damaged or hand-made store
 // is refused here rather than turned into findings.
 func checkStore(path string, s *Store) error {
+	if err := checkStoreMeta(path, s); err != nil {
+		return err
+	}
+	if len(s.Meta.Windows) == 0 && len(s.Edges) > 0 {
+		return fmt.Errorf("regiongraph: %s: damaged store: no windows in the metadata", path)
+	}
+	return checkEdges(path, s.Meta, s.Edges, make([]int64, len(s.Meta.Windows)))
+}
+
+// checkStoreMeta checks the metadata of a store read from path: the
+// quality accounting adds up with no negative count, and windows have
+// distinct names.
+func checkStoreMeta(path string, s *Store) error {
 	bad := func(format string, args ...any) error {
 		return fmt.Errorf("regiongraph: %s: damaged store: %s", path, fmt.Sprintf(format, args...))
 	}
@@ -45,22 +58,27 @@ func checkStore(path string, s *Store) error {
 		}
 	}
 	names := s.WindowNames()
-	if len(names) == 0 && len(s.Edges) > 0 {
-		return bad("no windows in the metadata")
-	}
 	for i, n := range names {
 		if slices.Contains(names[:i], n) {
 			return bad("window %q twice in the metadata", n)
 		}
 	}
-	trips := make([]int64, len(names))
+	return nil
+}
+
+// checkEdges checks the edges of a store read from path against its
+// metadata meta (see checkStore), adding each window's trips to trips
+// (one count per window of meta) and checking the sums against the rows
+// used.
+func checkEdges(path string, meta Meta, edges []Edge, trips []int64) error {
+	q := meta.Quality
 	lastDay, lastWindow, wi := "", "", 0
-	for i := range s.Edges {
-		e := &s.Edges[i]
+	for i := range edges {
+		e := &edges[i]
 		at := func(format string, args ...any) error {
-			return bad("edge %s %s %d->%d: %s", e.Day, e.Window, e.From, e.To, fmt.Sprintf(format, args...))
+			return fmt.Errorf("regiongraph: %s: damaged store: edge %s %s %d->%d: %s", path, e.Day, e.Window, e.From, e.To, fmt.Sprintf(format, args...))
 		}
-		if e.Day != lastDay {
+		if e.Day != lastDay || i == 0 {
 			if len(e.Day) != 10 {
 				return at("day is not YYYY-MM-DD")
 			}
@@ -69,8 +87,13 @@ func checkStore(path string, s *Store) error {
 			}
 			lastDay = e.Day
 		}
-		if e.Window != lastWindow {
-			if wi = slices.Index(names, e.Window); wi < 0 {
+		if e.Window != lastWindow || i == 0 {
+			wi = slices.IndexFunc(meta.Windows, func(w Window) bool { return w.Name == e.Window })
+			if wi < 0 {
+				names := make([]string, len(meta.Windows))
+				for k, w := range meta.Windows {
+					names[k] = w.Name
+				}
 				return at("window not in the metadata (%v)", names)
 			}
 			lastWindow = e.Window
@@ -97,16 +120,5 @@ func checkStore(path string, s *Store) error {
 // CheckRegions reports an edge whose region id is not one of p's: the
 // regions given for a store must be those it was built on.
 func (s *Store) CheckRegions(p *partition.Partition) error {
-	ids := make(map[int]bool, len(p.Regions))
-	for _, r := range p.Regions {
-		ids[r.ID] = true
-	}
-	for _, e := range s.Edges {
-		for _, id := range [2]int{e.From, e.To} {
-			if !ids[id] {
-				return fmt.Errorf("regiongraph: edge %s %s %d->%d: region %d is not among the %d regions", e.Day, e.Window, e.From, e.To, id, len(p.Regions))
-			}
-		}
-	}
-	return nil
+	return checkEdgeRegions(s.Edges, newRegionIDs(p))
 }

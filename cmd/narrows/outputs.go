@@ -184,11 +184,16 @@ func (r *runFiles) write(path string, kind outputKind, write func(io.Writer) err
 	if _, err := outputDir(path); err != nil {
 		return err
 	}
+	// The kind is recorded before the file is put in place: a run killed
+	// between the two must leave a file the next run may replace.
+	if err := recordOutput(path, kind); err != nil {
+		return err
+	}
 	if err := atomicfile.Write(path, write); err != nil {
 		return err
 	}
 	r.written = append(r.written, path)
-	return recordOutput(path, kind)
+	return nil
 }
 
 // writeDataset writes a dataset output (a folder) with write, which
@@ -210,11 +215,14 @@ func (r *runFiles) writeDataset(path string, kind outputKind, write func() error
 	if _, err := outputDir(path); err != nil {
 		return err
 	}
+	if err := recordOutput(path, kind); err != nil { // before, as in write
+		return err
+	}
 	if err := write(); err != nil {
 		return err
 	}
 	r.written = append(r.written, path)
-	return recordOutput(path, kind)
+	return nil
 }
 
 // storeIsDataset tells whether a day-graph store output at path is a

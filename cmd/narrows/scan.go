@@ -7,6 +7,7 @@ import (
 	"fmt"
 	"io"
 	"path/filepath"
+	"slices"
 	"strings"
 	"text/tabwriter"
 	"time"
@@ -46,6 +47,25 @@ func (f *storeFlags) openPeriod(opts patterns.ScanOptions) (*regiongraph.Store, 
 		return store, regions, err
 	}
 	return f.open(opts)
+}
+
+// openDays opens the store for reading a day at a time the days of opts'
+// period, with the minimum trips of open and only the columns a scan
+// uses (patterns.ScanColumns), and the regions it was built on;
+// the edges' region ids are checked as they are read.
+func (f *storeFlags) openDays(opts patterns.ScanOptions) (*regiongraph.DayReader, *partition.Partition, error) {
+	days, err := regiongraph.OpenDays(f.graphs, regiongraph.ReadOptions{MinTrips: opts.Skyline.MinTrips, From: opts.From, To: opts.To, Columns: patterns.ScanColumns()})
+	if err != nil {
+		return nil, nil, err
+	}
+	regions, err := regionsFor(days.Store(), f.regions, f.graphs, f.trust)
+	if err != nil {
+		return nil, nil, err
+	}
+	if err := days.CheckRegions(regions); err != nil {
+		return nil, nil, fmt.Errorf("%s: %w", f.graphs, err)
+	}
+	return days, regions, nil
 }
 
 func (f *storeFlags) openRead(opts patterns.ScanOptions, ropts regiongraph.ReadOptions) (*regiongraph.Store, *partition.Partition, error) {
@@ -90,26 +110,19 @@ func runScan(ctx context.Context, env *environment, args []string) error {
 	if err := env.files.claimAll([]output{{out, kindFindings}, {layer, kindFindingsLayer}}); err != nil {
 		return err
 	}
-	store, regions, err := in.openPeriod(opts)
-	if err != nil {
-		return err
-	}
-	if err := pairsLeft(in.graphs, store, opts); err != nil {
-		return err
-	}
 	start := time.Now()
 	update, finish := stageProgress(env)
 	opts.Progress = update
-	scan, err := patterns.ScanStore(ctx, store, opts)
+	scan, meta, regions, err := scanByDay(ctx, in, opts)
 	finish()
 	if err != nil {
-		return fmt.Errorf("%s: %w", in.graphs, err)
+		return err
 	}
 	elapsed := time.Since(start)
 	if err := env.files.write(out, kindFindings, func(w io.Writer) error { return writeFindingsJSON(w, scan, regions) }); err != nil {
 		return err
 	}
-	rin := report.Input{Regions: regions, Store: &store.Meta, Scan: scan, Version: version}
+	rin := report.Input{Regions: regions, Store: meta, Scan: scan, Version: version}
 	if err := env.files.write(layer, kindFindingsLayer, func(w io.Writer) error { return report.WriteFindingsGeoJSON(w, rin) }); err != nil {
 		return err
 	}
@@ -118,6 +131,36 @@ func runScan(ctx context.Context, env *environment, args []string) error {
 	fmt.Fprintf(env.stdout, "%d findings over %d days (window %s) in %.2f s -> %s, %s\n",
 		len(scan.Findings), len(scan.Days), scan.Window, elapsed.Seconds(), out, layer)
 	return nil
+}
+
+// scanByDay scans the store a day at a time, so that a year of a city is
+// never held whole (patterns.ScanDays). A scan that fails, or finds no
+// candidate on any day, is done again the way the other commands do it,
+// reading the period whole: it finds the same, and its errors say which
+// days the store has and the most trips any pair had.
+func scanByDay(ctx context.Context, in storeFlags, opts patterns.ScanOptions) (*patterns.Scan, *regiongraph.Meta, *partition.Partition, error) {
+	days, regions, err := in.openDays(opts)
+	if err != nil {
+		return nil, nil, nil, err
+	}
+	scan, err := patterns.ScanDays(ctx, days, opts)
+	if ctx.Err() != nil {
+		return nil, nil, nil, ctx.Err()
+	}
+	if err == nil && slices.ContainsFunc(scan.CandidatesPerDay, func(n int) bool { return n > 0 }) {
+		return scan, &days.Store().Meta, regions, nil
+	}
+	store, regions, err := in.openPeriod(opts)
+	if err != nil {
+		return nil, nil, nil, err
+	}
+	if err := pairsLeft(in.graphs, store, opts); err != nil {
+		return nil, nil, nil, err
+	}
+	if scan, err = patterns.ScanStore(ctx, store, opts); err != nil {
+		return nil, nil, nil, fmt.Errorf("%s: %w", in.graphs, err)
+	}
+	return scan, &store.Meta, regions, nil
 }
 
 // readStore reads a day-graph store for an analysis with the given
