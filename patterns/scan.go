@@ -75,24 +75,23 @@ func ScanStore(ctx context.Context, store *regiongraph.Store, opts ScanOptions) 
 		return nil, err
 	}
 	edges := keptEdges(store.Edges, opts.Skyline.MinTrips)
-	window, err := resolveWindow(store.Meta.Windows, edges, opts.Window)
+	window, wi, err := resolveWindow(store.Meta.Windows, opts.Window)
 	if err != nil {
 		return nil, err
 	}
 	opts.Window = window
-	storeDays, err := distinctDays(edges)
+	storeDays := distinctDays(edges)
+	analysed, err := analysedDays(storeDays, &opts)
 	if err != nil {
 		return nil, err
 	}
-	days, err := analysedDays(storeDays, &opts)
-	if err != nil {
-		return nil, err
-	}
-	dayIndex := make(map[string]int, len(days))
-	for i, d := range days {
+	days := make([]string, len(analysed))
+	dayIndex := make(map[regiongraph.Day]int, len(analysed))
+	for i, d := range analysed {
+		days[i] = d.String()
 		dayIndex[d] = i
 	}
-	graphs, err := dayGraphs(edges, window, dayIndex)
+	graphs, err := dayGraphs(edges, wi, window, dayIndex)
 	if err != nil {
 		return nil, err
 	}
@@ -234,72 +233,61 @@ func checkScanOptions(opts *ScanOptions) error {
 	return checkScanDays(opts)
 }
 
-// resolveWindow returns the window to scan: name, or the store's first
-// window when name is empty. A store whose Meta lists no windows offers the
-// window names of its (kept) edges, in sorted order.
-func resolveWindow(windows []regiongraph.Window, edges []regiongraph.Edge, name string) (string, error) {
+// resolveWindow returns the window to scan, its name and index: name, or
+// the store's first window when name is empty. An edge names its window
+// by its index in the store's windows, so a store without windows has
+// none to scan.
+func resolveWindow(windows []regiongraph.Window, name string) (string, regiongraph.WindowIndex, error) {
 	var names []string
 	for _, w := range windows {
 		names = append(names, w.Name)
 	}
 	if len(names) == 0 {
-		seen := map[string]bool{}
-		for i := range edges {
-			if w := edges[i].Window; !seen[w] {
-				seen[w] = true
-				names = append(names, w)
-			}
-		}
-		slices.Sort(names)
-	}
-	if len(names) == 0 {
-		return "", errors.New("patterns: scan: the store has no time windows and no edges")
+		return "", 0, errors.New("patterns: scan: the store has no time windows")
 	}
 	if name == "" {
-		return names[0], nil
+		name = names[0]
 	}
-	if !slices.Contains(names, name) {
-		return "", fmt.Errorf("patterns: scan: window %q is not in the store (windows: %s)", name, strings.Join(names, ", "))
+	i := slices.Index(names, name)
+	if i < 0 || i >= regiongraph.MaxWindows {
+		return "", 0, fmt.Errorf("patterns: scan: window %q is not in the store (windows: %s)", name, strings.Join(names, ", "))
 	}
-	return name, nil
+	return name, regiongraph.WindowIndex(i), nil
 }
 
-// distinctDays returns the days the store has edges for, ascending, and
-// checks that each is a calendar day.
-func distinctDays(edges []regiongraph.Edge) ([]string, error) {
-	seen := map[string]bool{}
-	var days []string
-	last := ""
+// windowIndex returns the index of the named window in the store, or
+// regiongraph.MaxWindows, an index no edge has, when it has none of that
+// name.
+func windowIndex(store *regiongraph.Store, name string) regiongraph.WindowIndex {
+	if w, ok := store.Meta.WindowIndex(name); ok {
+		return w
+	}
+	return regiongraph.MaxWindows
+}
+
+// distinctDays returns the days the store has edges for, ascending.
+func distinctDays(edges []regiongraph.Edge) []regiongraph.Day {
+	var days []regiongraph.Day
 	for i := range edges {
-		day := edges[i].Day
-		if day == last && i > 0 {
-			continue
+		if day := edges[i].Day; i == 0 || day != edges[i-1].Day {
+			days = append(days, day)
 		}
-		last = day
-		if seen[day] {
-			continue
-		}
-		if _, err := time.Parse(dayLayout, day); err != nil {
-			return nil, fmt.Errorf("patterns: scan: store edge %d (%d>%d): day %q is not a date YYYY-MM-DD", i, edges[i].From, edges[i].To, day)
-		}
-		seen[day] = true
-		days = append(days, day)
 	}
 	slices.Sort(days)
-	return days, nil
+	return slices.Compact(days)
 }
 
 // analysedDays applies the period, the weekday filter and the exclusions
 // to the store's days, resolving empty From and To in opts.
-func analysedDays(storeDays []string, opts *ScanOptions) ([]string, error) {
+func analysedDays(storeDays []regiongraph.Day, opts *ScanOptions) ([]regiongraph.Day, error) {
 	if len(storeDays) == 0 {
 		return nil, errors.New("patterns: scan: the store has no days")
 	}
 	if opts.From == "" {
-		opts.From = storeDays[0]
+		opts.From = storeDays[0].String()
 	}
 	if opts.To == "" {
-		opts.To = storeDays[len(storeDays)-1]
+		opts.To = storeDays[len(storeDays)-1].String()
 	}
 	from, err := time.Parse(dayLayout, opts.From)
 	if err != nil {
@@ -312,21 +300,21 @@ func analysedDays(storeDays []string, opts *ScanOptions) ([]string, error) {
 	if from.After(to) {
 		return nil, fmt.Errorf("patterns: scan: from %s is after to %s", opts.From, opts.To)
 	}
-	excluded := map[string]bool{}
+	excluded := map[regiongraph.Day]bool{}
 	for i, d := range opts.Exclude {
 		t, err := time.Parse(dayLayout, d)
 		if err != nil {
 			return nil, fmt.Errorf("patterns: scan: excluded day %d, %q, is not a date YYYY-MM-DD", i+1, d)
 		}
-		excluded[t.Format(dayLayout)] = true
+		excluded[regiongraph.DayOf(t)] = true
 	}
-	var days []string
+	first, last := regiongraph.DayOf(from), regiongraph.DayOf(to)
+	var days []regiongraph.Day
 	for _, d := range storeDays {
-		t, _ := time.Parse(dayLayout, d) // checked by distinctDays
-		if t.Before(from) || t.After(to) || excluded[d] {
+		if d < first || d > last || excluded[d] {
 			continue
 		}
-		weekend := t.Weekday() == time.Saturday || t.Weekday() == time.Sunday
+		weekend := d.Weekday() == time.Saturday || d.Weekday() == time.Sunday
 		if opts.Days == Weekdays && weekend || opts.Days == Weekends && !weekend {
 			continue
 		}
@@ -343,10 +331,10 @@ func analysedDays(storeDays []string, opts *ScanOptions) ([]string, error) {
 // To. A store sorted as documented gives sub-slices of edges without
 // copying; otherwise the edges are gathered and sorted. Two edges for the
 // same pair, day and window are an error.
-func dayGraphs(edges []regiongraph.Edge, window string, dayIndex map[string]int) ([][]regiongraph.Edge, error) {
+func dayGraphs(edges []regiongraph.Edge, window regiongraph.WindowIndex, windowName string, dayIndex map[regiongraph.Day]int) ([][]regiongraph.Edge, error) {
 	type run struct{ start, end int }
 	runs := make([][]run, len(dayIndex))
-	lastDay, lastIdx := "", -1
+	lastDay, lastIdx := regiongraph.Day(0), -1
 	for i := 0; i < len(edges); {
 		e := &edges[i]
 		j := i + 1
@@ -383,7 +371,7 @@ func dayGraphs(edges []regiongraph.Edge, window string, dayIndex map[string]int)
 			slices.SortStableFunc(g, compareEdgePairs)
 			for i := 1; i < len(g); i++ {
 				if compareEdgePairs(g[i-1], g[i]) == 0 {
-					return nil, fmt.Errorf("patterns: scan: the store has two edges %d>%d on %s in window %s", g[i].From, g[i].To, g[i].Day, window)
+					return nil, fmt.Errorf("patterns: scan: the store has two edges %d>%d on %s in window %s", g[i].From, g[i].To, g[i].Day, windowName)
 				}
 			}
 		}

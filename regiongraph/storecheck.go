@@ -4,7 +4,6 @@ import (
 	"fmt"
 	"math"
 	"slices"
-	"time"
 
 	"narrows/partition"
 )
@@ -48,32 +47,28 @@ func checkStore(path string, s *Store) error {
 	if len(names) == 0 && len(s.Edges) > 0 {
 		return bad("no windows in the metadata")
 	}
+	if err := checkWindowCount(s.Meta.Windows); err != nil {
+		return bad("%v", err)
+	}
 	for i, n := range names {
 		if slices.Contains(names[:i], n) {
 			return bad("window %q twice in the metadata", n)
 		}
 	}
 	trips := make([]int64, len(names))
-	lastDay, lastWindow, wi := "", "", 0
 	for i := range s.Edges {
 		e := &s.Edges[i]
 		at := func(format string, args ...any) error {
-			return bad("edge %s %s %d->%d: %s", e.Day, e.Window, e.From, e.To, fmt.Sprintf(format, args...))
+			return bad("edge %s %s %d->%d: %s", e.Day, s.Meta.WindowName(e.Window), e.From, e.To, fmt.Sprintf(format, args...))
 		}
-		if e.Day != lastDay {
-			if len(e.Day) != 10 {
-				return at("day is not YYYY-MM-DD")
-			}
-			if _, err := time.Parse(time.DateOnly, e.Day); err != nil {
-				return at("day is not a date YYYY-MM-DD")
-			}
-			lastDay = e.Day
+		// The day and window were read from their text (storeText),
+		// which checked them; a store made in memory is checked here.
+		if y, _, _ := e.Day.Date(); y < 0 || y > 9999 {
+			return at("day %d is not a date YYYY-MM-DD", e.Day)
 		}
-		if e.Window != lastWindow {
-			if wi = slices.Index(names, e.Window); wi < 0 {
-				return at("window not in the metadata (%v)", names)
-			}
-			lastWindow = e.Window
+		wi := int(e.Window)
+		if wi >= len(names) {
+			return at("window %d not in the metadata (%v)", e.Window, names)
 		}
 		if e.From < 1 || e.To < 1 || e.From == e.To {
 			return at("region ids must be at least 1 and differ")
@@ -104,7 +99,7 @@ func (s *Store) CheckRegions(p *partition.Partition) error {
 	for _, e := range s.Edges {
 		for _, id := range [2]int{e.From, e.To} {
 			if !ids[id] {
-				return fmt.Errorf("regiongraph: edge %s %s %d->%d: region %d is not among the %d regions", e.Day, e.Window, e.From, e.To, id, len(p.Regions))
+				return fmt.Errorf("regiongraph: edge %s %s %d->%d: region %d is not among the %d regions", e.Day, s.Meta.WindowName(e.Window), e.From, e.To, id, len(p.Regions))
 			}
 		}
 	}

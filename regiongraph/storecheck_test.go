@@ -1,6 +1,7 @@
 package regiongraph
 
 import (
+	"io"
 	"math"
 	"path/filepath"
 	"strings"
@@ -12,16 +13,21 @@ func TestReadRefusesDamagedValues(t *testing.T) {
 		name   string
 		damage func(s *Store)
 		want   string
+		text   func(s *Store, t *storeText) // writes the day and window columns otherwise
 	}{
-		{"negative region id", func(s *Store) { s.Edges[0].From = -5 }, "region ids must be at least 1"},
-		{"day that is no date", func(s *Store) { s.Edges[0].Day = "2026-13-45" }, "not a date"},
-		{"window not in the metadata", func(s *Store) { s.Edges[0].Window = "night" }, "window not in the metadata"},
-		{"negative quality count", func(s *Store) { s.Meta.Quality.Rejected[string(ReasonBadSpeed)] = -3 }, "rows rejected"},
-		{"counts that do not add up", func(s *Store) { s.Meta.Quality.Read++ }, "add up to"},
-		{"trips = MaxInt64", func(s *Store) { s.Edges[0].Trips = math.MaxInt64 }, "trips"},
-		{"more trips than rows used", func(s *Store) { s.Edges[0].Trips += int(s.Meta.Quality.Used) }, "more trips than"},
-		{"NaN speed", func(s *Store) { s.Edges[1].SpeedMedian = math.NaN() }, "a measure is NaN"},
-		{"negative duration", func(s *Store) { s.Edges[2].DurationSum = -1 }, "a measure is -1"},
+		{"negative region id", func(s *Store) { s.Edges[0].From = -5 }, "region ids must be at least 1", nil},
+		{"day that is no date", func(s *Store) {}, "not a date", func(s *Store, t *storeText) {
+			t.day, t.dayText = s.Edges[0].Day, []byte("2026-13-45")
+		}},
+		{"window not in the metadata", func(s *Store) {}, "window \"night\" not in the metadata", func(s *Store, t *storeText) {
+			t.nameBytes[0] = []byte("night")
+		}},
+		{"negative quality count", func(s *Store) { s.Meta.Quality.Rejected[string(ReasonBadSpeed)] = -3 }, "rows rejected", nil},
+		{"counts that do not add up", func(s *Store) { s.Meta.Quality.Read++ }, "add up to", nil},
+		{"trips = MaxInt64", func(s *Store) { s.Edges[0].Trips = math.MaxInt64 }, "trips", nil},
+		{"more trips than rows used", func(s *Store) { s.Edges[0].Trips += int(s.Meta.Quality.Used) }, "more trips than", nil},
+		{"NaN speed", func(s *Store) { s.Edges[1].SpeedMedian = math.NaN() }, "a measure is NaN", nil},
+		{"negative duration", func(s *Store) { s.Edges[2].DurationSum = -1 }, "a measure is -1", nil},
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
@@ -34,7 +40,22 @@ func TestReadRefusesDamagedValues(t *testing.T) {
 				t.Fatalf("sound store: %v", err)
 			}
 			tc.damage(s)
-			if err := createFile(path, s.WriteParquet); err != nil {
+			write := s.WriteParquet
+			if tc.text != nil {
+				write = func(w io.Writer) error {
+					opts, err := storeMetadata(s)
+					if err != nil {
+						return err
+					}
+					ew := newEdgeWriter(w, rowGroupRows, opts, s.Meta.Windows)
+					tc.text(s, ew.text)
+					if err := ew.add(s.Edges); err != nil {
+						return err
+					}
+					return ew.close()
+				}
+			}
+			if err := createFile(path, write); err != nil {
 				t.Fatal(err)
 			}
 			_, err := ReadFile(path)
