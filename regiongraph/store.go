@@ -105,7 +105,7 @@ func (m *Meta) WindowName(w WindowIndex) string {
 // false when there is no window of that name.
 func (m *Meta) WindowIndex(name string) (w WindowIndex, ok bool) {
 	for i, x := range m.Windows {
-		if x.Name == name && i <= MaxWindows {
+		if x.Name == name && i < MaxWindows {
 			return WindowIndex(i), true
 		}
 	}
