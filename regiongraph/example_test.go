@@ -114,3 +114,17 @@ func ExampleStore_WriteParquet() {
 	// 1->2: 2 trips, 5500 m in 960 s
 	// 2 regions, rows read 3
 }
+
+func ExampleParseDay() {
+	d, err := regiongraph.ParseDay("2028-02-28")
+	if err != nil {
+		log.Fatal(err)
+	}
+	next := d.AddDays(1) // 2028 is a leap year
+	fmt.Println(next, next.Weekday(), int32(next))
+	_, err = regiongraph.ParseDay("2027-02-29")
+	fmt.Println(err)
+	// Output:
+	// 2028-02-29 Tuesday 21243
+	// day "2027-02-29" is not a date YYYY-MM-DD
+}
