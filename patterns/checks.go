@@ -44,16 +44,15 @@ func CheckComparison(store *regiongraph.Store, regions *partition.Partition, bef
 // StoreDays returns the store's first and last day (over every window and
 // edge), or empty strings for a store without edges.
 func StoreDays(store *regiongraph.Store) (first, last string) {
+	if len(store.Edges) == 0 {
+		return "", ""
+	}
+	lo, hi := store.Edges[0].Day, store.Edges[0].Day
 	for i := range store.Edges {
 		d := store.Edges[i].Day
-		if first == "" || d < first {
-			first = d
-		}
-		if d > last {
-			last = d
-		}
+		lo, hi = min(lo, d), max(hi, d)
 	}
-	return first, last
+	return lo.String(), hi.String()
 }
 
 // CheckPeriods reports before and after periods that overlap (a day in
@@ -171,7 +170,7 @@ func CheckPairs(store *regiongraph.Store, opts ScanOptions) error {
 	if err := checkScanDays(&opts); err != nil {
 		return nil // ScanStore says what is wrong with the days
 	}
-	window, err := resolveWindow(storeWindows(store, 0), opts.Window)
+	_, window, err := resolveWindow(store.Meta.Windows, opts.Window)
 	if err != nil {
 		return nil // ScanStore names the windows
 	}
@@ -182,22 +181,29 @@ func CheckPairs(store *regiongraph.Store, opts ScanOptions) error {
 	if opts.To == "" {
 		opts.To = last
 	}
-	excluded := make(map[string]bool, len(opts.Exclude))
-	for _, d := range opts.Exclude {
-		excluded[d] = true
+	// Both days are empty only for a store without edges.
+	from, errFrom := regiongraph.ParseDay(opts.From)
+	to, errTo := regiongraph.ParseDay(opts.To)
+	if opts.From != "" && errFrom != nil || opts.To != "" && errTo != nil {
+		return nil // ScanStore says what is wrong with the days
 	}
-	kept := map[string]bool{} // day -> kept by the period, selector and exclusions
+	excluded := make(map[regiongraph.Day]bool, len(opts.Exclude))
+	for _, d := range opts.Exclude {
+		if day, err := regiongraph.ParseDay(d); err == nil {
+			excluded[day] = true
+		}
+	}
+	kept := map[regiongraph.Day]bool{} // day -> kept by the period, selector and exclusions
 	largest := 0
 	for i := range store.Edges {
 		e := &store.Edges[i]
-		if e.Window != window || e.Day < opts.From || e.Day > opts.To || e.Trips <= largest {
+		if e.Window != window || e.Day < from || e.Day > to || e.Trips <= largest {
 			continue
 		}
 		keep, seen := kept[e.Day]
 		if !seen {
-			t, err := time.Parse(dayLayout, e.Day)
-			weekend := err == nil && (t.Weekday() == time.Saturday || t.Weekday() == time.Sunday)
-			keep = err == nil && !excluded[e.Day] && !(opts.Days == Weekdays && weekend || opts.Days == Weekends && !weekend)
+			weekend := e.Day.Weekday() == time.Saturday || e.Day.Weekday() == time.Sunday
+			keep = !excluded[e.Day] && !(opts.Days == Weekdays && weekend || opts.Days == Weekends && !weekend)
 			kept[e.Day] = keep
 		}
 		if keep {

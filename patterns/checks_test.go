@@ -19,8 +19,8 @@ func periodStore() *regiongraph.Store {
 	s := &regiongraph.Store{Meta: regiongraph.Meta{Windows: []regiongraph.Window{{Name: "am"}, {Name: "pm"}}}}
 	for d := 1; d <= 28; d++ {
 		day := "2025-03-" + string(rune('0'+d/10)) + string(rune('0'+d%10))
-		s.Edges = append(s.Edges, regiongraph.Edge{Day: day, Window: "am", From: 1, To: 2, Trips: d})
-		s.Edges = append(s.Edges, regiongraph.Edge{Day: day, Window: "pm", From: 1, To: 2, Trips: 500})
+		s.Edges = append(s.Edges, regiongraph.Edge{Day: testDay(day), Window: testWindowIndex("am"), From: 1, To: 2, Trips: d})
+		s.Edges = append(s.Edges, regiongraph.Edge{Day: testDay(day), Window: testWindowIndex("pm"), From: 1, To: 2, Trips: 500})
 	}
 	return s
 }

@@ -121,7 +121,7 @@ func syntheticStore(r *rand.Rand, dayList []string, plants func(day int) []plant
 			s := straight(p.From, p.To)
 			dist := s * detour
 			edges = append(edges, regiongraph.Edge{
-				Day: day, Window: testWindow, From: p.From, To: p.To, Trips: trips,
+				Day: testDay(day), Window: testWindowIndex(testWindow), From: p.From, To: p.To, Trips: trips,
 				SpeedP25: speed * 0.85, SpeedMedian: speed, SpeedP75: speed * 1.15,
 				DetourP25: 1 + (detour-1)*0.8, DetourMedian: detour, DetourP75: detour * 1.1,
 				DistanceMedian: dist, DurationMedian: dist / speed,
@@ -536,7 +536,7 @@ func TestCompareMultiEdgeFinding(t *testing.T) {
 	// 10>9 is background traffic in the grid unless planted; drop it after.
 	kept := store.Edges[:0]
 	for _, e := range store.Edges {
-		if !(e.Day >= "2026-05-04" && e.From == 10 && e.To == 9) {
+		if !(e.Day >= testDay("2026-05-04") && e.From == 10 && e.To == 9) {
 			kept = append(kept, e)
 		}
 	}
@@ -569,7 +569,7 @@ func TestCompareRejectsDifferentWindows(t *testing.T) {
 	store.Meta.Windows = append(store.Meta.Windows, regiongraph.Window{Name: "pm", StartMinute: 16 * 60, EndMinute: 19 * 60})
 	n := len(store.Edges)
 	for _, e := range store.Edges[:n] {
-		e.Window = "pm"
+		e.Window = testWindowIndex("pm")
 		store.Edges = append(store.Edges, e)
 	}
 	sort.SliceStable(store.Edges, func(i, j int) bool {
@@ -601,11 +601,11 @@ func BenchmarkCompareYearAgainstYear(b *testing.B) {
 	// As the command reads it: edges under the scan's minimum trips are
 	// dropped while reading (regiongraph.ReadOptions.MinTrips).
 	store.Edges = keptEdges(store.Edges, DefaultScanOptions().Skyline.MinTrips)
-	split, _ := time.Parse("2006-01-02", first)
+	split, _ := time.Parse("2006-01-02", first.String())
 	mid := split.AddDate(0, 0, 365).Format("2006-01-02")
 	before, after := DefaultScanOptions(), DefaultScanOptions()
-	before.From, before.To = first, split.AddDate(0, 0, 364).Format("2006-01-02")
-	after.From, after.To = mid, last
+	before.From, before.To = first.String(), split.AddDate(0, 0, 364).Format("2006-01-02")
+	after.From, after.To = mid, last.String()
 	// The synthetic pairs are drawn afresh each day, each present on about
 	// 9 % of the days and with 10 trips or more on a fifth of those: a pool
 	// needs the share lowered to fill.

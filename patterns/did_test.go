@@ -66,13 +66,13 @@ func TestAdjustedCostAgainstDirectEnumeration(t *testing.T) {
 		byDay := map[string]*dayValues{}
 		for _, e := range store.Edges {
 			k := EdgeKey{From: e.From, To: e.To}
-			if period(e.Day) < 0 || e.Trips < before.Skyline.MinTrips || (!own[k] && !grp[k]) {
+			if period(e.Day.String()) < 0 || e.Trips < before.Skyline.MinTrips || (!own[k] && !grp[k]) {
 				continue
 			}
-			v := byDay[e.Day]
+			v := byDay[e.Day.String()]
 			if v == nil {
 				v = &dayValues{}
-				byDay[e.Day] = v
+				byDay[e.Day.String()] = v
 			}
 			if own[k] {
 				v.cost += math.Max(0, e.DurationSum-e.StraightSum/ref) / 3600
@@ -124,7 +124,7 @@ func TestAdjustedCostAgainstDirectEnumeration(t *testing.T) {
 	}
 	all := map[EdgeKey]*sums{}
 	for _, e := range store.Edges {
-		p := period(e.Day)
+		p := period(e.Day.String())
 		if p < 0 || e.Trips < before.Skyline.MinTrips {
 			continue
 		}

@@ -15,9 +15,11 @@ func ExampleScanStore() {
 	store := &regiongraph.Store{Meta: regiongraph.Meta{
 		Windows: []regiongraph.Window{{Name: "am", StartMinute: 420, EndMinute: 600}},
 	}}
-	edge := func(day string, from, to, trips int, speed, detour float64) regiongraph.Edge {
+	edge := func(text string, from, to, trips int, speed, detour float64) regiongraph.Edge {
 		straight := 2000 * float64(trips) // 2 km a trip
-		return regiongraph.Edge{Day: day, Window: "am", From: from, To: to, Trips: trips,
+		day, _ := regiongraph.ParseDay(text)
+		// Window 0: the store's first window, "am".
+		return regiongraph.Edge{Day: day, Window: 0, From: from, To: to, Trips: trips,
 			SpeedMedian: speed, DetourMedian: detour,
 			StraightSum: straight, DistanceSum: straight * detour, DurationSum: straight * detour / speed}
 	}
@@ -49,9 +51,11 @@ func ExampleCompare() {
 	store := &regiongraph.Store{Meta: regiongraph.Meta{
 		Windows: []regiongraph.Window{{Name: "am", StartMinute: 420, EndMinute: 600}},
 	}}
-	edge := func(day string, from, to, trips int, speed, detour float64) regiongraph.Edge {
+	edge := func(text string, from, to, trips int, speed, detour float64) regiongraph.Edge {
 		straight := 2000 * float64(trips) // 2 km a trip
-		return regiongraph.Edge{Day: day, Window: "am", From: from, To: to, Trips: trips,
+		day, _ := regiongraph.ParseDay(text)
+		// Window 0: the store's first window, "am".
+		return regiongraph.Edge{Day: day, Window: 0, From: from, To: to, Trips: trips,
 			SpeedMedian: speed, DetourMedian: detour,
 			StraightSum: straight, DistanceSum: straight * detour, DurationSum: straight * detour / speed}
 	}

@@ -122,7 +122,7 @@ func newEdgeDay(day int, e *regiongraph.Edge) edgeDay {
 // usable reports whether an edge of the store enters the comparison: in
 // the window, with at least minTrips trips (and at least one) and finite
 // medians.
-func usable(e *regiongraph.Edge, window string, minTrips int) bool {
+func usable(e *regiongraph.Edge, window regiongraph.WindowIndex, minTrips int) bool {
 	return e.Window == window && e.Trips > 0 && e.Trips >= minTrips &&
 		!math.IsNaN(e.SpeedMedian) && !math.IsNaN(e.DetourMedian) && !math.IsNaN(e.DurationMedian) &&
 		!math.IsInf(e.SpeedMedian, 0) && !math.IsInf(e.DetourMedian, 0)

@@ -96,8 +96,8 @@ func (s *edgeSummary) features(p int) (straight, detour, speed float64) {
 // dayLookup maps the store's days to (period, index) with a one-entry
 // cache, since the store is sorted by day.
 type dayLookup struct {
-	index    [2]map[string]int
-	lastDay  string
+	index    [2]map[regiongraph.Day]int
+	lastDay  regiongraph.Day
 	lastP    int
 	lastI    int
 	lastSeen bool
@@ -106,9 +106,11 @@ type dayLookup struct {
 func newDayLookup(days [2][]string) *dayLookup {
 	l := &dayLookup{}
 	for p := range days {
-		l.index[p] = make(map[string]int, len(days[p]))
+		l.index[p] = make(map[regiongraph.Day]int, len(days[p]))
 		for i, d := range days[p] {
-			l.index[p][d] = i
+			if day, err := regiongraph.ParseDay(d); err == nil { // the scans' days are
+				l.index[p][day] = i
+			}
 		}
 	}
 	return l
@@ -116,7 +118,7 @@ func newDayLookup(days [2][]string) *dayLookup {
 
 // find returns the period and day index of day, or ok false when it is
 // analysed in neither period.
-func (l *dayLookup) find(day string) (p, i int, ok bool) {
+func (l *dayLookup) find(day regiongraph.Day) (p, i int, ok bool) {
 	if l.lastSeen && day == l.lastDay {
 		return l.lastP, l.lastI, l.lastP >= 0
 	}
@@ -147,12 +149,13 @@ func readPeriods(store *regiongraph.Store, sb, sa *Scan) *periodData {
 	daySpeeds := make([][]speedTrips, len(sb.Days))
 	look := newDayLookup(pd.days)
 	ref := sb.Options.ReferenceSpeed
+	window := windowIndex(store, sb.Window)
 	for i := range store.Edges {
 		e := &store.Edges[i]
 		// The network's totals count every pair with trips, however few:
 		// with a minimum, a fall of demand would also drop the pairs near
 		// it and overstate the fall.
-		if !usable(e, sb.Window, 1) {
+		if !usable(e, window, 1) {
 			continue
 		}
 		p, d, ok := look.find(e.Day)
@@ -198,12 +201,13 @@ func readPeriods(store *regiongraph.Store, sb, sa *Scan) *periodData {
 }
 
 // edgeDays reads the days of the given edges in both periods.
-func (pd *periodData) edgeDays(store *regiongraph.Store, window string, minTrips int, keys map[EdgeKey]bool) [2]map[EdgeKey][]edgeDay {
+func (pd *periodData) edgeDays(store *regiongraph.Store, windowName string, minTrips int, keys map[EdgeKey]bool) [2]map[EdgeKey][]edgeDay {
 	var out [2]map[EdgeKey][]edgeDay
 	for p := range out {
 		out[p] = map[EdgeKey][]edgeDay{}
 	}
 	look := newDayLookup(pd.days)
+	window := windowIndex(store, windowName)
 	for i := range store.Edges {
 		e := &store.Edges[i]
 		k := EdgeKey{From: e.From, To: e.To}

@@ -73,7 +73,7 @@ func ScanStore(ctx context.Context, store *regiongraph.Store, opts ScanOptions) 
 	if err := checkScanOptions(&opts); err != nil {
 		return nil, err
 	}
-	return scanDays(ctx, store.ByDay(), storeWindows(store, opts.Skyline.MinTrips), opts)
+	return scanDays(ctx, store.ByDay(), store.Meta.Windows, opts)
 }
 
 // MinSupport returns the number of days a group must recur on out of
@@ -118,51 +118,49 @@ func checkScanOptions(opts *ScanOptions) error {
 	return checkScanDays(opts)
 }
 
-// storeWindows returns the names of the store's windows in the order
-// given at ingest. A store whose Meta lists no windows offers the window
-// names of its edges with at least minTrips trips, in sorted order.
-func storeWindows(store *regiongraph.Store, minTrips int) []string {
-	names := store.WindowNames()
-	if len(names) > 0 {
-		return names
+// resolveWindow returns the window to scan, its name and index: name, or
+// the store's first window when name is empty. An edge names its window
+// by its index in the store's windows, so a store without windows has
+// none to scan.
+func resolveWindow(windows []regiongraph.Window, name string) (string, regiongraph.WindowIndex, error) {
+	var names []string
+	for _, w := range windows {
+		names = append(names, w.Name)
 	}
-	seen := map[string]bool{}
-	for i := range store.Edges {
-		if e := &store.Edges[i]; e.Trips >= minTrips && !seen[e.Window] {
-			seen[e.Window] = true
-			names = append(names, e.Window)
-		}
-	}
-	slices.Sort(names)
-	return names
-}
-
-// resolveWindow returns the window to scan among the store's windows
-// names: name, or the first window when name is empty.
-func resolveWindow(names []string, name string) (string, error) {
 	if len(names) == 0 {
-		return "", errors.New("patterns: scan: the store has no time windows and no edges")
+		return "", 0, errors.New("patterns: scan: the store has no time windows")
 	}
 	if name == "" {
-		return names[0], nil
+		name = names[0]
 	}
-	if !slices.Contains(names, name) {
-		return "", fmt.Errorf("patterns: scan: window %q is not in the store (windows: %s)", name, strings.Join(names, ", "))
+	i := slices.Index(names, name)
+	if i < 0 || i >= regiongraph.MaxWindows {
+		return "", 0, fmt.Errorf("patterns: scan: window %q is not in the store (windows: %s)", name, strings.Join(names, ", "))
 	}
-	return name, nil
+	return name, regiongraph.WindowIndex(i), nil
+}
+
+// windowIndex returns the index of the named window in the store, or
+// regiongraph.MaxWindows, an index no edge has, when it has none of that
+// name.
+func windowIndex(store *regiongraph.Store, name string) regiongraph.WindowIndex {
+	if w, ok := store.Meta.WindowIndex(name); ok {
+		return w
+	}
+	return regiongraph.MaxWindows
 }
 
 // analysedDays applies the period, the weekday filter and the exclusions
 // to the store's days, resolving empty From and To in opts.
-func analysedDays(storeDays []string, opts *ScanOptions) ([]string, error) {
+func analysedDays(storeDays []regiongraph.Day, opts *ScanOptions) ([]regiongraph.Day, error) {
 	if len(storeDays) == 0 {
 		return nil, errors.New("patterns: scan: the store has no days")
 	}
 	if opts.From == "" {
-		opts.From = storeDays[0]
+		opts.From = storeDays[0].String()
 	}
 	if opts.To == "" {
-		opts.To = storeDays[len(storeDays)-1]
+		opts.To = storeDays[len(storeDays)-1].String()
 	}
 	from, err := time.Parse(dayLayout, opts.From)
 	if err != nil {
@@ -175,21 +173,21 @@ func analysedDays(storeDays []string, opts *ScanOptions) ([]string, error) {
 	if from.After(to) {
 		return nil, fmt.Errorf("patterns: scan: from %s is after to %s", opts.From, opts.To)
 	}
-	excluded := map[string]bool{}
+	excluded := map[regiongraph.Day]bool{}
 	for i, d := range opts.Exclude {
 		t, err := time.Parse(dayLayout, d)
 		if err != nil {
 			return nil, fmt.Errorf("patterns: scan: excluded day %d, %q, is not a date YYYY-MM-DD", i+1, d)
 		}
-		excluded[t.Format(dayLayout)] = true
+		excluded[regiongraph.DayOf(t)] = true
 	}
-	var days []string
+	first, last := regiongraph.DayOf(from), regiongraph.DayOf(to)
+	var days []regiongraph.Day
 	for _, d := range storeDays {
-		t, _ := time.Parse(dayLayout, d) // checked by scanDay
-		if t.Before(from) || t.After(to) || excluded[d] {
+		if d < first || d > last || excluded[d] {
 			continue
 		}
-		weekend := t.Weekday() == time.Saturday || t.Weekday() == time.Sunday
+		weekend := d.Weekday() == time.Saturday || d.Weekday() == time.Sunday
 		if opts.Days == Weekdays && weekend || opts.Days == Weekends && !weekend {
 			continue
 		}

@@ -25,10 +25,29 @@ type scanPlant struct {
 	present  func(day int) bool
 }
 
+// testDay returns the day written s (YYYY-MM-DD), which must be one.
+func testDay(s string) regiongraph.Day {
+	d, err := regiongraph.ParseDay(s)
+	if err != nil {
+		panic(err)
+	}
+	return d
+}
+
+// testWindowIndex returns the index of window "am" or "pm" in the test
+// stores' windows, which list am first and pm second.
+func testWindowIndex(name string) regiongraph.WindowIndex {
+	i := slices.Index([]string{"am", "pm"}, name)
+	if i < 0 {
+		panic("no test window " + name)
+	}
+	return regiongraph.WindowIndex(i)
+}
+
 func scanEdge(day, window string, key EdgeKey, trips int, straight, detour, speed float64) regiongraph.Edge {
 	distance := straight * detour
 	return regiongraph.Edge{
-		Day: day, Window: window, From: key.From, To: key.To, Trips: trips,
+		Day: testDay(day), Window: testWindowIndex(window), From: key.From, To: key.To, Trips: trips,
 		SpeedP25: speed, SpeedMedian: speed, SpeedP75: speed,
 		DetourP25: detour, DetourMedian: detour, DetourP75: detour,
 		DistanceMedian: distance, DurationMedian: distance / speed,
@@ -185,11 +204,11 @@ func TestScanStoreDaySelection(t *testing.T) {
 	store := scanTestStore(2, 20, 14, 200, []scanPlant{scanPlantA})
 	var kept []regiongraph.Edge
 	for _, e := range store.Edges {
-		switch e.Day {
+		switch e.Day.String() {
 		case "2025-01-09":
 			continue
 		case "2025-01-10":
-			e.Window = "pm"
+			e.Window = testWindowIndex("pm")
 		}
 		kept = append(kept, e)
 	}
@@ -241,8 +260,8 @@ func TestScanStoreDaySelection(t *testing.T) {
 
 func TestScanStoreErrors(t *testing.T) {
 	store := scanTestStore(3, 10, 5, 50, nil)
-	bad := *store
-	bad.Edges = append([]regiongraph.Edge{{Day: "2025-1-6", Window: "am", From: 1, To: 2, Trips: 30}}, store.Edges...)
+	windowless := *store // edges name their windows by index in the store's
+	windowless.Meta.Windows = nil
 	dup := *store
 	dup.Edges = append(slices.Clone(store.Edges), store.Edges[0]) // out of order too
 	cases := []struct {
@@ -264,7 +283,7 @@ func TestScanStoreErrors(t *testing.T) {
 		{"support above 1", store, func(o *ScanOptions) { o.Support = 1.5 }, "support 1.5"},
 		{"negative group cap", store, func(o *ScanOptions) { o.MaxGroupEdges = -1 }, "max group edges -1"},
 		{"no reference speed", store, func(o *ScanOptions) { o.ReferenceSpeed = 0 }, "reference speed"},
-		{"bad day in store", &bad, func(*ScanOptions) {}, `store day "2025-1-6" is not a date`},
+		{"store without windows", &windowless, func(*ScanOptions) {}, "no time windows"},
 		{"duplicate edge", &dup, func(*ScanOptions) {}, "two edges"},
 	}
 	for _, c := range cases {

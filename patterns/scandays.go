@@ -26,7 +26,7 @@ func ScanDays(ctx context.Context, days *regiongraph.DayReader, opts ScanOptions
 	if days == nil {
 		return nil, errors.New("patterns: scan: no store")
 	}
-	return scanDays(ctx, days, days.Store().WindowNames(), opts)
+	return scanDays(ctx, days, days.Store().Meta.Windows, opts)
 }
 
 // A dayScan is what a scan keeps of one day of the store: whether it is
@@ -49,25 +49,34 @@ type dayValue struct {
 }
 
 // scanDays is the scan of the days that read hands out, in the window
-// resolved among windows (the store's window names).
-func scanDays(ctx context.Context, read *regiongraph.DayReader, windows []string, opts ScanOptions) (*Scan, error) {
+// resolved among the store's windows.
+func scanDays(ctx context.Context, read *regiongraph.DayReader, windows []regiongraph.Window, opts ScanOptions) (*Scan, error) {
 	if err := checkScanOptions(&opts); err != nil {
 		return nil, err
 	}
-	window, err := resolveWindow(windows, opts.Window)
+	window, wi, err := resolveWindow(windows, opts.Window)
 	if err != nil {
 		return nil, err
 	}
 	opts.Window = window
-	excluded := make(map[string]bool, len(opts.Exclude))
+	// The period and exclusions were checked as YYYY-MM-DD by
+	// checkScanOptions.
+	period := dayPeriod{first: regiongraph.Day(math.MinInt32), last: regiongraph.Day(math.MaxInt32), excluded: map[regiongraph.Day]bool{}}
+	if opts.From != "" {
+		period.first, _ = regiongraph.ParseDay(opts.From)
+	}
+	if opts.To != "" {
+		period.last, _ = regiongraph.ParseDay(opts.To)
+	}
 	for _, d := range opts.Exclude {
-		excluded[d] = true // checked as YYYY-MM-DD by checkScanOptions
+		day, _ := regiongraph.ParseDay(d)
+		period.excluded[day] = true
 	}
 	var mu sync.Mutex
-	byDay := map[string]*dayScan{}
+	byDay := map[regiongraph.Day]*dayScan{}
 	total := read.DayCount()
-	err = read.Each(ctx, func(day string, edges []regiongraph.Edge) error {
-		ds, err := scanDay(day, edges, window, &opts, excluded)
+	err = read.Each(ctx, func(day regiongraph.Day, edges []regiongraph.Edge) error {
+		ds, err := scanDay(day, edges, wi, window, &opts, period)
 		if err != nil || ds == nil {
 			return err
 		}
@@ -82,14 +91,18 @@ func scanDays(ctx context.Context, read *regiongraph.DayReader, windows []string
 	if err != nil {
 		return nil, err
 	}
-	storeDays := make([]string, 0, len(byDay))
+	storeDays := make([]regiongraph.Day, 0, len(byDay))
 	for d := range byDay {
 		storeDays = append(storeDays, d)
 	}
 	slices.Sort(storeDays)
-	days, err := analysedDays(storeDays, &opts)
+	analysed, err := analysedDays(storeDays, &opts)
 	if err != nil {
 		return nil, err
+	}
+	days := make([]string, len(analysed))
+	for i, d := range analysed {
+		days[i] = d.String()
 	}
 	scan := &Scan{
 		Options:          opts,
@@ -100,7 +113,7 @@ func scanDays(ctx context.Context, read *regiongraph.DayReader, windows []string
 		EdgeDaily:        make(map[EdgeKey][]DailyValue),
 	}
 	scanned := make([]*dayScan, len(days))
-	for d, day := range days {
+	for d, day := range analysed {
 		if scanned[d] = byDay[day]; !scanned[d].analysed {
 			// analysedDays and dayAnalysed disagree: a bug, not bad input.
 			return nil, fmt.Errorf("patterns: scan: day %s is analysed but was not scanned", day)
@@ -115,34 +128,37 @@ func scanDays(ctx context.Context, read *regiongraph.DayReader, windows []string
 	return scan, nil
 }
 
+// dayPeriod is the days a scan analyses, but for the weekday selector:
+// from first to last, both included, without the excluded days.
+type dayPeriod struct {
+	first, last regiongraph.Day
+	excluded    map[regiongraph.Day]bool
+}
+
 // scanDay reduces one day's edges (in store order) to what the scan keeps
 // of it: nil for a day without an edge of at least the minimum trips (in
 // any window), which the store has no data for; a day outside the period,
 // the weekday selector or the exclusions only counts as a store day.
 // Edges under the minimum are left out first, as
 // regiongraph.ReadOptions.MinTrips leaves them out when reading.
-func scanDay(day string, edges []regiongraph.Edge, window string, opts *ScanOptions, excluded map[string]bool) (*dayScan, error) {
+func scanDay(day regiongraph.Day, edges []regiongraph.Edge, wi regiongraph.WindowIndex, window string, opts *ScanOptions, period dayPeriod) (*dayScan, error) {
 	minTrips := opts.Skyline.MinTrips
 	if !slices.ContainsFunc(edges, func(e regiongraph.Edge) bool { return e.Trips >= minTrips }) {
 		return nil, nil
 	}
-	t, err := time.Parse(dayLayout, day)
-	if err != nil {
-		return nil, fmt.Errorf("patterns: scan: store day %q is not a date YYYY-MM-DD", day)
-	}
 	ds := &dayScan{}
-	weekend := t.Weekday() == time.Saturday || t.Weekday() == time.Sunday
-	if opts.From != "" && day < opts.From || opts.To != "" && day > opts.To || excluded[day] ||
+	weekend := day.Weekday() == time.Saturday || day.Weekday() == time.Sunday
+	if day < period.first || day > period.last || period.excluded[day] ||
 		opts.Days == Weekdays && weekend || opts.Days == Weekends && !weekend {
 		return ds, nil
 	}
 	ds.analysed = true
-	a := slices.IndexFunc(edges, func(e regiongraph.Edge) bool { return e.Window == window })
+	a := slices.IndexFunc(edges, func(e regiongraph.Edge) bool { return e.Window == wi })
 	if a < 0 {
 		return ds, nil // data in other windows only: analysed, no candidates
 	}
 	b := a + 1
-	for b < len(edges) && edges[b].Window == window {
+	for b < len(edges) && edges[b].Window == wi {
 		b++
 	}
 	graph := edges[a:b:b]

@@ -29,7 +29,7 @@ func TestScanDaysEqualsScanStore(t *testing.T) {
 	if err := store.WriteDataset(ds); err != nil {
 		t.Fatal(err)
 	}
-	first := store.Edges[0].Day
+	first := store.Edges[0].Day.String()
 	cases := []func(*ScanOptions){
 		func(*ScanOptions) {},
 		func(o *ScanOptions) { o.Window = "pm" },

@@ -56,14 +56,14 @@ func TestDailyTotalsAndRecurrence(t *testing.T) {
 }
 
 func TestEdgeDaysReadsOnlyTheWindowDaysAndBusyEdges(t *testing.T) {
-	store := &regiongraph.Store{Edges: []regiongraph.Edge{
-		{Day: "2026-01-05", Window: "am", From: 1, To: 2, Trips: 5, SpeedMedian: 4, DetourMedian: 1.4},
-		{Day: "2026-01-05", Window: "pm", From: 1, To: 2, Trips: 9, SpeedMedian: 9, DetourMedian: 1.1},
-		{Day: "2026-01-06", Window: "am", From: 1, To: 2, Trips: 0, SpeedMedian: 1, DetourMedian: 1},
-		{Day: "2026-01-06", Window: "am", From: 2, To: 1, Trips: 2, SpeedMedian: 1, DetourMedian: 1},
-		{Day: "2026-01-07", Window: "am", From: 1, To: 2, Trips: 3, SpeedMedian: 6, DetourMedian: 1.2},
-		{Day: "2026-01-08", Window: "am", From: 1, To: 2, Trips: 7, SpeedMedian: math.NaN(), DetourMedian: 1.2},
-		{Day: "2026-01-09", Window: "am", From: 1, To: 2, Trips: 8, SpeedMedian: 5, DetourMedian: 1.3},
+	store := &regiongraph.Store{Meta: regiongraph.Meta{Windows: []regiongraph.Window{{Name: "am"}, {Name: "pm"}}}, Edges: []regiongraph.Edge{
+		{Day: testDay("2026-01-05"), Window: testWindowIndex("am"), From: 1, To: 2, Trips: 5, SpeedMedian: 4, DetourMedian: 1.4},
+		{Day: testDay("2026-01-05"), Window: testWindowIndex("pm"), From: 1, To: 2, Trips: 9, SpeedMedian: 9, DetourMedian: 1.1},
+		{Day: testDay("2026-01-06"), Window: testWindowIndex("am"), From: 1, To: 2, Trips: 0, SpeedMedian: 1, DetourMedian: 1},
+		{Day: testDay("2026-01-06"), Window: testWindowIndex("am"), From: 2, To: 1, Trips: 2, SpeedMedian: 1, DetourMedian: 1},
+		{Day: testDay("2026-01-07"), Window: testWindowIndex("am"), From: 1, To: 2, Trips: 3, SpeedMedian: 6, DetourMedian: 1.2},
+		{Day: testDay("2026-01-08"), Window: testWindowIndex("am"), From: 1, To: 2, Trips: 7, SpeedMedian: math.NaN(), DetourMedian: 1.2},
+		{Day: testDay("2026-01-09"), Window: testWindowIndex("am"), From: 1, To: 2, Trips: 8, SpeedMedian: 5, DetourMedian: 1.3},
 	}}
 	pd := &periodData{days: [2][]string{{"2026-01-05", "2026-01-06"}, {"2026-01-08", "2026-01-09"}}}
 	got := pd.edgeDays(store, "am", 3, map[EdgeKey]bool{{From: 1, To: 2}: true, {From: 2, To: 1}: true})

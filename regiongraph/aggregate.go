@@ -29,11 +29,11 @@ type record struct {
 // and a window rank (by name): ascending keys are the store's edge order.
 type bucketKey int64
 
-func makeBucketKey(day int32, windowRank uint8) bucketKey {
+func makeBucketKey(day Day, windowRank uint8) bucketKey {
 	return bucketKey(int64(day)<<8 | int64(windowRank))
 }
 
-func (k bucketKey) day() int32        { return int32(int64(k) >> 8) }
+func (k bucketKey) day() Day          { return Day(int64(k) >> 8) }
 func (k bucketKey) windowRank() uint8 { return uint8(k & 0xff) }
 
 // dayRecords holds the records of one day and window in chunks that are
@@ -73,8 +73,8 @@ type tally struct {
 	read       int64
 	used       int64
 	rejected   map[Reason]int64
-	visit      func(tr *trip, from, to int, day int32, window int) // when set, sees each used trip per window (ReadTrips, Options.KeepTrip)
-	visitOnly  bool                                                // visit instead of aggregating (ReadTrips)
+	visit      func(tr *trip, from, to int, day Day, window int) // when set, sees each used trip per window (ReadTrips, Options.KeepTrip)
+	visitOnly  bool                                              // visit instead of aggregating (ReadTrips)
 
 	// place, when set (Place), receives each row that passed the trip
 	// checks, and each row that was given a duplicate-check key, instead
@@ -228,7 +228,7 @@ func (t *tally) add(tr *trip) Reason {
 		if mask == 0 {
 			return ReasonOutsideTimes
 		}
-		t.placed = PlacedTrip{Day: int32(day), Windows: mask, From: int32(t.loc.id(from)), To: int32(t.loc.id(to)),
+		t.placed = PlacedTrip{Day: Day(day), Windows: mask, From: int32(t.loc.id(from)), To: int32(t.loc.id(to)),
 			Distance: float32(tr.distance), Duration: float32(duration), Straight: float32(straight)}
 		return reasonUsed
 	}
@@ -241,12 +241,12 @@ func (t *tally) add(tr *trip) Reason {
 		}
 		in = true
 		if t.visit != nil {
-			t.visit(tr, from, to, int32(day), wi)
+			t.visit(tr, from, to, Day(day), wi)
 			if t.visitOnly {
 				continue
 			}
 		}
-		t.hold(int32(day), wi, rec)
+		t.hold(Day(day), wi, rec)
 	}
 	if !in {
 		return ReasonOutsideTimes
@@ -258,7 +258,7 @@ func (t *tally) add(tr *trip) Reason {
 }
 
 // hold keeps rec in the bucket of day and window wi.
-func (t *tally) hold(day int32, wi int, rec record) {
+func (t *tally) hold(day Day, wi int, rec record) {
 	key := makeBucketKey(day, t.windowRank[wi])
 	d := t.last[wi]
 	if d == nil || d.key != key {
@@ -346,22 +346,13 @@ func finish(ctx context.Context, st *settings, loc *locator, tallies []*tally, b
 		}
 	}
 	slices.Sort(keys)
-	byRank := make([]string, len(st.windows))
+	byRank := make([]WindowIndex, len(st.windows))
 	for wi, r := range windowRanks(st.windows) {
-		byRank[r] = st.windows[wi].Name
-	}
-	// Day strings, shared by a day's edges.
-	dayNames := make([]string, len(keys))
-	for i, k := range keys {
-		if i > 0 && keys[i-1].day() == k.day() {
-			dayNames[i] = dayNames[i-1]
-		} else {
-			dayNames[i] = dayString(int64(k.day()))
-		}
+		byRank[r] = WindowIndex(wi)
 	}
 	b := &buckets{loc: loc, parts: parts, spilled: spilled, spill: st.spill, keys: keys}
-	err = b.edges(ctx, func(k bucketKey, i int) (string, string) {
-		return dayNames[i], byRank[k.windowRank()]
+	err = b.edges(ctx, func(k bucketKey, i int) (Day, WindowIndex) {
+		return k.day(), byRank[k.windowRank()]
 	}, sink)
 	return q, err
 }
@@ -431,7 +422,7 @@ func (b *buckets) size(k bucketKey) int {
 // names(key, index). Buckets are independent: a few goroutines take them
 // in turn while sink (the Parquet writer, with its compression) takes the
 // finished ones in order.
-func (b *buckets) edges(ctx context.Context, names func(k bucketKey, i int) (day, window string), sink func([]Edge) error) error {
+func (b *buckets) edges(ctx context.Context, names func(k bucketKey, i int) (Day, WindowIndex), sink func([]Edge) error) error {
 	largest := 0
 	for _, k := range b.keys {
 		largest = max(largest, b.size(k))
@@ -565,7 +556,7 @@ func sortByPair(recs, tmp []record, regions int) []record {
 
 // bucketEdges appends the edges of one day and window to edges, from its
 // records sorted by pair.
-func bucketEdges(edges []Edge, day, window string, recs []record, loc *locator, scratch []float32) ([]Edge, []float32) {
+func bucketEdges(edges []Edge, day Day, window WindowIndex, recs []record, loc *locator, scratch []float32) ([]Edge, []float32) {
 	for start := 0; start < len(recs); {
 		end := start + 1
 		for end < len(recs) && recs[end].pair == recs[start].pair {

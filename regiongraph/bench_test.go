@@ -306,8 +306,9 @@ func syntheticStore(days, regions, perDay int, windows ...string) *Store {
 	type pair struct{ from, to int }
 	sorted := slices.Sorted(slices.Values(windows))
 	for d := 0; d < days; d++ {
-		day := day0.AddDate(0, 0, d).Format(time.DateOnly)
-		for _, w := range sorted {
+		day := DayOf(day0.AddDate(0, 0, d))
+		for _, name := range sorted {
+			w := WindowIndex(slices.Index(windows, name))
 			seen := make(map[pair]bool, perDay)
 			var pairs []pair
 			for len(pairs) < perDay {
@@ -333,7 +334,7 @@ func syntheticStore(days, regions, perDay int, windows ...string) *Store {
 	}
 	// The accounting of an ingest that used as many rows as the busiest
 	// window holds trips.
-	perWindow := map[string]int64{}
+	perWindow := map[WindowIndex]int64{}
 	for _, e := range s.Edges {
 		perWindow[e.Window] += int64(e.Trips)
 		s.Meta.Quality.Used = max(s.Meta.Quality.Used, perWindow[e.Window])

@@ -10,7 +10,6 @@ import (
 	"slices"
 	"strconv"
 	"strings"
-	"time"
 
 	"github.com/parquet-go/parquet-go"
 )
@@ -114,14 +113,14 @@ func replaceable(dir string) error {
 // WriteDay writes the edges of one local day, every window, in any order;
 // days must come in ascending order. A day without edges writes nothing.
 // The edges are not modified.
-func (dw *DatasetWriter) WriteDay(day string, edges []Edge) error {
+func (dw *DatasetWriter) WriteDay(day Day, edges []Edge) error {
 	if dw.closed {
 		return errors.New("regiongraph: dataset: write after Close or Abort")
 	}
-	if _, err := time.Parse(time.DateOnly, day); err != nil || len(day) != len(time.DateOnly) {
-		return fmt.Errorf("regiongraph: dataset %s: day %q is not YYYY-MM-DD", dw.dir, day)
+	if y, _, _ := day.Date(); y < 0 || y > 9999 {
+		return fmt.Errorf("regiongraph: dataset %s: day %s is not YYYY-MM-DD", dw.dir, day)
 	}
-	if n := len(dw.days); n > 0 && day <= dw.days[n-1].Day {
+	if n := len(dw.days); n > 0 && day.String() <= dw.days[n-1].Day {
 		return fmt.Errorf("regiongraph: dataset %s: day %s after day %s; days must come in ascending order", dw.dir, day, dw.days[n-1].Day)
 	}
 	if len(edges) == 0 {
@@ -133,8 +132,9 @@ func (dw *DatasetWriter) WriteDay(day string, edges []Edge) error {
 		}
 	}
 	rows := slices.Clone(edges)
-	slices.SortFunc(rows, compareDayFileRows)
-	name := dayFileName(day)
+	order := edgeOrderOf(dw.meta.Windows)
+	slices.SortFunc(rows, func(a, b Edge) int { return compareDayFileRows(order, a, b) })
+	name := dayFileName(day.String())
 	path := filepath.Join(dw.tmp, filepath.FromSlash(name))
 	if err := os.MkdirAll(filepath.Dir(path), 0o755); err != nil {
 		return fmt.Errorf("regiongraph: dataset: %w", err)
@@ -147,7 +147,7 @@ func (dw *DatasetWriter) WriteDay(day string, edges []Edge) error {
 			parquet.KeyValueMetadata(metaRegions, dw.meta.RegionsSHA256),
 			parquet.KeyValueMetadata(metaTimeZone, dw.meta.TimeZone),
 		}
-		ew := newEdgeWriter(f, rowGroupRows, opts)
+		ew := newEdgeWriter(f, rowGroupRows, opts, dw.meta.Windows)
 		if err := ew.add(rows); err != nil {
 			return err
 		}
@@ -156,7 +156,7 @@ func (dw *DatasetWriter) WriteDay(day string, edges []Edge) error {
 	if err != nil {
 		return fmt.Errorf("regiongraph: dataset %s: day %s: %w", dw.dir, day, err)
 	}
-	dw.days = append(dw.days, dayJSON{Day: day, File: name, Edges: int64(len(rows)), Bytes: size})
+	dw.days = append(dw.days, dayJSON{Day: day.String(), File: name, Edges: int64(len(rows)), Bytes: size})
 	dw.written.Edges += len(rows)
 	dw.written.Days++
 	return nil
@@ -166,9 +166,9 @@ func (dw *DatasetWriter) WriteDay(day string, edges []Edge) error {
 // then trips descending, so that within a window the pairs with few trips
 // fill the last pages, whose statistics let a reader with a minimum of
 // trips skip them; then from and to, for fixed bytes.
-func compareDayFileRows(a, b Edge) int {
-	if c := cmp.Compare(a.Window, b.Window); c != 0 {
-		return c
+func compareDayFileRows(order edgeOrder, a, b Edge) int {
+	if a.Window != b.Window {
+		return cmp.Compare(order.rank(a.Window), order.rank(b.Window))
 	}
 	if c := cmp.Compare(b.Trips, a.Trips); c != 0 {
 		return c
@@ -312,9 +312,9 @@ func (s *Store) writeDataset(dir string, pageBytes int) error {
 	}
 	dw.pageBytes = pageBytes
 	edges := s.Edges
-	if !slices.IsSortedFunc(edges, compareEdges) {
+	if compare := edgeOrderOf(s.Meta.Windows).compare; !slices.IsSortedFunc(edges, compare) {
 		edges = slices.Clone(edges)
-		slices.SortStableFunc(edges, compareEdges)
+		slices.SortStableFunc(edges, compare)
 	}
 	for len(edges) > 0 {
 		n := 1

@@ -26,7 +26,7 @@ func BenchmarkReadCityLayouts(b *testing.B) {
 	if err := createFile(file, s.WriteParquet); err != nil {
 		b.Fatal(err)
 	}
-	days := s.Days(s.Meta.Windows[0].Name)
+	days := s.Days(0)
 	rows := len(s.Edges)
 	s = nil
 	analysis := []string{"speed_median_mps", "detour_median", "duration_median_s", "distance_sum_m", "straight_sum_m", "duration_sum_s"}
@@ -36,7 +36,7 @@ func BenchmarkReadCityLayouts(b *testing.B) {
 	}{
 		{"all", ReadOptions{}},
 		{"scan-min-trips-3", ReadOptions{MinTrips: 3, Columns: analysis}},
-		{"scan-min-trips-3-one-day", ReadOptions{MinTrips: 3, Columns: analysis, From: days[len(days)/2], To: days[len(days)/2]}},
+		{"scan-min-trips-3-one-day", ReadOptions{MinTrips: 3, Columns: analysis, From: days[len(days)/2].String(), To: days[len(days)/2].String()}},
 	} {
 		for _, layout := range []struct{ name, path string }{{"file", file}, {"dataset", *cityDataset}} {
 			b.Run(bc.name+"/"+layout.name, func(b *testing.B) {

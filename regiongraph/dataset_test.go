@@ -33,10 +33,10 @@ func TestDatasetMatchesSingleFile(t *testing.T) {
 	if !reflect.DeepEqual(s, whole) {
 		t.Fatalf("dataset round trip changed the store:\n%+v\n%+v", s.Meta, whole.Meta)
 	}
-	days := s.Days("all")
+	days := s.Days(testWindow(s, "all"))
 	for _, opts := range []ReadOptions{
 		{}, {MinTrips: 2}, {MinTrips: 3, Window: "am"},
-		{From: days[1], To: days[2]}, {MinTrips: 2, From: days[1]}, {To: days[0], Window: "all"},
+		{From: days[1].String(), To: days[2].String()}, {MinTrips: 2, From: days[1].String()}, {To: days[0].String(), Window: "all"},
 		{From: "2030-01-01"}, {MinTrips: 1 << 20},
 		{MinTrips: 2, Columns: []string{"speed_median_mps", "duration_sum_s"}}, {Columns: []string{}},
 	} {
@@ -71,12 +71,12 @@ func TestDatasetMatchesSingleFile(t *testing.T) {
 		}
 	}
 	first, last, err := ReadDayRange(ds)
-	if err != nil || first != days[0] || last != s.Edges[len(s.Edges)-1].Day {
+	if err != nil || first != days[0].String() || last != s.Edges[len(s.Edges)-1].Day.String() {
 		t.Errorf("ReadDayRange(dataset) = %s, %s, %v", first, last, err)
 	}
 	// The hive layout: one file per day, named by its day.
 	for _, d := range days {
-		if _, err := os.Stat(filepath.Join(ds, "day="+d, "part-0.parquet")); err != nil {
+		if _, err := os.Stat(filepath.Join(ds, "day="+d.String(), "part-0.parquet")); err != nil {
 			t.Error(err)
 		}
 	}
@@ -91,8 +91,8 @@ func TestDatasetReadsOnlyItsDays(t *testing.T) {
 		t.Fatal(err)
 	}
 	var total int64
-	for _, d := range s.Days("am") {
-		fi, err := os.Stat(filepath.Join(ds, filepath.FromSlash(dayFileName(d))))
+	for _, d := range s.Days(testWindow(s, "am")) {
+		fi, err := os.Stat(filepath.Join(ds, filepath.FromSlash(dayFileName(d.String()))))
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -156,16 +156,16 @@ func TestDatasetReadsOnlyItsDays(t *testing.T) {
 // were changed is an error naming the path.
 func TestDatasetDamage(t *testing.T) {
 	s := syntheticStore(5, 20, 50, "am")
-	days := s.Days("am")
+	days := s.Days(testWindow(s, "am"))
 	cases := []struct {
 		name   string
 		damage func(ds string) error
 		want   string
 	}{
 		{"no manifest", func(ds string) error { return os.Remove(filepath.Join(ds, ManifestName)) }, "without manifest.json"},
-		{"missing day", func(ds string) error { return os.RemoveAll(filepath.Join(ds, "day="+days[2])) }, "day=" + days[2] + "/part-0.parquet is missing"},
+		{"missing day", func(ds string) error { return os.RemoveAll(filepath.Join(ds, "day="+days[2].String())) }, "day=" + days[2].String() + "/part-0.parquet is missing"},
 		{"cut day", func(ds string) error {
-			p := filepath.Join(ds, filepath.FromSlash(dayFileName(days[1])))
+			p := filepath.Join(ds, filepath.FromSlash(dayFileName(days[1].String())))
 			fi, _ := os.Stat(p)
 			return os.Truncate(p, fi.Size()/2)
 		}, "cut short"},
@@ -193,7 +193,7 @@ func TestDatasetDamage(t *testing.T) {
 			// Read a day at a time: refused when opened or when the day is reached.
 			r, err := OpenDays(ds, ReadOptions{})
 			if err == nil {
-				err = r.Each(context.Background(), func(string, []Edge) error { return nil })
+				err = r.Each(context.Background(), func(Day, []Edge) error { return nil })
 			}
 			if err == nil || !strings.Contains(err.Error(), c.want) || !strings.Contains(err.Error(), ds) {
 				t.Fatalf("a day at a time: got %v, want an error naming %s with %q", err, ds, c.want)
@@ -219,7 +219,7 @@ func TestDatasetWriterAtomic(t *testing.T) {
 	if _, err := os.Stat(ds); !os.IsNotExist(err) {
 		t.Fatalf("the dataset is visible before Close: %v", err)
 	}
-	if err := dw.WriteDay("2023-01-01", nil); err == nil {
+	if err := dw.WriteDay(testDay("2023-01-01"), nil); err == nil {
 		t.Error("a day before the last written was accepted")
 	}
 	dw.Abort()

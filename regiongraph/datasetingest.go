@@ -1,6 +1,7 @@
 package regiongraph
 
 import (
+	"cmp"
 	"context"
 	"errors"
 	"fmt"
@@ -33,7 +34,7 @@ func IngestDataset(ctx context.Context, regions *partition.Partition, regionsSHA
 // finished day on its own goroutine, one day behind the caller.
 type dayPipe struct {
 	dw     *DatasetWriter
-	day    string
+	day    Day
 	edges  []Edge
 	queue  chan dayEdges
 	done   sync.WaitGroup
@@ -42,7 +43,7 @@ type dayPipe struct {
 }
 
 type dayEdges struct {
-	day   string
+	day   Day
 	edges []Edge
 }
 
@@ -161,7 +162,7 @@ func MergeDataset(dir string, stores []*Store, paths []string) (*Store, Written,
 	}
 	for _, day := range days {
 		var edges []Edge
-		owner := map[string]int{}
+		owner := map[WindowIndex]int{}
 		for i := range ins {
 			es, err := ins[i].day(day)
 			if err != nil {
@@ -174,13 +175,18 @@ func MergeDataset(dir string, stores []*Store, paths []string) (*Store, Written,
 				}
 				if k, dup := owner[e.Window]; dup && k != i {
 					dw.Abort()
-					return nil, Written{}, fmt.Errorf("regiongraph: merge: day %s (window %s) is in both store %d and store %d; ingest a day's trips together", day, e.Window, k+1, i+1)
+					return nil, Written{}, fmt.Errorf("regiongraph: merge: day %s (window %s) is in both store %d and store %d; ingest a day's trips together", day, out.Meta.WindowName(e.Window), k+1, i+1)
 				}
 				owner[e.Window] = i
 			}
 			edges = append(edges, es...)
 		}
-		if err := dw.WriteDay(day, edges); err != nil {
+		d, err := ParseDay(day)
+		if err != nil {
+			dw.Abort()
+			return nil, Written{}, fmt.Errorf("regiongraph: merge: %v", err)
+		}
+		if err := dw.WriteDay(d, edges); err != nil {
 			dw.Abort()
 			return nil, Written{}, err
 		}
@@ -210,9 +216,9 @@ func (in *mergeInput) dayList() []string {
 		return out
 	}
 	var out []string
-	for _, e := range in.store.Edges {
-		if len(out) == 0 || out[len(out)-1] != e.Day {
-			out = append(out, e.Day)
+	for i, e := range in.store.Edges {
+		if i == 0 || in.store.Edges[i-1].Day != e.Day {
+			out = append(out, e.Day.String())
 		}
 	}
 	return out
@@ -221,10 +227,14 @@ func (in *mergeInput) dayList() []string {
 // day returns the input's edges of day, in store order.
 func (in *mergeInput) day(day string) ([]Edge, error) {
 	if in.store != nil {
+		d, err := ParseDay(day)
+		if err != nil {
+			return nil, fmt.Errorf("regiongraph: merge: %v", err)
+		}
 		es := in.store.Edges
-		a, _ := slices.BinarySearchFunc(es, day, func(e Edge, d string) int { return strings.Compare(e.Day, d) })
+		a, _ := slices.BinarySearchFunc(es, d, func(e Edge, d Day) int { return cmp.Compare(e.Day, d) })
 		b := a
-		for b < len(es) && es[b].Day == day {
+		for b < len(es) && es[b].Day == d {
 			b++
 		}
 		return es[a:b], nil
@@ -237,8 +247,8 @@ func (in *mergeInput) day(day string) ([]Edge, error) {
 	if err != nil {
 		return nil, err
 	}
-	if !slices.IsSortedFunc(edges, compareEdges) {
-		slices.SortStableFunc(edges, compareEdges)
+	if compare := edgeOrderOf(in.meta.Windows).compare; !slices.IsSortedFunc(edges, compare) {
+		slices.SortStableFunc(edges, compare)
 	}
 	if err := checkStore(in.path, &Store{Meta: in.meta, Edges: edges}); err != nil {
 		return nil, err

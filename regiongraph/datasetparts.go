@@ -45,7 +45,7 @@ func NewDatasetStaging(dir string) (string, error) {
 // and time zone go into the file). The file is written beside and renamed
 // into place, so that writing a day again (an engine's retry) replaces it
 // whole.
-func WriteDayFile(staging string, meta Meta, day string, edges []Edge) (DayFile, error) {
+func WriteDayFile(staging string, meta Meta, day Day, edges []Edge) (DayFile, error) {
 	if len(edges) == 0 {
 		return DayFile{}, fmt.Errorf("regiongraph: dataset: day %s has no edges", day)
 	}
@@ -58,7 +58,7 @@ func WriteDayFile(staging string, meta Meta, day string, edges []Edge) (DayFile,
 	if err := dw.WriteDay(day, edges); err != nil {
 		return DayFile{}, err
 	}
-	name := filepath.FromSlash(dayFileName(day))
+	name := filepath.FromSlash(dayFileName(day.String()))
 	final := filepath.Join(staging, name)
 	if err := os.MkdirAll(filepath.Dir(final), 0o755); err != nil {
 		return DayFile{}, fmt.Errorf("regiongraph: dataset: %w", err)

@@ -164,8 +164,8 @@ func readDataset(dir string, opts ReadOptions, stretchRows int64) (*Store, error
 	if err := checkStore(dir, s); err != nil {
 		return nil, err
 	}
-	if !slices.IsSortedFunc(s.Edges, compareEdges) {
-		slices.SortStableFunc(s.Edges, compareEdges)
+	if compare := edgeOrderOf(s.Meta.Windows).compare; !slices.IsSortedFunc(s.Edges, compare) {
+		slices.SortStableFunc(s.Edges, compare)
 	}
 	return s, nil
 }
@@ -190,7 +190,7 @@ func readDays(dir string, meta Meta, days []dayJSON, opts ReadOptions, stretchRo
 
 // openDays opens the given day files and cuts them into stretches; day
 // holds each stretch's day. closeAll closes the files, also on an error.
-func openDays(dir string, meta Meta, days []dayJSON, opts ReadOptions, stretchRows int64) (stretches []*stretch, day []string, closeAll func(), err error) {
+func openDays(dir string, meta Meta, days []dayJSON, opts ReadOptions, stretchRows int64) (stretches []*stretch, day []Day, closeAll func(), err error) {
 	var files []*os.File
 	closeAll = func() {
 		for _, f := range files {
@@ -230,16 +230,20 @@ func openDays(dir string, meta Meta, days []dayJSON, opts ReadOptions, stretchRo
 				return nil, nil, closeAll, fmt.Errorf("regiongraph: %s: %s %q, the manifest says %q", path, kv.key, got, kv.want)
 			}
 		}
-		sts, err := cutStretches(path, pf, leaf, stretchRows)
+		sts, err := cutStretches(path, pf, leaf, stretchRows, meta.Windows)
 		if err != nil {
 			return nil, nil, closeAll, err
+		}
+		dayValue, err := ParseDay(d.Day)
+		if err != nil {
+			return nil, nil, closeAll, fmt.Errorf("regiongraph: dataset %s: manifest: %v", dir, err)
 		}
 		for _, st := range sts {
 			st.dayOrder = true
 		}
 		stretches = append(stretches, sts...)
 		for range sts {
-			day = append(day, d.Day)
+			day = append(day, dayValue)
 		}
 	}
 	return stretches, day, closeAll, nil
@@ -247,7 +251,7 @@ func openDays(dir string, meta Meta, days []dayJSON, opts ReadOptions, stretchRo
 
 // fillDays fills the stretches' kept edges at their offsets in edges, each
 // day in store order (see stretch.dayOrder), and checks their days.
-func fillDays(stretches []*stretch, day []string, edges []Edge, opts ReadOptions, bufs []readBuffers) error {
+func fillDays(stretches []*stretch, day []Day, edges []Edge, opts ReadOptions, bufs []readBuffers) error {
 	cols := readColumns(opts)
 	if err := forEachWorker(len(stretches), func(w, i int) error {
 		st := stretches[i]
@@ -259,7 +263,7 @@ func fillDays(stretches []*stretch, day []string, edges []Edge, opts ReadOptions
 }
 
 // checkDayEdges checks that each stretch's edges are of its day.
-func checkDayEdges(stretches []*stretch, day []string, edges []Edge) error {
+func checkDayEdges(stretches []*stretch, day []Day, edges []Edge) error {
 	return forEach(len(stretches), func(i int) error {
 		st := stretches[i]
 		mine := edges[st.offset : st.offset+st.kept()]

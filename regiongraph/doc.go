@@ -10,6 +10,13 @@
 // (ReadFile, ReadFileOptions); the layout is in SCHEMA.md. Stores of
 // separate ingests merge (Merge).
 //
+// An Edge holds no pointer, so that the millions of a city year are memory
+// the garbage collector does not scan: its local day is a Day (days since
+// 1970-01-01; String and ParseDay give and read YYYY-MM-DD) and its window
+// a WindowIndex into the store's Meta.Windows (Meta.WindowName,
+// Meta.WindowIndex), at most MaxWindows of them. The files hold both as
+// text, as before.
+//
 // # Inputs
 //
 // A trip table has one row per trip with the columns trip_id (optional),

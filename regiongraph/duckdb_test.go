@@ -127,7 +127,7 @@ func TestDatasetInDuckDB(t *testing.T) {
 	want := map[string]*sums{}
 	var keys []string
 	for _, e := range mine.Edges {
-		k := e.Day + " " + e.Window
+		k := e.Day.String() + " " + mine.Meta.WindowName(e.Window)
 		if want[k] == nil {
 			want[k] = &sums{}
 			keys = append(keys, k)
@@ -159,8 +159,8 @@ func TestDatasetInDuckDB(t *testing.T) {
 	}
 	for i, row := range got[1] {
 		e := &s.Edges[i]
-		if row["day"] != e.Day || row["window"] != e.Window {
-			t.Fatalf("row %d: %v %v, edge %s %s", i, row["day"], row["window"], e.Day, e.Window)
+		if row["day"] != e.Day.String() || row["window"] != s.Meta.WindowName(e.Window) {
+			t.Fatalf("row %d: %v %v, edge %s %s", i, row["day"], row["window"], e.Day, s.Meta.WindowName(e.Window))
 		}
 		for c := range storeColumns {
 			col := &storeColumns[c]

@@ -29,7 +29,7 @@ import (
 // no day goes cold, and the tables stay in memory (10 bytes a row) rather
 // than go back and forth to the file.
 type rowSet struct {
-	days   map[int32]*dayRowSet
+	days   map[Day]*dayRowSet
 	clock  int64
 	bytes  int64 // of the tables in memory
 	budget int64
@@ -54,17 +54,17 @@ type dayRowSet struct {
 // newRowSet returns a set holding at most budget bytes of tables in
 // memory (besides the day being checked), spilling to spill.
 func newRowSet(budget int64, spill *spillFile) *rowSet {
-	return &rowSet{days: make(map[int32]*dayRowSet), budget: budget, spill: spill, cold: coldRows}
+	return &rowSet{days: make(map[Day]*dayRowSet), budget: budget, spill: spill, cold: coldRows}
 }
 
 // rowKey is what a reader keeps of a parsed row for the set.
 type rowKey struct {
-	day     int32  // local day of the start, days since 1970-01-01
+	day     Day    // local day of the start
 	id      uint64 // hash of the trip id, 0 without one
 	content uint64 // hash of the row's text
 }
 
-func rowKeyOf(day int32, rec, id []byte) rowKey {
+func rowKeyOf(day Day, rec, id []byte) rowKey {
 	k := rowKey{day: day, content: rowHash(rec)}
 	if len(id) > 0 {
 		k.id = rowHash(id) | 1 // never 0
@@ -128,7 +128,7 @@ func (s *rowSet) check(k rowKey) Reason {
 }
 
 // day returns the set of a day, read back if it was evicted.
-func (s *rowSet) day(day int32) *dayRowSet {
+func (s *rowSet) day(day Day) *dayRowSet {
 	s.clock++
 	d := s.days[day]
 	if d == nil {

@@ -41,7 +41,7 @@ func TestRowSetSpillsAndAgreesWithAMap(t *testing.T) {
 				day := c.order(i, rng)
 				id := uint64(rng.IntN(1500))*2 + 1   // ids repeat within a day
 				content := uint64(rng.IntN(2)) << 48 // two variants of each row
-				k := rowKey{day: day, id: id, content: content | id}
+				k := rowKey{day: Day(day), id: id, content: content | id}
 				want := reasonUsed
 				if fc, ok := firstContent[dayID{day, id}]; !ok {
 					firstContent[dayID{day, id}] = k.content

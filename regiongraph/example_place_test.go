@@ -66,7 +66,7 @@ func ExampleAggregator() {
 	q := store.Meta.Quality
 	fmt.Printf("read %d, used %d, duplicate rows %d\n", q.Read, q.Used, q.Rejected[string(regiongraph.ReasonDuplicateRow)])
 	for _, e := range store.Edges {
-		fmt.Printf("%s %s: region %d -> %d, %d trips\n", e.Day, e.Window, e.From, e.To, e.Trips)
+		fmt.Printf("%s %s: region %d -> %d, %d trips\n", e.Day, store.Meta.WindowName(e.Window), e.From, e.To, e.Trips)
 	}
 	// Output:
 	// part-1.csv: 2 placed trips

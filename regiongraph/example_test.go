@@ -60,7 +60,7 @@ func ExampleIngest() {
 	fmt.Printf("read %d, used %d, intra-region %d\n", q.Read, q.Used, q.Rejected[string(regiongraph.ReasonIntraRegion)])
 	for _, e := range store.Edges {
 		fmt.Printf("%s %s %d->%d: %d trips, median %.1f km/h, detour %.2f\n",
-			e.Day, e.Window, e.From, e.To, e.Trips, e.SpeedMedian*3.6, e.DetourMedian)
+			e.Day, store.Meta.WindowName(e.Window), e.From, e.To, e.Trips, e.SpeedMedian*3.6, e.DetourMedian)
 	}
 	// Trip 3 stays in region 1: counted, not an edge. Medians of two trips
 	// are their means: (25 + 18) / 2 km/h; detours 1.22 and 1.76.
@@ -98,7 +98,8 @@ func ExampleStore_WriteParquet() {
 	if err != nil {
 		log.Fatal(err)
 	}
-	fmt.Println(back.Meta.TimeZone, back.WindowNames(), back.Days("am"))
+	am, _ := back.Meta.WindowIndex("am")
+	fmt.Println(back.Meta.TimeZone, back.WindowNames(), back.Days(am))
 	for _, e := range back.Edges {
 		fmt.Printf("%d->%d: %d trips, %.0f m in %.0f s\n", e.From, e.To, e.Trips, e.DistanceSum, e.DurationSum)
 	}
@@ -112,4 +113,18 @@ func ExampleStore_WriteParquet() {
 	// Europe/Berlin [am] [2024-05-02]
 	// 1->2: 2 trips, 5500 m in 960 s
 	// 2 regions, rows read 3
+}
+
+func ExampleParseDay() {
+	d, err := regiongraph.ParseDay("2028-02-28")
+	if err != nil {
+		log.Fatal(err)
+	}
+	next := d.AddDays(1) // 2028 is a leap year
+	fmt.Println(next, next.Weekday(), int32(next))
+	_, err = regiongraph.ParseDay("2027-02-29")
+	fmt.Println(err)
+	// Output:
+	// 2028-02-29 Tuesday 21243
+	// day "2027-02-29" is not a date YYYY-MM-DD
 }

@@ -31,7 +31,7 @@ func fuzzIngest(t *testing.T, name string, format Format, data []byte, strict bo
 			!(e.DetourP25 <= e.DetourMedian && e.DetourMedian <= e.DetourP75) {
 			t.Fatalf("bad edge %+v", e)
 		}
-		if e.Window == "all" {
+		if s.Meta.WindowName(e.Window) == "all" {
 			trips += int64(e.Trips)
 		}
 	}

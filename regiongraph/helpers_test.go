@@ -140,3 +140,22 @@ func mustZone(t testing.TB, name string) *time.Location {
 	}
 	return loc
 }
+
+// testDay returns the day written s (YYYY-MM-DD), which must be one.
+func testDay(s string) Day {
+	d, err := ParseDay(s)
+	if err != nil {
+		panic(err)
+	}
+	return d
+}
+
+// testWindow returns the index of the named window of s, which must have
+// one.
+func testWindow(s *Store, name string) WindowIndex {
+	w, ok := s.Meta.WindowIndex(name)
+	if !ok {
+		panic("no window " + name)
+	}
+	return w
+}

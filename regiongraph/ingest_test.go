@@ -202,19 +202,19 @@ func TestAggregatesMatchBruteForce(t *testing.T) {
 	if len(s.Edges) != len(want) {
 		t.Errorf("%d edges, brute force %d", len(s.Edges), len(want))
 	}
-	if !slices.IsSortedFunc(s.Edges, compareEdges) {
+	if !slices.IsSortedFunc(s.Edges, edgeOrderOf(s.Meta.Windows).compare) {
 		t.Error("edges not sorted by day, window, from, to")
 	}
 	// float32 storage of per-trip values: quantiles within 1e-6 relative;
 	// sums add the float32 values rounded to millimetres and milliseconds.
 	const rel = 1e-6
 	for _, e := range s.Edges {
-		w := want[oracleKey{e.Day, e.Window, e.From, e.To}]
+		w := want[oracleKey{e.Day.String(), s.Meta.WindowName(e.Window), e.From, e.To}]
 		if w == nil {
-			t.Fatalf("edge %s %s %d->%d not in brute force", e.Day, e.Window, e.From, e.To)
+			t.Fatalf("edge %s %s %d->%d not in brute force", e.Day, s.Meta.WindowName(e.Window), e.From, e.To)
 		}
 		if e.Trips != len(w.speed) {
-			t.Errorf("edge %s %s %d->%d: %d trips, want %d", e.Day, e.Window, e.From, e.To, e.Trips, len(w.speed))
+			t.Errorf("edge %s %s %d->%d: %d trips, want %d", e.Day, s.Meta.WindowName(e.Window), e.From, e.To, e.Trips, len(w.speed))
 		}
 		checks := []struct {
 			name      string
@@ -231,13 +231,13 @@ func TestAggregatesMatchBruteForce(t *testing.T) {
 		}
 		for _, c := range checks {
 			if !near(c.got, c.want, rel) {
-				t.Errorf("edge %s %s %d->%d %s: %v, brute force %v", e.Day, e.Window, e.From, e.To, c.name, c.got, c.want)
+				t.Errorf("edge %s %s %d->%d %s: %v, brute force %v", e.Day, s.Meta.WindowName(e.Window), e.From, e.To, c.name, c.got, c.want)
 			}
 		}
 		tol := 0.002*float64(e.Trips) + 1e-6*w.distSum
 		if math.Abs(e.DistanceSum-w.distSum) > tol || math.Abs(e.DurationSum-w.durSum) > tol ||
 			math.Abs(e.StraightSum-w.straightSum) > tol+1e-6*w.straightSum {
-			t.Errorf("edge %s %s %d->%d sums: %v %v %v, brute force %v %v %v", e.Day, e.Window, e.From, e.To,
+			t.Errorf("edge %s %s %d->%d sums: %v %v %v, brute force %v %v %v", e.Day, s.Meta.WindowName(e.Window), e.From, e.To,
 				e.DistanceSum, e.StraightSum, e.DurationSum, w.distSum, w.straightSum, w.durSum)
 		}
 	}
@@ -316,7 +316,7 @@ func TestEveryReasonCountedOnce(t *testing.T) {
 		t.Fatalf("read %d used %d edges %d", s.Meta.Quality.Read, s.Meta.Quality.Used, len(s.Edges))
 	}
 	e := s.Edges[0]
-	if e.From != 1 || e.To != 2 || e.Trips != 1 || e.Day != "2024-05-01" || e.Window != "am" ||
+	if e.From != 1 || e.To != 2 || e.Trips != 1 || e.Day.String() != "2024-05-01" || s.Meta.WindowName(e.Window) != "am" ||
 		e.DurationMedian != 600 || e.DistanceSum != 2000 || math.Abs(e.SpeedMedian-2000.0/600) > 1e-6 {
 		t.Errorf("edge %+v", e)
 	}
@@ -384,11 +384,11 @@ func TestDayBoundaryOnDaylightSavingChange(t *testing.T) {
 	}
 	for i, r := range rows {
 		e, ok := got[i]
-		if !ok || e.Day != r.day || e.Window != r.window {
-			t.Errorf("row %d (%s): day %s window %s, want %s %s", i, r.start, e.Day, e.Window, r.day, r.window)
+		if !ok || e.Day.String() != r.day || s.Meta.WindowName(e.Window) != r.window {
+			t.Errorf("row %d (%s): day %s window %s, want %s %s", i, r.start, e.Day, s.Meta.WindowName(e.Window), r.day, r.window)
 		}
 	}
-	if d := s.Days("early"); !slices.Equal(d, []string{"2024-03-31", "2024-04-01", "2024-10-27", "2024-10-28"}) {
+	if d := s.Days(testWindow(s, "early")); !slices.Equal(d, []Day{testDay("2024-03-31"), testDay("2024-04-01"), testDay("2024-10-27"), testDay("2024-10-28")}) {
 		t.Errorf("Days(early) = %v", d)
 	}
 }

@@ -130,6 +130,9 @@ func parseManifest(path string, data []byte) (*manifest, Meta, error) {
 		}
 		meta.Windows = append(meta.Windows, pw)
 	}
+	if err := checkWindowCount(meta.Windows); err != nil {
+		return bad("%v", err)
+	}
 	q := m.Quality
 	meta.Quality = Quality{Read: q.Read, Used: q.Used, Rejected: q.Rejected, OffsetTimes: q.OffsetTimes, OffsetMismatch: q.OffsetMismatch}
 	if meta.Quality.Rejected == nil {

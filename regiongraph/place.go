@@ -28,7 +28,7 @@ const MaxPlacedWindows = 64
 // when the shards are aggregated: a repeat of it in another shard must
 // count as a duplicate, whatever its own outcome.
 type PlacedTrip struct {
-	Day     int32  // local day of the start, days since 1970-01-01
+	Day     Day    // local day of the start
 	Windows uint64 // bit i: the start falls in window i of the shard's windows (in the order given); 0 when rejected
 	From    int32  // origin region id; 0 when rejected
 	To      int32  // destination region id; 0 when rejected

@@ -424,7 +424,7 @@ func TestDatasetInParts(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	byDay := map[string][]Edge{}
+	byDay := map[Day][]Edge{}
 	for _, e := range s.Edges {
 		byDay[e.Day] = append(byDay[e.Day], e)
 	}

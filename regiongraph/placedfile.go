@@ -82,7 +82,7 @@ func PlaceTo(ctx context.Context, regions *partition.Partition, regionsSHA256 st
 		return nil
 	}
 	meta, err := Place(ctx, regions, regionsSHA256, inputs, opts, func(p *PlacedTrip) error {
-		batch = append(batch, placedRow{Day: p.Day, Windows: int64(p.Windows), From: p.From, To: p.To,
+		batch = append(batch, placedRow{Day: int32(p.Day), Windows: int64(p.Windows), From: p.From, To: p.To,
 			Distance: p.Distance, Duration: p.Duration, Straight: p.Straight, Rows: p.Rows, Outcome: string(p.Outcome),
 			Keyed: p.Keyed, KeyID: int64(p.KeyID), KeyRow: int64(p.KeyRow)})
 		n++
@@ -271,7 +271,7 @@ func placedFromRow(row parquet.Row, leaf *[12]int, windows int, p *PlacedTrip) e
 			return fmt.Errorf("column %s: missing or of another type", placedColumns[i].name)
 		}
 	}
-	*p = PlacedTrip{Day: v[0].Int32(), Windows: uint64(v[1].Int64()), From: v[2].Int32(), To: v[3].Int32(),
+	*p = PlacedTrip{Day: Day(v[0].Int32()), Windows: uint64(v[1].Int64()), From: v[2].Int32(), To: v[3].Int32(),
 		Distance: v[4].Float(), Duration: v[5].Float(), Straight: v[6].Float(), Rows: v[7].Int32(),
 		Outcome: Reason(v[8].ByteArray()), Keyed: v[9].Boolean(), KeyID: uint64(v[10].Int64()), KeyRow: uint64(v[11].Int64())}
 	return p.check(windows)

@@ -118,7 +118,7 @@ func (r *DayReader) CheckRegions(p *partition.Partition) error {
 // later day. The edges pass the checks of ReadFileOptions; the first
 // error, of a damaged day file or from visit, in day order, ends the
 // reading and is returned.
-func (r *DayReader) Each(ctx context.Context, visit func(day string, edges []Edge) error) error {
+func (r *DayReader) Each(ctx context.Context, visit func(day Day, edges []Edge) error) error {
 	if r.dir == "" {
 		return r.eachInMemory(ctx, visit)
 	}
@@ -137,7 +137,7 @@ func (r *DayReader) Each(ctx context.Context, visit func(day string, edges []Edg
 		if err != nil || len(edges) == 0 {
 			return err
 		}
-		return visit(r.days[i].Day, edges)
+		return visit(edges[0].Day, edges) // checked to be the manifest's day
 	})
 	if err != nil {
 		return err
@@ -184,15 +184,15 @@ func (r *DayReader) readDay(d dayJSON, buf *readBuffers, edges *[]Edge, trips []
 	}
 	// Each stretch is in store order; a day file of several stretches
 	// (more than stretchRows rows) is not as a whole.
-	if len(stretches) > 1 && !slices.IsSortedFunc(out, compareEdges) {
-		slices.SortStableFunc(out, compareEdges)
+	if compare := edgeOrderOf(r.store.Meta.Windows).compare; len(stretches) > 1 && !slices.IsSortedFunc(out, compare) {
+		slices.SortStableFunc(out, compare)
 	}
 	path := filepath.Join(r.dir, filepath.FromSlash(d.File))
 	if err := checkEdges(path, r.store.Meta, out, trips); err != nil {
 		return nil, err
 	}
 	if r.regions != nil {
-		if err := checkEdgeRegions(out, r.regions); err != nil {
+		if err := checkEdgeRegions(out, &r.store.Meta, r.regions); err != nil {
 			return nil, fmt.Errorf("%s: %w", path, err)
 		}
 	}
@@ -201,11 +201,11 @@ func (r *DayReader) readDay(d dayJSON, buf *readBuffers, edges *[]Edge, trips []
 
 // eachInMemory is Each of edges held in memory: the store's edges in
 // store order (sorted first if they are not) cut into days.
-func (r *DayReader) eachInMemory(ctx context.Context, visit func(day string, edges []Edge) error) error {
+func (r *DayReader) eachInMemory(ctx context.Context, visit func(day Day, edges []Edge) error) error {
 	edges := r.store.Edges
-	if !slices.IsSortedFunc(edges, compareEdges) {
+	if compare := edgeOrderOf(r.store.Meta.Windows).compare; !slices.IsSortedFunc(edges, compare) {
 		edges = slices.Clone(edges)
-		slices.SortStableFunc(edges, compareEdges)
+		slices.SortStableFunc(edges, compare)
 	}
 	var starts []int
 	for i := range edges {
@@ -259,13 +259,14 @@ func (ids *regionIDs) has(id int) bool {
 	return ids.other[id]
 }
 
-// checkEdgeRegions reports an edge whose region id is not in ids.
-func checkEdgeRegions(edges []Edge, ids *regionIDs) error {
+// checkEdgeRegions reports an edge, of a store with metadata meta, whose
+// region id is not in ids.
+func checkEdgeRegions(edges []Edge, meta *Meta, ids *regionIDs) error {
 	for i := range edges {
 		e := &edges[i]
 		for _, id := range [2]int{e.From, e.To} {
 			if !ids.has(id) {
-				return fmt.Errorf("regiongraph: edge %s %s %d->%d: region %d is not among the %d regions", e.Day, e.Window, e.From, e.To, id, ids.count)
+				return fmt.Errorf("regiongraph: edge %s %s %d->%d: region %d is not among the %d regions", e.Day, meta.WindowName(e.Window), e.From, e.To, id, ids.count)
 			}
 		}
 	}

@@ -18,11 +18,11 @@ import (
 
 // eachDay collects what r.Each hands out, each day's edges copied, and
 // checks that every day comes once with edges of that day only.
-func eachDay(t *testing.T, r *DayReader) (days []string, edges []Edge) {
+func eachDay(t *testing.T, r *DayReader) (days []Day, edges []Edge) {
 	t.Helper()
 	var mu sync.Mutex
-	byDay := map[string][]Edge{}
-	err := r.Each(context.Background(), func(day string, es []Edge) error {
+	byDay := map[Day][]Edge{}
+	err := r.Each(context.Background(), func(day Day, es []Edge) error {
 		if len(es) == 0 {
 			return fmt.Errorf("day %s handed out without edges", day)
 		}
@@ -69,11 +69,11 @@ func TestDayReaderMatchesReadFile(t *testing.T) {
 	if err := s.WriteDataset(ds); err != nil {
 		t.Fatal(err)
 	}
-	days := s.Days("all")
+	days := s.Days(testWindow(s, "all"))
 	for _, procs := range []int{1, 3} {
 		for _, opts := range []ReadOptions{
 			{}, {MinTrips: 2}, {MinTrips: 3, Window: "am"},
-			{From: days[1], To: days[2]}, {MinTrips: 2, From: days[1]},
+			{From: days[1].String(), To: days[2].String()}, {MinTrips: 2, From: days[1].String()},
 			{From: "2030-01-01"}, {MinTrips: 1 << 20},
 			{MinTrips: 2, Columns: []string{"speed_median_mps", "duration_sum_s"}},
 		} {
@@ -115,8 +115,8 @@ func TestDayReaderMatchesReadFile(t *testing.T) {
 	}
 }
 
-func distinctEdgeDays(edges []Edge) []string {
-	var days []string
+func distinctEdgeDays(edges []Edge) []Day {
+	var days []Day
 	for _, e := range edges {
 		if !slices.Contains(days, e.Day) {
 			days = append(days, e.Day)
@@ -143,7 +143,7 @@ func TestDayReaderChecks(t *testing.T) {
 		}
 		return r
 	}
-	none := func(string, []Edge) error { return nil }
+	none := func(Day, []Edge) error { return nil }
 
 	// Regions 1 to 19 of the store's 20: the edges naming 20 are refused.
 	r := open()
@@ -167,7 +167,7 @@ func TestDayReaderChecks(t *testing.T) {
 	}
 
 	boom := errors.New("boom")
-	if err := open().Each(context.Background(), func(string, []Edge) error { return boom }); !errors.Is(err, boom) {
+	if err := open().Each(context.Background(), func(Day, []Edge) error { return boom }); !errors.Is(err, boom) {
 		t.Errorf("visit's error: got %v", err)
 	}
 	ctx, cancel := context.WithCancel(context.Background())

@@ -7,7 +7,6 @@ import (
 	"runtime"
 	"slices"
 	"sync"
-	"time"
 
 	"github.com/paulmach/orb"
 
@@ -81,15 +80,15 @@ func ReadTrips(ctx context.Context, regions *partition.Partition, inputs []Input
 // tripVisitor returns the tallies' visit function that hands each used
 // trip, as a Trip, to fn, from one goroutine at a time. Day names are
 // shared between trips of the same day.
-func tripVisitor(st *settings, loc *locator, fn func(Trip)) func(tr *trip, from, to int, day int32, wi int) {
+func tripVisitor(st *settings, loc *locator, fn func(Trip)) func(tr *trip, from, to int, day Day, wi int) {
 	var mu sync.Mutex
-	dayNames := map[int32]string{}
-	return func(tr *trip, from, to int, day int32, wi int) {
+	dayNames := map[Day]string{}
+	return func(tr *trip, from, to int, day Day, wi int) {
 		mu.Lock()
 		defer mu.Unlock()
 		name, ok := dayNames[day]
 		if !ok {
-			name = time.Unix(int64(day)*86400, 0).UTC().Format(time.DateOnly)
+			name = day.String()
 			dayNames[day] = name
 		}
 		fn(Trip{Origin: orb.Point(tr.origin), Dest: orb.Point(tr.dest), From: loc.id(from), To: loc.id(to),

@@ -52,9 +52,9 @@ func TestReadTripsMatchesStore(t *testing.T) {
 		t.Fatalf("%d day-window-pairs from the trips, store has %d edges", len(got), len(store.Edges))
 	}
 	for _, e := range store.Edges {
-		v := got[key{e.Day, e.Window, e.From, e.To}]
+		v := got[key{e.Day.String(), store.Meta.WindowName(e.Window), e.From, e.To}]
 		if int(v[0]) != e.Trips || math.Abs(v[1]-e.DistanceSum) > 1e-6*e.DistanceSum+1 {
-			t.Fatalf("%s %s %d>%d: %v trips %.1f m, store %d trips %.1f m", e.Day, e.Window, e.From, e.To, v[0], v[1], e.Trips, e.DistanceSum)
+			t.Fatalf("%s %s %d>%d: %v trips %.1f m, store %d trips %.1f m", e.Day, store.Meta.WindowName(e.Window), e.From, e.To, v[0], v[1], e.Trips, e.DistanceSum)
 		}
 	}
 	// The ingest's KeepTrip sees the same trips in the same pass that

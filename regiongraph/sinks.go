@@ -37,7 +37,7 @@ func (k *fileSink) begin(s *Store) (func([]Edge) error, func() error, error) {
 	if err != nil {
 		return nil, nil, fmt.Errorf("regiongraph: write: %v", err)
 	}
-	k.ew = newEdgeWriter(k.w, rowGroupRows, wopts)
+	k.ew = newEdgeWriter(k.w, rowGroupRows, wopts, s.Meta.Windows)
 	add := func(es []Edge) error {
 		if err := k.ew.add(es); err != nil {
 			return fmt.Errorf("regiongraph: write: %w", err)

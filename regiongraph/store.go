@@ -5,18 +5,21 @@ import (
 	"cmp"
 	"errors"
 	"fmt"
+	"math"
 	"slices"
 
 	"narrows/partition"
 )
 
 // Edge is one directed region pair on one local day and time window.
-// Units are metres, seconds and metres per second.
+// Units are metres, seconds and metres per second. An edge holds no
+// pointer: a store's millions of edges are then memory the garbage
+// collector need not scan, and filling them costs no write barriers.
 type Edge struct {
-	Day    string // local calendar day, YYYY-MM-DD
-	Window string // time window name
-	From   int    // origin region id
-	To     int    // destination region id
+	Day    Day         // local calendar day
+	Window WindowIndex // time window: an index into the store's Meta.Windows
+	From   int         // origin region id
+	To     int         // destination region id
 	Trips  int
 
 	SpeedP25, SpeedMedian, SpeedP75    float64 // m/s
@@ -30,6 +33,14 @@ type Edge struct {
 	StraightSum float64 // metres of great-circle origin-destination distance
 	DurationSum float64 // seconds
 }
+
+// WindowIndex is the index of an edge's window in its store's
+// Meta.Windows; Meta.WindowName names it.
+type WindowIndex uint8
+
+// MaxWindows is the most windows a store can have, the number a
+// WindowIndex can tell apart.
+const MaxWindows = math.MaxUint8
 
 // Window is a named time-of-day window [Start, End) in minutes after local
 // midnight. A trip belongs to the window of its start time.
@@ -81,13 +92,57 @@ type Store struct {
 	spilled int64
 }
 
-// compareEdges orders edges by day, window name, from, to.
-func compareEdges(a, b Edge) int {
+// WindowName returns the name of the window of index w, "" when there is
+// no such window.
+func (m *Meta) WindowName(w WindowIndex) string {
+	if int(w) >= len(m.Windows) {
+		return ""
+	}
+	return m.Windows[w].Name
+}
+
+// WindowIndex returns the index of the named window in m.Windows; ok is
+// false when there is no window of that name.
+func (m *Meta) WindowIndex(name string) (w WindowIndex, ok bool) {
+	for i, x := range m.Windows {
+		if x.Name == name && i < MaxWindows {
+			return WindowIndex(i), true
+		}
+	}
+	return 0, false
+}
+
+// checkWindowCount reports more windows than a WindowIndex tells apart.
+func checkWindowCount(windows []Window) error {
+	if len(windows) > MaxWindows {
+		return fmt.Errorf("%d windows, more than the %d a store can hold", len(windows), MaxWindows)
+	}
+	return nil
+}
+
+// edgeOrder is the store's order of edges: by day, window name, from, to.
+// It holds the rank by name of each window index of the store's windows.
+type edgeOrder []uint8
+
+// edgeOrderOf returns the edge order of a store's windows.
+func edgeOrderOf(windows []Window) edgeOrder { return windowRanks(windows) }
+
+// rank returns the rank by name of window w; windows outside the store's
+// come last, in index order.
+func (o edgeOrder) rank(w WindowIndex) int {
+	if int(w) < len(o) {
+		return int(o[w])
+	}
+	return int(w) + len(o)
+}
+
+// compare orders edges by day, window name, from, to.
+func (o edgeOrder) compare(a, b Edge) int {
 	if c := cmp.Compare(a.Day, b.Day); c != 0 {
 		return c
 	}
-	if c := cmp.Compare(a.Window, b.Window); c != 0 {
-		return c
+	if a.Window != b.Window {
+		return cmp.Compare(o.rank(a.Window), o.rank(b.Window))
 	}
 	if c := cmp.Compare(a.From, b.From); c != 0 {
 		return c
@@ -109,10 +164,10 @@ func (s *Store) Regions() (*partition.Partition, error) {
 	return p, nil
 }
 
-// Days returns the local days that have at least one edge in the named
+// Days returns the local days that have at least one edge in the given
 // window, in ascending order.
-func (s *Store) Days(window string) []string {
-	var days []string
+func (s *Store) Days(window WindowIndex) []Day {
+	var days []Day
 	for _, e := range s.Edges {
 		if e.Window == window && (len(days) == 0 || days[len(days)-1] != e.Day) {
 			days = append(days, e.Day)
@@ -150,7 +205,10 @@ func Merge(stores ...*Store) (*Store, error) {
 		Windows:       slices.Clone(first.Meta.Windows),
 		Quality:       Quality{Rejected: make(map[string]int64)},
 	}}
-	type dayWindow struct{ day, window string }
+	type dayWindow struct {
+		day    Day
+		window WindowIndex
+	}
 	owner := make(map[dayWindow]int)
 	for i, s := range stores {
 		if s == nil {
@@ -174,7 +232,7 @@ func Merge(stores ...*Store) (*Store, error) {
 			}
 			seen[k] = true
 			if j, dup := owner[k]; dup {
-				return nil, fmt.Errorf("regiongraph: merge: day %s (window %s) is in both store %d and store %d; ingest a day's trips together", e.Day, e.Window, j+1, i+1)
+				return nil, fmt.Errorf("regiongraph: merge: day %s (window %s) is in both store %d and store %d; ingest a day's trips together", e.Day, first.Meta.WindowName(e.Window), j+1, i+1)
 			}
 			owner[k] = i
 		}
@@ -191,6 +249,6 @@ func Merge(stores ...*Store) (*Store, error) {
 			out.regionsGeoJSON = s.regionsGeoJSON
 		}
 	}
-	slices.SortStableFunc(out.Edges, compareEdges)
+	slices.SortStableFunc(out.Edges, edgeOrderOf(out.Meta.Windows).compare)
 	return out, nil
 }

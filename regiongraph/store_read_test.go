@@ -41,7 +41,7 @@ func writeLegacy(t *testing.T, path string, s *Store, pageBytes int) {
 	w := parquet.NewWriter(f, opts...)
 	rows := make([]parquet.Row, len(s.Edges))
 	for i := range s.Edges {
-		rows[i] = appendRow(nil, &s.Edges[i])
+		rows[i] = appendRow(nil, &s.Edges[i], newStoreText(s.Meta.Windows))
 	}
 	if _, err := w.WriteRows(rows); err != nil {
 		t.Fatal(err)
@@ -81,8 +81,8 @@ func columnChunk(t *testing.T, pf *parquet.File, g int, name string) format.Colu
 func keptEdges(s *Store, opts ReadOptions) []Edge {
 	var kept []Edge
 	for _, e := range s.Edges {
-		if e.Trips >= opts.MinTrips && (opts.Window == "" || e.Window == opts.Window) &&
-			(opts.From == "" || e.Day >= opts.From) && (opts.To == "" || e.Day <= opts.To) {
+		if e.Trips >= opts.MinTrips && (opts.Window == "" || s.Meta.WindowName(e.Window) == opts.Window) &&
+			(opts.From == "" || e.Day >= testDay(opts.From)) && (opts.To == "" || e.Day <= testDay(opts.To)) {
 			kept = append(kept, e)
 		}
 	}

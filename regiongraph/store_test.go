@@ -183,7 +183,7 @@ func TestMergeKeepsEveryValue(t *testing.T) {
 		t.Fatalf("merge of January and February differs from one ingest of both:\n%+v\n%+v", merged.Meta, both.Meta)
 	}
 	checkQuality(t, merged.Meta.Quality)
-	if days := merged.Days("all"); len(days) != 6 || days[0] != "2024-01-29" || days[5] != "2024-02-03" {
+	if days := merged.Days(testWindow(merged, "all")); len(days) != 6 || days[0] != testDay("2024-01-29") || days[5] != testDay("2024-02-03") {
 		t.Errorf("days %v", days)
 	}
 	if names := merged.WindowNames(); !reflect.DeepEqual(names, []string{"all"}) {

@@ -4,7 +4,6 @@ import (
 	"fmt"
 	"math"
 	"slices"
-	"time"
 
 	"narrows/partition"
 )
@@ -58,6 +57,9 @@ func checkStoreMeta(path string, s *Store) error {
 		}
 	}
 	names := s.WindowNames()
+	if err := checkWindowCount(s.Meta.Windows); err != nil {
+		return bad("%v", err)
+	}
 	for i, n := range names {
 		if slices.Contains(names[:i], n) {
 			return bad("window %q twice in the metadata", n)
@@ -72,31 +74,23 @@ func checkStoreMeta(path string, s *Store) error {
 // used.
 func checkEdges(path string, meta Meta, edges []Edge, trips []int64) error {
 	q := meta.Quality
-	lastDay, lastWindow, wi := "", "", 0
 	for i := range edges {
 		e := &edges[i]
 		at := func(format string, args ...any) error {
-			return fmt.Errorf("regiongraph: %s: damaged store: edge %s %s %d->%d: %s", path, e.Day, e.Window, e.From, e.To, fmt.Sprintf(format, args...))
+			return fmt.Errorf("regiongraph: %s: damaged store: edge %s %s %d->%d: %s", path, e.Day, meta.WindowName(e.Window), e.From, e.To, fmt.Sprintf(format, args...))
 		}
-		if e.Day != lastDay || i == 0 {
-			if len(e.Day) != 10 {
-				return at("day is not YYYY-MM-DD")
-			}
-			if _, err := time.Parse(time.DateOnly, e.Day); err != nil {
-				return at("day is not a date YYYY-MM-DD")
-			}
-			lastDay = e.Day
+		// The day and window were read from their text (storeText),
+		// which checked them; a store made in memory is checked here.
+		if y, _, _ := e.Day.Date(); y < 0 || y > 9999 {
+			return at("day %d is not a date YYYY-MM-DD", e.Day)
 		}
-		if e.Window != lastWindow || i == 0 {
-			wi = slices.IndexFunc(meta.Windows, func(w Window) bool { return w.Name == e.Window })
-			if wi < 0 {
-				names := make([]string, len(meta.Windows))
-				for k, w := range meta.Windows {
-					names[k] = w.Name
-				}
-				return at("window not in the metadata (%v)", names)
+		wi := int(e.Window)
+		if wi >= len(meta.Windows) {
+			names := make([]string, len(meta.Windows))
+			for k, w := range meta.Windows {
+				names[k] = w.Name
 			}
-			lastWindow = e.Window
+			return at("window %d not in the metadata (%v)", e.Window, names)
 		}
 		if e.From < 1 || e.To < 1 || e.From == e.To {
 			return at("region ids must be at least 1 and differ")
@@ -120,5 +114,5 @@ func checkEdges(path string, meta Meta, edges []Edge, trips []int64) error {
 // CheckRegions reports an edge whose region id is not one of p's: the
 // regions given for a store must be those it was built on.
 func (s *Store) CheckRegions(p *partition.Partition) error {
-	return checkEdgeRegions(s.Edges, newRegionIDs(p))
+	return checkEdgeRegions(s.Edges, &s.Meta, newRegionIDs(p))
 }

@@ -30,7 +30,7 @@ func TestReadDayRange(t *testing.T) {
 			t.Fatal(err)
 		}
 		gf, gl, err := ReadDayRange(path)
-		if err != nil || gf != first || gl != last {
+		if err != nil || gf != first.String() || gl != last.String() {
 			t.Errorf("%s: %s..%s, %v; every edge gives %s..%s", name, gf, gl, err, first, last)
 		}
 	}

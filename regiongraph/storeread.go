@@ -102,7 +102,7 @@ func readFile(path string, opts ReadOptions, stretchRows int64) (*Store, error) 
 	if opts.Window != "" && !slices.Contains(s.WindowNames(), opts.Window) {
 		return nil, fmt.Errorf("regiongraph: %s: no window %q in the store (it has %s)", path, opts.Window, strings.Join(s.WindowNames(), ", "))
 	}
-	stretches, err := cutStretches(path, pf, leaf, stretchRows)
+	stretches, err := cutStretches(path, pf, leaf, stretchRows, s.Meta.Windows)
 	if err != nil {
 		return nil, err
 	}
@@ -112,8 +112,8 @@ func readFile(path string, opts ReadOptions, stretchRows int64) (*Store, error) 
 	if err := checkStore(path, s); err != nil {
 		return nil, err
 	}
-	if !slices.IsSortedFunc(s.Edges, compareEdges) {
-		slices.SortStableFunc(s.Edges, compareEdges)
+	if compare := edgeOrderOf(s.Meta.Windows).compare; !slices.IsSortedFunc(s.Edges, compare) {
+		slices.SortStableFunc(s.Edges, compare)
 	}
 	return s, nil
 }
@@ -157,8 +157,8 @@ func storeLeaves(path string, pf *parquet.File) (leaf [numStoreColumns]int, err 
 }
 
 // cutStretches cuts the rows of pf into stretches of up to stretchRows rows
-// of a row group, the unit of parallel work.
-func cutStretches(path string, pf *parquet.File, leaf [numStoreColumns]int, stretchRows int64) ([]*stretch, error) {
+// of a row group, the unit of parallel work; windows are the store's.
+func cutStretches(path string, pf *parquet.File, leaf [numStoreColumns]int, stretchRows int64, windows []Window) ([]*stretch, error) {
 	var stretches []*stretch
 	var total int64
 	for g, rg := range pf.RowGroups() {
@@ -187,7 +187,8 @@ func cutStretches(path string, pf *parquet.File, leaf [numStoreColumns]int, stre
 			}
 		}
 		for a := int64(0); a < n; a += stretchRows {
-			stretches = append(stretches, &stretch{path: path, group: g, cols: cols, first: a, end: min(a+stretchRows, n), groupRows: n})
+			stretches = append(stretches, &stretch{path: path, group: g, cols: cols, first: a, end: min(a+stretchRows, n), groupRows: n,
+				text: newStoreText(windows)})
 		}
 	}
 	if total != pf.NumRows() {
@@ -261,6 +262,9 @@ func readStoreMeta(path string, pf *parquet.File, s *Store) error {
 			return fmt.Errorf("regiongraph: %s: windows metadata: %v", path, err)
 		}
 		s.Meta.Windows = append(s.Meta.Windows, pw)
+	}
+	if err := checkWindowCount(s.Meta.Windows); err != nil {
+		return fmt.Errorf("regiongraph: %s: windows metadata: %v", path, err)
 	}
 	s.Meta.Quality = Quality{Read: quality.Read, Used: quality.Used, Rejected: quality.Rejected,
 		OffsetTimes: quality.OffsetTimes, OffsetMismatch: quality.OffsetMismatch}
@@ -337,6 +341,8 @@ type stretch struct {
 	// descending) and fill puts the kept edges in store order (window,
 	// from, to) as it sets them.
 	dayOrder bool
+	// text turns the day and window columns into the edges' values.
+	text *storeText
 }
 
 func (st *stretch) kept() int {
@@ -360,6 +366,7 @@ const readBlock = 4096
 type readBuffers struct {
 	keep    []bool
 	windows []string
+	winIdx  []WindowIndex
 	ids     [2][]int32
 	src     []int32
 	strs    []string
@@ -484,7 +491,7 @@ func (st *stretch) fill(edges []Edge, cols []bool, buf *readBuffers) error {
 		n := min(readBlock, len(edges)-k)
 		a, b, rows := st.block(k, n)
 		for i, c := range cursors {
-			if err := setColumn(edges[k:k+n], &storeColumns[which[i]], c, a, b, rows, scratch); err != nil {
+			if err := st.setColumn(edges[k:k+n], which[i], c, a, b, rows, scratch); err != nil {
 				return err
 			}
 		}
@@ -534,8 +541,10 @@ func (st *stretch) fillInOrder(edges []Edge, cols []bool, buf *readBuffers) erro
 				i = int(src[j])
 			}
 			switch sc.kind() {
-			case parquet.ByteArray:
-				*sc.str(&edges[j]) = strs[i]
+			case parquet.ByteArray: // the day: storeOrder set the window
+				if edges[j].Day, err = st.text.parseDay(strs[i]); err != nil {
+					return st.errorf(col, "%v", err)
+				}
 			case parquet.Int64:
 				*sc.int(&edges[j]) = int(ints[i])
 			default:
@@ -583,10 +592,17 @@ func (st *stretch) storeOrder(edges []Edge, buf *readBuffers) ([]int32, error) {
 		}
 		c.close()
 	}
+	wins := sized(&buf.winIdx, n)
+	for i, w := range windows {
+		var err error
+		if wins[i], err = st.text.parseWindow(w); err != nil {
+			return nil, st.errorf(storeWindow, "%v", err)
+		}
+	}
 	var src []int32
 	for a := 0; a < n; {
 		b := a + 1
-		for b < n && windows[b] == windows[a] {
+		for b < n && wins[b] == wins[a] {
 			b++
 		}
 		if src == nil && !pairsAscending(ids[0][a:b], ids[1][a:b]) {
@@ -609,7 +625,7 @@ func (st *stretch) storeOrder(edges []Edge, buf *readBuffers) ([]int32, error) {
 			i = int(src[j])
 		}
 		e := &edges[j]
-		e.Window, e.From, e.To = windows[i], int(ids[0][i]), int(ids[1][i])
+		e.Window, e.From, e.To = wins[i], int(ids[0][i]), int(ids[1][i])
 	}
 	return src, nil
 }
@@ -690,17 +706,26 @@ type readScratch struct {
 	strs [readBlock]string
 }
 
-// setColumn decodes column col of the wanted rows (rows, or [a, b) if rows
-// is nil) and sets its field of the edges dst.
-func setColumn(dst []Edge, col *storeColumn, c *columnCursor, a, b int64, rows []int32, scratch *readScratch) error {
+// setColumn decodes column index ci of the wanted rows (rows, or [a, b) if
+// rows is nil) and sets its field of the edges dst.
+func (st *stretch) setColumn(dst []Edge, ci int, c *columnCursor, a, b int64, rows []int32, scratch *readScratch) error {
 	n := len(dst)
+	col := &storeColumns[ci]
 	switch col.kind() {
 	case parquet.ByteArray:
 		if err := c.strings(a, b, rows, scratch.strs[:n]); err != nil {
 			return err
 		}
 		for i := range dst {
-			*col.str(&dst[i]) = scratch.strs[i]
+			var err error
+			if ci == storeDay {
+				dst[i].Day, err = st.text.parseDay(scratch.strs[i])
+			} else {
+				dst[i].Window, err = st.text.parseWindow(scratch.strs[i])
+			}
+			if err != nil {
+				return st.errorf(ci, "%v", err)
+			}
 		}
 	case parquet.Int32:
 		if err := c.int32s(a, b, rows, scratch.i32[:n]); err != nil {

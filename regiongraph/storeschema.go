@@ -22,10 +22,11 @@ const (
 
 // A storeColumn is a column of the store: its name, its Parquet type, and
 // the Edge field it holds, reached through the accessor of the type's kind.
+// The two byte array columns hold the text of an edge's day and window
+// (see storeText).
 type storeColumn struct {
 	name   string
 	node   parquet.Node
-	str    func(e *Edge) *string  // byte array columns
 	int    func(e *Edge) *int     // int32 and int64 columns
 	double func(e *Edge) *float64 // double columns
 }
@@ -45,8 +46,8 @@ var (
 // storeColumns are the columns of the store in file order, the one list of
 // them; SCHEMA.md documents them (a test checks it).
 var storeColumns = [...]storeColumn{
-	{name: "day", node: dictString, str: func(e *Edge) *string { return &e.Day }},
-	{name: "window", node: dictString, str: func(e *Edge) *string { return &e.Window }},
+	{name: "day", node: dictString},
+	{name: "window", node: dictString},
 	{name: "from_region", node: int32Node, int: func(e *Edge) *int { return &e.From }},
 	{name: "to_region", node: int32Node, int: func(e *Edge) *int { return &e.To }},
 	{name: "trips", node: int64Node, int: func(e *Edge) *int { return &e.Trips }},
@@ -115,15 +116,19 @@ func storeColumnIndex(name string) int {
 	return -1
 }
 
-// appendRow appends the Parquet row of e to row; the region ids must fit
-// int32.
-func appendRow(row parquet.Row, e *Edge) parquet.Row {
+// appendRow appends the Parquet row of e to row, the day and window
+// written by text; the region ids must fit int32.
+func appendRow(row parquet.Row, e *Edge, text *storeText) parquet.Row {
 	for i := range storeColumns {
 		c := &storeColumns[i]
 		var v parquet.Value
 		switch c.kind() {
 		case parquet.ByteArray:
-			v = parquet.ByteArrayValue([]byte(*c.str(e)))
+			if i == storeDay {
+				v = parquet.ByteArrayValue(text.dayBytes(e.Day))
+			} else {
+				v = parquet.ByteArrayValue(text.windowBytes(e.Window))
+			}
 		case parquet.Int32:
 			v = parquet.Int32Value(int32(*c.int(e)))
 		case parquet.Int64:

@@ -32,7 +32,7 @@ func writeParquet(w io.Writer, s *Store, groupRows int, extra ...parquet.WriterO
 	if err != nil {
 		return fmt.Errorf("regiongraph: write: %v", err)
 	}
-	if err := writeEdges(w, s.Edges, groupRows, append(opts, extra...)); err != nil {
+	if err := writeEdges(w, s.Edges, groupRows, append(opts, extra...), s.Meta.Windows); err != nil {
 		return fmt.Errorf("regiongraph: write: %w", err)
 	}
 	return nil
@@ -89,8 +89,8 @@ func clock(m int) string { return fmt.Sprintf("%02d:%02d", m/60, m%60) }
 // writeEdges writes the edges as Parquet rows to w, converting them in
 // small batches so that only the writer's buffers are added to the store in
 // memory.
-func writeEdges(w io.Writer, edges []Edge, groupRows int, opts []parquet.WriterOption) error {
-	ew := newEdgeWriter(w, groupRows, opts)
+func writeEdges(w io.Writer, edges []Edge, groupRows int, opts []parquet.WriterOption, windows []Window) error {
+	ew := newEdgeWriter(w, groupRows, opts, windows)
 	if err := ew.add(edges); err != nil {
 		return err
 	}
@@ -106,17 +106,19 @@ type edgeWriter struct {
 	rows      []parquet.Row
 	values    parquet.Row // of the rows
 	inGroup   int
-	lastDay   string
-	n         int // edges written
-	days      int // distinct days written
+	lastDay   Day
+	text      *storeText // the store's windows
+	n         int        // edges written
+	days      int        // distinct days written
 }
 
 // edgeBatch is the number of rows converted before they are handed to the
 // Parquet writer.
 const edgeBatch = 1 << 12
 
-func newEdgeWriter(w io.Writer, groupRows int, opts []parquet.WriterOption) *edgeWriter {
+func newEdgeWriter(w io.Writer, groupRows int, opts []parquet.WriterOption, windows []Window) *edgeWriter {
 	return &edgeWriter{
+		text:      newStoreText(windows),
 		pw:        parquet.NewWriter(w, append([]parquet.WriterOption{storeSchema(nil)}, opts...)...),
 		groupRows: groupRows,
 		rows:      make([]parquet.Row, 0, edgeBatch),
@@ -137,6 +139,9 @@ func (ew *edgeWriter) add(edges []Edge) error {
 		if e.From < math.MinInt32 || e.From > math.MaxInt32 || e.To < math.MinInt32 || e.To > math.MaxInt32 {
 			return fmt.Errorf("region id out of int32 range in edge %d", ew.n)
 		}
+		if err := ew.text.checkWindow(e.Window); err != nil {
+			return fmt.Errorf("edge %d: %v", ew.n, err)
+		}
 		newDay := ew.n == 0 || e.Day != ew.lastDay
 		if ew.inGroup >= 2*ew.groupRows || ew.inGroup >= ew.groupRows && newDay {
 			if err := ew.flush(); err != nil {
@@ -152,7 +157,7 @@ func (ew *edgeWriter) add(edges []Edge) error {
 			ew.lastDay = e.Day
 		}
 		n := len(ew.values)
-		ew.values = appendRow(ew.values, e)
+		ew.values = appendRow(ew.values, e, ew.text)
 		ew.rows = append(ew.rows, ew.values[n:len(ew.values):len(ew.values)])
 		ew.inGroup++
 		ew.n++

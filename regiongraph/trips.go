@@ -350,6 +350,6 @@ func (r *tripReader) parse(t *tally, w *tripWorker, ch chunk) {
 		// Repeats are looked for among the rows starting on the same
 		// local day (see rowSet).
 		day := floorDiv(t.zone.local(floorDiv(p.tr.startMS, 1000)), 86400)
-		p.key = rowKeyOf(int32(max(math.MinInt32, min(math.MaxInt32, day))), rec, id)
+		p.key = rowKeyOf(Day(max(math.MinInt32, min(math.MaxInt32, day))), rec, id)
 	}
 }

@@ -76,14 +76,14 @@ func TestWriteRepeatedStore(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	ew := newEdgeWriter(f, rowGroupRows, wopts)
+	ew := newEdgeWriter(f, rowGroupRows, wopts, out.Windows)
 	day0, _ := time.Parse(time.DateOnly, m.Days[0].Day)
 	for i := range *repeatDays {
 		edges, err := readDays(src, meta, m.Days[i%len(m.Days):i%len(m.Days)+1], ReadOptions{}, stretchRows)
 		if err != nil {
 			t.Fatal(err)
 		}
-		day := day0.AddDate(0, 0, i).Format(time.DateOnly)
+		day := DayOf(day0.AddDate(0, 0, i))
 		for j := range edges {
 			edges[j].Day = day
 		}

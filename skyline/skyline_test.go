@@ -153,7 +153,8 @@ func TestSmallCases(t *testing.T) {
 }
 
 func edge(from, to, trips int, speed, detour float64) regiongraph.Edge {
-	return regiongraph.Edge{Day: "2026-03-02", Window: "am", From: from, To: to, Trips: trips,
+	day, _ := regiongraph.ParseDay("2026-03-02")
+	return regiongraph.Edge{Day: day, Window: 0, From: from, To: to, Trips: trips,
 		SpeedMedian: speed, DetourMedian: detour}
 }
 

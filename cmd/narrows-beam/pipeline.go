@@ -149,7 +149,7 @@ func (f *placeFn) ProcessElement(ctx context.Context, sh Shard, emit func(int64,
 	var seq int64
 	meta, err := regiongraph.Place(ctx, f.l.regions, f.l.sha, []regiongraph.Input{{Path: sh.Path, Format: regiongraph.Format(f.Cfg.Format)}}, f.l.opts,
 		func(p *regiongraph.PlacedTrip) error {
-			emit(int64(p.Day), Placed{Shard: sh.Index, Seq: seq, Day: p.Day, Windows: int64(p.Windows), From: p.From, To: p.To,
+			emit(int64(p.Day), Placed{Shard: sh.Index, Seq: seq, Day: int32(p.Day), Windows: int64(p.Windows), From: p.From, To: p.To,
 				Distance: p.Distance, Duration: p.Duration, Straight: p.Straight, Rows: p.Rows, Outcome: string(p.Outcome),
 				Keyed: p.Keyed, KeyID: int64(p.KeyID), KeyRow: int64(p.KeyRow)})
 			seq++
@@ -200,7 +200,7 @@ func (f *aggregateDayFn) ProcessElement(ctx context.Context, day int64, trips fu
 	}
 	for i := range all {
 		q := &all[i]
-		if err := a.Add(&regiongraph.PlacedTrip{Day: q.Day, Windows: uint64(q.Windows), From: q.From, To: q.To,
+		if err := a.Add(&regiongraph.PlacedTrip{Day: regiongraph.Day(q.Day), Windows: uint64(q.Windows), From: q.From, To: q.To,
 			Distance: q.Distance, Duration: q.Duration, Straight: q.Straight, Rows: q.Rows, Outcome: regiongraph.Reason(q.Outcome),
 			Keyed: q.Keyed, KeyID: uint64(q.KeyID), KeyRow: uint64(q.KeyRow)}); err != nil {
 			return fmt.Errorf("day %d, shard %d row %d: %w", day, q.Shard+1, q.Seq+1, err)

@@ -50,18 +50,15 @@ func cityYear(b *testing.B) *explore.Study {
 		b.Fatal(err)
 	}
 	// The simulated days, in order, then the year as copies of them.
-	var srcDays []string
-	byDay := map[string][]regiongraph.Edge{}
+	var srcDays []regiongraph.Day
+	byDay := map[regiongraph.Day][]regiongraph.Edge{}
 	for _, e := range src.Edges {
 		if len(byDay[e.Day]) == 0 {
 			srcDays = append(srcDays, e.Day)
 		}
 		byDay[e.Day] = append(byDay[e.Day], e)
 	}
-	first, err := time.Parse(time.DateOnly, srcDays[0])
-	if err != nil {
-		b.Fatal(err)
-	}
+	first := srcDays[0]
 	year := &regiongraph.Store{Meta: src.Meta}
 	n := 0
 	for d := range days {
@@ -69,7 +66,7 @@ func cityYear(b *testing.B) *explore.Study {
 	}
 	year.Edges = make([]regiongraph.Edge, 0, n)
 	for d := range days {
-		day := first.AddDate(0, 0, d).Format(time.DateOnly)
+		day := first.AddDays(d)
 		for _, e := range byDay[srcDays[d%len(srcDays)]] {
 			e.Day = day
 			year.Edges = append(year.Edges, e)

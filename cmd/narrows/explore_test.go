@@ -240,8 +240,8 @@ func TestExploreAPI(t *testing.T) {
 	// window with at least the minimum of trips, the excluded pair left out.
 	strip := map[string]float64{}
 	for _, e := range kept.Edges {
-		if e.Window == s1.Window && e.Trips >= 6 {
-			strip[e.Day] += max(0, e.DurationSum-e.StraightSum/opts.ReferenceSpeed) / 3600
+		if kept.Meta.WindowName(e.Window) == s1.Window && e.Trips >= 6 {
+			strip[e.Day.String()] += max(0, e.DurationSum-e.StraightSum/opts.ReferenceSpeed) / 3600
 		}
 	}
 	for _, d := range s1.Days {

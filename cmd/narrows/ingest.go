@@ -188,7 +188,7 @@ func printIngest(env *environment, meta regiongraph.Meta, edges, days int, start
 }
 
 func countDays(s *regiongraph.Store) int {
-	days := map[string]bool{}
+	days := map[regiongraph.Day]bool{}
 	for _, e := range s.Edges {
 		days[e.Day] = true
 	}

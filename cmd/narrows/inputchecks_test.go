@@ -21,7 +21,7 @@ func checkStore(t *testing.T) (graphs, regions string) {
 		Quality: regiongraph.Quality{Rejected: map[string]int64{}}}}
 	day := time.Date(2026, 3, 2, 0, 0, 0, 0, time.UTC)
 	for d := 0; d < 28; d++ {
-		s.Edges = append(s.Edges, regiongraph.Edge{Day: day.AddDate(0, 0, d).Format("2006-01-02"), Window: "all", From: 1, To: 2, Trips: 2 + d,
+		s.Edges = append(s.Edges, regiongraph.Edge{Day: regiongraph.DayOf(day.AddDate(0, 0, d)), Window: 0, From: 1, To: 2, Trips: 2 + d,
 			SpeedP25: 4, SpeedMedian: 5, SpeedP75: 6, DetourP25: 1.2, DetourMedian: 1.3, DetourP75: 1.4, DistanceMedian: 2000, DurationMedian: 400,
 			DistanceSum: 10000, StraightSum: 8000, DurationSum: 2000})
 	}

@@ -34,7 +34,7 @@ func killStore(gen int) *regiongraph.Store {
 	day := time.Date(2026, 3, 2, 0, 0, 0, 0, time.UTC)
 	for d := 0; d <= gen%5; d++ {
 		for i := 0; i < 4000; i++ {
-			s.Edges = append(s.Edges, regiongraph.Edge{Day: day.AddDate(0, 0, d).Format("2006-01-02"), Window: "all", From: 1 + i/60, To: 2 + i/60 + i%60, Trips: 5 + i%7,
+			s.Edges = append(s.Edges, regiongraph.Edge{Day: regiongraph.DayOf(day.AddDate(0, 0, d)), Window: 0, From: 1 + i/60, To: 2 + i/60 + i%60, Trips: 5 + i%7,
 				SpeedP25: 4, SpeedMedian: 5, SpeedP75: 6, DetourP25: 1.2, DetourMedian: 1.3, DetourP75: 1.4, DistanceMedian: 2000, DurationMedian: 400,
 				DistanceSum: 10000, StraightSum: 8000, DurationSum: 2000})
 		}
@@ -125,7 +125,7 @@ func checkWhole(t *testing.T, seed int, store, book string, must bool) {
 		if err != nil {
 			t.Fatalf("seed %d: store does not read back: %v", seed, err)
 		}
-		days := map[string]bool{}
+		days := map[regiongraph.Day]bool{}
 		for _, e := range s.Edges {
 			days[e.Day] = true
 		}

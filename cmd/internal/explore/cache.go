@@ -48,15 +48,19 @@ func (t *tripCosts) over(min int) float64 {
 }
 
 func newCache(store *regiongraph.Store) *cache {
-	seen := map[string]bool{}
-	var days []string
+	seen := map[regiongraph.Day]bool{}
+	var values []regiongraph.Day
 	for i := range store.Edges {
 		if d := store.Edges[i].Day; !seen[d] {
 			seen[d] = true
-			days = append(days, d)
+			values = append(values, d)
 		}
 	}
-	slices.Sort(days)
+	slices.Sort(values)
+	days := make([]string, len(values))
+	for i, d := range values {
+		days[i] = d.String()
+	}
 	return &cache{days: days}
 }
 
@@ -114,7 +118,10 @@ func (c *cache) atLeastTrips(min int) *regiongraph.Store {
 // stripCosts sums each window's and day's extra vehicle-hours by trips,
 // at the reference speed ref (m/s).
 func stripCosts(store *regiongraph.Store, ref float64) map[string]map[string]*tripCosts {
-	type key struct{ window, day string }
+	type key struct {
+		window regiongraph.WindowIndex
+		day    regiongraph.Day
+	}
 	byTrips := map[key]map[int]float64{}
 	for i := range store.Edges {
 		e := &store.Edges[i]
@@ -139,10 +146,11 @@ func stripCosts(store *regiongraph.Store, ref float64) map[string]map[string]*tr
 			sum += m[t.trips[i]]
 			t.cost[i] = sum
 		}
-		if out[k.window] == nil {
-			out[k.window] = map[string]*tripCosts{}
+		name := store.Meta.WindowName(k.window)
+		if out[name] == nil {
+			out[name] = map[string]*tripCosts{}
 		}
-		out[k.window][k.day] = t
+		out[name][k.day.String()] = t
 	}
 	return out
 }

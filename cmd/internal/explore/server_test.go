@@ -40,7 +40,7 @@ func gridStudy(t testing.TB) *Study {
 	store := &regiongraph.Store{Meta: regiongraph.Meta{TimeZone: "UTC", Windows: []regiongraph.Window{{Name: "all", StartMinute: 0, EndMinute: 1440}}}}
 	first := time.Date(2026, 3, 2, 0, 0, 0, 0, time.UTC)
 	for d := range 21 {
-		day := first.AddDate(0, 0, d).Format(time.DateOnly)
+		day := regiongraph.DayOf(first.AddDate(0, 0, d))
 		for a := 1; a <= side*side; a++ {
 			for _, b := range []int{a + 1, a + side} {
 				if b > side*side || (b == a+1 && a%side == 0) {
@@ -53,7 +53,7 @@ func gridStudy(t testing.TB) *Study {
 					}
 					straight := 1000.0
 					dist := straight * detour
-					store.Edges = append(store.Edges, regiongraph.Edge{Day: day, Window: "all", From: e[0], To: e[1], Trips: trips,
+					store.Edges = append(store.Edges, regiongraph.Edge{Day: day, Window: 0, From: e[0], To: e[1], Trips: trips,
 						SpeedMedian: speed, SpeedP25: speed, SpeedP75: speed, DetourMedian: detour, DetourP25: detour, DetourP75: detour,
 						DistanceMedian: dist, DurationMedian: dist / speed,
 						DistanceSum: dist * float64(trips), StraightSum: straight * float64(trips), DurationSum: dist / speed * float64(trips)})
@@ -62,7 +62,7 @@ func gridStudy(t testing.TB) *Study {
 		}
 	}
 	slices.SortFunc(store.Edges, func(a, b regiongraph.Edge) int {
-		return cmp.Or(strings.Compare(a.Day, b.Day), a.From-b.From, a.To-b.To)
+		return cmp.Or(cmp.Compare(a.Day, b.Day), a.From-b.From, a.To-b.To)
 	})
 	return &Study{Title: "grid", Store: store, Regions: p, Scan: patterns.DefaultScanOptions(), Compare: patterns.DefaultCompareOptions()}
 }
