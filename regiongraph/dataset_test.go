@@ -8,24 +8,13 @@ import (
 	"slices"
 	"strings"
 	"testing"
-	"time"
 )
 
 // TestDatasetMatchesSingleFile writes one store in both layouts and reads
 // every selection from each: the dataset must give the single file's
 // store, edge for edge, and both must equal filtering every edge.
 func TestDatasetMatchesSingleFile(t *testing.T) {
-	loc, _ := time.LoadLocation("Europe/Berlin")
-	s := sampleStore(t, 31, time.Date(2024, 1, 10, 0, 0, 0, 0, loc), 5000)
-	dir := t.TempDir()
-	file := filepath.Join(dir, "graphs.parquet")
-	if err := createFile(file, s.WriteParquet); err != nil {
-		t.Fatal(err)
-	}
-	ds := filepath.Join(dir, "graphs")
-	if err := s.WriteDataset(ds); err != nil {
-		t.Fatal(err)
-	}
+	s, file, ds := bothLayouts(t)
 	whole, err := ReadFile(ds)
 	if err != nil {
 		t.Fatal(err)

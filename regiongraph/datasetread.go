@@ -89,31 +89,41 @@ func readDatasetRegions(dir string, m *manifest) ([]byte, error) {
 	return b, nil
 }
 
-// readDataset is ReadFileOptions of a dataset directory: it opens the
-// manifest, then only the day files of the days opts keeps.
-func readDataset(dir string, opts ReadOptions, stretchRows int64) (*Store, error) {
+// openDataset reads the manifest and regions of the dataset at dir into a
+// store without edges, and lists the day files of opts' period with the
+// options to read each with: a day file holds one day, so the period is
+// applied by choosing files.
+func openDataset(dir string, opts ReadOptions) (s *Store, days []dayJSON, fileOpts ReadOptions, err error) {
 	m, meta, err := readManifest(dir)
 	if err != nil {
-		return nil, err
+		return nil, nil, opts, err
 	}
-	s := &Store{Meta: meta}
+	s = &Store{Meta: meta}
 	if m.Regions != "" {
 		if s.regionsGeoJSON, err = readDatasetRegions(dir, m); err != nil {
-			return nil, err
+			return nil, nil, opts, err
 		}
 	}
 	if opts.Window != "" && !slices.Contains(s.WindowNames(), opts.Window) {
-		return nil, fmt.Errorf("regiongraph: %s: no window %q in the store (it has %s)", dir, opts.Window, strings.Join(s.WindowNames(), ", "))
+		return nil, nil, opts, fmt.Errorf("regiongraph: %s: no window %q in the store (it has %s)", dir, opts.Window, strings.Join(s.WindowNames(), ", "))
 	}
-	var days []dayJSON
 	for _, d := range m.Days {
 		if (opts.From == "" || d.Day >= opts.From) && (opts.To == "" || d.Day <= opts.To) {
 			days = append(days, d)
 		}
 	}
-	// A day file holds one day: the period was applied by choosing files.
-	fileOpts := opts
+	fileOpts = opts
 	fileOpts.From, fileOpts.To = "", ""
+	return s, days, fileOpts, nil
+}
+
+// readDataset is ReadFileOptions of a dataset directory: it opens the
+// manifest, then only the day files of the days opts keeps.
+func readDataset(dir string, opts ReadOptions, stretchRows int64) (*Store, error) {
+	s, days, fileOpts, err := openDataset(dir, opts)
+	if err != nil {
+		return nil, err
+	}
 	// Two passes over the files, a batch of them open at a time: the
 	// first finds the rows kept, so that the edges are allocated once at
 	// their number, the second fills them.
@@ -125,7 +135,7 @@ func readDataset(dir string, opts ReadOptions, stretchRows int64) (*Store, error
 	total := 0
 	bufs := make([]readBuffers, readWorkers())
 	for a := 0; a < len(days); a += datasetOpenFiles {
-		sts, _, closeAll, err := openDays(dir, meta, days[a:min(a+datasetOpenFiles, len(days))], fileOpts, stretchRows)
+		sts, _, closeAll, err := openDays(dir, s.Meta, days[a:min(a+datasetOpenFiles, len(days))], fileOpts, stretchRows)
 		if err == nil {
 			err = forEachWorker(len(sts), func(w, i int) error { return sts[i].selectRows(fileOpts, &bufs[w]) })
 		}
@@ -143,7 +153,7 @@ func readDataset(dir string, opts ReadOptions, stretchRows int64) (*Store, error
 	}
 	k, offset := 0, 0
 	for a := 0; a < len(days) && total > 0; a += datasetOpenFiles {
-		sts, dayOf, closeAll, err := openDays(dir, meta, days[a:min(a+datasetOpenFiles, len(days))], fileOpts, stretchRows)
+		sts, dayOf, closeAll, err := openDays(dir, s.Meta, days[a:min(a+datasetOpenFiles, len(days))], fileOpts, stretchRows)
 		if err == nil && k+len(sts) > len(kept) {
 			err = fmt.Errorf("regiongraph: dataset %s: its files changed while read", dir)
 		}

@@ -5,7 +5,6 @@ import (
 	"fmt"
 	"path/filepath"
 	"slices"
-	"strings"
 
 	"narrows/partition"
 )
@@ -33,13 +32,8 @@ type DayReader struct {
 // now, its day files as Each reaches them; a single file is read whole
 // (ReadFileOptions), since its days are not separate files.
 func OpenDays(path string, opts ReadOptions) (*DayReader, error) {
-	if err := checkDays(path, opts); err != nil {
+	if err := checkReadOptions(path, opts); err != nil {
 		return nil, err
-	}
-	for _, c := range opts.Columns {
-		if storeColumnIndex(c) < 0 {
-			return nil, fmt.Errorf("regiongraph: read %s: no store column %q", path, c)
-		}
 	}
 	if !IsDataset(path) {
 		s, err := ReadFileOptions(path, opts)
@@ -48,31 +42,14 @@ func OpenDays(path string, opts ReadOptions) (*DayReader, error) {
 		}
 		return s.ByDay(), nil
 	}
-	m, meta, err := readManifest(path)
+	s, days, fileOpts, err := openDataset(path, opts)
 	if err != nil {
 		return nil, err
-	}
-	s := &Store{Meta: meta}
-	if m.Regions != "" {
-		if s.regionsGeoJSON, err = readDatasetRegions(path, m); err != nil {
-			return nil, err
-		}
-	}
-	if opts.Window != "" && !slices.Contains(s.WindowNames(), opts.Window) {
-		return nil, fmt.Errorf("regiongraph: %s: no window %q in the store (it has %s)", path, opts.Window, strings.Join(s.WindowNames(), ", "))
 	}
 	if err := checkStoreMeta(path, s); err != nil {
 		return nil, err
 	}
-	r := &DayReader{store: s, dir: path, opts: opts, stretchRows: stretchRows}
-	for _, d := range m.Days {
-		if (opts.From == "" || d.Day >= opts.From) && (opts.To == "" || d.Day <= opts.To) {
-			r.days = append(r.days, d)
-		}
-	}
-	// A day file holds one day: the period was applied by choosing files.
-	r.opts.From, r.opts.To = "", ""
-	return r, nil
+	return &DayReader{store: s, dir: path, days: days, opts: fileOpts, stretchRows: stretchRows}, nil
 }
 
 // ByDay returns a DayReader of the store's edges, which it shares: they

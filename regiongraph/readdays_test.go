@@ -16,6 +16,24 @@ import (
 	"narrows/partition"
 )
 
+// bothLayouts writes a sample store of 31 days in both layouts: a single
+// file and a dataset.
+func bothLayouts(t *testing.T) (s *Store, file, ds string) {
+	t.Helper()
+	loc, _ := time.LoadLocation("Europe/Berlin")
+	s = sampleStore(t, 31, time.Date(2024, 1, 10, 0, 0, 0, 0, loc), 5000)
+	dir := t.TempDir()
+	file = filepath.Join(dir, "graphs.parquet")
+	if err := createFile(file, s.WriteParquet); err != nil {
+		t.Fatal(err)
+	}
+	ds = filepath.Join(dir, "graphs")
+	if err := s.WriteDataset(ds); err != nil {
+		t.Fatal(err)
+	}
+	return s, file, ds
+}
+
 // eachDay collects what r.Each hands out, each day's edges copied, and
 // checks that every day comes once with edges of that day only.
 func eachDay(t *testing.T, r *DayReader) (days []Day, edges []Edge) {
@@ -58,17 +76,7 @@ func eachDay(t *testing.T, r *DayReader) (days []Day, edges []Edge) {
 // day in store order, whatever the number of workers and however the day
 // files are cut into pieces.
 func TestDayReaderMatchesReadFile(t *testing.T) {
-	loc, _ := time.LoadLocation("Europe/Berlin")
-	s := sampleStore(t, 31, time.Date(2024, 1, 10, 0, 0, 0, 0, loc), 5000)
-	dir := t.TempDir()
-	file := filepath.Join(dir, "graphs.parquet")
-	if err := createFile(file, s.WriteParquet); err != nil {
-		t.Fatal(err)
-	}
-	ds := filepath.Join(dir, "graphs")
-	if err := s.WriteDataset(ds); err != nil {
-		t.Fatal(err)
-	}
+	s, file, ds := bothLayouts(t)
 	days := s.Days(testWindow(s, "all"))
 	for _, procs := range []int{1, 3} {
 		for _, opts := range []ReadOptions{

@@ -67,13 +67,8 @@ const stretchRows = 1 << 18
 
 // readFile is ReadFileOptions with stretches of the given number of rows.
 func readFile(path string, opts ReadOptions, stretchRows int64) (*Store, error) {
-	if err := checkDays(path, opts); err != nil {
+	if err := checkReadOptions(path, opts); err != nil {
 		return nil, err
-	}
-	for _, c := range opts.Columns {
-		if storeColumnIndex(c) < 0 {
-			return nil, fmt.Errorf("regiongraph: read %s: no store column %q", path, c)
-		}
 	}
 	if IsDataset(path) {
 		return readDataset(path, opts, stretchRows)
@@ -116,6 +111,19 @@ func readFile(path string, opts ReadOptions, stretchRows int64) (*Store, error) 
 		slices.SortStableFunc(s.Edges, compare)
 	}
 	return s, nil
+}
+
+// checkReadOptions checks the days and columns of opts.
+func checkReadOptions(path string, opts ReadOptions) error {
+	if err := checkDays(path, opts); err != nil {
+		return err
+	}
+	for _, c := range opts.Columns {
+		if storeColumnIndex(c) < 0 {
+			return fmt.Errorf("regiongraph: read %s: no store column %q", path, c)
+		}
+	}
+	return nil
 }
 
 // checkDays checks the days of opts.
