@@ -4,6 +4,7 @@ import (
 	"context"
 	"errors"
 	"fmt"
+	"runtime"
 	"sync"
 
 	"narrows/partition"
@@ -26,67 +27,136 @@ func IngestDataset(ctx context.Context, regions *partition.Partition, regionsSHA
 }
 
 // dayPipe collects edges given in store order into days and writes each
-// finished day on its own goroutine, one day behind the caller.
+// finished day on a writer goroutine, a day file per goroutine at a time:
+// day files are independent, and compressing them is most of an ingest's
+// work once the trips are read.
 type dayPipe struct {
-	dw     *DatasetWriter
-	day    string
-	edges  []Edge
-	queue  chan dayEdges
-	done   sync.WaitGroup
-	err    error // of the writer goroutine, read after done
-	closed bool
+	dw    *DatasetWriter
+	day   string
+	edges []Edge
+	// ordered: edges are in the day file's order, each window's run
+	// ordered as it came (appendByTrips), so the writer need not copy
+	// them again.
+	ordered bool
+	queue   chan dayEdges
+	done    sync.WaitGroup
+	mu      sync.Mutex
+	err     error // the first of the writers or of a claim
+	closed  bool
 }
 
 type dayEdges struct {
-	day   string
-	edges []Edge
+	day     string
+	edges   []Edge
+	ordered bool // in the day file's order (dayPipe)
 }
 
+// dayWriters is the number of day files a dayPipe writes at once.
+func dayWriters() int { return max(1, min(runtime.GOMAXPROCS(0), 4)) }
+
 func newDayPipe(dw *DatasetWriter) *dayPipe {
-	p := &dayPipe{dw: dw, queue: make(chan dayEdges, 1)}
-	p.done.Add(1)
-	go func() {
-		defer p.done.Done()
-		for d := range p.queue {
-			if p.err == nil {
-				p.err = dw.WriteDay(d.day, d.edges)
+	// Unbuffered: a day waits for a free writer, so that the days held
+	// are the writers' and the one being collected.
+	p := &dayPipe{dw: dw, queue: make(chan dayEdges)}
+	for range dayWriters() {
+		p.done.Add(1)
+		go func() {
+			defer p.done.Done()
+			for d := range p.queue {
+				if p.failed() {
+					continue
+				}
+				rows := d.edges
+				if !d.ordered {
+					rows = dayFileRows(rows)
+				}
+				p.fail(dw.writeDay(d.day, rows))
 			}
-		}
-	}()
+		}()
+	}
 	return p
+}
+
+func (p *dayPipe) failed() bool {
+	p.mu.Lock()
+	defer p.mu.Unlock()
+	return p.err != nil
+}
+
+func (p *dayPipe) fail(err error) {
+	p.mu.Lock()
+	defer p.mu.Unlock()
+	if p.err == nil {
+		p.err = err
+	}
+}
+
+// send claims the collected day and hands it to a writer.
+func (p *dayPipe) send() error {
+	if len(p.edges) == 0 {
+		return nil
+	}
+	d := dayEdges{p.day, p.edges, p.ordered}
+	p.edges = nil
+	if err := p.dw.claimDay(d.day, d.edges); err != nil {
+		p.fail(err)
+		return err
+	}
+	if p.failed() {
+		return p.firstErr()
+	}
+	p.queue <- d
+	return nil
+}
+
+func (p *dayPipe) firstErr() error {
+	p.mu.Lock()
+	defer p.mu.Unlock()
+	return p.err
 }
 
 // add takes the next edges in store order.
 func (p *dayPipe) add(es []Edge) error {
 	for len(es) > 0 {
 		if p.day != es[0].Day && len(p.edges) > 0 {
-			p.queue <- dayEdges{p.day, p.edges}
-			p.edges = nil
+			if err := p.send(); err != nil {
+				return err
+			}
+		}
+		if len(p.edges) == 0 {
+			p.ordered = true
 		}
 		p.day = es[0].Day
 		n := 1
 		for n < len(es) && es[n].Day == p.day {
 			n++
 		}
-		p.edges = append(p.edges, es[:n]...)
+		// The edges of a window come in one piece, after the windows
+		// before it, so each piece is put in the day file's order as it
+		// is copied in.
+		ok := false
+		if k := len(p.edges); p.ordered && (k == 0 || p.edges[k-1].Window < es[0].Window) {
+			p.edges, ok = appendByTrips(p.edges, es[:n])
+		}
+		if !ok {
+			p.ordered = false
+			p.edges = append(p.edges, es[:n]...)
+		}
 		es = es[n:]
 	}
 	return nil
 }
 
-// close writes the last day and waits for the writer.
+// close writes the last day and waits for the writers.
 func (p *dayPipe) close() error {
 	if p.closed {
-		return p.err
+		return p.firstErr()
 	}
 	p.closed = true
-	if len(p.edges) > 0 {
-		p.queue <- dayEdges{p.day, p.edges}
-		p.edges = nil
-	}
+	p.send()
 	close(p.queue)
 	p.done.Wait()
-	return p.err
+	return p.firstErr()
 }
 
 // MergeDataset merges stores into a dataset at dir, a day at a time: the
@@ -141,7 +211,8 @@ func openMergeInput(path string) (mergeSource, Meta, []byte, error) {
 
 // mergeDays writes the days of srcs, whose metadata are metas, to a
 // dataset at dir: each step takes the earliest day any source has next,
-// so that a day of each source is held at a time.
+// so that a day of each source is held at a time (and the days being
+// written, see dayPipe).
 func mergeDays(dir string, srcs []mergeSource, metas []*Store) (*Store, Written, error) {
 	if len(srcs) == 0 {
 		return nil, Written{}, errors.New("regiongraph: merge: no stores")
@@ -173,7 +244,9 @@ func mergeDays(dir string, srcs []mergeSource, metas []*Store) (*Store, Written,
 	if err != nil {
 		return nil, Written{}, err
 	}
+	pipe := newDayPipe(dw)
 	fail := func(err error) (*Store, Written, error) {
+		pipe.close()
 		dw.Abort()
 		return nil, Written{}, err
 	}
@@ -210,9 +283,12 @@ func mergeDays(dir string, srcs []mergeSource, metas []*Store) (*Store, Written,
 				return fail(err)
 			}
 		}
-		if err := dw.WriteDay(day, edges); err != nil {
+		if err := pipe.add(edges); err != nil {
 			return fail(err)
 		}
+	}
+	if err := pipe.close(); err != nil {
+		return fail(err)
 	}
 	if err := dw.Close(); err != nil {
 		return nil, Written{}, err
