@@ -147,6 +147,13 @@ func (p *dayPipe) add(es []Edge) error {
 	return nil
 }
 
+// abort drops the day being collected and waits for the writers, after
+// a failure: what they wrote is about to be removed.
+func (p *dayPipe) abort() {
+	p.edges = nil
+	p.close()
+}
+
 // close writes the last day and waits for the writers.
 func (p *dayPipe) close() error {
 	if p.closed {
@@ -246,7 +253,7 @@ func mergeDays(dir string, srcs []mergeSource, metas []*Store) (*Store, Written,
 	}
 	pipe := newDayPipe(dw)
 	fail := func(err error) (*Store, Written, error) {
-		pipe.close()
+		pipe.abort()
 		dw.Abort()
 		return nil, Written{}, err
 	}
