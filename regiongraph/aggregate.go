@@ -90,6 +90,7 @@ type tally struct {
 	// Records past budget go to the spill file, bucket by bucket.
 	held     int // records in memory
 	budget   int
+	tallies  int // of the ingest, sharing the duplicate tables' overrun
 	spilled  map[bucketKey][]segment
 	spillBuf []byte
 	err      error // the first spill failure
@@ -251,10 +252,26 @@ func (t *tally) add(tr *trip) Reason {
 	if !in {
 		return ReasonOutsideTimes
 	}
-	if t.held > t.budget {
+	if t.held > t.budget || t.held > t.sharedBudget() {
 		t.spillAll()
 	}
 	return reasonUsed
+}
+
+// sharedBudget is the records the tally may hold while the duplicate
+// tables are over their share of the memory (input whose days are
+// shuffled keeps every day's table): the overrun comes off the records,
+// down to an eighth of the tally's budget.
+func (t *tally) sharedBudget() int {
+	seen := t.st.seen
+	if seen == nil {
+		return t.budget
+	}
+	over := seen.over.Load()
+	if over == 0 {
+		return t.budget
+	}
+	return max(t.budget/8, t.budget-int(over/recordBytes)/max(1, t.tallies))
 }
 
 // hold keeps rec in the bucket of day and window wi.
@@ -434,7 +451,9 @@ func (b *buckets) edges(ctx context.Context, names func(k bucketKey, i int) (Day
 	}
 	workers := max(1, min(runtime.GOMAXPROCS(0), maxParsers, len(b.keys)))
 	next := make(chan int)
-	results := make(chan bucketResult, workers)
+	// Unbuffered: a finished bucket waits for the sink (the writer is
+	// the slower) rather than add to the edges held.
+	results := make(chan bucketResult)
 	spare := make(chan []Edge, workers) // buffers handed back once sunk
 	var stopped atomic.Bool
 	var wg sync.WaitGroup
@@ -471,6 +490,12 @@ func (b *buckets) edges(ctx context.Context, names func(k bucketKey, i int) (Day
 					select {
 					case es = <-spare:
 					default:
+					}
+					// Sized for the bucket's pairs: grown by appending,
+					// a day of a city's edges would leave a third more
+					// than it holds, and garbage.
+					if pairs := countPairs(buf); cap(es) < pairs {
+						es = make([]Edge, 0, pairs)
 					}
 					day, window := names(b.keys[i], i)
 					es, scratch = bucketEdges(es[:0], day, window, buf, b.loc, scratch)
@@ -520,6 +545,17 @@ func (b *buckets) edges(ctx context.Context, names func(k bucketKey, i int) (Day
 		}
 	}
 	return first
+}
+
+// countPairs returns the number of region pairs of records sorted by pair.
+func countPairs(recs []record) int {
+	n := 0
+	for i := range recs {
+		if i == 0 || recs[i].pair != recs[i-1].pair {
+			n++
+		}
+	}
+	return n
 }
 
 // radixMin is the least bucket size sorted by radix.

@@ -191,8 +191,10 @@ func cpuTime() time.Duration {
 }
 
 // BenchmarkIngest10M ingests 10 million trips (a 1 GB CSV written to a
-// temporary folder first) and reports the peak heap in use, sampled every
-// 5 ms, and the peak of the Go runtime's total memory from the OS.
+// temporary folder first, its days shuffled) and reports the peak heap in
+// use, sampled every 5 ms, and the peak of the Go runtime's total memory
+// from the OS: for Ingest, which returns the store in memory, and for the
+// streamed ingest of "narrows ingest" (IngestTo, the file discarded).
 func BenchmarkIngest10M(b *testing.B) {
 	if testing.Short() {
 		b.Skip("writes a 1 GB file")
@@ -206,45 +208,68 @@ func BenchmarkIngest10M(b *testing.B) {
 	opts.TimeZone = "Europe/Berlin"
 	b.ResetTimer()
 	for i := 0; i < b.N; i++ {
-		runtime.GC()
-		var peakInuse, peakSys atomic.Uint64
-		stop := make(chan struct{})
-		done := make(chan struct{})
-		go func() {
-			defer close(done)
-			var ms runtime.MemStats
-			tick := time.NewTicker(5 * time.Millisecond)
-			defer tick.Stop()
-			for {
-				runtime.ReadMemStats(&ms)
-				if ms.HeapInuse > peakInuse.Load() {
-					peakInuse.Store(ms.HeapInuse)
-				}
-				if ms.Sys-ms.HeapReleased > peakSys.Load() {
-					peakSys.Store(ms.Sys - ms.HeapReleased)
-				}
-				select {
-				case <-stop:
-					return
-				case <-tick.C:
-				}
-			}
-		}()
-		t0, c0 := time.Now(), cpuTime()
-		s, err := Ingest(context.Background(), p, "", []Input{{Path: path}}, opts)
-		elapsed, cpu := time.Since(t0), cpuTime()-c0
-		close(stop)
-		<-done
+		var s *Store
+		var err error
+		inuse, sys, elapsed, cpu := measurePeak(func() {
+			s, err = Ingest(context.Background(), p, "", []Input{{Path: path}}, opts)
+		})
 		if err != nil {
 			b.Fatal(err)
 		}
-		b.ReportMetric(float64(peakInuse.Load())/(1<<20), "peak-heap-inuse-MB")
-		b.ReportMetric(float64(peakSys.Load())/(1<<20), "peak-runtime-MB")
+		b.ReportMetric(float64(inuse)/(1<<20), "peak-heap-inuse-MB")
+		b.ReportMetric(float64(sys)/(1<<20), "peak-runtime-MB")
 		b.ReportMetric(float64(rows)/elapsed.Seconds(), "rows/s")
 		b.ReportMetric(float64(cpu.Nanoseconds())/rows, "cpu-ns/row")
 		b.ReportMetric(float64(s.Meta.Quality.Used), "used")
 		b.ReportMetric(float64(len(s.Edges)), "edges")
+		s = nil
+		var n Written
+		inuse, sys, _, _ = measurePeak(func() {
+			_, n, err = IngestTo(context.Background(), p, "", []Input{{Path: path}}, opts, io.Discard, nil)
+		})
+		if err != nil {
+			b.Fatal(err)
+		}
+		b.ReportMetric(float64(inuse)/(1<<20), "streamed-peak-heap-inuse-MB")
+		b.ReportMetric(float64(sys)/(1<<20), "streamed-peak-runtime-MB")
+		b.ReportMetric(float64(n.Spilled)/(1<<20), "streamed-spilled-MB")
 	}
+}
+
+// measurePeak runs f after a garbage collection and returns the peak heap
+// in use and the peak of the runtime's memory from the OS, sampled every
+// 5 ms, and f's wall and CPU time.
+func measurePeak(f func()) (inuse, sys uint64, elapsed, cpu time.Duration) {
+	runtime.GC()
+	var peakInuse, peakSys atomic.Uint64
+	stop := make(chan struct{})
+	done := make(chan struct{})
+	go func() {
+		defer close(done)
+		var ms runtime.MemStats
+		tick := time.NewTicker(5 * time.Millisecond)
+		defer tick.Stop()
+		for {
+			runtime.ReadMemStats(&ms)
+			if ms.HeapInuse > peakInuse.Load() {
+				peakInuse.Store(ms.HeapInuse)
+			}
+			if ms.Sys-ms.HeapReleased > peakSys.Load() {
+				peakSys.Store(ms.Sys - ms.HeapReleased)
+			}
+			select {
+			case <-stop:
+				return
+			case <-tick.C:
+			}
+		}
+	}()
+	t0, c0 := time.Now(), cpuTime()
+	f()
+	elapsed, cpu = time.Since(t0), cpuTime()-c0
+	close(stop)
+	<-done
+	return peakInuse.Load(), peakSys.Load(), elapsed, cpu
 }
 
 // BenchmarkLocateAndorra places random points on the regions of the real

@@ -10,6 +10,7 @@ import (
 	"slices"
 	"strconv"
 	"strings"
+	"sync"
 
 	"github.com/parquet-go/parquet-go"
 )
@@ -53,9 +54,12 @@ type DatasetWriter struct {
 	dir, tmp string
 	meta     Meta
 	regions  []byte
-	days     []dayJSON
-	written  Written
+	lastDay  Day  // of the last day claimed with edges
+	anyDay   bool // whether a day was claimed with edges
 	closed   bool
+	mu       sync.Mutex // of days and written, set as day files are written
+	days     []dayJSON  // ascending
+	written  Written
 	// pageBytes is the page size of the day files (tests use small pages).
 	pageBytes int
 }
@@ -114,14 +118,27 @@ func replaceable(dir string) error {
 // days must come in ascending order. A day without edges writes nothing.
 // The edges are not modified.
 func (dw *DatasetWriter) WriteDay(day Day, edges []Edge) error {
+	if err := dw.claimDay(day, edges); err != nil {
+		return err
+	}
+	if len(edges) == 0 {
+		return nil
+	}
+	return dw.writeDay(day, dayFileRows(edgeOrderOf(dw.meta.Windows), edges))
+}
+
+// claimDay checks that the edges of day may come next: WriteDay's rules.
+// The day's file may then be written (writeDay) on any goroutine, beside
+// the files of other claimed days.
+func (dw *DatasetWriter) claimDay(day Day, edges []Edge) error {
 	if dw.closed {
 		return errors.New("regiongraph: dataset: write after Close or Abort")
 	}
 	if y, _, _ := day.Date(); y < 0 || y > 9999 {
 		return fmt.Errorf("regiongraph: dataset %s: day %s is not YYYY-MM-DD", dw.dir, day)
 	}
-	if n := len(dw.days); n > 0 && day.String() <= dw.days[n-1].Day {
-		return fmt.Errorf("regiongraph: dataset %s: day %s after day %s; days must come in ascending order", dw.dir, day, dw.days[n-1].Day)
+	if dw.anyDay && day <= dw.lastDay {
+		return fmt.Errorf("regiongraph: dataset %s: day %s after day %s; days must come in ascending order", dw.dir, day, dw.lastDay)
 	}
 	if len(edges) == 0 {
 		return nil
@@ -131,17 +148,25 @@ func (dw *DatasetWriter) WriteDay(day Day, edges []Edge) error {
 			return fmt.Errorf("regiongraph: dataset %s: an edge of day %s given as day %s", dw.dir, edges[i].Day, day)
 		}
 	}
-	rows := slices.Clone(edges)
-	order := edgeOrderOf(dw.meta.Windows)
-	slices.SortFunc(rows, func(a, b Edge) int { return compareDayFileRows(order, a, b) })
-	name := dayFileName(day.String())
+	dw.lastDay, dw.anyDay = day, true
+	return nil
+}
+
+// writeDay writes the file of a claimed day from its edges in the day
+// file's order (dayFileRows); it may run on several goroutines at once.
+func (dw *DatasetWriter) writeDay(day Day, rows []Edge) error {
+	if len(rows) == 0 {
+		return nil
+	}
+	text := day.String()
+	name := dayFileName(text)
 	path := filepath.Join(dw.tmp, filepath.FromSlash(name))
 	if err := os.MkdirAll(filepath.Dir(path), 0o755); err != nil {
 		return fmt.Errorf("regiongraph: dataset: %w", err)
 	}
 	size, err := writeFileSynced(path, func(f *os.File) error {
 		opts := []parquet.WriterOption{
-			parquet.Compression(&parquet.Zstd),
+			parquet.Compression(&storeZstd),
 			parquet.PageBufferSize(dw.pageBytes),
 			parquet.KeyValueMetadata(metaSchemaVersion, strconv.Itoa(schemaVersion)),
 			parquet.KeyValueMetadata(metaRegions, dw.meta.RegionsSHA256),
@@ -156,10 +181,102 @@ func (dw *DatasetWriter) WriteDay(day Day, edges []Edge) error {
 	if err != nil {
 		return fmt.Errorf("regiongraph: dataset %s: day %s: %w", dw.dir, day, err)
 	}
-	dw.days = append(dw.days, dayJSON{Day: day.String(), File: name, Edges: int64(len(rows)), Bytes: size})
+	dw.mu.Lock()
+	defer dw.mu.Unlock()
+	// Days written beside each other may finish out of order.
+	i, _ := slices.BinarySearchFunc(dw.days, text, func(d dayJSON, day string) int { return strings.Compare(d.Day, day) })
+	dw.days = slices.Insert(dw.days, i, dayJSON{Day: text, File: name, Edges: int64(len(rows)), Bytes: size})
 	dw.written.Edges += len(rows)
 	dw.written.Days++
 	return nil
+}
+
+// dayFileRows returns a copy of a day's edges in the order of a day file
+// (compareDayFileRows), each 144-byte edge moved once: by appendByTrips
+// when the edges are in store order, else by sorting indexes.
+func dayFileRows(order edgeOrder, edges []Edge) []Edge {
+	if rows, ok := appendByTrips(order, make([]Edge, 0, len(edges)), edges); ok {
+		return rows
+	}
+	idx := make([]int32, len(edges))
+	for i := range idx {
+		idx[i] = int32(i)
+	}
+	slices.SortFunc(idx, func(a, b int32) int { return compareDayFileRowsAt(order, &edges[a], &edges[b]) })
+	rows := make([]Edge, len(edges))
+	for i, j := range idx {
+		rows[i] = edges[j]
+	}
+	return rows
+}
+
+// maxCountedTrips bounds the trips of an edge that appendByTrips counts.
+const maxCountedTrips = 1 << 16
+
+// appendByTrips appends edges of one day in store order (by window, from,
+// to: what an ingest hands over) to dst in the day file's order, and
+// reports whether it could: edges in store order are already in that
+// order but for trips, so a stable counting sort by trips, descending,
+// within each window's run gives it in linear time. Edges out of store
+// order, or with more than maxCountedTrips trips, append nothing.
+func appendByTrips(order edgeOrder, dst, edges []Edge) ([]Edge, bool) {
+	for i := range edges {
+		e := &edges[i]
+		if e.Trips < 0 || e.Trips > maxCountedTrips {
+			return dst, false
+		}
+		if i > 0 {
+			p := &edges[i-1]
+			if pw, ew := order.rank(p.Window), order.rank(e.Window); pw > ew || pw == ew && (p.From > e.From || p.From == e.From && p.To >= e.To) {
+				return dst, false
+			}
+		}
+	}
+	base := len(dst)
+	dst = slices.Grow(dst, len(edges))[:base+len(edges)]
+	rows := dst[base:]
+	var count []int
+	for a := 0; a < len(edges); {
+		b := a + 1
+		top := edges[a].Trips
+		for b < len(edges) && edges[b].Window == edges[a].Window {
+			top = max(top, edges[b].Trips)
+			b++
+		}
+		// count[k] is where the edges of top-k trips begin: most trips
+		// first.
+		count = slices.Grow(count[:0], top+2)[:top+2]
+		clear(count)
+		for i := a; i < b; i++ {
+			count[top-edges[i].Trips+1]++
+		}
+		count[0] = a
+		for t := 1; t < len(count); t++ {
+			count[t] += count[t-1]
+		}
+		for i := a; i < b; i++ {
+			k := top - edges[i].Trips
+			rows[count[k]] = edges[i]
+			count[k]++
+		}
+		a = b
+	}
+	return dst, true
+}
+
+// compareDayFileRowsAt is compareDayFileRows on pointers, which do not
+// copy the edges.
+func compareDayFileRowsAt(order edgeOrder, a, b *Edge) int {
+	if a.Window != b.Window {
+		return compareDayFileRows(order, *a, *b)
+	}
+	if c := cmp.Compare(b.Trips, a.Trips); c != 0 {
+		return c
+	}
+	if c := cmp.Compare(a.From, b.From); c != 0 {
+		return c
+	}
+	return cmp.Compare(a.To, b.To)
 }
 
 // compareDayFileRows is the order of the rows of a day file: by window,
@@ -204,7 +321,11 @@ func writeFileSynced(path string, write func(f *os.File) error) (int64, error) {
 }
 
 // Written returns what the writer has written so far.
-func (dw *DatasetWriter) Written() Written { return dw.written }
+func (dw *DatasetWriter) Written() Written {
+	dw.mu.Lock()
+	defer dw.mu.Unlock()
+	return dw.written
+}
 
 // Close writes the regions and the manifest and puts the dataset in place
 // of whatever dataset was at its path.

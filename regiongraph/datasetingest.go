@@ -1,14 +1,10 @@
 package regiongraph
 
 import (
-	"cmp"
 	"context"
 	"errors"
 	"fmt"
-	"os"
-	"path/filepath"
-	"slices"
-	"strings"
+	"runtime"
 	"sync"
 
 	"narrows/partition"
@@ -31,165 +27,276 @@ func IngestDataset(ctx context.Context, regions *partition.Partition, regionsSHA
 }
 
 // dayPipe collects edges given in store order into days and writes each
-// finished day on its own goroutine, one day behind the caller.
+// finished day on a writer goroutine, a day file per goroutine at a time:
+// day files are independent, and compressing them is most of an ingest's
+// work once the trips are read.
 type dayPipe struct {
-	dw     *DatasetWriter
-	day    Day
-	edges  []Edge
-	queue  chan dayEdges
-	done   sync.WaitGroup
-	err    error // of the writer goroutine, read after done
-	closed bool
+	dw    *DatasetWriter
+	order edgeOrder // of the store's windows
+	day   Day
+	edges []Edge
+	// ordered: edges are in the day file's order, each window's run
+	// ordered as it came (appendByTrips), so the writer need not copy
+	// them again.
+	ordered bool
+	queue   chan dayEdges
+	done    sync.WaitGroup
+	mu      sync.Mutex
+	err     error // the first of the writers or of a claim
+	closed  bool
 }
 
 type dayEdges struct {
-	day   Day
-	edges []Edge
+	day     Day
+	edges   []Edge
+	ordered bool // in the day file's order (dayPipe)
 }
 
+// dayWriters is the number of day files a dayPipe writes at once.
+func dayWriters() int { return max(1, min(runtime.GOMAXPROCS(0), 4)) }
+
 func newDayPipe(dw *DatasetWriter) *dayPipe {
-	p := &dayPipe{dw: dw, queue: make(chan dayEdges, 1)}
-	p.done.Add(1)
-	go func() {
-		defer p.done.Done()
-		for d := range p.queue {
-			if p.err == nil {
-				p.err = dw.WriteDay(d.day, d.edges)
+	// Unbuffered: a day waits for a free writer, so that the days held
+	// are the writers' and the one being collected.
+	p := &dayPipe{dw: dw, order: edgeOrderOf(dw.meta.Windows), queue: make(chan dayEdges)}
+	for range dayWriters() {
+		p.done.Add(1)
+		go func() {
+			defer p.done.Done()
+			for d := range p.queue {
+				if p.failed() {
+					continue
+				}
+				rows := d.edges
+				if !d.ordered {
+					rows = dayFileRows(p.order, rows)
+				}
+				p.fail(dw.writeDay(d.day, rows))
 			}
-		}
-	}()
+		}()
+	}
 	return p
+}
+
+func (p *dayPipe) failed() bool {
+	p.mu.Lock()
+	defer p.mu.Unlock()
+	return p.err != nil
+}
+
+func (p *dayPipe) fail(err error) {
+	p.mu.Lock()
+	defer p.mu.Unlock()
+	if p.err == nil {
+		p.err = err
+	}
+}
+
+// send claims the collected day and hands it to a writer.
+func (p *dayPipe) send() error {
+	if len(p.edges) == 0 {
+		return nil
+	}
+	d := dayEdges{p.day, p.edges, p.ordered}
+	p.edges = nil
+	if err := p.dw.claimDay(d.day, d.edges); err != nil {
+		p.fail(err)
+		return err
+	}
+	if p.failed() {
+		return p.firstErr()
+	}
+	p.queue <- d
+	return nil
+}
+
+func (p *dayPipe) firstErr() error {
+	p.mu.Lock()
+	defer p.mu.Unlock()
+	return p.err
 }
 
 // add takes the next edges in store order.
 func (p *dayPipe) add(es []Edge) error {
 	for len(es) > 0 {
 		if p.day != es[0].Day && len(p.edges) > 0 {
-			p.queue <- dayEdges{p.day, p.edges}
-			p.edges = nil
+			if err := p.send(); err != nil {
+				return err
+			}
+		}
+		if len(p.edges) == 0 {
+			p.ordered = true
 		}
 		p.day = es[0].Day
 		n := 1
 		for n < len(es) && es[n].Day == p.day {
 			n++
 		}
-		p.edges = append(p.edges, es[:n]...)
+		// The edges of a window come in one piece, after the windows
+		// before it, so each piece is put in the day file's order as it
+		// is copied in.
+		ok := false
+		if k := len(p.edges); p.ordered && (k == 0 || p.order.rank(p.edges[k-1].Window) < p.order.rank(es[0].Window)) {
+			p.edges, ok = appendByTrips(p.order, p.edges, es[:n])
+		}
+		if !ok {
+			p.ordered = false
+			p.edges = append(p.edges, es[:n]...)
+		}
 		es = es[n:]
 	}
 	return nil
 }
 
-// close writes the last day and waits for the writer.
+// abort drops the day being collected and waits for the writers, after
+// a failure: what they wrote is about to be removed.
+func (p *dayPipe) abort() {
+	p.edges = nil
+	p.close()
+}
+
+// close writes the last day and waits for the writers.
 func (p *dayPipe) close() error {
 	if p.closed {
-		return p.err
+		return p.firstErr()
 	}
 	p.closed = true
-	if len(p.edges) > 0 {
-		p.queue <- dayEdges{p.day, p.edges}
-		p.edges = nil
-	}
+	p.send()
 	close(p.queue)
 	p.done.Wait()
-	return p.err
+	return p.firstErr()
 }
 
 // MergeDataset merges stores into a dataset at dir, a day at a time: the
-// stores given in memory first, then the stores at paths in order. A
-// dataset among paths is read one day file at a time; a single-file store
-// is read whole (it is one ingest's store). The rules are Merge's: same
-// regions hash, time zone and windows, and a (day, window) in one store
-// only. The returned store has the merged metadata and no edges.
+// stores given in memory first, then the stores at paths in order. Every
+// store at paths is read a day at a time: a dataset a day file at a time,
+// a single file a day's rows at a time (its days are runs of rows; one
+// whose days are not in ascending order is read whole). The rules are
+// Merge's: same regions hash, time zone and windows, and a (day, window)
+// in one store only. The returned store has the merged metadata and no
+// edges.
 func MergeDataset(dir string, stores []*Store, paths []string) (*Store, Written, error) {
 	if err := replaceable(dir); err != nil {
 		return nil, Written{}, err
 	}
-	var ins []mergeInput
+	var srcs []mergeSource
+	defer func() {
+		for _, s := range srcs {
+			s.close()
+		}
+	}()
+	var metas []*Store // metadata and regions of each source, no edges
 	for _, s := range stores {
 		if s == nil {
-			return nil, Written{}, fmt.Errorf("regiongraph: merge: store %d is nil", len(ins)+1)
+			return nil, Written{}, fmt.Errorf("regiongraph: merge: store %d is nil", len(metas)+1)
 		}
-		ins = append(ins, mergeInput{store: s, meta: s.Meta, regions: s.regionsGeoJSON})
+		srcs = append(srcs, &memoryDays{edges: s.Edges})
+		metas = append(metas, &Store{Meta: s.Meta, regionsGeoJSON: s.regionsGeoJSON})
 	}
 	for _, p := range paths {
-		in := mergeInput{path: p}
-		if IsDataset(p) {
-			m, meta, err := readManifest(p)
-			if err != nil {
-				return nil, Written{}, err
-			}
-			in.meta, in.days = meta, m.Days
-			if m.Regions != "" {
-				if in.regions, err = os.ReadFile(filepath.Join(p, m.Regions)); err != nil {
-					return nil, Written{}, fmt.Errorf("regiongraph: %w", err)
-				}
-			}
-		} else {
-			s, err := ReadFile(p)
-			if err != nil {
-				return nil, Written{}, err
-			}
-			in.store, in.meta, in.regions = s, s.Meta, s.regionsGeoJSON
+		src, meta, regions, err := openMergeInput(p)
+		if err != nil {
+			return nil, Written{}, err
 		}
-		ins = append(ins, in)
+		srcs = append(srcs, src)
+		metas = append(metas, &Store{Meta: meta, regionsGeoJSON: regions})
 	}
-	if len(ins) == 0 {
+	return mergeDays(dir, srcs, metas)
+}
+
+// openMergeInput opens the store at path, either layout, as a merge
+// source.
+func openMergeInput(path string) (mergeSource, Meta, []byte, error) {
+	if IsDataset(path) {
+		d, regions, err := openMergeDataset(path)
+		if err != nil {
+			return nil, Meta{}, nil, err
+		}
+		return d, d.meta, regions, nil
+	}
+	return openMergeFile(path, stretchRows)
+}
+
+// mergeDays writes the days of srcs, whose metadata are metas, to a
+// dataset at dir: each step takes the earliest day any source has next,
+// so that a day of each source is held at a time (and the days being
+// written, see dayPipe).
+func mergeDays(dir string, srcs []mergeSource, metas []*Store) (*Store, Written, error) {
+	if len(srcs) == 0 {
 		return nil, Written{}, errors.New("regiongraph: merge: no stores")
 	}
 	// Merge checks and sums the metadata.
-	metas := make([]*Store, len(ins))
-	for i, in := range ins {
-		metas[i] = &Store{Meta: in.meta, regionsGeoJSON: in.regions}
-	}
 	out, err := Merge(metas...)
 	if err != nil {
 		return nil, Written{}, err
 	}
-	dayset := map[string]bool{}
-	for _, in := range ins {
-		for _, d := range in.dayList() {
-			dayset[d] = true
+	type pending struct {
+		day   Day
+		edges []Edge // none after the source's last day
+	}
+	heads := make([]pending, len(srcs))
+	advance := func(i int) error {
+		day, es, err := srcs[i].next()
+		if err == nil && len(es) > 0 && len(heads[i].edges) > 0 && day <= heads[i].day {
+			err = fmt.Errorf("regiongraph: merge: store %d gives day %s after day %s", i+1, day, heads[i].day)
+		}
+		heads[i] = pending{day, es}
+		return err
+	}
+	for i := range srcs {
+		if err := advance(i); err != nil {
+			return nil, Written{}, err
 		}
 	}
-	days := make([]string, 0, len(dayset))
-	for d := range dayset {
-		days = append(days, d)
-	}
-	slices.Sort(days)
 	dw, err := CreateDataset(dir, out.Meta, out.regionsGeoJSON)
 	if err != nil {
 		return nil, Written{}, err
 	}
-	for _, day := range days {
-		var edges []Edge
-		owner := map[WindowIndex]int{}
-		for i := range ins {
-			es, err := ins[i].day(day)
-			if err != nil {
-				dw.Abort()
-				return nil, Written{}, err
+	pipe := newDayPipe(dw)
+	fail := func(err error) (*Store, Written, error) {
+		pipe.abort()
+		dw.Abort()
+		return nil, Written{}, err
+	}
+	var edges []Edge
+	for {
+		day, found := Day(0), false
+		for _, h := range heads {
+			if len(h.edges) > 0 && (!found || h.day < day) {
+				day, found = h.day, true
 			}
+		}
+		if !found {
+			break
+		}
+		edges = edges[:0]
+		owner := map[WindowIndex]int{}
+		for i := range heads {
+			if len(heads[i].edges) == 0 || heads[i].day != day {
+				continue
+			}
+			es := heads[i].edges
 			for j, e := range es {
 				if j > 0 && es[j-1].Window == e.Window {
 					continue
 				}
 				if k, dup := owner[e.Window]; dup && k != i {
-					dw.Abort()
-					return nil, Written{}, fmt.Errorf("regiongraph: merge: day %s (window %s) is in both store %d and store %d; ingest a day's trips together", day, out.Meta.WindowName(e.Window), k+1, i+1)
+					return fail(fmt.Errorf("regiongraph: merge: day %s (window %s) is in both store %d and store %d; ingest a day's trips together", day, out.Meta.WindowName(e.Window), k+1, i+1))
 				}
 				owner[e.Window] = i
 			}
 			edges = append(edges, es...)
+			heads[i].edges = nil
+			if err := advance(i); err != nil {
+				return fail(err)
+			}
 		}
-		d, err := ParseDay(day)
-		if err != nil {
-			dw.Abort()
-			return nil, Written{}, fmt.Errorf("regiongraph: merge: %v", err)
+		if err := pipe.add(edges); err != nil {
+			return fail(err)
 		}
-		if err := dw.WriteDay(d, edges); err != nil {
-			dw.Abort()
-			return nil, Written{}, err
-		}
+	}
+	if err := pipe.close(); err != nil {
+		return fail(err)
 	}
 	if err := dw.Close(); err != nil {
 		return nil, Written{}, err
@@ -197,61 +304,145 @@ func MergeDataset(dir string, stores []*Store, paths []string) (*Store, Written,
 	return out, dw.Written(), nil
 }
 
-// mergeInput is one store of MergeDataset: in memory, or a dataset read a
-// day at a time.
-type mergeInput struct {
-	path    string
-	store   *Store    // in memory
-	days    []dayJSON // of a dataset
-	meta    Meta
-	regions []byte
-}
-
-func (in *mergeInput) dayList() []string {
-	if in.store == nil {
-		out := make([]string, len(in.days))
-		for i, d := range in.days {
-			out[i] = d.Day
-		}
-		return out
+// IngestMergeDataset is IngestDataset merging the stores at paths (either
+// layout) into the new dataset at dir, day by day: the new trips' days
+// come from the aggregation as it finishes them, and the stores at paths
+// are read a day at a time (see MergeDataset), so that no store is held
+// whole. edit, when not nil, may change the new trips' metadata (the
+// sources' names) before it is merged. The returned store has the merged
+// metadata and no edges.
+func IngestMergeDataset(ctx context.Context, regions *partition.Partition, regionsSHA256 string, inputs []Input, opts Options, dir string, paths []string, edit func(*Meta)) (*Store, Written, error) {
+	if err := replaceable(dir); err != nil {
+		return nil, Written{}, err
 	}
-	var out []string
-	for i, e := range in.store.Edges {
-		if i == 0 || in.store.Edges[i-1].Day != e.Day {
-			out = append(out, e.Day.String())
+	src := startIngestDays(ctx, regions, regionsSHA256, inputs, opts, edit)
+	srcs := []mergeSource{src}
+	defer func() {
+		for _, s := range srcs {
+			s.close()
 		}
-	}
-	return out
-}
-
-// day returns the input's edges of day, in store order.
-func (in *mergeInput) day(day string) ([]Edge, error) {
-	if in.store != nil {
-		d, err := ParseDay(day)
-		if err != nil {
-			return nil, fmt.Errorf("regiongraph: merge: %v", err)
-		}
-		es := in.store.Edges
-		a, _ := slices.BinarySearchFunc(es, d, func(e Edge, d Day) int { return cmp.Compare(e.Day, d) })
-		b := a
-		for b < len(es) && es[b].Day == d {
-			b++
-		}
-		return es[a:b], nil
-	}
-	if _, found := slices.BinarySearchFunc(in.days, day, func(d dayJSON, day string) int { return strings.Compare(d.Day, day) }); !found {
-		return nil, nil
-	}
-	i, _ := slices.BinarySearchFunc(in.days, day, func(d dayJSON, day string) int { return strings.Compare(d.Day, day) })
-	edges, err := readDays(in.path, in.meta, in.days[i:i+1], ReadOptions{}, stretchRows)
+	}()
+	s, err := src.store()
 	if err != nil {
-		return nil, err
+		return nil, Written{}, err
 	}
-	if compare := edgeOrderOf(in.meta.Windows).compare; !slices.IsSortedFunc(edges, compare) {
-		slices.SortStableFunc(edges, compare)
+	metas := []*Store{{Meta: s.Meta, regionsGeoJSON: s.regionsGeoJSON}}
+	for _, p := range paths {
+		in, meta, regions, err := openMergeInput(p)
+		if err != nil {
+			return nil, Written{}, err
+		}
+		srcs = append(srcs, in)
+		metas = append(metas, &Store{Meta: meta, regionsGeoJSON: regions})
 	}
-	if err := checkStore(in.path, &Store{Meta: in.meta, Edges: edges}); err != nil {
-		return nil, err
+	out, n, err := mergeDays(dir, srcs, metas)
+	if err != nil {
+		return nil, Written{}, err
 	}
-	return edges, nil
+	n.Spilled = s.spilled
+	return out, n, nil
+}
+
+// ingestDays is an ingest running on its own goroutine as a merge source:
+// its sink hands each finished day over a channel, so that the ingest
+// aggregates at most a day ahead of the merge.
+type ingestDays struct {
+	meta     chan *Store // the store's metadata, once the ingest has read its inputs
+	days     chan dayEdges
+	quit     chan struct{} // closed by close: the sink stops
+	finished chan struct{} // closed when the ingest has returned
+	err      error         // of the ingest, read after finished
+	edit     func(*Meta)
+	stopped  bool
+}
+
+// errMergeStopped ends an ingest whose merge ended first.
+var errMergeStopped = errors.New("regiongraph: merge ended")
+
+func startIngestDays(ctx context.Context, regions *partition.Partition, regionsSHA256 string, inputs []Input, opts Options, edit func(*Meta)) *ingestDays {
+	d := &ingestDays{meta: make(chan *Store, 1), days: make(chan dayEdges), quit: make(chan struct{}), finished: make(chan struct{}), edit: edit}
+	go func() {
+		defer close(d.finished)
+		d.err = ingest(ctx, regions, regionsSHA256, inputs, opts, d.begin)
+		close(d.days)
+	}()
+	return d
+}
+
+// begin is the ingest's sink: edges come in store order; a day is sent
+// when the next begins, and the last at the end.
+func (d *ingestDays) begin(s *Store) (func([]Edge) error, func() error, error) {
+	if d.edit != nil {
+		d.edit(&s.Meta)
+	}
+	d.meta <- s
+	var cur dayEdges
+	send := func() error {
+		if len(cur.edges) == 0 {
+			return nil
+		}
+		select {
+		case d.days <- cur:
+			cur = dayEdges{}
+			return nil
+		case <-d.quit:
+			return errMergeStopped
+		}
+	}
+	add := func(es []Edge) error {
+		for len(es) > 0 {
+			if cur.day != es[0].Day {
+				if err := send(); err != nil {
+					return err
+				}
+				cur.day = es[0].Day
+			}
+			n := 1
+			for n < len(es) && es[n].Day == cur.day {
+				n++
+			}
+			// The sink must not keep es: the day's edges are copied.
+			cur.edges = append(cur.edges, es[:n]...)
+			es = es[n:]
+		}
+		return nil
+	}
+	return add, send, nil
+}
+
+// store waits for the ingest to read its inputs and returns the store's
+// metadata, or the ingest's error.
+func (d *ingestDays) store() (*Store, error) {
+	select {
+	case s := <-d.meta:
+		return s, nil
+	case <-d.finished:
+		select {
+		case s := <-d.meta:
+			return s, nil
+		default:
+		}
+		if d.err == nil {
+			return nil, errors.New("regiongraph: ingest ended without a store")
+		}
+		return nil, d.err
+	}
+}
+
+func (d *ingestDays) next() (Day, []Edge, error) {
+	de, ok := <-d.days
+	if !ok {
+		<-d.finished
+		return 0, nil, d.err
+	}
+	return de.day, de.edges, nil
+}
+
+// close stops the ingest, if it still runs, and waits for it.
+func (d *ingestDays) close() {
+	if !d.stopped {
+		d.stopped = true
+		close(d.quit)
+	}
+	<-d.finished
 }

@@ -4,6 +4,7 @@ import (
 	"encoding/binary"
 	"math/bits"
 	"sync"
+	"sync/atomic"
 )
 
 // rowSet remembers the rows of an ingest by 64-bit hashes, to find
@@ -40,6 +41,10 @@ type rowSet struct {
 	// retry is the clock before which evict does not look again after it
 	// found no cold day.
 	retry int64
+	// over is the bytes of tables in memory past the budget (no day cold
+	// enough to go), read by the trip readers, which then hold fewer trip
+	// records: the two share the ingest's memory.
+	over atomic.Int64
 }
 
 // dayRowSet is the set of one local day's rows.
@@ -123,6 +128,7 @@ func (s *rowSet) check(k rowKey) Reason {
 		if s.bytes > s.budget {
 			s.evict(d)
 		}
+		s.over.Store(max(0, s.bytes-s.budget))
 	}
 	return r
 }
@@ -217,6 +223,7 @@ func (s *rowSet) load(d *dayRowSet) {
 	if s.bytes > s.budget {
 		s.evict(d)
 	}
+	s.over.Store(max(0, s.bytes-s.budget))
 }
 
 // hashTable is a set of non-zero 64-bit keys, with an optional 16-bit

@@ -20,7 +20,9 @@ func heapPeak(f func()) uint64 {
 	base := m.HeapInuse
 	var peak atomic.Uint64
 	done := make(chan struct{})
+	exited := make(chan struct{})
 	go func() {
+		defer close(exited)
 		var m runtime.MemStats
 		for {
 			runtime.ReadMemStats(&m)
@@ -36,6 +38,13 @@ func heapPeak(f func()) uint64 {
 	}()
 	f()
 	close(done)
+	<-exited
+	// A last sample: what f returns is still held, and the sampler may
+	// not have run since f allocated it.
+	runtime.ReadMemStats(&m)
+	if m.HeapInuse > peak.Load() {
+		peak.Store(m.HeapInuse)
+	}
 	if p := peak.Load(); p > base {
 		return p - base
 	}

@@ -103,6 +103,7 @@ func ingest(ctx context.Context, regions *partition.Partition, regionsSHA256 str
 	tallies := make([]*tally, parsers)
 	for i := range tallies {
 		tallies[i] = newTally(st, loc)
+		tallies[i].tallies = parsers
 	}
 	if opts.KeepTrip != nil {
 		visit := tripVisitor(st, loc, opts.KeepTrip)

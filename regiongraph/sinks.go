@@ -87,7 +87,7 @@ func (k *datasetSink) begin(s *Store) (func([]Edge) error, func() error, error) 
 func (k *datasetSink) finish(err error) (*Store, Written, error) {
 	if err != nil {
 		if k.days != nil {
-			k.days.close()
+			k.days.abort()
 		}
 		if k.dw != nil {
 			k.dw.Abort()

@@ -9,6 +9,7 @@ import (
 	"strconv"
 
 	"github.com/parquet-go/parquet-go"
+	"github.com/parquet-go/parquet-go/compress/zstd"
 )
 
 // WriteParquet writes the store to w as one Parquet file, the layout of
@@ -20,6 +21,13 @@ func (s *Store) WriteParquet(w io.Writer) error { return writeParquet(w, s, rowG
 // common practice: other tools read them in parallel, and the writer holds
 // one row group's compressed pages in memory.
 const rowGroupRows = 1 << 20
+
+// storeZstd compresses the pages of both layouts. zstd's fastest level
+// wrote a simulated city's day in about half the time of the default
+// level, and its file was 2 % smaller (64 KiB pages: the default level's
+// larger tables pay off on larger inputs). Readers decode either level
+// alike. The codec is shared, read only, for its pool of encoders.
+var storeZstd = zstd.Codec{Level: zstd.SpeedFastest}
 
 // writeParquet is WriteParquet with row groups of groupRows rows, each
 // ended at a change of day unless the day alone has 2 groupRows rows.
@@ -66,7 +74,7 @@ func storeMetadata(s *Store) ([]parquet.WriterOption, error) {
 		{metaSources, sources},
 	}
 	opts := []parquet.WriterOption{
-		parquet.Compression(&parquet.Zstd),
+		parquet.Compression(&storeZstd),
 		parquet.KeyValueMetadata(metaSchemaVersion, strconv.Itoa(schemaVersion)),
 		parquet.KeyValueMetadata(metaRegions, s.Meta.RegionsSHA256),
 		parquet.KeyValueMetadata(metaTimeZone, s.Meta.TimeZone),

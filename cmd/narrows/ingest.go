@@ -53,9 +53,9 @@ func runIngest(ctx context.Context, env *environment, args []string) error {
 }
 
 // ingestDataset builds the day-graph store as a dataset folder, written
-// a day at a time. With stores to merge, the new trips' store is built in
-// memory and the stores are merged into the dataset day by day (a dataset
-// among them is read a day file at a time).
+// a day at a time. With stores to merge, the new trips' days are merged
+// with the stores' as the aggregation finishes them (each store is read a
+// day at a time, either layout).
 func ingestDataset(ctx context.Context, env *environment, regions *partition.Partition, sum string, trips []string, format regiongraph.Format, opts regiongraph.Options, merge []string, out string) error {
 	start := time.Now()
 	inputs := tripInputs(trips, format)
@@ -72,11 +72,7 @@ func ingestDataset(ctx context.Context, env *environment, regions *partition.Par
 			meta, written = s.Meta, n
 			return nil
 		}
-		s, err := regiongraph.Ingest(ctx, regions, sum, inputs, opts)
-		if err != nil {
-			return err
-		}
-		m, n, err := regiongraph.MergeDataset(out, []*regiongraph.Store{s}, merge)
+		m, n, err := regiongraph.IngestMergeDataset(ctx, regions, sum, inputs, opts, out, merge, nil)
 		if err != nil {
 			return err
 		}
