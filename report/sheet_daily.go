@@ -2,6 +2,7 @@ package report
 
 import (
 	"fmt"
+	"slices"
 	"sort"
 	"strconv"
 
@@ -184,7 +185,13 @@ func (b *book) scatter() {
 		}
 		return k
 	}
-	sort.SliceStable(pts, func(i, j int) bool { return block(pts[i]) < block(pts[j]) })
+	// A stable sort by block, in one pass: a block's points keep their order.
+	buckets := make([][]edgeDay, 2*len(v.periods)+1)
+	for _, pt := range pts {
+		k := block(pt)
+		buckets[k] = append(buckets[k], pt)
+	}
+	pts = slices.Concat(buckets...)
 	pts, thinned := thinContext(pts, len(v.periods))
 	var blocks []scatterBlock
 	rows := make([][]cell, len(pts))
