@@ -5,6 +5,8 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
+
+	"narrows/partition"
 )
 
 func TestReadRefusesDamagedValues(t *testing.T) {
@@ -53,5 +55,24 @@ func TestCheckRegions(t *testing.T) {
 	s.Edges[0].To = 9999
 	if err := s.CheckRegions(gridPartition(3, 2, 0, 0, 1)); err == nil || !strings.Contains(err.Error(), "region 9999") {
 		t.Errorf("id 9999: %v", err)
+	}
+}
+
+// TestRegionSetAgainstMap checks the region test, a slice for small ids
+// and a map for the rest, against a plain map of the ids.
+func TestRegionSetAgainstMap(t *testing.T) {
+	for _, ids := range [][]int{{0, 1, 2}, {5, 9, 4000000, -3}, {1 << 40, 7}, {}, {2, 2, 3}} {
+		p := &partition.Partition{}
+		want := map[int]bool{}
+		for _, id := range ids {
+			p.Regions = append(p.Regions, partition.Region{ID: id})
+			want[id] = true
+		}
+		known := regionSet(p)
+		for _, id := range []int{-3, -1, 0, 1, 2, 3, 4, 5, 6, 7, 9, 10, 1023, 1024, 1030, 4000000, 4000001, 1 << 40} {
+			if got := known(id); got != want[id] {
+				t.Errorf("regions %v: id %d known %v, want %v", ids, id, got, want[id])
+			}
+		}
 	}
 }
