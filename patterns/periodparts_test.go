@@ -97,6 +97,15 @@ func TestPeriodPartsCutsTheStoreByDay(t *testing.T) {
 	if _, ok := periodParts(unsorted, [2]ScanOptions{period("2026-01-01", "2026-01-02"), period("2026-01-05", "2026-01-06")}); ok {
 		t.Error("a store not sorted by day was cut")
 	}
+	// Out of order only where the two halves of the check meet.
+	boundary := &regiongraph.Store{Meta: store.Meta, Edges: slices.Clone(edges)}
+	boundary.Edges[len(edges)/2-1].Day = "2026-01-04"
+	if !daysAscend(boundary.Edges[:len(edges)/2]) || !daysAscend(boundary.Edges[len(edges)/2:]) {
+		t.Fatal("the disorder is not only across the halves")
+	}
+	if _, ok := periodParts(boundary, [2]ScanOptions{period("2026-01-01", "2026-01-02"), period("2026-01-05", "2026-01-06")}); ok {
+		t.Error("a store out of order between its halves was cut")
+	}
 	noWindows := &regiongraph.Store{Edges: edges}
 	if _, ok := periodParts(noWindows, [2]ScanOptions{period("2026-01-01", "2026-01-02"), period("2026-01-05", "2026-01-06")}); ok {
 		t.Error("a store without windows was cut")
