@@ -193,3 +193,37 @@ func TestReadPeriodsSameWhetherCut(t *testing.T) {
 		}
 	}
 }
+
+// TestSharedProgressSumsTheScans checks that the progress of two scans
+// run at once is reported as one, each stage's items summed over the
+// scans that reached it, to the before period's callback.
+func TestSharedProgressSumsTheScans(t *testing.T) {
+	type call struct {
+		stage       string
+		done, total int
+	}
+	var got []call
+	report := func(stage string, done, total int) { got = append(got, call{stage, done, total}) }
+	if p := sharedProgress(nil, nil); p[0] != nil || p[1] != nil {
+		t.Fatal("callbacks without a period's callback")
+	}
+	p := sharedProgress(report, nil)
+	p[0]("candidates", 1, 10)
+	p[1]("candidates", 2, 20)
+	p[0]("candidates", 10, 10)
+	p[1]("groups", 1, 4)
+	want := []call{{"candidates", 1, 10}, {"candidates", 3, 30}, {"candidates", 12, 30}, {"groups", 1, 4}}
+	if !slices.Equal(got, want) {
+		t.Errorf("reported %v, want %v", got, want)
+	}
+	var n int
+	q := sharedProgress(nil, func(string, int, int) { n++ })
+	both(func(p int) {
+		for i := range 100 {
+			q[p]("candidates", i, 100)
+		}
+	})
+	if n != 200 {
+		t.Errorf("the after period's callback was called %d times, want 200", n)
+	}
+}
