@@ -227,3 +227,45 @@ func TestSharedProgressSumsTheScans(t *testing.T) {
 		t.Errorf("the after period's callback was called %d times, want 200", n)
 	}
 }
+
+// TestReadPeriodsNegativeRegionIDs reads a store with a negative region
+// id: the summaries then go through the edgeTable's map, with the same
+// sums as for the ids shifted to be positive.
+func TestReadPeriodsNegativeRegionIDs(t *testing.T) {
+	dayList := append(days("2026-03-02", 28), days("2026-05-04", 28)...)
+	store := syntheticStore(rand.New(rand.NewPCG(5, 1)), dayList, plantedChange(28), realistic)
+	march, may := scanPeriod("2026-03-02", "2026-03-29", nil), scanPeriod("2026-05-04", "2026-05-31", nil)
+	var scans [2]*Scan
+	for p, o := range []ScanOptions{march, may} {
+		var err error
+		if scans[p], err = ScanStore(context.Background(), store, o); err != nil {
+			t.Fatal(err)
+		}
+	}
+	parts, _ := periodParts(store, [2]ScanOptions{march, may})
+	want := readPeriods(parts, true, scans[0], scans[1])
+	shifted := &regiongraph.Store{Meta: store.Meta, Edges: slices.Clone(store.Edges)}
+	const by = 100
+	for i := range shifted.Edges {
+		shifted.Edges[i].From -= by
+		shifted.Edges[i].To -= by
+	}
+	parts, _ = periodParts(shifted, [2]ScanOptions{march, may})
+	got := readPeriods(parts, true, scans[0], scans[1])
+	if got.summary.side != 0 {
+		t.Fatalf("a square table of side %d for negative ids", got.summary.side)
+	}
+	for i, k := range want.summary.keys {
+		s := got.summary.get(EdgeKey{From: k.From - by, To: k.To - by})
+		if s == nil || *s != want.summary.rows[i] {
+			t.Fatalf("pair %v: %v, want %v", k, s, want.summary.rows[i])
+		}
+	}
+	k := EdgeKey{From: want.summary.keys[0].From - by, To: want.summary.keys[0].To - by}
+	days := got.edgeDays(scans[0].Window, scans[0].Options.Skyline.MinTrips, map[EdgeKey]bool{k: true})
+	for p := range days {
+		if n := want.summary.rows[0].days[p]; len(days[p][k]) != n || len(days[p]) != min(n, 1) {
+			t.Errorf("period %d: %d edge-days of %d pairs, want %d of the one pair", p, len(days[p][k]), len(days[p]), n)
+		}
+	}
+}

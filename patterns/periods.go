@@ -161,11 +161,16 @@ func readPeriods(parts [2][]regiongraph.Edge, cut bool, sb, sa *Scan) *periodDat
 	return rs[first].finish(parts, cut)
 }
 
-// maxRegion returns the largest region id of edges, -1 when there are none.
+// maxRegion returns the largest region id of edges, -1 when there are
+// none or an id is negative (an edgeTable then uses its map).
 func maxRegion(edges []regiongraph.Edge) int {
-	maxID := -1
+	maxID, minID := -1, 0
 	for i := range edges {
 		maxID = max(maxID, edges[i].From, edges[i].To)
+		minID = min(minID, edges[i].From, edges[i].To)
+	}
+	if minID < 0 {
+		return -1
 	}
 	return maxID
 }
@@ -307,13 +312,29 @@ func weightedLowerMedian(v []speedTrips) float64 {
 
 // edgeDays reads the days of the given edges in both periods.
 func (pd *periodData) edgeDays(window string, minTrips int, keys map[EdgeKey]bool) [2]map[EdgeKey][]edgeDay {
+	// The keys are found through an edgeTable (its square table for a
+	// city's region ids), much quicker than the map for each of the
+	// store's edges.
+	maxID, minID := -1, 0
+	for k := range keys {
+		maxID, minID = max(maxID, k.From, k.To), min(minID, k.From, k.To)
+	}
+	if minID < 0 {
+		maxID = -1 // the map
+	}
+	wanted := newEdgeTable(maxID)
+	for k, ok := range keys {
+		if ok {
+			wanted.add(k)
+		}
+	}
 	read := func(edges []regiongraph.Edge, only int) [2]map[EdgeKey][]edgeDay {
 		out := [2]map[EdgeKey][]edgeDay{{}, {}}
 		look := newDayLookup(pd.days)
 		for i := range edges {
 			e := &edges[i]
 			k := EdgeKey{From: e.From, To: e.To}
-			if !keys[k] || !usable(e, window, minTrips) {
+			if wanted.find(k) == 0 || !usable(e, window, minTrips) {
 				continue
 			}
 			p, d, ok := look.find(e.Day)
