@@ -8,6 +8,7 @@ import (
 	"slices"
 	"strings"
 	"testing"
+	"time"
 
 	"narrows/regiongraph"
 )
@@ -268,4 +269,37 @@ func TestReadPeriodsNegativeRegionIDs(t *testing.T) {
 			t.Errorf("period %d: %d edge-days of %d pairs, want %d of the one pair", p, len(days[p][k]), len(days[p]), n)
 		}
 	}
+}
+
+// BenchmarkReadPeriods times the read of the two periods' summaries and
+// network totals, a year against a year of BenchmarkCompareYearAgainstYear's
+// store, the two parts at once.
+func BenchmarkReadPeriods(b *testing.B) {
+	store := scanTestStore(6, 45, 730, 4200, []scanPlant{scanPlantA, scanPlantB})
+	first := store.Edges[0].Day
+	split, _ := time.Parse("2006-01-02", first)
+	before, after := DefaultScanOptions(), DefaultScanOptions()
+	before.From, before.To = first, split.AddDate(0, 0, 364).Format("2006-01-02")
+	after.From, after.To = split.AddDate(0, 0, 365).Format("2006-01-02"), store.Edges[len(store.Edges)-1].Day
+	// Every pair with a trip, as the network's totals read them.
+	for _, o := range []*ScanOptions{&before, &after} {
+		o.Skyline.MinTrips = 1
+	}
+	var scans [2]*Scan
+	for p, o := range []ScanOptions{before, after} {
+		var err error
+		if scans[p], err = ScanStore(context.Background(), store, o); err != nil {
+			b.Fatal(err)
+		}
+	}
+	parts, cut := periodParts(store, [2]ScanOptions{before, after})
+	if !cut {
+		b.Fatal("the store was not cut")
+	}
+	var pd *periodData
+	for b.Loop() {
+		pd = readPeriods(parts, true, scans[0], scans[1])
+	}
+	b.ReportMetric(float64(len(store.Edges)), "edges")
+	b.ReportMetric(float64(len(pd.summary.keys)), "pairs")
 }
