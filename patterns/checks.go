@@ -174,12 +174,15 @@ func CheckPairs(store *regiongraph.Store, opts ScanOptions) error {
 	if err != nil {
 		return nil // ScanStore names the windows
 	}
-	first, last := StoreDays(store)
-	if opts.From == "" {
-		opts.From = first
-	}
-	if opts.To == "" {
-		opts.To = last
+	if opts.From == "" || opts.To == "" {
+		// A pass over the store, needed only for an open period.
+		first, last := StoreDays(store)
+		if opts.From == "" {
+			opts.From = first
+		}
+		if opts.To == "" {
+			opts.To = last
+		}
 	}
 	// Both days are empty only for a store without edges.
 	from, errFrom := regiongraph.ParseDay(opts.From)

@@ -170,7 +170,8 @@ func Compare(ctx context.Context, store *regiongraph.Store, regions *partition.P
 	if err := opts.validate(regions); err != nil {
 		return nil, err
 	}
-	sb, sa, err := scanPeriods(ctx, store, before, after)
+	parts, cut := periodParts(store, [2]ScanOptions{before, after})
+	sb, sa, err := scanPeriods(ctx, store, parts, cut, before, after)
 	if err != nil {
 		return nil, err
 	}
@@ -178,13 +179,16 @@ func Compare(ctx context.Context, store *regiongraph.Store, regions *partition.P
 	if err := checkFindingRegions(union, regions); err != nil {
 		return nil, err
 	}
-	pd := readPeriods(store, sb, sa)
+	if !cut {
+		parts = [2][]regiongraph.Edge{store.Edges, store.Edges}
+	}
+	pd := readPeriods(parts, cut, windowIndex(store, sb.Window), sb, sa)
 	if err := ctx.Err(); err != nil {
 		return nil, err
 	}
 	c := &Comparison{Before: sb, After: sa, Alpha: opts.Alpha, Options: opts, BarSpeed: pd.barSpeed}
 	c.Network = networkChange(pd)
-	assessments, poolSize, err := assess(ctx, store, regions, pd, sb, sa, union, opts)
+	assessments, poolSize, err := assess(ctx, regions, pd, sb, sa, union, opts)
 	if err != nil {
 		return nil, err
 	}
@@ -204,15 +208,37 @@ func Compare(ctx context.Context, store *regiongraph.Store, regions *partition.P
 }
 
 // scanPeriods scans both periods and checks that each has analysed days and
-// that both use the same time window.
-func scanPeriods(ctx context.Context, store *regiongraph.Store, before, after ScanOptions) (sb, sa *Scan, err error) {
-	sb, err = ScanStore(ctx, store, before)
-	if err != nil {
-		return nil, nil, fmt.Errorf("compare: before period: %w", err)
+// that both use the same time window. With the store cut into the
+// periods' parts (see periodParts), the two scans run at once, each on
+// its part; should either fail, both are run again on the whole store, one
+// after the other, so that the error is the whole store's.
+func scanPeriods(ctx context.Context, store *regiongraph.Store, parts [2][]regiongraph.Edge, cut bool, before, after ScanOptions) (sb, sa *Scan, err error) {
+	if cut {
+		periods := [2]ScanOptions{before, after}
+		progress := sharedProgress(before.Progress, after.Progress)
+		var scans [2]*Scan
+		var errs [2]error
+		both(func(p int) {
+			o := periods[p]
+			o.Progress = progress[p]
+			scans[p], errs[p] = ScanStore(ctx, partStore(store, parts[p]), o)
+		})
+		if err := ctx.Err(); err != nil {
+			return nil, nil, fmt.Errorf("compare: %w", err)
+		}
+		if errs[0] == nil && errs[1] == nil {
+			// Each scan's Options keep the period's own callback.
+			scans[0].Options.Progress, scans[1].Options.Progress = before.Progress, after.Progress
+			sb, sa = scans[0], scans[1]
+		}
 	}
-	sa, err = ScanStore(ctx, store, after)
-	if err != nil {
-		return nil, nil, fmt.Errorf("compare: after period: %w", err)
+	if sb == nil {
+		if sb, err = ScanStore(ctx, store, before); err != nil {
+			return nil, nil, fmt.Errorf("compare: before period: %w", err)
+		}
+		if sa, err = ScanStore(ctx, store, after); err != nil {
+			return nil, nil, fmt.Errorf("compare: after period: %w", err)
+		}
 	}
 	for _, p := range []struct {
 		name string
@@ -253,7 +279,7 @@ func checkFindingRegions(union []unionEntry, regions *partition.Partition) error
 // with its Fisher test, and the focus. The p-values are not yet adjusted
 // and there is no verdict. It also returns the size of the pool of pairs
 // the comparison groups were drawn from.
-func assess(ctx context.Context, store *regiongraph.Store, regions *partition.Partition, pd *periodData, sb, sa *Scan, union []unionEntry, opts CompareOptions) ([]Assessment, int, error) {
+func assess(ctx context.Context, regions *partition.Partition, pd *periodData, sb, sa *Scan, union []unionEntry, opts CompareOptions) ([]Assessment, int, error) {
 	exclude := map[EdgeKey]bool{}
 	for _, u := range union {
 		for _, k := range findingKeys(u.finding) {
@@ -277,7 +303,7 @@ func assess(ctx context.Context, store *regiongraph.Store, regions *partition.Pa
 	if err := ctx.Err(); err != nil {
 		return nil, 0, err
 	}
-	days := pd.edgeDays(store, sb.Window, sb.Options.Skyline.MinTrips, needed)
+	days := pd.edgeDays(sb.Options.Skyline.MinTrips, needed)
 	bar := newFixedBar(sb.Options.Skyline, pd.barSpeed)
 	ref := sb.Options.ReferenceSpeed
 	minTrips := float64(max(opts.MinDayTrips, 1))

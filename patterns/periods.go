@@ -1,9 +1,6 @@
 package patterns
 
 import (
-	"cmp"
-	"slices"
-
 	"narrows/patterns/stats"
 	"narrows/regiongraph"
 )
@@ -13,7 +10,12 @@ import (
 // per day the network's totals, and the before period's fixed speed bar.
 type periodData struct {
 	days    [2][]string
+	window  regiongraph.WindowIndex // the scans' window
 	summary *edgeTable
+	// parts are the edges each period reads: with cut, each period's part
+	// of the store (see periodParts), else the whole store, parts[0].
+	parts   [2][]regiongraph.Edge
+	cut     bool
 	network [2][]dayTotals
 	// barSpeed is the median over the before days of each day's
 	// trip-weighted median edge speed (m/s): the speed gate of the
@@ -134,37 +136,91 @@ func (l *dayLookup) find(day regiongraph.Day) (p, i int, ok bool) {
 
 // readPeriods makes one pass over the store's edges of the window: the
 // network's daily totals over every pair with trips, the summaries and the
-// bar speed over the pairs with at least the scan's minimum trips.
-func readPeriods(store *regiongraph.Store, sb, sa *Scan) *periodData {
-	maxID := -1
-	for i := range store.Edges {
-		maxID = max(maxID, store.Edges[i].From, store.Edges[i].To)
+// bar speed over the pairs with at least the scan's minimum trips. With
+// the store cut into the periods' parts (see periodParts) the two parts
+// are read at once, each into its own summaries, and these are then
+// joined in the order of the parts in the store: the summaries' keys keep
+// the order in which a pass over the store first sees them, and each
+// period's sums are added in the store's order as before.
+func readPeriods(parts [2][]regiongraph.Edge, cut bool, window regiongraph.WindowIndex, sb, sa *Scan) *periodData {
+	days := [2][]string{sb.Days, sa.Days}
+	if !cut {
+		r := newPeriodReader(days, maxRegion(parts[0]), window, sb)
+		r.read(parts[0], -1)
+		return r.finish(parts, cut)
 	}
-	pd := &periodData{days: [2][]string{sb.Days, sa.Days}, summary: newEdgeTable(maxID)}
+	var maxIDs [2]int
+	both(func(p int) { maxIDs[p] = maxRegion(parts[p]) })
+	var rs [2]*periodReader
+	both(func(p int) {
+		rs[p] = newPeriodReader(days, max(maxIDs[0], maxIDs[1]), window, sb)
+		rs[p].read(parts[p], p)
+	})
+	first, second := 0, 1
+	if parts[1][0].Day < parts[0][0].Day {
+		first, second = 1, 0
+	}
+	rs[first].join(rs[second], second)
+	return rs[first].finish(parts, cut)
+}
+
+// maxRegion returns the largest region id of edges, -1 when there are
+// none or an id is negative (an edgeTable then uses its map).
+func maxRegion(edges []regiongraph.Edge) int {
+	maxID, minID := -1, 0
+	for i := range edges {
+		maxID = max(maxID, edges[i].From, edges[i].To)
+		minID = min(minID, edges[i].From, edges[i].To)
+	}
+	if minID < 0 {
+		return -1
+	}
+	return maxID
+}
+
+// speedTrips is an edge's median speed on a day and its trips.
+type speedTrips struct{ speed, trips float64 }
+
+// periodReader adds up edges of the store into periodData.
+type periodReader struct {
+	pd       *periodData
+	look     *dayLookup
+	window   regiongraph.WindowIndex
+	minTrips int
+	ref      float64
+	// daySpeeds holds, per before day, the speeds and trips of the
+	// edges with at least minTrips trips, for the bar speed.
+	daySpeeds [][]speedTrips
+}
+
+func newPeriodReader(days [2][]string, maxID int, window regiongraph.WindowIndex, sb *Scan) *periodReader {
+	pd := &periodData{days: days, window: window, summary: newEdgeTable(maxID)}
 	for p := range pd.network {
 		pd.network[p] = make([]dayTotals, len(pd.days[p]))
 	}
-	minTrips := sb.Options.Skyline.MinTrips
-	type speedTrips struct{ speed, trips float64 }
-	daySpeeds := make([][]speedTrips, len(sb.Days))
-	look := newDayLookup(pd.days)
-	ref := sb.Options.ReferenceSpeed
-	window := windowIndex(store, sb.Window)
-	for i := range store.Edges {
-		e := &store.Edges[i]
+	return &periodReader{pd: pd, look: newDayLookup(days), window: window, minTrips: sb.Options.Skyline.MinTrips,
+		ref: sb.Options.ReferenceSpeed, daySpeeds: make([][]speedTrips, len(days[0]))}
+}
+
+// read adds up the edges of analysed days of period only (of either
+// period when only is -1).
+func (r *periodReader) read(edges []regiongraph.Edge, only int) {
+	pd := r.pd
+	for i := range edges {
+		e := &edges[i]
 		// The network's totals count every pair with trips, however few:
 		// with a minimum, a fall of demand would also drop the pairs near
 		// it and overstate the fall.
-		if !usable(e, window, 1) {
+		if !usable(e, r.window, 1) {
 			continue
 		}
-		p, d, ok := look.find(e.Day)
-		if !ok {
+		p, d, ok := r.look.find(e.Day)
+		if !ok || only >= 0 && p != only {
 			continue
 		}
 		ed := newEdgeDay(d, e)
-		pd.network[p][d].add(&ed, ref)
-		if e.Trips < minTrips {
+		pd.network[p][d].add(&ed, r.ref)
+		if e.Trips < r.minTrips {
 			continue
 		}
 		s := pd.summary.add(EdgeKey{From: e.From, To: e.To})
@@ -174,52 +230,129 @@ func readPeriods(store *regiongraph.Store, sb, sa *Scan) *periodData {
 		s.straightSum[p] += e.StraightSum
 		s.durationSum[p] += e.DurationSum
 		if p == 0 {
-			daySpeeds[d] = append(daySpeeds[d], speedTrips{e.SpeedMedian, float64(e.Trips)})
+			r.daySpeeds[d] = append(r.daySpeeds[d], speedTrips{e.SpeedMedian, float64(e.Trips)})
 		}
 	}
+}
+
+// join takes period p's network totals, summaries and (for the before
+// period) day speeds from o, which read period p only. o's keys not yet
+// in r's summaries are added after r's, in o's order.
+func (r *periodReader) join(o *periodReader, p int) {
+	r.pd.network[p] = o.pd.network[p]
+	for i, k := range o.pd.summary.keys {
+		src, dst := &o.pd.summary.rows[i], r.pd.summary.add(k)
+		dst.days[p] = src.days[p]
+		dst.trips[p] = src.trips[p]
+		dst.distanceSum[p] = src.distanceSum[p]
+		dst.straightSum[p] = src.straightSum[p]
+		dst.durationSum[p] = src.durationSum[p]
+	}
+	if p == 0 {
+		r.daySpeeds = o.daySpeeds
+	}
+}
+
+// finish sets the bar speed, the median over the before days of each
+// day's trip-weighted median speed, and returns the data read.
+func (r *periodReader) finish(parts [2][]regiongraph.Edge, cut bool) *periodData {
 	var medians []float64
-	for _, v := range daySpeeds {
-		if len(v) == 0 {
-			continue
+	for _, v := range r.daySpeeds {
+		if len(v) > 0 {
+			medians = append(medians, weightedLowerMedian(v))
 		}
-		slices.SortFunc(v, func(a, b speedTrips) int { return cmp.Compare(a.speed, b.speed) })
-		var total float64
-		for _, x := range v {
-			total += x.trips
-		}
-		var run float64
-		for _, x := range v {
-			run += x.trips
-			if run >= total/2 {
-				medians = append(medians, x.speed)
-				break
+	}
+	r.pd.barSpeed = stats.Median(medians)
+	r.pd.parts, r.pd.cut = parts, cut
+	return r.pd
+}
+
+// weightedLowerMedian returns the trip-weighted lower median of the
+// speeds: the least speed s such that the edges at s or slower carry at
+// least half of the trips. It is the speed at which the running total of
+// trips, in order of speed, first reaches half of all, found by
+// selection in linear time rather than by sorting; v is reordered. v must
+// not be empty, and the trips must be positive.
+func weightedLowerMedian(v []speedTrips) float64 {
+	var total float64
+	for _, x := range v {
+		total += x.trips
+	}
+	half := total / 2
+	below := 0.0 // trips of the edges known to be slower than v[lo:hi]
+	lo, hi := 0, len(v)
+	for {
+		pivot := v[lo+(hi-lo)/2].speed
+		// Three-way partition of v[lo:hi]: slower, as fast, faster.
+		lt, i, gt := lo, lo, hi
+		var slower, same float64
+		for i < gt {
+			switch x := v[i]; {
+			case x.speed < pivot:
+				slower += x.trips
+				v[lt], v[i] = v[i], v[lt]
+				lt++
+				i++
+			case x.speed > pivot:
+				gt--
+				v[i], v[gt] = v[gt], v[i]
+			default:
+				same += x.trips
+				i++
 			}
 		}
+		switch {
+		case below+slower >= half:
+			hi = lt
+		case below+slower+same >= half:
+			return pivot
+		default:
+			below += slower + same
+			lo = gt
+		}
 	}
-	pd.barSpeed = stats.Median(medians)
-	return pd
 }
 
 // edgeDays reads the days of the given edges in both periods.
-func (pd *periodData) edgeDays(store *regiongraph.Store, windowName string, minTrips int, keys map[EdgeKey]bool) [2]map[EdgeKey][]edgeDay {
+func (pd *periodData) edgeDays(minTrips int, keys map[EdgeKey]bool) [2]map[EdgeKey][]edgeDay {
+	// The keys are found through an edgeTable (its square table for a
+	// city's region ids), much quicker than the map for each of the
+	// store's edges.
+	maxID, minID := -1, 0
+	for k := range keys {
+		maxID, minID = max(maxID, k.From, k.To), min(minID, k.From, k.To)
+	}
+	if minID < 0 {
+		maxID = -1 // the map
+	}
+	wanted := newEdgeTable(maxID)
+	for k, ok := range keys {
+		if ok {
+			wanted.add(k)
+		}
+	}
+	read := func(edges []regiongraph.Edge, only int) [2]map[EdgeKey][]edgeDay {
+		out := [2]map[EdgeKey][]edgeDay{{}, {}}
+		look := newDayLookup(pd.days)
+		for i := range edges {
+			e := &edges[i]
+			k := EdgeKey{From: e.From, To: e.To}
+			if wanted.find(k) == 0 || !usable(e, pd.window, minTrips) {
+				continue
+			}
+			p, d, ok := look.find(e.Day)
+			if !ok || only >= 0 && p != only {
+				continue
+			}
+			out[p][k] = append(out[p][k], newEdgeDay(d, e))
+		}
+		return out
+	}
+	if !pd.cut {
+		return read(pd.parts[0], -1)
+	}
 	var out [2]map[EdgeKey][]edgeDay
-	for p := range out {
-		out[p] = map[EdgeKey][]edgeDay{}
-	}
-	look := newDayLookup(pd.days)
-	window := windowIndex(store, windowName)
-	for i := range store.Edges {
-		e := &store.Edges[i]
-		k := EdgeKey{From: e.From, To: e.To}
-		if !keys[k] || !usable(e, window, minTrips) {
-			continue
-		}
-		p, d, ok := look.find(e.Day)
-		if !ok {
-			continue
-		}
-		out[p][k] = append(out[p][k], newEdgeDay(d, e))
-	}
+	both(func(p int) { out[p] = read(pd.parts[p], p)[p] })
 	return out
 }
 

@@ -65,8 +65,8 @@ func TestEdgeDaysReadsOnlyTheWindowDaysAndBusyEdges(t *testing.T) {
 		{Day: testDay("2026-01-08"), Window: testWindowIndex("am"), From: 1, To: 2, Trips: 7, SpeedMedian: math.NaN(), DetourMedian: 1.2},
 		{Day: testDay("2026-01-09"), Window: testWindowIndex("am"), From: 1, To: 2, Trips: 8, SpeedMedian: 5, DetourMedian: 1.3},
 	}}
-	pd := &periodData{days: [2][]string{{"2026-01-05", "2026-01-06"}, {"2026-01-08", "2026-01-09"}}}
-	got := pd.edgeDays(store, "am", 3, map[EdgeKey]bool{{From: 1, To: 2}: true, {From: 2, To: 1}: true})
+	pd := &periodData{days: [2][]string{{"2026-01-05", "2026-01-06"}, {"2026-01-08", "2026-01-09"}}, parts: [2][]regiongraph.Edge{store.Edges, store.Edges}, window: testWindowIndex("am")}
+	got := pd.edgeDays(3, map[EdgeKey]bool{{From: 1, To: 2}: true, {From: 2, To: 1}: true})
 	k := EdgeKey{From: 1, To: 2}
 	if len(got[0]) != 1 || len(got[0][k]) != 1 || got[0][k][0].trips != 5 || got[0][k][0].day != 0 {
 		t.Errorf("before: %v, want only the am value of 2026-01-05", got[0])

@@ -8,6 +8,8 @@ import (
 	"slices"
 	"strings"
 	"testing"
+
+	"narrows/partition"
 )
 
 func TestReadRefusesDamagedValues(t *testing.T) {
@@ -125,5 +127,24 @@ func TestWindowIndexBounds(t *testing.T) {
 	}
 	if _, err := ReadFile(ds); err == nil || !strings.Contains(err.Error(), "256 windows, more than the 255") || !strings.Contains(err.Error(), ds) {
 		t.Errorf("reading a dataset of 256 windows: %v", err)
+	}
+}
+
+// TestRegionSetAgainstMap checks the set of region ids, a slice for small ids
+// and a map for the rest, against a plain map of the ids.
+func TestRegionSetAgainstMap(t *testing.T) {
+	for _, ids := range [][]int{{0, 1, 2}, {5, 9, 4000000, -3}, {1 << 40, 7}, {}, {2, 2, 3}} {
+		p := &partition.Partition{}
+		want := map[int]bool{}
+		for _, id := range ids {
+			p.Regions = append(p.Regions, partition.Region{ID: id})
+			want[id] = true
+		}
+		known := newRegionIDs(p)
+		for _, id := range []int{-3, -1, 0, 1, 2, 3, 4, 5, 6, 7, 9, 10, 1023, 1024, 1030, 4000000, 4000001, 1 << 40} {
+			if got := known.has(id); got != want[id] {
+				t.Errorf("regions %v: id %d known %v, want %v", ids, id, got, want[id])
+			}
+		}
 	}
 }

@@ -148,18 +148,24 @@ func candidates(ax, ay, w, h float64, dists []float64) []labelBox {
 type labeller struct {
 	W, H   float64
 	placed []labelBox
+	grid   labelGrid // the boxes placed, by where they are
 }
 
 func (l *labeller) place(cands []labelBox) (labelBox, bool) {
+	indexed := l.grid.index(l.W, l.H, l.placed)
 	for _, c := range cands {
 		if c.X < 1 || c.Y < 1 || c.X+c.W > l.W-1 || c.Y+c.H > l.H-1 {
 			continue
 		}
 		free := true
-		for _, q := range l.placed {
-			if c.overlaps(q) {
-				free = false
-				break
+		if indexed {
+			free = !l.grid.overlaps(c, l.placed)
+		} else {
+			for _, q := range l.placed {
+				if c.overlaps(q) {
+					free = false
+					break
+				}
 			}
 		}
 		if free {
@@ -168,6 +174,72 @@ func (l *labeller) place(cands []labelBox) (labelBox, bool) {
 		}
 	}
 	return labelBox{}, false
+}
+
+// labelGrid lists the placed boxes by the cells of a square grid over the
+// picture that they cover, so that a candidate is tested against the boxes
+// in its cells only rather than all placed before it: a city's map has
+// two thousand region labels, each with a dozen candidates. Two boxes that
+// overlap share a cell; a box reaching past the picture is listed in the
+// cells at its edge.
+type labelGrid struct {
+	n          int // boxes listed: placed[:n]
+	cols, rows int
+	cells      [][]int32 // per cell, indices into placed
+}
+
+// labelCellPx is the side of a labelGrid cell, about a region label's
+// width.
+const labelCellPx = 32
+
+// index lists the boxes placed since the last call, making the grid for a
+// picture of w by h pixels at the first. It returns false when the
+// picture's size allows no grid (not a finite size of at most 10⁵ pixels
+// a side), for which the boxes are to be tested one by one.
+func (g *labelGrid) index(w, h float64, placed []labelBox) bool {
+	if !(w > 0 && h > 0 && w <= 1e5 && h <= 1e5) {
+		return false
+	}
+	if g.cells == nil {
+		g.cols, g.rows = int(math.Ceil(w/labelCellPx)), int(math.Ceil(h/labelCellPx))
+		g.cells = make([][]int32, g.cols*g.rows)
+	}
+	for ; g.n < len(placed); g.n++ {
+		c0, r0, c1, r1, ok := g.span(placed[g.n])
+		for r := r0; ok && r <= r1; r++ {
+			for c := c0; c <= c1; c++ {
+				g.cells[r*g.cols+c] = append(g.cells[r*g.cols+c], int32(g.n))
+			}
+		}
+	}
+	return true
+}
+
+// span returns the cells a box covers, clamped to the grid; ok is false
+// for a box that overlaps nothing (a NaN coordinate).
+func (g *labelGrid) span(b labelBox) (c0, r0, c1, r1 int, ok bool) {
+	if math.IsNaN(b.X + b.Y + b.W + b.H) {
+		return 0, 0, 0, 0, false
+	}
+	cell := func(v float64, n int) int {
+		return int(max(0, min(math.Floor(v/labelCellPx), float64(n-1))))
+	}
+	return cell(b.X, g.cols), cell(b.Y, g.rows), cell(b.X+b.W, g.cols), cell(b.Y+b.H, g.rows), true
+}
+
+// overlaps reports whether b overlaps a listed box.
+func (g *labelGrid) overlaps(b labelBox, placed []labelBox) bool {
+	c0, r0, c1, r1, ok := g.span(b)
+	for r := r0; ok && r <= r1; r++ {
+		for c := c0; c <= c1; c++ {
+			for _, i := range g.cells[r*g.cols+c] {
+				if b.overlaps(placed[i]) {
+					return true
+				}
+			}
+		}
+	}
+	return false
 }
 
 // mapLabels places the map's labels: the region ids (the tables' key,

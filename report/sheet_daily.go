@@ -2,6 +2,7 @@ package report
 
 import (
 	"fmt"
+	"slices"
 	"sort"
 	"strconv"
 
@@ -159,17 +160,30 @@ type edgeDay struct {
 	d      patterns.DailyValue
 }
 
-func (b *book) scatter() {
-	v := b.v
+// scatter writes the Speed v detour sheet and its chart from the rows
+// scatterRows made.
+func (b *book) scatter(t scatterTable) {
 	cols := []string{"Candidate", "Period", "Day", "From", "To", "Trips", "Speed km/h", "Detour ratio"}
-	var pts []edgeDay
-	for pi, p := range v.periods {
-		for _, k := range sortedEdgeKeys(p.Scan.EdgeDaily) {
-			for _, d := range p.Scan.EdgeDaily[k] {
-				pts = append(pts, edgeDay{pi, k, d})
-			}
+	b.streamTable(SheetScatter, cols, t.rows, func(head int) {
+		if len(t.rows) == 0 || head+len(t.rows) > excelize.TotalRows {
+			return
 		}
-	}
+		b.scatterChart(head, t.blocks, t.notes)
+	})
+}
+
+// scatterTable is what the Speed v detour sheet lists: its rows, the
+// chart's series as blocks of rows and the notes on thinning.
+type scatterTable struct {
+	rows   [][]cell
+	blocks []scatterBlock
+	notes  []string
+}
+
+// scatterRows makes the rows of the Speed v detour sheet. It reads only
+// the view and the styles, so it may run while other sheets are written.
+func (b *book) scatterRows() scatterTable {
+	v := b.v
 	// Shown edge-days by period, non-candidates before candidates, so that
 	// each chart series is one block of rows; suppressed edge-days come
 	// last and stay out of the chart (their cells hold markers, not
@@ -184,10 +198,22 @@ func (b *book) scatter() {
 		}
 		return k
 	}
-	sort.SliceStable(pts, func(i, j int) bool { return block(pts[i]) < block(pts[j]) })
+	// The edge-days in their order (period, pair, day) are put in their
+	// blocks, each block keeping that order.
+	buckets := make([][]edgeDay, 2*len(v.periods)+1)
+	for pi, p := range v.periods {
+		for _, k := range sortedEdgeKeys(p.Scan.EdgeDaily) {
+			for _, d := range p.Scan.EdgeDaily[k] {
+				pt := edgeDay{pi, k, d}
+				buckets[block(pt)] = append(buckets[block(pt)], pt)
+			}
+		}
+	}
+	pts := slices.Concat(buckets...)
 	pts, thinned := thinContext(pts, len(v.periods))
 	var blocks []scatterBlock
-	rows := make([][]cell, len(pts))
+	const width = 8
+	rows, cells := make([][]cell, len(pts)), make([]cell, width*len(pts))
 	for i, pt := range pts {
 		if k := block(pt); k < 2*len(v.periods) {
 			if n := len(blocks); n == 0 || block(pts[blocks[n-1].from]) != k {
@@ -196,19 +222,15 @@ func (b *book) scatter() {
 			blocks[len(blocks)-1].to = i + 1
 		}
 		tr := float64(pt.d.Trips)
-		rows[i] = []cell{yesNo(pt.d.Candidate, b.st.centre), b.str(v.periods[pt.period].Label), b.str(pt.d.Day), b.count(pt.key.From), b.count(pt.key.To),
-			b.trips(tr), b.gated(tr, kmh(pt.d.Speed), b.st.dec1), b.gated(tr, pt.d.Detour, b.st.dec2)}
+		rows[i] = cells[width*i : width*(i+1) : width*(i+1)]
+		copy(rows[i], []cell{yesNo(pt.d.Candidate, b.st.centre), b.str(v.periods[pt.period].Label), b.str(pt.d.Day), b.count(pt.key.From), b.count(pt.key.To),
+			b.trips(tr), b.gated(tr, kmh(pt.d.Speed), b.st.dec1), b.gated(tr, pt.d.Detour, b.st.dec2)})
 	}
 	var notes []string
 	for _, t := range thinned {
 		notes = append(notes, v.periods[t.period].Label+" "+t.String())
 	}
-	b.streamTable(SheetScatter, cols, rows, func(head int) {
-		if len(pts) == 0 || head+len(pts) > excelize.TotalRows {
-			return
-		}
-		b.scatterChart(head, blocks, notes)
-	})
+	return scatterTable{rows: rows, blocks: blocks, notes: notes}
 }
 
 // maxContextEdgeDays bounds the edge-days of one period that were not

@@ -71,6 +71,10 @@ func (v *view) workbook(w io.Writer) error {
 		Version:        v.in.Version,
 	}))
 
+	// The Speed v detour sheet's rows, most of the workbook's cells, are
+	// made while the sheets before it are written.
+	scatter := make(chan scatterTable, 1)
+	go func() { scatter <- b.scatterRows() }()
 	b.summary()
 	b.findings()
 	b.edges()
@@ -80,7 +84,7 @@ func (v *view) workbook(w io.Writer) error {
 	}
 	b.daily()
 	b.timeline()
-	b.scatter()
+	b.scatter(<-scatter)
 	b.costDays()
 	if v.in.Appraisal != nil {
 		b.candidatesSheet(v.in.Appraisal)

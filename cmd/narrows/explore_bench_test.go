@@ -45,7 +45,7 @@ func cityYear(b *testing.B) *explore.Study {
 	if err != nil {
 		b.Fatal(err)
 	}
-	regions, err := regionsFor(src, filepath.Join(dir, "regions.geojson"), graphs, true)
+	regions, err := regionsFor(src, filepath.Join(dir, "regions.geojson"), graphs, true, readRegions)
 	if err != nil {
 		b.Fatal(err)
 	}

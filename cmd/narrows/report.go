@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"io"
 	"path/filepath"
+	"sync"
 
 	"narrows/report"
 )
@@ -52,9 +53,17 @@ func writeReportFiles(files *runFiles, dir, base string, in report.Input) ([]str
 	for i := range outs {
 		outputs[i].output, outputs[i].write = outs[i], writers[i]
 	}
+	// The outputs are rendered at once (the workbook takes longest); the
+	// first error in the order of the outputs is returned.
 	rendered := make([]bytes.Buffer, len(outputs))
+	errs := make([]error, len(outputs))
+	var wg sync.WaitGroup
 	for i, o := range outputs {
-		if err := o.write(&rendered[i], in); err != nil {
+		wg.Go(func() { errs[i] = o.write(&rendered[i], in) })
+	}
+	wg.Wait()
+	for _, err := range errs {
+		if err != nil {
 			return nil, err
 		}
 	}

@@ -58,7 +58,7 @@ func (f *storeFlags) openDays(opts patterns.ScanOptions) (*regiongraph.DayReader
 	if err != nil {
 		return nil, nil, err
 	}
-	regions, err := regionsFor(days.Store(), f.regions, f.graphs, f.trust)
+	regions, err := regionsFor(days.Store(), f.regions, f.graphs, f.trust, readRegions)
 	if err != nil {
 		return nil, nil, err
 	}
@@ -69,11 +69,26 @@ func (f *storeFlags) openDays(opts patterns.ScanOptions) (*regiongraph.DayReader
 }
 
 func (f *storeFlags) openRead(opts patterns.ScanOptions, ropts regiongraph.ReadOptions) (*regiongraph.Store, *partition.Partition, error) {
+	// The regions file is read while the store is; its errors come after
+	// the store's, as when read one after the other.
+	var file struct {
+		p   *partition.Partition
+		sum string
+		err error
+	}
+	read := make(chan struct{})
+	go func() {
+		defer close(read)
+		if f.regions != "" {
+			file.p, file.sum, file.err = readRegions(f.regions)
+		}
+	}()
 	store, err := readStore(f.graphs, ropts)
+	<-read
 	if err != nil {
 		return nil, nil, err
 	}
-	regions, err := regionsFor(store, f.regions, f.graphs, f.trust)
+	regions, err := regionsFor(store, f.regions, f.graphs, f.trust, func(string) (*partition.Partition, string, error) { return file.p, file.sum, file.err })
 	if err != nil {
 		return nil, nil, err
 	}
@@ -177,8 +192,9 @@ func readStore(path string, opts regiongraph.ReadOptions) (*regiongraph.Store, e
 // (which must be the one the store was built from) or from the store. A
 // store that records no regions hash is refused, unless the regions file
 // is given and trusted; in every case the store's region ids must be the
-// regions'.
-func regionsFor(store *regiongraph.Store, path, storePath string, trust bool) (*partition.Partition, error) {
+// regions'. read reads the regions file (readRegions, or its result
+// when read already).
+func regionsFor(store *regiongraph.Store, path, storePath string, trust bool, read func(path string) (*partition.Partition, string, error)) (*partition.Partition, error) {
 	if store.Meta.RegionsSHA256 == "" && (path == "" || !trust) {
 		return nil, fmt.Errorf("%s records no regions hash, so nothing ties it to a regions file: pass the regions it was built on with --regions FILE --trust-regions", storePath)
 	}
@@ -186,7 +202,7 @@ func regionsFor(store *regiongraph.Store, path, storePath string, trust bool) (*
 	if path != "" {
 		var sum string
 		var err error
-		if p, sum, err = readRegions(path); err != nil {
+		if p, sum, err = read(path); err != nil {
 			return nil, err
 		}
 		if store.Meta.RegionsSHA256 != "" && sum != store.Meta.RegionsSHA256 {
