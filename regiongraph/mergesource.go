@@ -35,6 +35,15 @@ func (m *memoryDays) next() (Day, []Edge, error) {
 
 func (m *memoryDays) close() {}
 
+// orderAndCheck puts a day's edges, read from path, in store order and
+// checks them against meta as a whole read does.
+func orderAndCheck(path string, meta Meta, edges []Edge) error {
+	if compare := edgeOrderOf(meta.Windows).compare; !slices.IsSortedFunc(edges, compare) {
+		slices.SortStableFunc(edges, compare)
+	}
+	return checkStore(path, &Store{Meta: meta, Edges: edges})
+}
+
 // datasetDays reads a dataset one day file at a time.
 type datasetDays struct {
 	dir  string
@@ -50,10 +59,7 @@ func (d *datasetDays) next() (Day, []Edge, error) {
 		if err != nil {
 			return 0, nil, err
 		}
-		if compare := edgeOrderOf(d.meta.Windows).compare; !slices.IsSortedFunc(edges, compare) {
-			slices.SortStableFunc(edges, compare)
-		}
-		if err := checkStore(d.dir, &Store{Meta: d.meta, Edges: edges}); err != nil {
+		if err := orderAndCheck(d.dir, d.meta, edges); err != nil {
 			return 0, nil, err
 		}
 		if len(edges) > 0 {
@@ -207,10 +213,7 @@ func (fd *fileDays) next() (Day, []Edge, error) {
 	if err != nil {
 		return 0, nil, err
 	}
-	if compare := edgeOrderOf(fd.meta.Windows).compare; !slices.IsSortedFunc(edges, compare) {
-		slices.SortStableFunc(edges, compare)
-	}
-	if err := checkStore(fd.path, &Store{Meta: fd.meta, Edges: edges}); err != nil {
+	if err := orderAndCheck(fd.path, fd.meta, edges); err != nil {
 		return 0, nil, err
 	}
 	if len(edges) == 0 {
