@@ -651,8 +651,8 @@ func pairsAscending(from, to []int32) bool {
 
 // A pairSorter orders region pairs, reusing its memory from call to call.
 type pairSorter struct {
-	count    []int32
-	tmp, key []int32
+	count []int32
+	tmp   []int32
 }
 
 // sort sets order to the indexes of the pairs (from[i], to[i]) in

@@ -228,7 +228,7 @@ func TestCandidatesAgainstBruteForce(t *testing.T) {
 		res := Candidates(edges, opts)
 
 		var eligible []Point
-		var weights, speeds []float64
+		var speeds []float64
 		for _, e := range edges {
 			if e.Trips >= opts.MinTrips {
 				p := Point{e.Trips, e.SpeedMedian, e.DetourMedian}
@@ -236,7 +236,6 @@ func TestCandidatesAgainstBruteForce(t *testing.T) {
 				for range e.Trips { // expand to one value per trip
 					speeds = append(speeds, e.SpeedMedian)
 				}
-				weights = append(weights, float64(e.Trips))
 			}
 		}
 		slices.Sort(speeds)
