@@ -171,11 +171,8 @@ func readDataset(dir string, opts ReadOptions, stretchRows int64) (*Store, error
 			return nil, err
 		}
 	}
-	if err := checkStore(dir, s); err != nil {
+	if err := checkAndOrder(dir, s); err != nil {
 		return nil, err
-	}
-	if compare := edgeOrderOf(s.Meta.Windows).compare; !slices.IsSortedFunc(s.Edges, compare) {
-		slices.SortStableFunc(s.Edges, compare)
 	}
 	return s, nil
 }

@@ -4,7 +4,6 @@ import (
 	"fmt"
 	"os"
 	"path/filepath"
-	"slices"
 )
 
 // A mergeSource is one store of a streamed merge (MergeDataset), handed
@@ -35,15 +34,6 @@ func (m *memoryDays) next() (Day, []Edge, error) {
 
 func (m *memoryDays) close() {}
 
-// orderAndCheck puts a day's edges, read from path, in store order and
-// checks them against meta as a whole read does.
-func orderAndCheck(path string, meta Meta, edges []Edge) error {
-	if compare := edgeOrderOf(meta.Windows).compare; !slices.IsSortedFunc(edges, compare) {
-		slices.SortStableFunc(edges, compare)
-	}
-	return checkStore(path, &Store{Meta: meta, Edges: edges})
-}
-
 // datasetDays reads a dataset one day file at a time.
 type datasetDays struct {
 	dir  string
@@ -59,7 +49,7 @@ func (d *datasetDays) next() (Day, []Edge, error) {
 		if err != nil {
 			return 0, nil, err
 		}
-		if err := orderAndCheck(d.dir, d.meta, edges); err != nil {
+		if err := checkAndOrder(d.dir, &Store{Meta: d.meta, Edges: edges}); err != nil {
 			return 0, nil, err
 		}
 		if len(edges) > 0 {
@@ -213,7 +203,7 @@ func (fd *fileDays) next() (Day, []Edge, error) {
 	if err != nil {
 		return 0, nil, err
 	}
-	if err := orderAndCheck(fd.path, fd.meta, edges); err != nil {
+	if err := checkAndOrder(fd.path, &Store{Meta: fd.meta, Edges: edges}); err != nil {
 		return 0, nil, err
 	}
 	if len(edges) == 0 {

@@ -27,6 +27,18 @@ func checkStore(path string, s *Store) error {
 	return checkEdges(path, s.Meta, s.Edges, make([]int64, len(s.Meta.Windows)))
 }
 
+// checkAndOrder checks a store read from path (checkStore) and puts its
+// edges in store order.
+func checkAndOrder(path string, s *Store) error {
+	if err := checkStore(path, s); err != nil {
+		return err
+	}
+	if compare := edgeOrderOf(s.Meta.Windows).compare; !slices.IsSortedFunc(s.Edges, compare) {
+		slices.SortStableFunc(s.Edges, compare)
+	}
+	return nil
+}
+
 // checkStoreMeta checks the metadata of a store read from path: the
 // quality accounting adds up with no negative count, and windows have
 // distinct names.

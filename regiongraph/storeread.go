@@ -104,11 +104,8 @@ func readFile(path string, opts ReadOptions, stretchRows int64) (*Store, error) 
 	if s.Edges, err = readStretches(stretches, opts); err != nil {
 		return nil, err
 	}
-	if err := checkStore(path, s); err != nil {
+	if err := checkAndOrder(path, s); err != nil {
 		return nil, err
-	}
-	if compare := edgeOrderOf(s.Meta.Windows).compare; !slices.IsSortedFunc(s.Edges, compare) {
-		slices.SortStableFunc(s.Edges, compare)
 	}
 	return s, nil
 }
