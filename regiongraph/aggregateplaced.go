@@ -1,7 +1,6 @@
 package regiongraph
 
 import (
-	"bytes"
 	"cmp"
 	"context"
 	"errors"
@@ -187,35 +186,13 @@ func (a *Aggregator) Finish(ctx context.Context, begin func(*Store) (add func([]
 	if a.st == nil {
 		return errors.New("regiongraph: aggregate: no shards")
 	}
-	var regionsJSON bytes.Buffer
-	if err := a.regions.WriteGeoJSON(&regionsJSON); err != nil {
-		return fmt.Errorf("regiongraph: keeping the regions in the store: %v", err)
-	}
-	a.done = true
-	a.st.seen = nil
-	var end func() error
-	_, err := finish(ctx, a.st, a.loc, []*tally{a.t}, func(q Quality) (func([]Edge) error, error) {
-		addQuality(&q, a.quality)
-		if err := checkYield(a.st, q, a.sources); err != nil {
-			return nil, err
-		}
-		if a.st.opts.Strict && q.OffsetMismatch > 0 {
-			return nil, OffsetMismatchError(q, a.st.loc.String())
-		}
-		s := &Store{
-			spilled:        a.st.spill.written(),
-			regionsGeoJSON: regionsJSON.Bytes(),
-			Meta: Meta{RegionsSHA256: a.sha, TimeZone: a.st.opts.TimeZone, Windows: slices.Clone(a.st.windows),
-				Quality: q, Sources: slices.Clone(a.sources)},
-		}
-		add, e, err := begin(s)
-		end = e
-		return add, err
-	})
+	regionsJSON, err := storeRegionsJSON(a.regions)
 	if err != nil {
 		return err
 	}
-	return end()
+	a.done = true
+	a.st.seen = nil
+	return finishStore(ctx, a.st, a.loc, []*tally{a.t}, regionsJSON, a.sha, a.sources, &a.quality, begin)
 }
 
 // Store is Finish collecting the store in memory.

@@ -120,15 +120,38 @@ func ingest(ctx context.Context, regions *partition.Partition, regionsSHA256 str
 	}
 	st.seen = nil // the duplicate check is over: its tables go before the edges come
 
-	var regionsJSON bytes.Buffer
-	if err := regions.WriteGeoJSON(&regionsJSON); err != nil {
-		return fmt.Errorf("regiongraph: keeping the regions in the store: %v", err)
+	regionsJSON, err := storeRegionsJSON(regions)
+	if err != nil {
+		return err
 	}
 	if err := ctx.Err(); err != nil {
 		return err
 	}
+	return finishStore(ctx, st, loc, tallies, regionsJSON, regionsSHA256, sources, nil, begin)
+}
+
+// storeRegionsJSON encodes the regions a store carries, so that later
+// steps need not be given the regions file again.
+func storeRegionsJSON(regions *partition.Partition) ([]byte, error) {
+	var b bytes.Buffer
+	if err := regions.WriteGeoJSON(&b); err != nil {
+		return nil, fmt.Errorf("regiongraph: keeping the regions in the store: %v", err)
+	}
+	return b.Bytes(), nil
+}
+
+// finishStore finishes the tallies into the store's edges: the store's
+// metadata (the regions and their hash, the time zone, the windows, the
+// tallies' quality with prior added when not nil, the sources) goes to
+// begin after the yield check and, in strict mode, the time offsets'
+// check; the edges then go to the first function begin returns, and the
+// second is called at the end.
+func finishStore(ctx context.Context, st *settings, loc *locator, tallies []*tally, regionsJSON []byte, regionsSHA256 string, sources []Source, prior *Quality, begin sinkBegin) error {
 	var end func() error
-	_, err = finish(ctx, st, loc, tallies, func(quality Quality) (func([]Edge) error, error) {
+	_, err := finish(ctx, st, loc, tallies, func(quality Quality) (func([]Edge) error, error) {
+		if prior != nil {
+			addQuality(&quality, *prior)
+		}
 		if err := checkYield(st, quality, sources); err != nil {
 			return nil, err
 		}
@@ -137,13 +160,13 @@ func ingest(ctx context.Context, regions *partition.Partition, regionsSHA256 str
 		}
 		s := &Store{
 			spilled:        st.spill.written(),
-			regionsGeoJSON: regionsJSON.Bytes(),
+			regionsGeoJSON: regionsJSON,
 			Meta: Meta{
 				RegionsSHA256: regionsSHA256,
 				TimeZone:      st.opts.TimeZone,
 				Windows:       slices.Clone(st.windows),
 				Quality:       quality,
-				Sources:       sources,
+				Sources:       slices.Clone(sources),
 			},
 		}
 		add, e, err := begin(s)
