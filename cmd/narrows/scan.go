@@ -38,6 +38,13 @@ func (f *storeFlags) open(opts patterns.ScanOptions) (*regiongraph.Store, *parti
 	return f.openRead(opts, regiongraph.ReadOptions{MinTrips: opts.Skyline.MinTrips, Columns: patterns.StoreColumns()})
 }
 
+// openEvery is open keeping every edge, whatever its trips: a comparison's
+// network totals count every pair with trips (patterns.Compare), which a
+// minimum applied while reading would leave out.
+func (f *storeFlags) openEvery(opts patterns.ScanOptions) (*regiongraph.Store, *partition.Partition, error) {
+	return f.openRead(opts, regiongraph.ReadOptions{Columns: patterns.StoreColumns()})
+}
+
 // openPeriod is open reading only the days of opts' period: of a dataset
 // only those days' files are opened. When the period holds no edge the
 // store is read whole, so that the scan's message lists the store's days.
@@ -179,11 +186,11 @@ func scanByDay(ctx context.Context, in storeFlags, opts patterns.ScanOptions) (*
 }
 
 // readStore reads a day-graph store for an analysis with the given
-// thresholds, decoding only the columns the analysis uses. Edges under the analysis's minimum trips can never be
-// candidates and are dropped while reading: a city's store is mostly pairs
-// with a trip or two a day, and holding them would cost gigabytes. The
-// daily series of a comparison then also count only days on which an edge
-// had at least that many trips.
+// thresholds, decoding only the columns the analysis uses. A scan drops
+// the edges under its minimum trips while reading, as they can never be
+// candidates: a city's store is mostly pairs with a trip or two a day, and
+// holding them would cost gigabytes. A comparison keeps them (openEvery):
+// its network totals count every pair with trips.
 func readStore(path string, opts regiongraph.ReadOptions) (*regiongraph.Store, error) {
 	return regiongraph.ReadFileOptions(path, opts)
 }
