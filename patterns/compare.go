@@ -170,6 +170,10 @@ func Compare(ctx context.Context, store *regiongraph.Store, regions *partition.P
 	if err := opts.validate(regions); err != nil {
 		return nil, err
 	}
+	totals, ok := store.DayTotals()
+	if !ok {
+		return nil, fmt.Errorf("compare: the store was read with a minimum of trips and records no day totals, so its network totals are not known: read it without a minimum")
+	}
 	parts, cut := periodParts(store, [2]ScanOptions{before, after})
 	sb, sa, err := scanPeriods(ctx, store, parts, cut, before, after)
 	if err != nil {
@@ -182,7 +186,7 @@ func Compare(ctx context.Context, store *regiongraph.Store, regions *partition.P
 	if !cut {
 		parts = [2][]regiongraph.Edge{store.Edges, store.Edges}
 	}
-	pd := readPeriods(parts, cut, windowIndex(store, sb.Window), sb, sa)
+	pd := readPeriods(parts, cut, totals, windowIndex(store, sb.Window), sb, sa)
 	if err := ctx.Err(); err != nil {
 		return nil, err
 	}

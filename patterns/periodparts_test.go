@@ -183,8 +183,9 @@ func TestReadPeriodsSameWhetherCut(t *testing.T) {
 		if !cut {
 			t.Fatal("the store was not cut")
 		}
-		got := readPeriods(parts, true, windowIndex(store, scans[0].Window), scans[0], scans[1])
-		want := readPeriods([2][]regiongraph.Edge{store.Edges, store.Edges}, false, windowIndex(store, scans[0].Window), scans[0], scans[1])
+		totals, _ := store.DayTotals()
+		got := readPeriods(parts, true, totals, windowIndex(store, scans[0].Window), scans[0], scans[1])
+		want := readPeriods([2][]regiongraph.Edge{store.Edges, store.Edges}, false, totals, windowIndex(store, scans[0].Window), scans[0], scans[1])
 		if len(want.summary.keys) < 20 || want.barSpeed <= 0 {
 			t.Fatalf("%d summaries, bar speed %v: the store is too small to show anything", len(want.summary.keys), want.barSpeed)
 		}
@@ -254,7 +255,8 @@ func TestReadPeriodsNegativeRegionIDs(t *testing.T) {
 		}
 	}
 	parts, _ := periodParts(store, [2]ScanOptions{march, may})
-	want := readPeriods(parts, true, windowIndex(store, scans[0].Window), scans[0], scans[1])
+	totals, _ := store.DayTotals()
+	want := readPeriods(parts, true, totals, windowIndex(store, scans[0].Window), scans[0], scans[1])
 	shifted := &regiongraph.Store{Meta: store.Meta, Edges: slices.Clone(store.Edges)}
 	const by = 100
 	for i := range shifted.Edges {
@@ -262,7 +264,7 @@ func TestReadPeriodsNegativeRegionIDs(t *testing.T) {
 		shifted.Edges[i].To -= by
 	}
 	parts, _ = periodParts(shifted, [2]ScanOptions{march, may})
-	got := readPeriods(parts, true, windowIndex(store, scans[0].Window), scans[0], scans[1])
+	got := readPeriods(parts, true, totals, windowIndex(store, scans[0].Window), scans[0], scans[1])
 	if got.summary.side != 0 {
 		t.Fatalf("a square table of side %d for negative ids", got.summary.side)
 	}
@@ -281,8 +283,8 @@ func TestReadPeriodsNegativeRegionIDs(t *testing.T) {
 	}
 }
 
-// BenchmarkReadPeriods times the read of the two periods' summaries and
-// network totals, a year against a year of BenchmarkCompareYearAgainstYear's
+// BenchmarkReadPeriods times the read of the two periods' summaries, a
+// year against a year of BenchmarkCompareYearAgainstYear's
 // store, the two parts at once.
 func BenchmarkReadPeriods(b *testing.B) {
 	store := scanTestStore(6, 45, 730, 4200, []scanPlant{scanPlantA, scanPlantB})
@@ -305,9 +307,10 @@ func BenchmarkReadPeriods(b *testing.B) {
 	if !cut {
 		b.Fatal("the store was not cut")
 	}
+	totals, _ := store.DayTotals()
 	var pd *periodData
 	for b.Loop() {
-		pd = readPeriods(parts, true, windowIndex(store, scans[0].Window), scans[0], scans[1])
+		pd = readPeriods(parts, true, totals, windowIndex(store, scans[0].Window), scans[0], scans[1])
 	}
 	b.ReportMetric(float64(len(store.Edges)), "edges")
 	b.ReportMetric(float64(len(pd.summary.keys)), "pairs")

@@ -135,19 +135,20 @@ func (l *dayLookup) find(day regiongraph.Day) (p, i int, ok bool) {
 }
 
 // readPeriods makes one pass over the store's edges of the window: the
-// network's daily totals over every pair with trips, the summaries and the
-// bar speed over the pairs with at least the scan's minimum trips. With
+// summaries and the bar speed over the pairs with at least the scan's
+// minimum trips; the network's daily totals over every pair with trips
+// are the store's day totals (totals). With
 // the store cut into the periods' parts (see periodParts) the two parts
 // are read at once, each into its own summaries, and these are then
 // joined in the order of the parts in the store: the summaries' keys keep
 // the order in which a pass over the store first sees them, and each
 // period's sums are added in the store's order as before.
-func readPeriods(parts [2][]regiongraph.Edge, cut bool, window regiongraph.WindowIndex, sb, sa *Scan) *periodData {
+func readPeriods(parts [2][]regiongraph.Edge, cut bool, totals []regiongraph.DayTotal, window regiongraph.WindowIndex, sb, sa *Scan) *periodData {
 	days := [2][]string{sb.Days, sa.Days}
 	if !cut {
 		r := newPeriodReader(days, maxRegion(parts[0]), window, sb)
 		r.read(parts[0], -1)
-		return r.finish(parts, cut)
+		return r.finish(parts, cut, totals)
 	}
 	var maxIDs [2]int
 	both(func(p int) { maxIDs[p] = maxRegion(parts[p]) })
@@ -161,7 +162,7 @@ func readPeriods(parts [2][]regiongraph.Edge, cut bool, window regiongraph.Windo
 		first, second = 1, 0
 	}
 	rs[first].join(rs[second], second)
-	return rs[first].finish(parts, cut)
+	return rs[first].finish(parts, cut, totals)
 }
 
 // maxRegion returns the largest region id of edges, -1 when there are
@@ -208,19 +209,11 @@ func (r *periodReader) read(edges []regiongraph.Edge, only int) {
 	pd := r.pd
 	for i := range edges {
 		e := &edges[i]
-		// The network's totals count every pair with trips, however few:
-		// with a minimum, a fall of demand would also drop the pairs near
-		// it and overstate the fall.
-		if !usable(e, r.window, 1) {
+		if !usable(e, r.window, r.minTrips) {
 			continue
 		}
 		p, d, ok := r.look.find(e.Day)
 		if !ok || only >= 0 && p != only {
-			continue
-		}
-		ed := newEdgeDay(d, e)
-		pd.network[p][d].add(&ed, r.ref)
-		if e.Trips < r.minTrips {
 			continue
 		}
 		s := pd.summary.add(EdgeKey{From: e.From, To: e.To})
@@ -235,11 +228,10 @@ func (r *periodReader) read(edges []regiongraph.Edge, only int) {
 	}
 }
 
-// join takes period p's network totals, summaries and (for the before
-// period) day speeds from o, which read period p only. o's keys not yet
-// in r's summaries are added after r's, in o's order.
+// join takes period p's summaries and (for the before period) day speeds
+// from o, which read period p only. o's keys not yet in r's summaries are
+// added after r's, in o's order.
 func (r *periodReader) join(o *periodReader, p int) {
-	r.pd.network[p] = o.pd.network[p]
 	for i, k := range o.pd.summary.keys {
 		src, dst := &o.pd.summary.rows[i], r.pd.summary.add(k)
 		dst.days[p] = src.days[p]
@@ -254,8 +246,20 @@ func (r *periodReader) join(o *periodReader, p int) {
 }
 
 // finish sets the bar speed, the median over the before days of each
-// day's trip-weighted median speed, and returns the data read.
-func (r *periodReader) finish(parts [2][]regiongraph.Edge, cut bool) *periodData {
+// day's trip-weighted median speed, and the network's daily totals of the
+// window from the store's day totals, and returns the data read.
+func (r *periodReader) finish(parts [2][]regiongraph.Edge, cut bool, totals []regiongraph.DayTotal) *periodData {
+	// The network's totals count every pair with trips, however few:
+	// with a minimum, a fall of demand would also drop the pairs near it
+	// and overstate the fall.
+	for _, t := range totals {
+		if t.Window != r.window {
+			continue
+		}
+		if p, d, ok := r.look.find(t.Day); ok {
+			r.pd.network[p][d] = dayTotals{trips: float64(t.Trips), distanceSum: t.DistanceSum, durationSum: t.DurationSum}
+		}
+	}
 	var medians []float64
 	for _, v := range r.daySpeeds {
 		if len(v) > 0 {

@@ -124,7 +124,7 @@ func (dw *DatasetWriter) WriteDay(day Day, edges []Edge) error {
 	if len(edges) == 0 {
 		return nil
 	}
-	return dw.writeDay(day, dayFileRows(edgeOrderOf(dw.meta.Windows), edges))
+	return dw.writeDay(day, dayFileRows(edgeOrderOf(dw.meta.Windows), edges), totalsOf(dw.meta.Windows, edges))
 }
 
 // claimDay checks that the edges of day may come next: WriteDay's rules.
@@ -153,8 +153,9 @@ func (dw *DatasetWriter) claimDay(day Day, edges []Edge) error {
 }
 
 // writeDay writes the file of a claimed day from its edges in the day
-// file's order (dayFileRows); it may run on several goroutines at once.
-func (dw *DatasetWriter) writeDay(day Day, rows []Edge) error {
+// file's order (dayFileRows) and lists it in the manifest with its totals
+// (none when nil); it may run on several goroutines at once.
+func (dw *DatasetWriter) writeDay(day Day, rows []Edge, totals []DayTotal) error {
 	if len(rows) == 0 {
 		return nil
 	}
@@ -185,7 +186,7 @@ func (dw *DatasetWriter) writeDay(day Day, rows []Edge) error {
 	defer dw.mu.Unlock()
 	// Days written beside each other may finish out of order.
 	i, _ := slices.BinarySearchFunc(dw.days, text, func(d dayJSON, day string) int { return strings.Compare(d.Day, day) })
-	dw.days = slices.Insert(dw.days, i, dayJSON{Day: text, File: name, Edges: int64(len(rows)), Bytes: size})
+	dw.days = slices.Insert(dw.days, i, dayJSON{Day: text, File: name, Edges: int64(len(rows)), Bytes: size, Totals: totalsJSON(dw.meta.Windows, totals, false)})
 	dw.written.Edges += len(rows)
 	dw.written.Days++
 	return nil

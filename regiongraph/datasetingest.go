@@ -39,17 +39,20 @@ type dayPipe struct {
 	// ordered as it came (appendByTrips), so the writer need not copy
 	// them again.
 	ordered bool
-	queue   chan dayEdges
-	done    sync.WaitGroup
-	mu      sync.Mutex
-	err     error // the first of the writers or of a claim
-	closed  bool
+	// totals adds up the day's edges as they come, in store order.
+	totals *totalsAdder
+	queue  chan dayEdges
+	done   sync.WaitGroup
+	mu     sync.Mutex
+	err    error // the first of the writers or of a claim
+	closed bool
 }
 
 type dayEdges struct {
 	day     Day
 	edges   []Edge
-	ordered bool // in the day file's order (dayPipe)
+	ordered bool       // in the day file's order (dayPipe)
+	totals  []DayTotal // nil when the edges came out of store order
 }
 
 // dayWriters is the number of day files a dayPipe writes at once.
@@ -58,7 +61,7 @@ func dayWriters() int { return max(1, min(runtime.GOMAXPROCS(0), 4)) }
 func newDayPipe(dw *DatasetWriter) *dayPipe {
 	// Unbuffered: a day waits for a free writer, so that the days held
 	// are the writers' and the one being collected.
-	p := &dayPipe{dw: dw, order: edgeOrderOf(dw.meta.Windows), queue: make(chan dayEdges)}
+	p := &dayPipe{dw: dw, order: edgeOrderOf(dw.meta.Windows), totals: newTotalsAdder(dw.meta.Windows), queue: make(chan dayEdges)}
 	for range dayWriters() {
 		p.done.Add(1)
 		go func() {
@@ -67,11 +70,14 @@ func newDayPipe(dw *DatasetWriter) *dayPipe {
 				if p.failed() {
 					continue
 				}
+				if d.totals == nil {
+					d.totals = totalsOf(dw.meta.Windows, d.edges)
+				}
 				rows := d.edges
 				if !d.ordered {
 					rows = dayFileRows(p.order, rows)
 				}
-				p.fail(dw.writeDay(d.day, rows))
+				p.fail(dw.writeDay(d.day, rows, d.totals))
 			}
 		}()
 	}
@@ -97,8 +103,12 @@ func (p *dayPipe) send() error {
 	if len(p.edges) == 0 {
 		return nil
 	}
-	d := dayEdges{p.day, p.edges, p.ordered}
+	d := dayEdges{p.day, p.edges, p.ordered, p.totals.totals}
+	if p.totals.outOfOrder {
+		d.totals = nil
+	}
 	p.edges = nil
+	p.totals = newTotalsAdder(p.dw.meta.Windows)
 	if err := p.dw.claimDay(d.day, d.edges); err != nil {
 		p.fail(err)
 		return err
@@ -132,6 +142,7 @@ func (p *dayPipe) add(es []Edge) error {
 		for n < len(es) && es[n].Day == p.day {
 			n++
 		}
+		p.totals.add(es[:n])
 		// The edges of a window come in one piece, after the windows
 		// before it, so each piece is put in the day file's order as it
 		// is copied in.

@@ -21,6 +21,9 @@ type DayFile struct {
 	Day   string // YYYY-MM-DD
 	Edges int64
 	Bytes int64
+	// Totals are the day's totals by window (see DayTotal), which the
+	// manifest lists; none when nil.
+	Totals []DayTotal
 }
 
 // NewDatasetStaging creates the staging directory of a dataset to be
@@ -67,7 +70,7 @@ func WriteDayFile(staging string, meta Meta, day Day, edges []Edge) (DayFile, er
 		return DayFile{}, fmt.Errorf("regiongraph: dataset: %w", err)
 	}
 	d := dw.days[0]
-	return DayFile{Day: d.Day, Edges: d.Edges, Bytes: d.Bytes}, nil
+	return DayFile{Day: d.Day, Edges: d.Edges, Bytes: d.Bytes, Totals: totalsOf(meta.Windows, edges)}, nil
 }
 
 // attemptPrefix begins the folders WriteDayFile writes a day in before
@@ -91,7 +94,8 @@ func FinishDataset(staging, dir string, meta Meta, regionsGeoJSON []byte, days [
 		if i > 0 && d.Day == days[i-1].Day {
 			return fmt.Errorf("regiongraph: dataset %s: day %s written twice", dir, d.Day)
 		}
-		dw.days = append(dw.days, dayJSON{Day: d.Day, File: dayFileName(d.Day), Edges: d.Edges, Bytes: d.Bytes})
+		dw.days = append(dw.days, dayJSON{Day: d.Day, File: dayFileName(d.Day), Edges: d.Edges, Bytes: d.Bytes,
+			Totals: totalsJSON(meta.Windows, d.Totals, false)})
 		dw.written.Edges += int(d.Edges)
 		dw.written.Days++
 	}

@@ -98,7 +98,7 @@ func openDataset(dir string, opts ReadOptions) (s *Store, days []dayJSON, fileOp
 	if err != nil {
 		return nil, nil, opts, err
 	}
-	s = &Store{Meta: meta}
+	s = &Store{Meta: meta, totals: m.totals, totalsRecorded: m.totalsRecorded}
 	if m.Regions != "" {
 		if s.regionsGeoJSON, err = readDatasetRegions(dir, m); err != nil {
 			return nil, nil, opts, err
@@ -172,6 +172,9 @@ func readDataset(dir string, opts ReadOptions, stretchRows int64) (*Store, error
 		}
 	}
 	if err := checkAndOrder(dir, s); err != nil {
+		return nil, err
+	}
+	if err := s.finishTotals(dir, opts); err != nil {
 		return nil, err
 	}
 	return s, nil

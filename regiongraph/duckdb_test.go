@@ -116,7 +116,12 @@ func TestDatasetInDuckDB(t *testing.T) {
 	}
 	query = strings.ReplaceAll(query, "'graphs/*/*.parquet'", "'"+ds+"/*/*.parquet'")
 	all := "SELECT CAST(day AS VARCHAR) AS day, * EXCLUDE (day) FROM read_parquet('" + ds + "/*/*.parquet', hive_partitioning = true) ORDER BY day, \"window\", from_region, to_region"
-	got := runDuckDB(t, query, all)
+	// Each day's and window's sums over every row, to check the day
+	// totals the manifest records.
+	totalsQuery := "SELECT CAST(day AS VARCHAR) AS day, \"window\", count(*) AS edges, sum(trips) AS trips, sum(distance_sum_m) AS distance, " +
+		"sum(straight_sum_m) AS straight, sum(duration_sum_s) AS duration FROM read_parquet('" + ds + "/*/*.parquet', hive_partitioning = true) " +
+		"GROUP BY ALL ORDER BY day, \"window\""
+	got := runDuckDB(t, query, all, totalsQuery)
 
 	// narrows' reading with the query's minimum and period.
 	mine, err := ReadFileOptions(ds, ReadOptions{MinTrips: 3, From: "2024-01-11", To: "2024-01-13"})
@@ -151,6 +156,32 @@ func TestDatasetInDuckDB(t *testing.T) {
 			!closeTo(number(t, row["distance_m"]), w.dist) || !closeTo(number(t, row["duration_s"]), w.dur) {
 			t.Errorf("%s: DuckDB %v, narrows %+v", k, row, *w)
 		}
+	}
+
+	// The day totals a read with a minimum of trips takes from the
+	// manifest are DuckDB's sums over every row.
+	partial, err := ReadFileOptions(ds, ReadOptions{MinTrips: 3})
+	if err != nil {
+		t.Fatal(err)
+	}
+	totals, ok := partial.DayTotals()
+	if !ok || len(totals) != len(got[2]) || len(totals) < 4 {
+		t.Fatalf("day totals known %t: %d, DuckDB %d (day, window) rows", ok, len(totals), len(got[2]))
+	}
+	for i, row := range got[2] {
+		tt := totals[i]
+		if row["day"] != tt.Day.String() || row["window"] != mine.Meta.WindowName(tt.Window) || number(t, row["edges"]) != float64(tt.Edges) ||
+			number(t, row["trips"]) != float64(tt.Trips) || !closeTo(number(t, row["distance"]), tt.DistanceSum) ||
+			!closeTo(number(t, row["straight"]), tt.StraightSum) || !closeTo(number(t, row["duration"]), tt.DurationSum) {
+			t.Errorf("day total %d: DuckDB %v, narrows %+v", i, row, tt)
+		}
+	}
+	var every int64
+	for _, tt := range totals {
+		every += tt.Edges
+	}
+	if every <= int64(len(partial.Edges)) {
+		t.Fatalf("the read with a minimum kept %d edges of %d: the test shows nothing", len(partial.Edges), every)
 	}
 
 	// Every row, every column.

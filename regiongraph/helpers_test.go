@@ -2,6 +2,7 @@ package regiongraph
 
 import (
 	"context"
+	"encoding/json"
 	"fmt"
 	"io"
 	"math"
@@ -158,4 +159,43 @@ func testWindow(s *Store, name string) WindowIndex {
 		panic("no window " + name)
 	}
 	return w
+}
+
+// withoutTotals checks the day totals that got, a store read back,
+// records against those of want's edges, to the bit, and returns got
+// without them, so that the rest compares with reflect.DeepEqual.
+func withoutTotals(t testing.TB, want, got *Store) *Store {
+	t.Helper()
+	if got.totalsRecorded {
+		if w := totalsOf(want.Meta.Windows, want.Edges); !slices.Equal(w, got.totals) {
+			t.Errorf("the day totals read back differ from the edges':\nwant %+v\ngot  %+v", w, got.totals)
+		}
+	}
+	out := *got
+	out.totals, out.totalsRecorded = nil, false
+	return &out
+}
+
+// stripTotals removes the day totals from the manifest of the dataset at
+// dir, as a dataset written before them lists its days.
+func stripTotals(t testing.TB, dir string) {
+	t.Helper()
+	path := filepath.Join(dir, ManifestName)
+	data, err := os.ReadFile(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var m map[string]any
+	if err := json.Unmarshal(data, &m); err != nil {
+		t.Fatal(err)
+	}
+	for _, d := range m["days"].([]any) {
+		delete(d.(map[string]any), "totals")
+	}
+	if data, err = json.MarshalIndent(m, "", "  "); err != nil {
+		t.Fatal(err)
+	}
+	if err := os.WriteFile(path, data, 0o644); err != nil {
+		t.Fatal(err)
+	}
 }

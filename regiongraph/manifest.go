@@ -26,15 +26,22 @@ type manifest struct {
 	Regions      string    `json:"regions,omitempty"`
 	RegionsBytes int64     `json:"regions_bytes,omitempty"`
 	Days         []dayJSON `json:"days"`
+
+	// totals are the days' totals, checked, when every day records them
+	// (totalsRecorded); parseManifest sets them.
+	totals         []DayTotal
+	totalsRecorded bool
 }
 
 // dayJSON is one day of the manifest: its file in the dataset, the rows
-// (edges) it holds and its size in bytes.
+// (edges) it holds, its size in bytes and its totals by window (see
+// DayTotal; none in a dataset written before them).
 type dayJSON struct {
-	Day   string `json:"day"`
-	File  string `json:"file"`
-	Edges int64  `json:"edges"`
-	Bytes int64  `json:"bytes"`
+	Day    string      `json:"day"`
+	File   string      `json:"file"`
+	Edges  int64       `json:"edges"`
+	Bytes  int64       `json:"bytes"`
+	Totals []totalJSON `json:"totals,omitempty"`
 }
 
 // maxManifestBytes bounds the manifest read: a year's manifest is some
@@ -155,5 +162,37 @@ func parseManifest(path string, data []byte) (*manifest, Meta, error) {
 			return bad("day %s: %d edges in %d bytes", d.Day, d.Edges, d.Bytes)
 		}
 	}
+	if err := m.parseTotals(&meta); err != nil {
+		return bad("%v", err)
+	}
 	return &m, meta, nil
+}
+
+// parseTotals checks the days' totals, when every day records them, and
+// sets m.totals: each day's add up to its edges.
+func (m *manifest) parseTotals(meta *Meta) error {
+	var all []totalJSON
+	for _, d := range m.Days {
+		if len(d.Totals) == 0 {
+			return nil // written before day totals, or by a writer without them
+		}
+		var edges int64
+		for _, t := range d.Totals {
+			if t.Day != "" && t.Day != d.Day {
+				return fmt.Errorf("day %s: a total of day %q", d.Day, t.Day)
+			}
+			t.Day = d.Day
+			all = append(all, t)
+			edges += t.Edges
+		}
+		if edges != d.Edges {
+			return fmt.Errorf("day %s: its totals count %d edges, the day %d", d.Day, edges, d.Edges)
+		}
+	}
+	totals, err := parseTotals(meta, all)
+	if err != nil {
+		return err
+	}
+	m.totals, m.totalsRecorded = totals, true
+	return nil
 }

@@ -257,6 +257,16 @@ func TestIngestMergeDataset(t *testing.T) {
 		if !reflect.DeepEqual(back.Meta, want.Meta) || !reflect.DeepEqual(s.Meta, want.Meta) {
 			t.Errorf("%s: metadata differs:\n%+v\n%+v", path, back.Meta, want.Meta)
 		}
+		// The days written as they came record the totals of every
+		// edge, kept by a read with a minimum of trips.
+		wantTotals, _ := want.DayTotals()
+		partial, err := ReadFileOptions(out, ReadOptions{MinTrips: 3})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if got, ok := partial.DayTotals(); !back.totalsRecorded || !ok || !slices.Equal(got, wantTotals) {
+			t.Errorf("%s: day totals recorded %t, read with a minimum %t, equal to the merge's %t", path, back.totalsRecorded, ok, slices.Equal(got, wantTotals))
+		}
 	}
 	// The new trips' days are already in the store merged: refused, and
 	// the ingest stops.

@@ -38,13 +38,22 @@ func (k *fileSink) begin(s *Store) (func([]Edge) error, func() error, error) {
 		return nil, nil, fmt.Errorf("regiongraph: write: %v", err)
 	}
 	k.ew = newEdgeWriter(k.w, rowGroupRows, wopts, s.Meta.Windows)
+	// The edges come in store order: their totals are added up as they
+	// pass and go into the file's metadata at the end.
+	totals := newTotalsAdder(s.Meta.Windows)
 	add := func(es []Edge) error {
+		totals.add(es)
 		if err := k.ew.add(es); err != nil {
 			return fmt.Errorf("regiongraph: write: %w", err)
 		}
 		return nil
 	}
 	return add, func() error {
+		if !totals.outOfOrder {
+			if err := k.ew.setTotals(totals.totals); err != nil {
+				return fmt.Errorf("regiongraph: write: %v", err)
+			}
+		}
 		if err := k.ew.close(); err != nil {
 			return fmt.Errorf("regiongraph: write: %w", err)
 		}

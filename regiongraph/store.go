@@ -90,6 +90,13 @@ type Store struct {
 	// spilled is the bytes an ingest wrote to its temporary file before
 	// the first edge.
 	spilled int64
+	// totals are the day totals the store's file records (see
+	// DayTotals), when totalsRecorded; partial is whether the read
+	// dropped edges under a minimum of trips, so that the edges do not
+	// add up to the store's totals.
+	totals         []DayTotal
+	totalsRecorded bool
+	partial        bool
 }
 
 // WindowName returns the name of the window of index w, "" when there is
@@ -250,5 +257,6 @@ func Merge(stores ...*Store) (*Store, error) {
 		}
 	}
 	slices.SortStableFunc(out.Edges, edgeOrderOf(out.Meta.Windows).compare)
+	out.mergeTotals(stores)
 	return out, nil
 }

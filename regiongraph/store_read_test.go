@@ -31,7 +31,9 @@ func writeLegacy(t *testing.T, path string, s *Store, pageBytes int) {
 	})
 	opts := []parquet.WriterOption{plain, parquet.Compression(&parquet.Zstd), parquet.PageBufferSize(pageBytes)}
 	for _, kv := range openParquetFile(t, current).Metadata().KeyValueMetadata {
-		opts = append(opts, parquet.KeyValueMetadata(kv.Key, kv.Value))
+		if kv.Key != metaDayTotals { // the first stores recorded none
+			opts = append(opts, parquet.KeyValueMetadata(kv.Key, kv.Value))
+		}
 	}
 	f, err := os.Create(path)
 	if err != nil {
@@ -160,7 +162,7 @@ func TestWriteParquetRowGroups(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if !reflect.DeepEqual(s, back) {
+	if !reflect.DeepEqual(s, withoutTotals(t, s, back)) {
 		t.Fatal("round trip through several row groups changed the store")
 	}
 	pf := openParquetFile(t, path)
@@ -217,6 +219,9 @@ func TestReadFileFirstStores(t *testing.T) {
 	back, err := ReadFile(path)
 	if err != nil {
 		t.Fatal(err)
+	}
+	if back.totalsRecorded {
+		t.Error("the first stores' layout records day totals")
 	}
 	if !reflect.DeepEqual(s, back) {
 		t.Fatal("reading the first-store layout changed the store")

@@ -107,6 +107,9 @@ func readFile(path string, opts ReadOptions, stretchRows int64) (*Store, error) 
 	if err := checkAndOrder(path, s); err != nil {
 		return nil, err
 	}
+	if err := s.finishTotals(path, opts); err != nil {
+		return nil, err
+	}
 	return s, nil
 }
 
@@ -278,6 +281,18 @@ func readStoreMeta(path string, pf *parquet.File, s *Store) error {
 	}
 	for _, src := range sources {
 		s.Meta.Sources = append(s.Meta.Sources, Source{Path: src.Path, SHA256: src.SHA256, Rows: src.Rows})
+	}
+	// Day totals are optional: stores written before them record none.
+	if text, ok := pf.Lookup(metaDayTotals); ok {
+		var totals []totalJSON
+		if err := json.Unmarshal([]byte(text), &totals); err != nil {
+			return fmt.Errorf("regiongraph: %s: %s metadata: %v", path, metaDayTotals, err)
+		}
+		var err error
+		if s.totals, err = parseTotals(&s.Meta, totals); err != nil {
+			return fmt.Errorf("regiongraph: %s: %s metadata: %v", path, metaDayTotals, err)
+		}
+		s.totalsRecorded = true
 	}
 	return nil
 }

@@ -18,6 +18,7 @@ const (
 	metaQuality       = "quality"
 	metaSources       = "sources"
 	metaRegionsJSON   = "regions_geojson"
+	metaDayTotals     = "day_totals"
 )
 
 // A storeColumn is a column of the store: its name, its Parquet type, and

@@ -40,7 +40,17 @@ func writeParquet(w io.Writer, s *Store, groupRows int, extra ...parquet.WriterO
 	if err != nil {
 		return fmt.Errorf("regiongraph: write: %v", err)
 	}
-	if err := writeEdges(w, s.Edges, groupRows, append(opts, extra...), s.Meta.Windows); err != nil {
+	ew := newEdgeWriter(w, groupRows, append(opts, extra...), s.Meta.Windows)
+	err = ew.add(s.Edges)
+	if err == nil {
+		// The file records the totals of the edges it holds, whatever a
+		// store read with a minimum of trips recorded.
+		err = ew.setTotals(totalsOf(s.Meta.Windows, s.Edges))
+	}
+	if err == nil {
+		err = ew.close()
+	}
+	if err != nil {
 		return fmt.Errorf("regiongraph: write: %w", err)
 	}
 	return nil
@@ -94,17 +104,6 @@ func storeMetadata(s *Store) ([]parquet.WriterOption, error) {
 
 func clock(m int) string { return fmt.Sprintf("%02d:%02d", m/60, m%60) }
 
-// writeEdges writes the edges as Parquet rows to w, converting them in
-// small batches so that only the writer's buffers are added to the store in
-// memory.
-func writeEdges(w io.Writer, edges []Edge, groupRows int, opts []parquet.WriterOption, windows []Window) error {
-	ew := newEdgeWriter(w, groupRows, opts, windows)
-	if err := ew.add(edges); err != nil {
-		return err
-	}
-	return ew.close()
-}
-
 // edgeWriter writes edges, given in store order a few at a time, as the
 // rows of one Parquet file: the layout does not depend on how the edges
 // are handed to it.
@@ -115,7 +114,8 @@ type edgeWriter struct {
 	values    parquet.Row // of the rows
 	inGroup   int
 	lastDay   Day
-	text      *storeText // the store's windows
+	windows   []Window   // the store's
+	text      *storeText // of the windows
 	n         int        // edges written
 	days      int        // distinct days written
 }
@@ -126,6 +126,7 @@ const edgeBatch = 1 << 12
 
 func newEdgeWriter(w io.Writer, groupRows int, opts []parquet.WriterOption, windows []Window) *edgeWriter {
 	return &edgeWriter{
+		windows:   windows,
 		text:      newStoreText(windows),
 		pw:        parquet.NewWriter(w, append([]parquet.WriterOption{storeSchema(nil)}, opts...)...),
 		groupRows: groupRows,
@@ -175,6 +176,18 @@ func (ew *edgeWriter) add(edges []Edge) error {
 			}
 		}
 	}
+	return nil
+}
+
+// setTotals records the day totals of the edges in the file's key-value
+// metadata, written with the footer: a single file's totals are known only
+// once its edges have passed.
+func (ew *edgeWriter) setTotals(totals []DayTotal) error {
+	text, err := dayTotalsJSON(ew.windows, totals)
+	if err != nil {
+		return err
+	}
+	ew.pw.SetKeyValueMetadata(metaDayTotals, text)
 	return nil
 }
 

@@ -20,8 +20,12 @@ func (s *Store) Without(drop func(e *Edge) bool) *Store {
 	}
 	if first < 0 {
 		out.Edges = s.Edges
+		out.totals, out.totalsRecorded, out.partial = s.totals, s.totalsRecorded, s.partial
 		return out
 	}
+	// The edges left are all the store's when s held all its own;
+	// otherwise the totals of the edges left are not known.
+	out.partial = s.partial
 	out.Edges = make([]Edge, first, len(s.Edges))
 	copy(out.Edges, s.Edges[:first])
 	for i := first + 1; i < len(s.Edges); i++ {

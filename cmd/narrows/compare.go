@@ -70,7 +70,7 @@ func runCompare(ctx context.Context, env *environment, args []string) error {
 	if err := env.files.claimAll(outs); err != nil {
 		return err
 	}
-	store, regions, err := in.openEvery(scanOpts)
+	store, regions, err := in.openCompare(scanOpts)
 	if err != nil {
 		return err
 	}

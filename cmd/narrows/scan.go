@@ -38,10 +38,18 @@ func (f *storeFlags) open(opts patterns.ScanOptions) (*regiongraph.Store, *parti
 	return f.openRead(opts, regiongraph.ReadOptions{MinTrips: opts.Skyline.MinTrips, Columns: patterns.StoreColumns()})
 }
 
-// openEvery is open keeping every edge, whatever its trips: a comparison's
-// network totals count every pair with trips (patterns.Compare), which a
-// minimum applied while reading would leave out.
-func (f *storeFlags) openEvery(opts patterns.ScanOptions) (*regiongraph.Store, *partition.Partition, error) {
+// openCompare is open for a comparison, whose network totals count every
+// pair with trips (patterns.Compare): the store's day totals give them
+// whatever minimum the read applies. A store written before day totals
+// records none and is read again keeping every edge.
+func (f *storeFlags) openCompare(opts patterns.ScanOptions) (*regiongraph.Store, *partition.Partition, error) {
+	store, regions, err := f.open(opts)
+	if err != nil {
+		return nil, nil, err
+	}
+	if _, ok := store.DayTotals(); ok {
+		return store, regions, nil
+	}
 	return f.openRead(opts, regiongraph.ReadOptions{Columns: patterns.StoreColumns()})
 }
 
@@ -189,8 +197,9 @@ func scanByDay(ctx context.Context, in storeFlags, opts patterns.ScanOptions) (*
 // thresholds, decoding only the columns the analysis uses. A scan drops
 // the edges under its minimum trips while reading, as they can never be
 // candidates: a city's store is mostly pairs with a trip or two a day, and
-// holding them would cost gigabytes. A comparison keeps them (openEvery):
-// its network totals count every pair with trips.
+// holding them would cost gigabytes. A comparison's network totals, which
+// count every pair with trips, come from the store's day totals
+// (openCompare).
 func readStore(path string, opts regiongraph.ReadOptions) (*regiongraph.Store, error) {
 	return regiongraph.ReadFileOptions(path, opts)
 }
