@@ -1,7 +1,6 @@
 package regiongraph
 
 import (
-	"encoding/json"
 	"math"
 	"os"
 	"path/filepath"
@@ -216,31 +215,18 @@ func TestDayTotalsDamage(t *testing.T) {
 			if err := s.WriteDataset(ds); err != nil {
 				t.Fatal(err)
 			}
-			path := filepath.Join(ds, ManifestName)
-			data, err := os.ReadFile(path)
-			if err != nil {
-				t.Fatal(err)
-			}
-			var m map[string]any
-			if err := json.Unmarshal(data, &m); err != nil {
-				t.Fatal(err)
-			}
-			first := m["days"].([]any)[0].(map[string]any)
-			if first["day"] != day {
-				t.Fatalf("first day %v, want %s", first["day"], day)
-			}
-			totals := first["totals"].([]any)
-			if len(totals) < 2 {
-				t.Fatalf("%d totals on the first day", len(totals))
-			}
-			c.edit(totals)
-			if data, err = json.Marshal(m); err != nil {
-				t.Fatal(err)
-			}
-			if err := os.WriteFile(path, data, 0o644); err != nil {
-				t.Fatal(err)
-			}
-			_, err = ReadFileOptions(ds, c.opts)
+			editManifest(t, ds, func(m map[string]any) {
+				first := m["days"].([]any)[0].(map[string]any)
+				if first["day"] != day {
+					t.Fatalf("first day %v, want %s", first["day"], day)
+				}
+				totals := first["totals"].([]any)
+				if len(totals) < 2 {
+					t.Fatalf("%d totals on the first day", len(totals))
+				}
+				c.edit(totals)
+			})
+			_, err := ReadFileOptions(ds, c.opts)
 			if err == nil || !strings.Contains(err.Error(), c.want) || !strings.Contains(err.Error(), ds) {
 				t.Errorf("got %v, want %q naming %s", err, c.want, ds)
 			}

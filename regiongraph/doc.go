@@ -8,7 +8,9 @@
 // ratio, with the quality accounting of every input row. A Store is written
 // to one Parquet file (Store.WriteParquet, to any io.Writer) and read back
 // (ReadFile, ReadFileOptions); the layout is in SCHEMA.md. Stores of
-// separate ingests merge (Merge).
+// separate ingests merge (Merge). Every writer also records each day's and
+// window's totals over all the edges (DayTotal), which stay known to a
+// read that drops the edges under a minimum of trips (Store.DayTotals).
 //
 // An Edge holds no pointer, so that the millions of a city year are memory
 // the garbage collector does not scan: its local day is a Day (days since

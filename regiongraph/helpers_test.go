@@ -180,6 +180,17 @@ func withoutTotals(t testing.TB, want, got *Store) *Store {
 // dir, as a dataset written before them lists its days.
 func stripTotals(t testing.TB, dir string) {
 	t.Helper()
+	editManifest(t, dir, func(m map[string]any) {
+		for _, d := range m["days"].([]any) {
+			delete(d.(map[string]any), "totals")
+		}
+	})
+}
+
+// editManifest has edit change the manifest of the dataset at dir, as
+// decoded JSON.
+func editManifest(t testing.TB, dir string, edit func(m map[string]any)) {
+	t.Helper()
 	path := filepath.Join(dir, ManifestName)
 	data, err := os.ReadFile(path)
 	if err != nil {
@@ -189,9 +200,7 @@ func stripTotals(t testing.TB, dir string) {
 	if err := json.Unmarshal(data, &m); err != nil {
 		t.Fatal(err)
 	}
-	for _, d := range m["days"].([]any) {
-		delete(d.(map[string]any), "totals")
-	}
+	edit(m)
 	if data, err = json.MarshalIndent(m, "", "  "); err != nil {
 		t.Fatal(err)
 	}
