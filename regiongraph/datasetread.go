@@ -124,6 +124,7 @@ func readDataset(dir string, opts ReadOptions, stretchRows int64) (*Store, error
 	if err != nil {
 		return nil, err
 	}
+	opts, fileOpts = s.wholeWithoutTotals(opts), s.wholeWithoutTotals(fileOpts)
 	// Two passes over the files, a batch of them open at a time: the
 	// first finds the rows kept, so that the edges are allocated once at
 	// their number, the second fills them.

@@ -190,6 +190,16 @@ func (o edgeOrder) compareTotals(a, b DayTotal) int {
 	return cmp.Compare(o.rank(a.Window), o.rank(b.Window))
 }
 
+// wholeWithoutTotals returns opts for reading s, whose metadata is read:
+// without a minimum of trips when opts asks for the whole store unless s
+// records its day totals.
+func (s *Store) wholeWithoutTotals(opts ReadOptions) ReadOptions {
+	if opts.WholeWithoutTotals && !s.totalsRecorded {
+		opts.MinTrips = 0
+	}
+	return opts
+}
+
 // finishTotals ends a read from path with opts of a store whose edges
 // are read and whose file's totals, if it records any, are s.totals: it
 // notes whether the read dropped edges, selects the totals as the read

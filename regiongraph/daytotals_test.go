@@ -43,7 +43,9 @@ func sameSum(a, b float64) bool { return math.Abs(a-b) <= 1e-12*math.Max(math.Ab
 // selection from each: the day totals read are those of every edge of the
 // days and window selected, whatever minimum of trips the read applied,
 // against a brute-force sum; a store written without them (an earlier
-// build's) has none known once a read drops edges.
+// build's) has none known once a read drops edges, unless the read asks
+// for the whole store then (WholeWithoutTotals), which a store with
+// totals does not change.
 func TestDayTotalsRecorded(t *testing.T) {
 	s, file, ds := bothLayouts(t)
 	days := s.Days(testWindow(s, "all"))
@@ -52,6 +54,8 @@ func TestDayTotalsRecorded(t *testing.T) {
 		t.Fatal(err)
 	}
 	stripTotals(t, legacy)
+	legacyFile := filepath.Join(t.TempDir(), "legacy.parquet")
+	writeLegacy(t, legacyFile, s, 1<<20)
 	for _, opts := range []ReadOptions{
 		{}, {MinTrips: 2}, {MinTrips: 3, Window: "am"}, {MinTrips: 1 << 20},
 		{From: days[1].String(), To: days[2].String()}, {MinTrips: 4, From: days[1].String()}, {To: days[0].String(), Window: "all"},
@@ -82,12 +86,44 @@ func TestDayTotalsRecorded(t *testing.T) {
 				}
 			}
 		}
-		old, err := ReadFileOptions(legacy, opts)
-		if err != nil {
-			t.Fatal(err)
-		}
-		if _, ok := old.DayTotals(); ok != (opts.MinTrips <= 1) {
-			t.Errorf("no totals recorded %+v: known %t", opts, ok)
+		for _, path := range []string{legacy, legacyFile} {
+			old, err := ReadFileOptions(path, opts)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if _, ok := old.DayTotals(); ok != (opts.MinTrips <= 1) {
+				t.Errorf("%s, no totals recorded %+v: known %t", filepath.Base(path), opts, ok)
+			}
+			every := opts
+			every.MinTrips = 0
+			all, err := ReadFileOptions(path, every)
+			if err != nil {
+				t.Fatal(err)
+			}
+			whole := opts
+			whole.WholeWithoutTotals = true
+			for _, p := range []string{path, ds, file} {
+				got, err := ReadFileOptions(p, whole)
+				if err != nil {
+					t.Fatal(err)
+				}
+				totals, ok := got.DayTotals()
+				kept := len(old.Edges) // the minimum applies
+				if p == path {
+					kept = len(all.Edges) // but not to a store without totals
+				}
+				if !ok || len(totals) != len(want) || len(got.Edges) != kept {
+					t.Errorf("%s %+v, whole without totals: known %t, %d totals, want %d; %d edges kept, want %d", filepath.Base(p), whole, ok, len(totals), len(want), len(got.Edges), kept)
+				}
+				// A read a day at a time keeps the same edges.
+				r, err := OpenDays(p, whole)
+				if err != nil {
+					t.Fatal(err)
+				}
+				if _, edges := eachDay(t, r); len(edges) != kept {
+					t.Errorf("%s %+v, a day at a time: %d edges, want %d", filepath.Base(p), whole, len(edges), kept)
+				}
+			}
 		}
 	}
 }

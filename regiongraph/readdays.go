@@ -49,7 +49,7 @@ func OpenDays(path string, opts ReadOptions) (*DayReader, error) {
 	if err := checkStoreMeta(path, s); err != nil {
 		return nil, err
 	}
-	return &DayReader{store: s, dir: path, days: days, opts: fileOpts, stretchRows: stretchRows}, nil
+	return &DayReader{store: s, dir: path, days: days, opts: s.wholeWithoutTotals(fileOpts), stretchRows: stretchRows}, nil
 }
 
 // ByDay returns a DayReader of the store's edges, which it shares: they

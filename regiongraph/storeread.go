@@ -26,6 +26,10 @@ type ReadOptions struct {
 	// analysis that ignores pairs under its own minimum need not hold them
 	// in memory.
 	MinTrips int
+	// WholeWithoutTotals ignores MinTrips for a store that records no day
+	// totals (one written before them), so that Store.DayTotals is known
+	// whatever the store: a comparison's network counts every pair.
+	WholeWithoutTotals bool
 	// Window keeps only the edges of the named window ("" keeps all); a
 	// name not among the store's windows is an error.
 	Window string
@@ -94,6 +98,7 @@ func readFile(path string, opts ReadOptions, stretchRows int64) (*Store, error) 
 	if err := readStoreMeta(path, pf, s); err != nil {
 		return nil, err
 	}
+	opts = s.wholeWithoutTotals(opts)
 	if opts.Window != "" && !slices.Contains(s.WindowNames(), opts.Window) {
 		return nil, fmt.Errorf("regiongraph: %s: no window %q in the store (it has %s)", path, opts.Window, strings.Join(s.WindowNames(), ", "))
 	}

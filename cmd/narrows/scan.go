@@ -41,16 +41,9 @@ func (f *storeFlags) open(opts patterns.ScanOptions) (*regiongraph.Store, *parti
 // openCompare is open for a comparison, whose network totals count every
 // pair with trips (patterns.Compare): the store's day totals give them
 // whatever minimum the read applies. A store written before day totals
-// records none and is read again keeping every edge.
+// records none and is read keeping every edge.
 func (f *storeFlags) openCompare(opts patterns.ScanOptions) (*regiongraph.Store, *partition.Partition, error) {
-	store, regions, err := f.open(opts)
-	if err != nil {
-		return nil, nil, err
-	}
-	if _, ok := store.DayTotals(); ok {
-		return store, regions, nil
-	}
-	return f.openRead(opts, regiongraph.ReadOptions{Columns: patterns.StoreColumns()})
+	return f.openRead(opts, regiongraph.ReadOptions{MinTrips: opts.Skyline.MinTrips, WholeWithoutTotals: true, Columns: patterns.StoreColumns()})
 }
 
 // openPeriod is open reading only the days of opts' period: of a dataset
