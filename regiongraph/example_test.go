@@ -128,3 +128,34 @@ func ExampleParseDay() {
 	// 2028-02-29 Tuesday 21243
 	// day "2027-02-29" is not a date YYYY-MM-DD
 }
+
+func ExampleStore_DayTotals() {
+	dir, err := os.MkdirTemp("", "example")
+	if err != nil {
+		log.Fatal(err)
+	}
+	defer os.RemoveAll(dir)
+	store, err := ingestTrips(dir)
+	if err != nil {
+		log.Fatal(err)
+	}
+	path := filepath.Join(dir, "graphs") // a dataset
+	if err := store.WriteDataset(path); err != nil {
+		log.Fatal(err)
+	}
+
+	// A read with a minimum of three trips keeps no edge of this store,
+	// but the network's totals still count every pair with trips.
+	back, err := regiongraph.ReadFileOptions(path, regiongraph.ReadOptions{MinTrips: 3})
+	if err != nil {
+		log.Fatal(err)
+	}
+	totals, ok := back.DayTotals()
+	fmt.Println(len(back.Edges), "edges kept; totals known:", ok)
+	for _, t := range totals {
+		fmt.Printf("%s %s: %d pairs, %d trips, %.0f m in %.0f s\n", t.Day, back.Meta.WindowName(t.Window), t.Edges, t.Trips, t.DistanceSum, t.DurationSum)
+	}
+	// Output:
+	// 0 edges kept; totals known: true
+	// 2024-05-02 am: 1 pairs, 2 trips, 5500 m in 960 s
+}
