@@ -210,3 +210,37 @@ func TestDatasetInDuckDB(t *testing.T) {
 		}
 	}
 }
+
+// TestDayTotalsInDuckDB reads a single file's day_totals metadata and its
+// rows with DuckDB: the totals the file records are DuckDB's count and
+// sums of every row, by day and window.
+func TestDayTotalsInDuckDB(t *testing.T) {
+	duckDB(t)
+	loc, _ := time.LoadLocation("Europe/Berlin")
+	s := sampleStore(t, 6, time.Date(2024, 2, 10, 0, 0, 0, 0, loc), 8000)
+	file := filepath.Join(t.TempDir(), "graphs.parquet")
+	if err := createFile(file, s.WriteParquet); err != nil {
+		t.Fatal(err)
+	}
+	got := runDuckDB(t,
+		"SELECT decode(value) AS totals FROM parquet_kv_metadata('"+file+"') WHERE decode(key) = 'day_totals'",
+		"SELECT day, \"window\", count(*) AS edges, sum(trips) AS trips, sum(distance_sum_m) AS distance, sum(straight_sum_m) AS straight, "+
+			"sum(duration_sum_s) AS duration FROM read_parquet('"+file+"') GROUP BY ALL ORDER BY day, \"window\"")
+	if len(got[0]) != 1 {
+		t.Fatalf("DuckDB finds %d day_totals keys", len(got[0]))
+	}
+	var recorded []totalJSON
+	if err := json.Unmarshal([]byte(got[0][0]["totals"].(string)), &recorded); err != nil {
+		t.Fatal(err)
+	}
+	if len(recorded) != len(got[1]) || len(recorded) < 4 {
+		t.Fatalf("%d day totals recorded, DuckDB groups the rows into %d", len(recorded), len(got[1]))
+	}
+	for i, row := range got[1] {
+		r := recorded[i]
+		if row["day"] != r.Day || row["window"] != r.Window || number(t, row["edges"]) != float64(r.Edges) || number(t, row["trips"]) != float64(r.Trips) ||
+			!closeTo(number(t, row["distance"]), r.DistanceSum) || !closeTo(number(t, row["straight"]), r.StraightSum) || !closeTo(number(t, row["duration"]), r.DurationSum) {
+			t.Errorf("day total %d: DuckDB %v, recorded %+v", i, row, r)
+		}
+	}
+}
