@@ -108,7 +108,7 @@ func openDataset(dir string, opts ReadOptions) (s *Store, days []dayJSON, fileOp
 		return nil, nil, opts, fmt.Errorf("regiongraph: %s: no window %q in the store (it has %s)", dir, opts.Window, strings.Join(s.WindowNames(), ", "))
 	}
 	for _, d := range m.Days {
-		if (opts.From == "" || d.Day >= opts.From) && (opts.To == "" || d.Day <= opts.To) {
+		if opts.keepsDay(d.Day) {
 			days = append(days, d)
 		}
 	}

@@ -177,9 +177,7 @@ func parseTotals(meta *Meta, in []totalJSON) ([]DayTotal, error) {
 func selectTotals(meta *Meta, totals []DayTotal, opts ReadOptions) []DayTotal {
 	out := totals[:0:0]
 	for _, t := range totals {
-		day := t.Day.String()
-		if (opts.From == "" || day >= opts.From) && (opts.To == "" || day <= opts.To) &&
-			(opts.Window == "" || meta.WindowName(t.Window) == opts.Window) {
+		if opts.keepsDay(t.Day.String()) && (opts.Window == "" || meta.WindowName(t.Window) == opts.Window) {
 			out = append(out, t)
 		}
 	}

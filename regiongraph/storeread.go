@@ -47,6 +47,11 @@ type ReadOptions struct {
 	counter *readCounter
 }
 
+// keepsDay reports whether a read with o keeps the local day YYYY-MM-DD.
+func (o ReadOptions) keepsDay(day string) bool {
+	return (o.From == "" || day >= o.From) && (o.To == "" || day <= o.To)
+}
+
 // ReadFile reads a store, a single file written by WriteParquet or a
 // dataset directory written by a DatasetWriter, every edge.
 func ReadFile(path string) (*Store, error) { return ReadFileOptions(path, ReadOptions{}) }
@@ -461,7 +466,7 @@ func (st *stretch) selectRows(opts ReadOptions, buf *readBuffers) error {
 				case storeDay:
 					if err = c.strings(a, b, nil, strs[:b-a]); err == nil {
 						for i, v := range strs[:b-a] {
-							k[i] = k[i] && (opts.From == "" || v >= opts.From) && (opts.To == "" || v <= opts.To)
+							k[i] = k[i] && opts.keepsDay(v)
 						}
 					}
 				}
