@@ -157,12 +157,8 @@ func parseTotals(meta *Meta, in []totalJSON) ([]DayTotal, error) {
 		out = append(out, DayTotal{Day: d, Window: w, Edges: j.Edges, Trips: j.Trips,
 			DistanceSum: j.DistanceSum, StraightSum: j.StraightSum, DurationSum: j.DurationSum})
 	}
-	order := edgeOrderOf(meta.Windows)
-	slices.SortFunc(out, order.compareTotals)
-	for i := 1; i < len(out); i++ {
-		if order.compareTotals(out[i-1], out[i]) == 0 {
-			return nil, fmt.Errorf("day totals: day %s window %s twice", out[i].Day, meta.WindowName(out[i].Window))
-		}
+	if twice, ok := edgeOrderOf(meta.Windows).sortTotals(out); !ok {
+		return nil, fmt.Errorf("day totals: day %s window %s twice", twice.Day, meta.WindowName(twice.Window))
 	}
 	trips := make([]int64, len(meta.Windows))
 	for _, t := range out {
@@ -182,6 +178,18 @@ func selectTotals(meta *Meta, totals []DayTotal, opts ReadOptions) []DayTotal {
 		}
 	}
 	return out
+}
+
+// sortTotals puts totals in store order; ok is false when a day and
+// window is in two of them, twice.
+func (o edgeOrder) sortTotals(totals []DayTotal) (twice DayTotal, ok bool) {
+	slices.SortFunc(totals, o.compareTotals)
+	for i := 1; i < len(totals); i++ {
+		if o.compareTotals(totals[i-1], totals[i]) == 0 {
+			return totals[i], false
+		}
+	}
+	return DayTotal{}, true
 }
 
 // compareTotals orders day totals as their edges: by day, then window
@@ -267,12 +275,7 @@ func (out *Store) mergeTotals(stores []*Store) {
 		}
 		all = append(all, totals...)
 	}
-	order := edgeOrderOf(out.Meta.Windows)
-	slices.SortFunc(all, order.compareTotals)
-	for i := 1; i < len(all); i++ {
-		if order.compareTotals(all[i-1], all[i]) == 0 {
-			return
-		}
+	if _, ok := edgeOrderOf(out.Meta.Windows).sortTotals(all); ok {
+		out.totals, out.totalsRecorded = all, true
 	}
-	out.totals, out.totalsRecorded = all, true
 }
