@@ -188,7 +188,6 @@ type periodReader struct {
 	look     *dayLookup
 	window   regiongraph.WindowIndex
 	minTrips int
-	ref      float64
 	// daySpeeds holds, per before day, the speeds and trips of the
 	// edges with at least minTrips trips, for the bar speed.
 	daySpeeds [][]speedTrips
@@ -200,7 +199,7 @@ func newPeriodReader(days [2][]string, maxID int, window regiongraph.WindowIndex
 		pd.network[p] = make([]dayTotals, len(pd.days[p]))
 	}
 	return &periodReader{pd: pd, look: newDayLookup(days), window: window, minTrips: sb.Options.Skyline.MinTrips,
-		ref: sb.Options.ReferenceSpeed, daySpeeds: make([][]speedTrips, len(days[0]))}
+		daySpeeds: make([][]speedTrips, len(days[0]))}
 }
 
 // read adds up the edges of analysed days of period only (of either
