@@ -433,11 +433,7 @@ func (s *Store) writeDataset(dir string, pageBytes int) error {
 		return err
 	}
 	dw.pageBytes = pageBytes
-	edges := s.Edges
-	if compare := edgeOrderOf(s.Meta.Windows).compare; !slices.IsSortedFunc(edges, compare) {
-		edges = slices.Clone(edges)
-		slices.SortStableFunc(edges, compare)
-	}
+	edges := edgeOrderOf(s.Meta.Windows).sorted(s.Edges)
 	for len(edges) > 0 {
 		n := 1
 		for n < len(edges) && edges[n].Day == edges[0].Day {

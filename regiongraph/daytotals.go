@@ -95,10 +95,8 @@ func totalsOf(windows []Window, edges []Edge) []DayTotal {
 	if !a.outOfOrder {
 		return a.totals
 	}
-	sorted := slices.Clone(edges)
-	slices.SortStableFunc(sorted, a.order.compare)
 	a = newTotalsAdder(windows)
-	a.add(sorted)
+	a.add(a.order.sorted(edges))
 	return a.totals
 }
 

@@ -179,11 +179,7 @@ func (r *DayReader) readDay(d dayJSON, buf *readBuffers, edges *[]Edge, trips []
 // eachInMemory is Each of edges held in memory: the store's edges in
 // store order (sorted first if they are not) cut into days.
 func (r *DayReader) eachInMemory(ctx context.Context, visit func(day Day, edges []Edge) error) error {
-	edges := r.store.Edges
-	if compare := edgeOrderOf(r.store.Meta.Windows).compare; !slices.IsSortedFunc(edges, compare) {
-		edges = slices.Clone(edges)
-		slices.SortStableFunc(edges, compare)
-	}
+	edges := edgeOrderOf(r.store.Meta.Windows).sorted(r.store.Edges)
 	var starts []int
 	for i := range edges {
 		if i == 0 || edges[i].Day != edges[i-1].Day {

@@ -157,6 +157,17 @@ func (o edgeOrder) compare(a, b Edge) int {
 	return cmp.Compare(a.To, b.To)
 }
 
+// sorted returns edges in store order: edges themselves when they are in
+// it, else a sorted copy (edges are not changed).
+func (o edgeOrder) sorted(edges []Edge) []Edge {
+	if slices.IsSortedFunc(edges, o.compare) {
+		return edges
+	}
+	out := slices.Clone(edges)
+	slices.SortStableFunc(out, o.compare)
+	return out
+}
+
 // Regions returns the regions the store was built on, kept in the store by
 // Ingest (and in the file by WriteParquet) so that later steps need not be
 // given the regions file again.
