@@ -435,10 +435,7 @@ func (s *Store) writeDataset(dir string, pageBytes int) error {
 	dw.pageBytes = pageBytes
 	edges := edgeOrderOf(s.Meta.Windows).sorted(s.Edges)
 	for len(edges) > 0 {
-		n := 1
-		for n < len(edges) && edges[n].Day == edges[0].Day {
-			n++
-		}
+		n := dayLen(edges)
 		if err := dw.WriteDay(edges[0].Day, edges[:n]); err != nil {
 			dw.Abort()
 			return err

@@ -138,10 +138,7 @@ func (p *dayPipe) add(es []Edge) error {
 			p.ordered = true
 		}
 		p.day = es[0].Day
-		n := 1
-		for n < len(es) && es[n].Day == p.day {
-			n++
-		}
+		n := dayLen(es)
 		p.totals.add(es[:n])
 		// The edges of a window come in one piece, after the windows
 		// before it, so each piece is put in the day file's order as it
@@ -408,10 +405,7 @@ func (d *ingestDays) begin(s *Store) (func([]Edge) error, func() error, error) {
 				}
 				cur.day = es[0].Day
 			}
-			n := 1
-			for n < len(es) && es[n].Day == cur.day {
-				n++
-			}
+			n := dayLen(es)
 			// The sink must not keep es: the day's edges are copied.
 			cur.edges = append(cur.edges, es[:n]...)
 			es = es[n:]

@@ -22,14 +22,10 @@ func (m *memoryDays) next() (Day, []Edge, error) {
 	if len(m.edges) == 0 {
 		return 0, nil, nil
 	}
-	day := m.edges[0].Day
-	n := 1
-	for n < len(m.edges) && m.edges[n].Day == day {
-		n++
-	}
+	n := dayLen(m.edges)
 	es := m.edges[:n]
 	m.edges = m.edges[n:]
-	return day, es, nil
+	return es[0].Day, es, nil
 }
 
 func (m *memoryDays) close() {}

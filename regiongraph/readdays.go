@@ -181,10 +181,8 @@ func (r *DayReader) readDay(d dayJSON, buf *readBuffers, edges *[]Edge, trips []
 func (r *DayReader) eachInMemory(ctx context.Context, visit func(day Day, edges []Edge) error) error {
 	edges := edgeOrderOf(r.store.Meta.Windows).sorted(r.store.Edges)
 	var starts []int
-	for i := range edges {
-		if i == 0 || edges[i].Day != edges[i-1].Day {
-			starts = append(starts, i)
-		}
+	for i := 0; i < len(edges); i += dayLen(edges[i:]) {
+		starts = append(starts, i)
 	}
 	starts = append(starts, len(edges))
 	return forEach(len(starts)-1, func(i int) error {

@@ -157,6 +157,16 @@ func (o edgeOrder) compare(a, b Edge) int {
 	return cmp.Compare(a.To, b.To)
 }
 
+// dayLen returns the number of edges at the start of edges on the day of
+// the first (0 when there are none): in store order, that day's edges.
+func dayLen(edges []Edge) int {
+	n := 0
+	for n < len(edges) && edges[n].Day == edges[0].Day {
+		n++
+	}
+	return n
+}
+
 // sorted returns edges in store order: edges themselves when they are in
 // it, else a sorted copy (edges are not changed).
 func (o edgeOrder) sorted(edges []Edge) []Edge {
